@@ -1,0 +1,202 @@
+"""Whole-envelope evaluation: every case of a project on the Mach x altitude grid, and the verdict.
+
+``evaluate_project(project)`` builds the grid over the envelope's bounding box,
+masks it by the envelope polygon and evaluates every (or the chosen) case with
+``engine_air.match.evaluate_conditions``, one vectorised call per case.
+Grid arrays have shape (altitude_points, mach_points): row i is altitude
+``altitude_m[i]``, column j is Mach ``mach[j]``.
+
+The summary gives, for each check, whether it holds at every envelope point of
+every case, the worst value and margin and where, and the share of envelope
+points (over all evaluated cases) at which it fails.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+
+from . import flags as F
+from .envelope import envelope_mask, grid_axes
+from .match import OperatingPoints, evaluate_conditions
+from .model import Project
+
+WORST = "worst of all cases"
+
+
+class Cancelled(Exception):
+    """Raised inside ``evaluate_project`` when its ``cancelled`` callback says so."""
+
+
+@dataclass
+class CaseMap:
+    name: str
+    points: OperatingPoints  # arrays of shape (altitude_points, mach_points)
+
+
+@dataclass
+class LimitSummary:
+    """One check over the whole envelope."""
+
+    name: str
+    label: str
+    limit_text: str
+    holds: bool
+    worst_value: float
+    worst_margin: float
+    worst_mach: float
+    worst_altitude_m: float
+    worst_case: str
+    failing_share: float  # failing points / envelope points judged by this check, all cases
+    judged_points: int
+
+
+@dataclass
+class MapResult:
+    project: Project
+    mach: np.ndarray  # (nx,)
+    altitude_m: np.ndarray  # (ny,)
+    inside: np.ndarray  # (ny, nx) bool: inside the envelope polygon
+    cases: list[CaseMap]
+    summary: list[LimitSummary] = field(default_factory=list)
+
+    @property
+    def holds(self) -> bool:
+        return all(s.holds for s in self.summary)
+
+    def case_map(self, name: str) -> CaseMap:
+        for c in self.cases:
+            if c.name == name:
+                return c
+        raise KeyError(name)
+
+    def quantity(self, case: str, key: str) -> np.ndarray:
+        """A (ny, nx) map of quantity ``key`` for ``case`` (or WORST), NaN outside the envelope.
+
+        For WORST a margin takes the least value over the cases and a level
+        quantity the value of the case whose limiting relative margin is least.
+        """
+        if case != WORST:
+            values = np.array(self.case_map(case).points.value(key), dtype=float)
+        else:
+            values = self._worst(key)
+        return np.where(self.inside, values, np.nan)
+
+    def worst_case_index(self) -> np.ndarray:
+        """(ny, nx) index of the case with the least limiting relative margin at each point."""
+        rel = np.stack([_limiting_relative_margin(c.points) for c in self.cases])
+        rel = np.where(np.isnan(rel), np.inf, rel)
+        return np.argmin(rel, axis=0)
+
+    def _worst(self, key: str) -> np.ndarray:
+        stack = np.stack([np.asarray(c.points.value(key), dtype=float) for c in self.cases])
+        if key.endswith("margin") or key == "recovery_minus_reference":
+            with np.errstate(invalid="ignore"):
+                return np.nanmin(np.where(np.isnan(stack), np.inf, stack), axis=0)
+        idx = self.worst_case_index()
+        return np.take_along_axis(stack, idx[None], axis=0)[0]
+
+    def flags(self, case: str) -> np.ndarray:
+        """(ny, nx) flag bits; for WORST the union over cases."""
+        if case != WORST:
+            bits = self.case_map(case).points.flags
+        else:
+            bits = np.bitwise_or.reduce(np.stack([c.points.flags for c in self.cases]), axis=0)
+        return np.where(self.inside, bits, bits | F.OUTSIDE_ENVELOPE)
+
+    def failing(self, case: str, check: str | None = None) -> np.ndarray:
+        """(ny, nx) bool: some (or the named) check fails at an envelope point."""
+        cases = self.cases if case == WORST else [self.case_map(case)]
+        out = np.zeros(self.inside.shape, bool)
+        for c in cases:
+            for chk in c.points.checks:
+                if check is None or chk.name == check:
+                    out |= chk.fails
+        return out & self.inside
+
+
+def _limiting_relative_margin(points: OperatingPoints) -> np.ndarray:
+    if not points.checks:
+        return np.full(points.mach.shape, np.nan)
+    rel = np.stack([np.where(c.fails, np.minimum(c.relative_margin, 0) - 1e6, np.where(c.applies, c.relative_margin, np.inf)) for c in points.checks])
+    return np.min(rel, axis=0)
+
+
+def evaluate_project(
+    project: Project,
+    case_names: list[str] | None = None,
+    progress: Callable[[float], None] | None = None,
+    cancelled: Callable[[], bool] | None = None,
+) -> MapResult:
+    """Evaluate ``project`` over its envelope grid for every case (or those named).
+
+    ``progress(fraction)`` is called after each case; ``cancelled()`` is polled
+    before each case and ``Cancelled`` raised when it returns True.
+    """
+    mach_1d, alt_1d = grid_axes(project.envelope, project.grid)
+    mach_2d, alt_2d = np.meshgrid(mach_1d, alt_1d)
+    inside = envelope_mask(project.envelope, mach_2d, alt_2d)
+    chosen = [c for c in project.cases if case_names is None or c.name in case_names]
+    if case_names is not None:
+        unknown = set(case_names) - {c.name for c in project.cases}
+        if unknown:
+            raise KeyError(f"no case named {sorted(unknown)}; cases are {[c.name for c in project.cases]}")
+    maps = []
+    for i, case in enumerate(chosen):
+        if cancelled is not None and cancelled():
+            raise Cancelled()
+        points = evaluate_conditions(project, case, mach_1d[None, :], alt_1d[:, None])
+        points.flags = np.where(inside, points.flags, points.flags | F.OUTSIDE_ENVELOPE)
+        maps.append(CaseMap(case.name, points))
+        if progress is not None:
+            progress((i + 1) / len(chosen))
+    result = MapResult(project, mach_1d, alt_1d, inside, maps)
+    result.summary = summarise(result)
+    return result
+
+
+def summarise(result: MapResult) -> list[LimitSummary]:
+    """Per check over every evaluated case: holds, worst value and where, failing share."""
+    if not result.cases:
+        return []
+    names = [c.name for c in result.cases[0].points.checks]
+    mach_2d, alt_2d = np.meshgrid(result.mach, result.altitude_m)
+    out = []
+    for k, name in enumerate(names):
+        best = None
+        judged = failing = 0
+        label = limit_text = ""
+        for cm in result.cases:
+            chk = cm.points.checks[k]
+            label, limit_text = chk.label, chk.limit_text
+            applies = chk.applies & result.inside
+            judged += int(applies.sum())
+            failing += int((chk.fails & applies).sum())
+            if not applies.any():
+                continue
+            rank = np.where(applies, np.where(chk.fails, np.minimum(chk.relative_margin, 0) - 1e6, chk.relative_margin), np.inf)
+            j = np.unravel_index(np.argmin(rank), rank.shape)
+            if best is None or rank[j] < best[0]:
+                best = (rank[j], cm.name, j, chk)
+        if best is None:
+            out.append(LimitSummary(name, label, limit_text, True, np.nan, np.nan, np.nan, np.nan, "", 0.0, 0))
+            continue
+        _, case_name, j, chk = best
+        out.append(
+            LimitSummary(
+                name=name,
+                label=label,
+                limit_text=limit_text,
+                holds=failing == 0,
+                worst_value=float(chk.value[j]),
+                worst_margin=float(chk.margin[j]),
+                worst_mach=float(mach_2d[j]),
+                worst_altitude_m=float(alt_2d[j]),
+                worst_case=case_name,
+                failing_share=failing / judged if judged else 0.0,
+                judged_points=judged,
+            )
+        )
+    return out

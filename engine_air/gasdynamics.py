@@ -1,0 +1,268 @@
+"""One-dimensional compressible flow of a perfect gas: isentropic relations,
+the mass-flow function and its inverse, normal and weak oblique shocks.
+
+All functions take numpy arrays of any shape (they broadcast) and use
+gamma = 1.4 unless told otherwise. Equation numbers refer to NACA Report 1135 [1].
+
+Worked examples [1]: at M = 2, p/p_t = 0.12780, T/T_t = 0.55556, A/A* = 1.6875;
+a normal shock at M1 = 2 gives M2 = 0.57735, p_t2/p_t1 = 0.72087, p2/p1 = 4.5;
+an oblique shock at M1 = 2 turning the flow 10 degrees has a wave angle of
+39.31 degrees, M2 = 1.6405 and p_t2/p_t1 = 0.98464.
+
+[1] NACA Report 1135, Equations, Tables, and Charts for Compressible Flow (1953).
+[2] Thompson, M. J., "A note on the calculation of oblique shock-wave characteristics",
+    J. Aero. Sci. 17 (1950) 741; closed-form wave angle as given by
+    Wolf, T., "Comment on approximate formula of weak oblique shock wave angle", AIAA J. 31 (1993).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .constants import GAMMA, R_AIR
+
+
+def _isentropic_base(mach, gamma=GAMMA):
+    m = np.asarray(mach, dtype=float)
+    return 1.0 + 0.5 * (gamma - 1.0) * m * m
+
+
+def _power(base, exponent):
+    """base**exponent with multiplications for the exponents of gamma = 1.4 (3, 3.5 and their negatives)."""
+    if exponent in (3.0, -3.0):
+        cube = base * base * base
+        return cube if exponent > 0 else 1.0 / cube
+    if exponent in (3.5, -3.5):
+        value = base * base * base * np.sqrt(base)
+        return value if exponent > 0 else 1.0 / value
+    return base**exponent
+
+
+def temperature_ratio(mach, gamma=GAMMA):
+    """Static-to-total temperature T/T_t = (1 + (g-1)/2 M^2)^-1, dimensionless [1, eq. 43]."""
+    return 1.0 / _isentropic_base(mach, gamma)
+
+
+def pressure_ratio(mach, gamma=GAMMA):
+    """Static-to-total pressure p/p_t = (1 + (g-1)/2 M^2)^(-g/(g-1)), dimensionless [1, eq. 44]."""
+    return _power(_isentropic_base(mach, gamma), -gamma / (gamma - 1.0))
+
+
+def density_ratio(mach, gamma=GAMMA):
+    """Static-to-total density rho/rho_t = (1 + (g-1)/2 M^2)^(-1/(g-1)), dimensionless [1, eq. 45]."""
+    return _isentropic_base(mach, gamma) ** (-1.0 / (gamma - 1.0))
+
+
+def dynamic_to_total_pressure(mach, gamma=GAMMA):
+    """q/p_t = (g/2) M^2 (p/p_t), dimensionless (q = rho V^2 / 2 = g p M^2 / 2)."""
+    m = np.asarray(mach, dtype=float)
+    return 0.5 * gamma * m * m * pressure_ratio(m, gamma)
+
+
+def area_ratio(mach, gamma=GAMMA):
+    """A/A* = (1/M) [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^((g+1)/(2(g-1))), dimensionless [1, eq. 80]."""
+    m = np.asarray(mach, dtype=float)
+    with np.errstate(divide="ignore"):
+        return _power(2.0 / (gamma + 1.0) * _isentropic_base(m, gamma), (gamma + 1.0) / (2.0 * (gamma - 1.0))) / m
+
+
+def mass_flow_parameter(mach, gamma=GAMMA, r=R_AIR):
+    """Mass-flow function MFP = W sqrt(T_t) / (A p_t), kg K^0.5 / (N s).
+
+    MFP(M) = sqrt(g/R) M (1 + (g-1)/2 M^2)^(-(g+1)/(2(g-1))).
+    At M = 1 (choking) and air, MFP* = 0.040418; times p_ref/sqrt(T_ref) this is
+    the choking corrected flow per unit area, 241.24 kg/(s m^2).
+    """
+    m = np.asarray(mach, dtype=float)
+    return np.sqrt(gamma / r) * m * _power(_isentropic_base(m, gamma), -(gamma + 1.0) / (2.0 * (gamma - 1.0)))
+
+
+def choked_mass_flow_parameter(gamma=GAMMA, r=R_AIR) -> float:
+    """MFP at M = 1, kg K^0.5 / (N s)."""
+    return float(mass_flow_parameter(1.0, gamma, r))
+
+
+def choked_corrected_flow_per_area(gamma=GAMMA, r=R_AIR) -> float:
+    """Choking corrected flow per unit area, W_c/A = MFP* p_ref / sqrt(T_ref), kg/(s m^2) (241.24 for air)."""
+    from .constants import P_REF, T_REF
+
+    return choked_mass_flow_parameter(gamma, r) * P_REF / np.sqrt(T_REF)
+
+
+# Inverse of the flow function. A table in s = sqrt(1 - MFP/MFP*), in which the
+# Mach number is a smooth function on each branch (near M = 1, 1 - MFP/MFP* grows
+# like (1 - M)^2), gives a start value; Newton steps on ln(MFP) polish it.
+_SUB_M = np.linspace(0.0, 1.0, 4097)
+_SUP_M = 1.0 + np.expm1(np.linspace(0.0, np.log(60.0), 4097))
+
+
+def _s_of(m, gamma):
+    ratio = np.clip(area_ratio(np.maximum(m, 1e-300), gamma) ** -1.0, 0.0, 1.0)
+    return np.sqrt(1.0 - ratio)
+
+
+_TABLES: dict[float, tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]] = {}
+
+
+def _tables(gamma):
+    if gamma not in _TABLES:
+        s_sub = _s_of(_SUB_M, gamma)
+        s_sup = _s_of(_SUP_M, gamma)
+        # np.interp needs increasing abscissae: s falls with M subsonically.
+        _TABLES[gamma] = (s_sub[::-1], _SUB_M[::-1], s_sup, _SUP_M)
+    return _TABLES[gamma]
+
+
+def mach_from_flow_ratio(flow_ratio, supersonic=False, gamma=GAMMA):
+    """Mach number from MFP/MFP* = A*/A, dimensionless, on the chosen branch.
+
+    Returns NaN where ``flow_ratio`` > 1 (more flow than choking allows) or is
+    not finite, 1 where it equals 1, 0 (subsonic) where it is 0.
+    Accurate to about 1e-12 in Mach number.
+    """
+    r = np.asarray(flow_ratio, dtype=float)
+    s_sub, m_sub, s_sup, m_sup = _tables(gamma)
+    valid = np.isfinite(r) & (r >= 0.0) & (r <= 1.0 + 1e-12)
+    rc = np.clip(np.where(valid, r, 0.5), 0.0, 1.0)
+    s = np.sqrt(1.0 - rc)
+    if supersonic:
+        m = np.interp(s, s_sup, m_sup)
+    else:
+        m = np.interp(s, s_sub, m_sub)
+    # One Newton step on f(M) = MFP(M)/MFP* - r, with
+    # f'(M) = (MFP/MFP*) (1 - M^2) / (M (1 + (g-1)/2 M^2)); the table start is good to ~1e-8.
+    polish = (rc > 0.0) & (np.abs(1.0 - m) > 1e-5)
+    mm = np.where(polish, m, 2.0)
+    f = 1.0 / area_ratio(mm, gamma)
+    df = f * (1.0 - mm * mm) / (mm * _isentropic_base(mm, gamma))
+    m = np.where(polish, mm - (f - rc) / df, m)
+    if not supersonic:
+        m = np.where(rc == 0.0, 0.0, m)
+    return np.where(valid, m, np.nan)
+
+
+def mach_from_mass_flow_parameter(mfp, supersonic=False, gamma=GAMMA, r=R_AIR):
+    """Mach number from MFP = W sqrt(T_t)/(A p_t) in kg K^0.5/(N s); subsonic root unless ``supersonic``.
+
+    NaN where MFP exceeds the choking value (no solution).
+    """
+    return mach_from_flow_ratio(np.asarray(mfp, dtype=float) / choked_mass_flow_parameter(gamma, r), supersonic, gamma)
+
+
+@dataclass(frozen=True)
+class NormalShock:
+    """State change across a normal shock (arrays)."""
+
+    downstream_mach: np.ndarray
+    total_pressure_ratio: np.ndarray  # p_t2 / p_t1
+    static_pressure_ratio: np.ndarray  # p2 / p1
+    static_temperature_ratio: np.ndarray  # T2 / T1
+
+
+def normal_shock(upstream_mach, gamma=GAMMA) -> NormalShock:
+    """Normal shock at upstream Mach M1 [1, eqs. 96, 93, 94, 99].
+
+    M2^2 = (1 + (g-1)/2 M1^2) / (g M1^2 - (g-1)/2)
+    p2/p1 = 1 + 2g/(g+1) (M1^2 - 1)
+    p_t2/p_t1 = [(g+1) M1^2 / ((g-1) M1^2 + 2)]^(g/(g-1)) [(g+1) / (2 g M1^2 - (g-1))]^(1/(g-1))
+
+    Where M1 <= 1 there is no shock: M2 = M1 and every ratio is 1.
+    """
+    m1 = np.asarray(upstream_mach, dtype=float)
+    shock = m1 > 1.0
+    ms = np.where(shock, m1, 2.0)
+    m1s = ms * ms
+    m2 = np.sqrt((1.0 + 0.5 * (gamma - 1.0) * m1s) / (gamma * m1s - 0.5 * (gamma - 1.0)))
+    p_ratio = 1.0 + 2.0 * gamma / (gamma + 1.0) * (m1s - 1.0)
+    pt_ratio = ((gamma + 1.0) * m1s / ((gamma - 1.0) * m1s + 2.0)) ** (gamma / (gamma - 1.0)) * (
+        (gamma + 1.0) / (2.0 * gamma * m1s - (gamma - 1.0))
+    ) ** (1.0 / (gamma - 1.0))
+    t_ratio = p_ratio * (2.0 + (gamma - 1.0) * m1s) / ((gamma + 1.0) * m1s)
+    one = np.ones_like(m1)
+    return NormalShock(
+        np.where(shock, m2, m1),
+        np.where(shock, pt_ratio, one),
+        np.where(shock, p_ratio, one),
+        np.where(shock, t_ratio, one),
+    )
+
+
+def max_deflection_rad(upstream_mach, gamma=GAMMA):
+    """Largest flow deflection (rad) for an attached oblique shock at M1 [1, eq. 168].
+
+    sin^2(beta_max) = [ (g+1)/4 M^2 - 1 + sqrt((g+1)((g+1)/16 M^4 + (g-1)/2 M^2 + 1)) ] / (g M^2),
+    then the deflection from the theta-beta-M relation. 0 where M1 <= 1.
+    """
+    m = np.asarray(upstream_mach, dtype=float)
+    sup = m > 1.0
+    ms = np.where(sup, m, 2.0)
+    m2 = ms * ms
+    sin2 = ((gamma + 1.0) / 4.0 * m2 - 1.0 + np.sqrt((gamma + 1.0) * ((gamma + 1.0) / 16.0 * m2 * m2 + 0.5 * (gamma - 1.0) * m2 + 1.0))) / (gamma * m2)
+    beta = np.arcsin(np.sqrt(np.clip(sin2, 0.0, 1.0)))
+    return np.where(sup, deflection_from_wave_angle(ms, beta, gamma), 0.0)
+
+
+def deflection_from_wave_angle(upstream_mach, wave_angle_rad, gamma=GAMMA):
+    """Flow deflection (rad) behind an oblique shock of wave angle beta at M1 [1, eq. 138]:
+
+    tan(theta) = 2 cot(beta) (M^2 sin^2 beta - 1) / (M^2 (g + cos 2 beta) + 2).
+    """
+    m = np.asarray(upstream_mach, dtype=float)
+    b = np.asarray(wave_angle_rad, dtype=float)
+    m2 = m * m
+    return np.arctan(2.0 / np.tan(b) * (m2 * np.sin(b) ** 2 - 1.0) / (m2 * (gamma + np.cos(2.0 * b)) + 2.0))
+
+
+@dataclass(frozen=True)
+class ObliqueShock:
+    """State change across a weak (attached) oblique shock (arrays).
+
+    Where the shock is detached (``attached`` False) the other fields are NaN.
+    """
+
+    wave_angle_rad: np.ndarray
+    downstream_mach: np.ndarray
+    total_pressure_ratio: np.ndarray
+    static_pressure_ratio: np.ndarray
+    attached: np.ndarray
+
+
+def oblique_shock(upstream_mach, deflection_rad, gamma=GAMMA) -> ObliqueShock:
+    """Weak oblique shock turning a supersonic stream by ``deflection_rad`` (>= 0).
+
+    Wave angle in closed form [2]:
+        tan(beta) = (M^2 - 1 + 2 L cos((4 pi + acos X)/3)) / (3 (1 + (g-1)/2 M^2) tan(theta))
+        L = sqrt((M^2 - 1)^2 - 3 (1 + (g-1)/2 M^2)(1 + (g+1)/2 M^2) tan^2(theta))
+        X = ((M^2 - 1)^3 - 9 (1 + (g-1)/2 M^2)(1 + (g-1)/2 M^2 + (g+1)/4 M^4) tan^2(theta)) / L^3
+    then the normal-shock relations on M1 sin(beta), and M2 = M_n2 / sin(beta - theta) [1, eq. 132].
+    A zero deflection is a Mach wave (beta = asin(1/M), no loss). The shock is
+    detached where M1 <= 1 or theta exceeds ``max_deflection_rad(M1)``.
+    """
+    m = np.asarray(upstream_mach, dtype=float)
+    th = np.asarray(deflection_rad, dtype=float)
+    m, th = np.broadcast_arrays(m, th)
+    attached = (m > 1.0) & (th >= 0.0) & (th <= max_deflection_rad(m, gamma))
+    turning = attached & (th > 1e-12)
+    ms = np.where(attached, m, 2.0)
+    ts = np.where(turning, th, 0.1)
+    m2 = ms * ms
+    tan_t = np.tan(ts)
+    base = 1.0 + 0.5 * (gamma - 1.0) * m2
+    lam2 = (m2 - 1.0) ** 2 - 3.0 * base * (1.0 + 0.5 * (gamma + 1.0) * m2) * tan_t**2
+    lam = np.sqrt(np.maximum(lam2, 0.0))
+    safe_lam = np.where(lam > 0.0, lam, 1.0)
+    chi = ((m2 - 1.0) ** 3 - 9.0 * base * (base + 0.25 * (gamma + 1.0) * m2 * m2) * tan_t**2) / safe_lam**3
+    tan_b = (m2 - 1.0 + 2.0 * lam * np.cos((4.0 * np.pi + np.arccos(np.clip(chi, -1.0, 1.0))) / 3.0)) / (3.0 * base * tan_t)
+    beta = np.where(turning, np.arctan(tan_b), np.arcsin(1.0 / ms))
+    normal = normal_shock(np.where(turning, ms * np.sin(beta), 1.0), gamma)
+    m_down = np.where(turning, normal.downstream_mach / np.sin(beta - np.where(turning, ts, 0.0)), ms)
+    nan = np.nan
+    return ObliqueShock(
+        np.where(attached, beta, nan),
+        np.where(attached, m_down, nan),
+        np.where(attached, normal.total_pressure_ratio, nan),
+        np.where(attached, normal.static_pressure_ratio, nan),
+        attached,
+    )
