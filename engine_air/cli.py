@@ -83,14 +83,15 @@ def cmd_check(args) -> int:
     print(f"  cases: {', '.join(c.name for c in result.cases)}")
     print(f"  grid {len(result.mach)} Mach x {len(result.altitude_m)} altitude, {inside} points inside the envelope per case")
     print()
-    header = f"{'limit':<40} {'verdict':<7} {'worst':>8} {'margin':>8} {'Mach':>6} {'alt m':>7}  {'fails':>6}  case"
+    header = (f"{'limit':<40} {'criterion':<28} {'verdict':<7} {'worst':>8} {'margin':>8} {'Mach':>6} "
+              f"{'alt m':>7}  {'fails':>6}  case")
     print(header)
     print("-" * len(header))
     failing = []
     for s in result.summary:
         verdict = "holds" if s.holds else "FAILS"
         print(
-            f"{(s.label + ' (' + s.limit_text + ')')[:40]:<40} {verdict:<7} {_fmt(s.worst_value):>8} "
+            f"{s.label:<40} {s.limit_text:<28} {verdict:<7} {_fmt(s.worst_value):>8} "
             f"{_fmt(s.worst_margin):>8} {_fmt(s.worst_mach, 3):>6} {_fmt(s.worst_altitude_m, 0):>7}  "
             f"{100 * s.failing_share:5.1f}%  {s.worst_case}"
         )
