@@ -20,6 +20,7 @@ from .errors import ProjectError
 from .evaluate import evaluate_project
 from .match import REGIMES, evaluate_conditions
 from .envelope import polygon_contains
+from .explain import mechanism
 from .project_file import load_project
 from .report import point_record
 
@@ -101,11 +102,9 @@ def cmd_check(args) -> int:
     for s in failing:
         points = result.case_map(s.worst_case).points
         j = (int(np.argmin(np.abs(result.altitude_m - s.worst_altitude_m))), int(np.argmin(np.abs(result.mach - s.worst_mach))))
-        names = [n for n in F.names_of(int(points.flags[j])) if n not in ("ok", "additive-drag-not-modelled", "no-tip-speed")]
         regime = REGIMES[int(points.regime[j])]
-        why = "; ".join(F.DESCRIPTIONS[n] for n in names) if names else "the limit is exceeded without a special regime"
         print(f"{s.label}: worst at Mach {s.worst_mach:.3f}, {s.worst_altitude_m:.0f} m, case {s.worst_case!r}, "
-              f"{regime} operation. Mechanism: {why}")
+              f"{regime} operation: {mechanism(project, points, j, s.name)}.")
     if failing:
         print(f"\nVERDICT: {len(failing)} of {len(result.summary)} limits FAIL somewhere in the envelope.")
         return EXIT_FAILS
