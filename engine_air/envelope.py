@@ -76,20 +76,31 @@ def polygon_contains(poly_mach, poly_alt, mach, alt) -> np.ndarray:
     """
     px, py, (x0, sx), (y0, sy) = _frame(poly_mach, poly_alt)
     px, py = (px - x0) / sx, (py - y0) / sy
-    x, y = np.broadcast_arrays((np.asarray(mach, dtype=float) - x0) / sx,
-                               (np.asarray(alt, dtype=float) - y0) / sy)
-    inside = np.zeros(x.shape, dtype=bool)
-    on_edge = np.zeros(x.shape, dtype=bool)
+    xb, yb = np.broadcast_arrays((np.asarray(mach, dtype=float) - x0) / sx,
+                                 (np.asarray(alt, dtype=float) - y0) / sy)
+    shape = xb.shape
+    x, y = xb.ravel(), yb.ravel()
+    # Sort the points by altitude once: the points an edge can affect then form
+    # one contiguous run, found by binary search (NaN sorts last, never hit).
+    order = np.argsort(y, kind="stable")
+    ys = y[order]
+    inside = np.zeros(x.size, dtype=bool)
+    on_edge = np.zeros(x.size, dtype=bool)
+    tol = EDGE_TOLERANCE
     n = px.size
     for i in range(n):
         ax, ay = px[i], py[i]
         bx, by = px[(i + 1) % n], py[(i + 1) % n]
+        lo_y, hi_y = min(ay, by), max(ay, by)
         if ay != by:
-            crosses = (ay > y) != (by > y)
-            x_cross = ax + (y - ay) * (bx - ax) / (by - ay)
-            inside ^= crosses & (x < x_cross)
-        on_edge |= _segment_distance(x, y, ax, ay, bx, by) <= EDGE_TOLERANCE
-    return inside | on_edge
+            # the ray towards +x crosses this edge for lo_y <= y < hi_y
+            run = order[np.searchsorted(ys, lo_y, "left"):np.searchsorted(ys, hi_y, "left")]
+            x_cross = ax + (y[run] - ay) * (bx - ax) / (by - ay)
+            inside[run] ^= x[run] < x_cross
+        run = order[np.searchsorted(ys, lo_y - tol, "left"):np.searchsorted(ys, hi_y + tol, "right")]
+        near = run[(x[run] >= min(ax, bx) - tol) & (x[run] <= max(ax, bx) + tol)]
+        on_edge[near] |= _segment_distance(x[near], y[near], ax, ay, bx, by) <= tol
+    return (inside | on_edge).reshape(shape)
 
 
 def polygon_area(poly_mach, poly_alt) -> float:
@@ -101,6 +112,19 @@ def polygon_area(poly_mach, poly_alt) -> float:
     """
     x, y = _normalised(poly_mach, poly_alt)
     return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(np.roll(x, -1), y)) / 2.0)
+
+
+def vertices_collinear(poly_mach, poly_alt) -> bool:
+    """True when all vertices lie on one straight line (within ``EDGE_TOLERANCE``, normalised units).
+
+    Such a polygon encloses no area. Vertices are flight Mach number (-) and
+    altitude (m).
+    """
+    x, y = _normalised(poly_mach, poly_alt)
+    pts = np.column_stack((x - x.mean(), y - y.mean()))
+    if pts.shape[0] < 3:
+        return True
+    return bool(np.linalg.svd(pts, compute_uv=False)[-1] <= EDGE_TOLERANCE)
 
 
 def polygon_crossing_edges(poly_mach, poly_alt) -> tuple[int, int] | None:

@@ -22,7 +22,7 @@ from datetime import date, datetime, time
 
 import tomli_w
 
-from .envelope import polygon_area, polygon_crossing_edges
+from .envelope import polygon_area, polygon_crossing_edges, vertices_collinear
 from .errors import ProjectError, ProjectSaveError
 from .model import (
     INLET_TYPES,
@@ -115,11 +115,12 @@ class _Reader:
                 self.warn(f"{keypath}.{name}" if keypath else str(name), "unknown key, ignored")
 
     # -- structure -----------------------------------------------------------
-    def table(self, parent: dict, name: str, keypath: str, required: bool = True) -> dict | None:
+    def table(self, parent: dict, name: str, keypath: str, required: bool = True,
+              missing: str | None = None) -> dict | None:
         value = parent.get(name, _MISSING)
         if value is _MISSING:
             if required:
-                self.fail(keypath, None, f"missing; the file needs a [{keypath}] table")
+                self.fail(keypath, None, "missing; " + (missing or f"the file needs the table [{keypath}]"))
             return None
         if not isinstance(value, dict):
             self.fail(keypath, value, f"must be a table [{keypath}], not {_kind(value)}")
@@ -208,13 +209,14 @@ class _Reader:
         value = table.get(name, _MISSING)
         if value is _MISSING:
             if required:
-                self.fail(keypath, None, f"missing; required: a list of at least {min_len} number(s)")
+                self.fail(keypath, None, "missing; required: a list of numbers in square brackets")
             return None
         if not isinstance(value, (list, tuple)):
             self.fail(keypath, value, f"must be a list of numbers in square brackets, not {_kind(value)}")
         if len(value) < min_len or (max_len is not None and len(value) > max_len):
             size = f"{min_len} to {max_len}" if max_len is not None else f"at least {min_len}"
-            self.fail(keypath, list(value), f"must have {size} entries; it has {len(value)}")
+            noun = "entry" if (max_len or min_len) == 1 else "entries"
+            self.fail(keypath, list(value), f"must have {size} {noun}; it has {len(value)}")
         return tuple(self.check_number(v, f"{keypath}[{i}]", name, lo, hi, lo_open, hi_open, unit)
                      for i, v in enumerate(value))
 
@@ -306,7 +308,7 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
 
 
 def _read_ratings(r: _Reader, data: dict) -> tuple[Rating, ...]:
-    engine = r.table(data, "engine", "engine")
+    engine = r.table(data, "engine", "engine", missing="at least one [[engine.rating]] table is required")
     r.check_known(engine, "engine", ("rating",))
     items = r.table_array(engine, "rating", "engine.rating", "[[engine.rating]]")
     ratings: list[Rating] = []
@@ -344,6 +346,9 @@ def _read_envelope(r: _Reader, data: dict) -> Envelope:
     if len(alt) != len(mach):
         r.fail("envelope.altitude_m", list(t["altitude_m"]),
                f"must have one entry per envelope.mach value ({len(mach)}); it has {len(alt)}")
+    if vertices_collinear(mach, alt):
+        r.fail("envelope", {"mach": list(mach), "altitude_m": list(alt)},
+               "the vertices all lie on one line, so the polygon encloses no area")
     n = len(mach)
     for i in range(n):
         j = (i + 1) % n
@@ -359,7 +364,7 @@ def _read_envelope(r: _Reader, data: dict) -> Envelope:
                "list the vertices in order around the boundary")
     if polygon_area(mach, alt) <= 1e-9:
         r.fail("envelope", {"mach": list(mach), "altitude_m": list(alt)},
-               "the polygon encloses no area; the vertices must not all lie on one line")
+               "the polygon encloses no area")
     return Envelope(mach=mach, altitude_m=alt)
 
 
@@ -459,6 +464,8 @@ def load_project(path: str | os.PathLike) -> Project:
         info = os.stat(p)
         if stat.S_ISDIR(info.st_mode):
             raise ProjectError(p, "(file)", None, "is a folder, not a project file")
+        if not stat.S_ISREG(info.st_mode):
+            raise ProjectError(p, "(file)", None, "is not a regular file")
         if info.st_size > MAX_FILE_BYTES:
             raise ProjectError(p, "(file)", info.st_size, f"the file has {info.st_size} bytes; {limit}")
         with open(p, "rb") as f:

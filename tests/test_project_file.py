@@ -1,0 +1,846 @@
+"""Project file: loading, validation, saving; envelope polygon geometry."""
+
+from __future__ import annotations
+
+import copy
+import math
+import os
+import sys
+import tomllib
+import types
+from dataclasses import replace
+from pathlib import Path
+from unittest import mock
+
+import numpy as np
+import pytest
+import tomli_w
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+import engine_air
+from engine_air import project_file as pf
+from engine_air.envelope import (
+    envelope_mask,
+    grid_axes,
+    polygon_area,
+    polygon_contains,
+    polygon_crossing_edges,
+    polygon_self_intersects,
+    vertices_collinear,
+)
+from engine_air.errors import ProjectError, ProjectSaveError
+from engine_air.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
+
+SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_projects").glob("*.toml"))
+
+
+# -- helpers ---------------------------------------------------------------------
+
+def pitot_data() -> dict:
+    """A valid pitot project as parsed TOML data."""
+    return {
+        "project": {"format": 1, "title": "Test nacelle", "notes": "invented scenario"},
+        "limits": {"face_mach_max": 0.55, "throat_mach_max": 0.8, "recovery_min": "mil-e-5008b",
+                   "stable_flow_fraction": 0.85, "relative_tip_mach_max": 1.5},
+        "inlet": {"type": "pitot", "capture_area_m2": 1.2, "throat_area_m2": 1.02, "face_area_m2": 1.1,
+                  "duct_loss_coefficient": 0.03, "lip_suction_factor": 0.8},
+        "engine": {"rating": [
+            {"name": "max", "theta": [0.8, 1.0, 1.1, 1.35], "corrected_flow_kg_s": [92.0, 92.0, 88.0, 74.0],
+             "fan_tip_speed_m_s": 430.0},
+            {"name": "idle", "theta": [1.0], "corrected_flow_kg_s": [30.0]},
+        ]},
+        "envelope": {"mach": [0.15, 0.85, 0.85, 0.30], "altitude_m": [0.0, 0.0, 12500.0, 12500.0]},
+        "grid": {"mach_points": 121, "altitude_points": 101},
+        "case": [{"name": "standard day, max", "rating": "max", "isa_offset_K": 0.0},
+                 {"name": "hot day, max", "rating": "max", "isa_offset_K": 20}],
+    }
+
+
+def ramp_data() -> dict:
+    """A valid two-ramp external-compression project as parsed TOML data."""
+    d = pitot_data()
+    d["inlet"] = {"type": "external-ramp", "capture_area_m2": 0.55, "throat_area_m2": 0.40, "face_area_m2": 0.50,
+                  "duct_loss_coefficient": 0.04, "lip_suction_factor": 0.5, "ramp_angles_deg": [8.0, 7.0],
+                  "shock_on_lip_mach": 2.0}
+    return d
+
+
+def write(tmp_path: Path, data: dict, name: str = "study.toml") -> Path:
+    path = tmp_path / name
+    path.write_text(tomli_w.dumps(data), encoding="utf-8")
+    return path
+
+
+def load_error(tmp_path: Path, data: dict) -> ProjectError:
+    """Write ``data`` to a file, load it, and return the ProjectError raised."""
+    path = write(tmp_path, data)
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    err = info.value
+    assert type(err) is ProjectError
+    assert err.path == str(path)
+    assert str(path) in str(err)
+    assert "\n" not in str(err)
+    return err
+
+
+def setpath(d: dict, dotted: str, value) -> dict:
+    """Set ``value`` at a path like ``engine.rating.0.theta`` (``DELETE`` removes the key)."""
+    parts = dotted.split(".")
+    node = d
+    for p in parts[:-1]:
+        node = node[int(p)] if isinstance(node, list) else node[p]
+    last = parts[-1]
+    if isinstance(node, list):
+        if value is DELETE:
+            del node[int(last)]
+        else:
+            node[int(last)] = value
+    elif value is DELETE:
+        del node[last]
+    else:
+        node[last] = value
+    return d
+
+
+DELETE = object()
+NAN, INF = float("nan"), float("inf")
+
+
+# -- sample projects and round trips ----------------------------------------------
+
+@pytest.mark.parametrize("path", SAMPLES, ids=[p.name for p in SAMPLES])
+def test_sample_project_loads_and_round_trips(path, tmp_path):
+    project = pf.load_project(path)
+    assert project.warnings == ()
+    assert "invented scenario" in project.notes.lower()
+    assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
+    out = tmp_path / path.name
+    pf.save_project(project, out)
+    assert pf.load_project(out) == project
+
+
+def test_three_samples_exist():
+    assert {p.name for p in SAMPLES} >= {"subsonic_transport_nacelle.toml", "supersonic_two_ramp.toml",
+                                         "undersized_business_jet.toml"}
+
+
+@pytest.mark.parametrize("make", [pitot_data, ramp_data])
+def test_round_trip_load_dumps_save(make, tmp_path):
+    project = pf.load_project(write(tmp_path, make()))
+    assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
+    target = tmp_path / "saved.toml"
+    pf.save_project(project, target)
+    assert pf.load_project(target) == project
+    assert pf.load_project(str(target)) == project
+
+
+def test_loaded_values_match_file(tmp_path):
+    p = pf.load_project(write(tmp_path, pitot_data()))
+    assert p.format == 1 and p.title == "Test nacelle"
+    assert p.limits == Limits(0.55, 0.8, "mil-e-5008b", 0.85, 1.5, None)
+    assert p.inlet == Inlet("pitot", 1.2, 1.02, 1.1, 0.03, 0.8, (), None)
+    assert p.rating("max").theta == (0.8, 1.0, 1.1, 1.35)
+    assert p.rating("idle").fan_tip_speed_m_s is None
+    assert p.grid == Grid(121, 101)
+    assert p.case("hot day, max") == Case("hot day, max", "max", 20.0)
+    assert isinstance(p.cases[1].isa_offset_K, float)
+
+
+def test_dumps_layout_follows_interfaces():
+    text = pf.dumps_project(pf.project_from_dict(ramp_data()))
+    for header in ("[project]", "[limits]", "[inlet]", "[[engine.rating]]", "[envelope]", "[grid]", "[[case]]"):
+        assert header in text
+    assert "ramp_angles_deg = [8.0, 7.0]" in text
+    pitot_text = pf.dumps_project(pf.project_from_dict(pitot_data()))
+    assert "ramp_angles_deg" not in pitot_text and "shock_on_lip_mach" not in pitot_text
+    d = pitot_data()
+    del d["limits"]["throat_mach_max"]
+    assert "throat_mach_max" not in pf.dumps_project(pf.project_from_dict(d))
+
+
+def test_defaults_when_optional_keys_absent():
+    d = pitot_data()
+    del d["grid"]
+    for k in ("duct_loss_coefficient", "lip_suction_factor"):
+        del d["inlet"][k]
+    for k in ("throat_mach_max", "recovery_min", "stable_flow_fraction", "relative_tip_mach_max"):
+        del d["limits"][k]
+    del d["case"][0]["isa_offset_K"]
+    del d["project"]["title"], d["project"]["notes"]
+    p = pf.project_from_dict(d)
+    assert p.grid == Grid(121, 101)
+    assert p.inlet.duct_loss_coefficient == 0.0 and p.inlet.lip_suction_factor == 0.0
+    assert p.limits.throat_mach_max is None and p.limits.recovery_min is None
+    assert p.cases[0].isa_offset_K == 0.0
+    assert p.title == "" and p.notes == ""
+    assert pf.project_from_dict(tomllib.loads(pf.dumps_project(p))) == p
+
+
+# -- validation rules: (mutation, expected key) ---------------------------------------
+
+PITOT_RULES = [
+    # [project]
+    ("project", DELETE, "project"),
+    ("project", 1, "project"),
+    ("project.format", DELETE, "project.format"),
+    ("project.format", 0, "project.format"),
+    ("project.format", "1", "project.format"),
+    ("project.format", True, "project.format"),
+    ("project.format", 1.0, "project.format"),
+    ("project.title", 5, "project.title"),
+    ("project.notes", ["a"], "project.notes"),
+    # [limits]
+    ("limits", DELETE, "limits"),
+    ("limits", [1], "limits"),
+    ("limits.face_mach_max", DELETE, "limits.face_mach_max"),
+    ("limits.face_mach_max", 0.0, "limits.face_mach_max"),
+    ("limits.face_mach_max", 1.0, "limits.face_mach_max"),
+    ("limits.face_mach_max", "0.5", "limits.face_mach_max"),
+    ("limits.face_mach_max", True, "limits.face_mach_max"),
+    ("limits.face_mach_max", NAN, "limits.face_mach_max"),
+    ("limits.face_mach_max", INF, "limits.face_mach_max"),
+    ("limits.throat_mach_max", 0.0, "limits.throat_mach_max"),
+    ("limits.throat_mach_max", 1.01, "limits.throat_mach_max"),
+    ("limits.recovery_min", "mil-e-5008", "limits.recovery_min"),
+    ("limits.recovery_min", 0.0, "limits.recovery_min"),
+    ("limits.recovery_min", 1.2, "limits.recovery_min"),
+    ("limits.recovery_min", False, "limits.recovery_min"),
+    ("limits.recovery_min", [0.9], "limits.recovery_min"),
+    ("limits.stable_flow_fraction", 0.0, "limits.stable_flow_fraction"),
+    ("limits.stable_flow_fraction", 1.0, "limits.stable_flow_fraction"),
+    ("limits.relative_tip_mach_max", 0.0, "limits.relative_tip_mach_max"),
+    ("limits.relative_tip_mach_max", 3.0, "limits.relative_tip_mach_max"),
+    ("limits.spillage_fraction_max", -0.1, "limits.spillage_fraction_max"),
+    ("limits.spillage_fraction_max", 1.0, "limits.spillage_fraction_max"),
+    # [inlet]
+    ("inlet", DELETE, "inlet"),
+    ("inlet", "pitot", "inlet"),
+    ("inlet.type", DELETE, "inlet.type"),
+    ("inlet.type", "ramjet", "inlet.type"),
+    ("inlet.type", "Pitot", "inlet.type"),
+    ("inlet.type", 1, "inlet.type"),
+    ("inlet.capture_area_m2", DELETE, "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", 0.0, "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", -1.2, "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", 100.5, "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", "1.2", "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", [1.2], "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", {"value": 1.2}, "inlet.capture_area_m2"),
+    ("inlet.capture_area_m2", INF, "inlet.capture_area_m2"),
+    ("inlet.throat_area_m2", DELETE, "inlet.throat_area_m2"),
+    ("inlet.throat_area_m2", 1.3, "inlet.throat_area_m2"),  # larger than capture
+    ("inlet.throat_area_m2", NAN, "inlet.throat_area_m2"),
+    ("inlet.face_area_m2", DELETE, "inlet.face_area_m2"),
+    ("inlet.face_area_m2", 0, "inlet.face_area_m2"),
+    ("inlet.face_area_m2", False, "inlet.face_area_m2"),
+    ("inlet.duct_loss_coefficient", -0.01, "inlet.duct_loss_coefficient"),
+    ("inlet.duct_loss_coefficient", 2.5, "inlet.duct_loss_coefficient"),
+    ("inlet.lip_suction_factor", -0.1, "inlet.lip_suction_factor"),
+    ("inlet.lip_suction_factor", 1.1, "inlet.lip_suction_factor"),
+    # [[engine.rating]]
+    ("engine", DELETE, "engine"),
+    ("engine", [1], "engine"),
+    ("engine.rating", DELETE, "engine.rating"),
+    ("engine.rating", [], "engine.rating"),
+    ("engine.rating", {"name": "max"}, "engine.rating"),
+    ("engine.rating.0", "max", "engine.rating[0]"),
+    ("engine.rating.0.name", DELETE, "engine.rating[0].name"),
+    ("engine.rating.0.name", "", "engine.rating[0].name"),
+    ("engine.rating.0.name", "  ", "engine.rating[0].name"),
+    ("engine.rating.0.name", 3, "engine.rating[0].name"),
+    ("engine.rating.1.name", "max", "engine.rating[1].name"),  # duplicate
+    ("engine.rating.0.theta", DELETE, "engine.rating[0].theta"),
+    ("engine.rating.0.theta", [], "engine.rating[0].theta"),
+    ("engine.rating.0.theta", 1.0, "engine.rating[0].theta"),
+    ("engine.rating.0.theta", [0.8, 1.0, 1.0, 1.35], "engine.rating[0].theta[2]"),
+    ("engine.rating.0.theta", [0.8, 1.1, 1.0, 1.35], "engine.rating[0].theta[2]"),
+    ("engine.rating.0.theta", [0.3, 1.0, 1.1, 1.35], "engine.rating[0].theta[0]"),
+    ("engine.rating.0.theta", [0.8, 1.0, 1.1, 3.0], "engine.rating[0].theta[3]"),
+    ("engine.rating.0.theta", [0.8, "1.0", 1.1, 1.35], "engine.rating[0].theta[1]"),
+    ("engine.rating.0.theta", [0.8, 1.0, NAN, 1.35], "engine.rating[0].theta[2]"),
+    ("engine.rating.0.corrected_flow_kg_s", DELETE, "engine.rating[0].corrected_flow_kg_s"),
+    ("engine.rating.0.corrected_flow_kg_s", [92.0, 92.0, 88.0], "engine.rating[0].corrected_flow_kg_s"),
+    ("engine.rating.0.corrected_flow_kg_s", [92.0, 0.0, 88.0, 74.0], "engine.rating[0].corrected_flow_kg_s[1]"),
+    ("engine.rating.0.corrected_flow_kg_s", [92.0, 92.0, 88.0, 5001.0], "engine.rating[0].corrected_flow_kg_s[3]"),
+    ("engine.rating.0.corrected_flow_kg_s", [92.0, 92.0, True, 74.0], "engine.rating[0].corrected_flow_kg_s[2]"),
+    ("engine.rating.1.corrected_flow_kg_s", [-30.0], "engine.rating[1].corrected_flow_kg_s[0]"),
+    ("engine.rating.0.fan_tip_speed_m_s", 0.0, "engine.rating[0].fan_tip_speed_m_s"),
+    ("engine.rating.0.fan_tip_speed_m_s", 1000.5, "engine.rating[0].fan_tip_speed_m_s"),
+    ("engine.rating.0.fan_tip_speed_m_s", INF, "engine.rating[0].fan_tip_speed_m_s"),
+    # [envelope]
+    ("envelope", DELETE, "envelope"),
+    ("envelope", [0.1, 0.2], "envelope"),
+    ("envelope.mach", DELETE, "envelope.mach"),
+    ("envelope.mach", [0.15, 0.85], "envelope.mach"),
+    ("envelope.mach", 0.5, "envelope.mach"),
+    ("envelope.altitude_m", DELETE, "envelope.altitude_m"),
+    ("envelope.altitude_m", [0.0, 0.0, 12500.0], "envelope.altitude_m"),
+    ("envelope.mach", [-0.1, 0.85, 0.85, 0.30], "envelope.mach[0]"),
+    ("envelope.mach", [0.15, 6.5, 0.85, 0.30], "envelope.mach[1]"),
+    ("envelope.mach", [0.15, 0.85, "fast", 0.30], "envelope.mach[2]"),
+    ("envelope.altitude_m", [-5001.0, 0.0, 12500.0, 12500.0], "envelope.altitude_m[0]"),
+    ("envelope.altitude_m", [0.0, 0.0, 12500.0, 90000.0], "envelope.altitude_m[3]"),
+    ("envelope.altitude_m", [0.0, 12500.0, 0.0, 12500.0], "envelope"),  # bow-tie
+    ("envelope.altitude_m", [0.0, 0.0, 0.0, 0.0], "envelope"),  # repeated vertex (0.85, 0)
+    # [grid]
+    ("grid", 121, "grid"),
+    ("grid.mach_points", 1, "grid.mach_points"),
+    ("grid.mach_points", 1002, "grid.mach_points"),
+    ("grid.mach_points", 121.0, "grid.mach_points"),
+    ("grid.mach_points", True, "grid.mach_points"),
+    ("grid.altitude_points", "101", "grid.altitude_points"),
+    ("grid.altitude_points", 0, "grid.altitude_points"),
+    # [[case]]
+    ("case", DELETE, "case"),
+    ("case", [], "case"),
+    ("case", {"name": "x", "rating": "max"}, "case"),
+    ("case.0", 5, "case[0]"),
+    ("case.0.name", DELETE, "case[0].name"),
+    ("case.0.name", "", "case[0].name"),
+    ("case.1.name", "standard day, max", "case[1].name"),  # duplicate
+    ("case.0.rating", DELETE, "case[0].rating"),
+    ("case.0.rating", "takeoff", "case[0].rating"),
+    ("case.1.rating", 1, "case[1].rating"),
+    ("case.0.isa_offset_K", 100.5, "case[0].isa_offset_K"),
+    ("case.0.isa_offset_K", -101, "case[0].isa_offset_K"),
+    ("case.0.isa_offset_K", NAN, "case[0].isa_offset_K"),
+    ("case.0.isa_offset_K", "+20", "case[0].isa_offset_K"),
+]
+
+
+@pytest.mark.parametrize("where,value,key", PITOT_RULES,
+                         ids=[f"{w}={v!r}" if v is not DELETE else f"{w}-missing" for w, v, _ in PITOT_RULES])
+def test_pitot_rule(where, value, key, tmp_path):
+    err = load_error(tmp_path, setpath(pitot_data(), where, value))
+    assert err.key == key
+    assert err.allowed
+
+
+RAMP_RULES = [
+    ("inlet.throat_area_m2", 0.56, "inlet.throat_area_m2"),
+    ("inlet.ramp_angles_deg", DELETE, "inlet.ramp_angles_deg"),
+    ("inlet.ramp_angles_deg", [], "inlet.ramp_angles_deg"),
+    ("inlet.ramp_angles_deg", 8.0, "inlet.ramp_angles_deg"),
+    ("inlet.ramp_angles_deg", [5.0, 5.0, 5.0, 5.0], "inlet.ramp_angles_deg"),
+    ("inlet.ramp_angles_deg", [0.0, 7.0], "inlet.ramp_angles_deg[0]"),
+    ("inlet.ramp_angles_deg", [8.0, -7.0], "inlet.ramp_angles_deg[1]"),
+    ("inlet.ramp_angles_deg", [8.0, 25.5], "inlet.ramp_angles_deg[1]"),
+    ("inlet.ramp_angles_deg", [20.0, 15.0, 6.0], "inlet.ramp_angles_deg"),  # sum 41 > 40
+    ("inlet.ramp_angles_deg", [8.0, "7"], "inlet.ramp_angles_deg[1]"),
+    ("inlet.shock_on_lip_mach", DELETE, "inlet.shock_on_lip_mach"),
+    ("inlet.shock_on_lip_mach", 1.0, "inlet.shock_on_lip_mach"),
+    ("inlet.shock_on_lip_mach", 5.01, "inlet.shock_on_lip_mach"),
+    ("inlet.shock_on_lip_mach", "2", "inlet.shock_on_lip_mach"),
+]
+
+
+@pytest.mark.parametrize("where,value,key", RAMP_RULES,
+                         ids=[f"{w}={v!r}" if v is not DELETE else f"{w}-missing" for w, v, _ in RAMP_RULES])
+def test_ramp_rule(where, value, key, tmp_path):
+    err = load_error(tmp_path, setpath(ramp_data(), where, value))
+    assert err.key == key
+
+
+def test_error_attributes_and_one_line_message(tmp_path):
+    err = load_error(tmp_path, setpath(pitot_data(), "inlet.throat_area_m2", 1.5))
+    assert err.key == "inlet.throat_area_m2"
+    assert err.value == 1.5
+    assert "capture_area_m2" in err.allowed
+    assert str(err) == f"{err.path}: inlet.throat_area_m2 = 1.5: {err.allowed}"
+    assert isinstance(err, ValueError)
+
+
+def test_error_without_path_or_value():
+    assert str(ProjectError(None, "limits", None, "missing")) == "limits: missing"
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict(setpath(pitot_data(), "limits.face_mach_max", 2.0))
+    assert info.value.path is None
+    assert str(info.value).startswith("limits.face_mach_max = 2.0: ")
+
+
+def test_newer_format_message(tmp_path):
+    err = load_error(tmp_path, setpath(pitot_data(), "project.format", 7))
+    assert err.key == "project.format" and err.value == 7
+    assert "reads format 1" in str(err) and "format 7" in str(err) and "newer version" in str(err)
+
+
+def test_unknown_rating_lists_names(tmp_path):
+    err = load_error(tmp_path, setpath(pitot_data(), "case.0.rating", "takeoff"))
+    assert "'max'" in err.allowed and "'idle'" in err.allowed
+
+
+def test_grid_product_limit(tmp_path):
+    d = pitot_data()
+    d["grid"] = {"mach_points": 1001, "altitude_points": 1001}
+    err = load_error(tmp_path, d)
+    assert err.key == "grid"
+    assert "1002001" in str(err) and "250000" in str(err) and "memory" in str(err)
+    d["grid"] = {"mach_points": 500, "altitude_points": 500}  # exactly the limit is allowed
+    assert pf.project_from_dict(d).grid == Grid(500, 500)
+
+
+def test_number_rules_accept_ints_and_edge_values():
+    d = pitot_data()
+    d["inlet"].update(capture_area_m2=100, throat_area_m2=100, face_area_m2=2, duct_loss_coefficient=2,
+                      lip_suction_factor=1)
+    d["limits"].update(throat_mach_max=1, spillage_fraction_max=0, recovery_min=1)
+    d["case"][0]["isa_offset_K"] = -100
+    d["grid"] = {"mach_points": 2, "altitude_points": 1001}
+    p = pf.project_from_dict(d)
+    assert p.inlet.capture_area_m2 == 100.0 and isinstance(p.inlet.capture_area_m2, float)
+    assert p.limits.recovery_min == 1.0 and p.limits.spillage_fraction_max == 0.0
+    assert p.grid == Grid(2, 1001)
+
+
+def test_single_point_rating_is_allowed():
+    d = pitot_data()
+    d["engine"]["rating"][0].update(theta=[1.0], corrected_flow_kg_s=[90.0])
+    assert pf.project_from_dict(d).ratings[0].theta == (1.0,)
+
+
+def test_recovery_reference_name_case_insensitive():
+    d = setpath(pitot_data(), "limits.recovery_min", "MIL-E-5008B")
+    assert pf.project_from_dict(d).limits.recovery_min == "mil-e-5008b"
+
+
+def test_throat_equal_to_capture_is_allowed():
+    d = setpath(pitot_data(), "inlet.throat_area_m2", 1.2)
+    assert pf.project_from_dict(d).inlet.throat_area_m2 == 1.2
+
+
+def test_ramp_limits_at_edges():
+    d = setpath(ramp_data(), "inlet.ramp_angles_deg", [25.0, 15.0])
+    d["inlet"]["shock_on_lip_mach"] = 5
+    with mock.patch.object(pf, "_check_physics", lambda project, path: None):
+        p = pf.project_from_dict(d)
+    assert p.inlet.ramp_angles_deg == (25.0, 15.0) and p.inlet.shock_on_lip_mach == 5.0
+
+
+def test_envelope_without_area_rejected():
+    d = pitot_data()
+    d["envelope"] = {"mach": [0.1, 0.5, 0.9, 0.3], "altitude_m": [0.0, 5000.0, 10000.0, 2500.0]}
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict(d, "x.toml")
+    assert info.value.key == "envelope" and "no area" in info.value.allowed
+
+
+def test_envelope_bow_tie_rejected():
+    d = pitot_data()
+    d["envelope"] = {"mach": [0.15, 0.85, 0.15, 0.85], "altitude_m": [0.0, 12500.0, 12500.0, 0.0]}
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict(d, "x.toml")
+    assert info.value.key == "envelope" and "crosses itself" in info.value.allowed
+
+
+def test_envelope_repeated_vertex_rejected():
+    d = pitot_data()
+    d["envelope"] = {"mach": [0.15, 0.85, 0.85, 0.30, 0.15], "altitude_m": [0.0, 0.0, 12500.0, 12500.0, 0.0]}
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict(d, "x.toml")
+    assert info.value.key == "envelope" and "repeat" in info.value.allowed
+
+
+def test_envelope_vertex_count_limit():
+    n = pf.MAX_ENVELOPE_VERTICES + 1
+    a = np.linspace(0, 2 * np.pi, n, endpoint=False)
+    d = pitot_data()
+    d["envelope"] = {"mach": list(1 + 0.5 * np.cos(a)), "altitude_m": list(10000 + 5000 * np.sin(a))}
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict(d)
+    assert info.value.key == "envelope.mach"
+
+
+def test_non_table_top_level():
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict([1, 2], "x.toml")
+    assert info.value.key == "(file)"
+
+
+# -- warnings ---------------------------------------------------------------------
+
+def test_unknown_keys_give_warnings_not_errors(tmp_path):
+    d = pitot_data()
+    d["extras"] = {"colour": "blue"}
+    d["inlet"]["colour"] = "red"
+    d["engine"]["rating"][1]["maker"] = "nobody"
+    d["engine"]["spare"] = 1
+    d["case"][0]["comment"] = "x"
+    d["grid"]["refine"] = True
+    path = write(tmp_path, d)
+    p = pf.load_project(path)
+    assert p == pf.project_from_dict(pitot_data())
+    keys = ["extras", "inlet.colour", "engine.rating[1].maker", "engine.spare", "case[0].comment", "grid.refine"]
+    assert len(p.warnings) == len(keys)
+    for key in keys:
+        assert any(w == f"{path}: {key}: unknown key, ignored" for w in p.warnings), key
+
+
+def test_ramp_keys_on_pitot_warn(tmp_path):
+    d = pitot_data()
+    d["inlet"]["ramp_angles_deg"] = [8.0]
+    d["inlet"]["shock_on_lip_mach"] = "not even a number"
+    p = pf.load_project(write(tmp_path, d))
+    assert p.inlet.ramp_angles_deg == () and p.inlet.shock_on_lip_mach is None
+    assert any("inlet.ramp_angles_deg" in w and "ignored" in w for w in p.warnings)
+    assert any("inlet.shock_on_lip_mach" in w and "ignored" in w for w in p.warnings)
+
+
+def test_tip_mach_limit_without_tip_speed_warns():
+    d = pitot_data()
+    del d["engine"]["rating"][0]["fan_tip_speed_m_s"]
+    p = pf.project_from_dict(d)
+    assert any("limits.relative_tip_mach_max" in w for w in p.warnings)
+
+
+# -- whole-file problems -----------------------------------------------------------
+
+def test_file_too_large(tmp_path):
+    path = tmp_path / "big.toml"
+    path.write_bytes(tomli_w.dumps(pitot_data()).encode() + b"#" * pf.MAX_FILE_BYTES + b"\n")
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    err = info.value
+    assert err.key == "(file)" and str(path) in str(err) and str(pf.MAX_FILE_BYTES) in str(err)
+
+
+def test_file_not_utf8(tmp_path):
+    path = tmp_path / "latin.toml"
+    path.write_bytes(tomli_w.dumps(pitot_data()).encode().replace(b"Test nacelle", b"Test \xe9nacelle"))
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    assert info.value.key == "(file)" and "UTF-8" in str(info.value) and str(path) in str(info.value)
+
+
+def test_utf8_bom_accepted(tmp_path):
+    path = tmp_path / "bom.toml"
+    path.write_bytes(b"\xef\xbb\xbf" + tomli_w.dumps(pitot_data()).encode())
+    assert pf.load_project(path) == pf.project_from_dict(pitot_data())
+
+
+def test_toml_syntax_error_names_line(tmp_path):
+    path = tmp_path / "broken.toml"
+    path.write_text("[project]\nformat = 1\ntitle = \"unterminated\n", encoding="utf-8")
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    err = info.value
+    assert err.key == "(file)" and "line 3" in str(err) and str(path) in str(err) and "\n" not in str(err)
+
+
+def test_deeply_nested_file(tmp_path):
+    path = tmp_path / "deep.toml"
+    path.write_text("x = " + "[" * 50000, encoding="utf-8")
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    assert info.value.key == "(file)"
+
+
+def test_missing_file_and_folder(tmp_path):
+    for p in (tmp_path / "nothing.toml", tmp_path):
+        with pytest.raises(ProjectError) as info:
+            pf.load_project(p)
+        assert info.value.key == "(file)" and str(p) in str(info.value)
+
+
+def test_nothing_is_executed(tmp_path):
+    d = pitot_data()
+    d["project"]["title"] = "__import__('os').system('false')"
+    p = pf.load_project(write(tmp_path, d))
+    assert p.title == "__import__('os').system('false')"
+
+
+# -- saving -----------------------------------------------------------------------
+
+def test_save_overwrites_and_keeps_mode(tmp_path):
+    target = tmp_path / "study.toml"
+    target.write_text("old", encoding="utf-8")
+    os.chmod(target, 0o640)
+    project = pf.project_from_dict(pitot_data())
+    pf.save_project(project, target)
+    assert pf.load_project(target) == project
+    assert (os.stat(target).st_mode & 0o777) == 0o640
+    assert sorted(os.listdir(tmp_path)) == ["study.toml"]
+
+
+@pytest.mark.parametrize("broken", ["replace", "fsync"])
+def test_failed_save_leaves_old_file_intact(broken, tmp_path, monkeypatch):
+    target = tmp_path / "study.toml"
+    old = pf.dumps_project(pf.project_from_dict(pitot_data()))
+    target.write_text(old, encoding="utf-8")
+
+    def fail(*args, **kwargs):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(pf.os, broken, fail)
+    with pytest.raises(ProjectSaveError) as info:
+        pf.save_project(pf.project_from_dict(ramp_data()), target)
+    monkeypatch.undo()
+    err = info.value
+    assert isinstance(err, OSError)
+    assert str(target) in str(err) and "No space left" in str(err) and "\n" not in str(err)
+    assert target.read_text(encoding="utf-8") == old
+    assert sorted(os.listdir(tmp_path)) == ["study.toml"]  # no temporary file left behind
+
+
+def test_save_into_missing_folder(tmp_path):
+    target = tmp_path / "no" / "such" / "study.toml"
+    with pytest.raises(ProjectSaveError) as info:
+        pf.save_project(pf.project_from_dict(pitot_data()), target)
+    assert str(target) in str(info.value)
+
+
+# -- physics hook -----------------------------------------------------------------
+
+def _fake_inlet_module(monkeypatch, module):
+    monkeypatch.setitem(sys.modules, "engine_air.inlet", module)
+    if module is None:
+        monkeypatch.delattr(engine_air, "inlet", raising=False)
+    else:
+        monkeypatch.setattr(engine_air, "inlet", module, raising=False)
+
+
+def test_physics_hook_problem_becomes_project_error(monkeypatch, tmp_path):
+    fake = types.ModuleType("engine_air.inlet")
+    seen = []
+
+    def check_design(inlet):
+        seen.append(inlet)
+        return [("inlet.ramp_angles_deg[1]", 7.0, "the second ramp shock detaches at shock_on_lip_mach")]
+
+    fake.check_design = check_design
+    _fake_inlet_module(monkeypatch, fake)
+    err = load_error(tmp_path, ramp_data())
+    assert err.key == "inlet.ramp_angles_deg[1]" and err.value == 7.0 and "detaches" in err.allowed
+    assert seen and seen[0].ramp_angles_deg == (8.0, 7.0)
+
+
+def test_physics_hook_no_problems(monkeypatch):
+    fake = types.ModuleType("engine_air.inlet")
+    fake.check_design = lambda inlet: []
+    _fake_inlet_module(monkeypatch, fake)
+    assert pf.project_from_dict(ramp_data()).inlet.type == "external-ramp"
+
+
+@pytest.mark.parametrize("module", [None, types.ModuleType("engine_air.inlet")], ids=["no-module", "no-function"])
+def test_physics_hook_skipped_when_unavailable(module, monkeypatch):
+    _fake_inlet_module(monkeypatch, module)
+    assert pf.project_from_dict(ramp_data()).inlet.type == "external-ramp"
+
+
+# -- envelope geometry --------------------------------------------------------------
+
+SQUARE = ([0.0, 1.0, 1.0, 0.0], [0.0, 0.0, 1.0, 1.0])
+# L-shape: the square [0, 2] x [0, 2] without its upper-right quarter
+L_SHAPE = ([0.0, 2.0, 2.0, 1.0, 1.0, 0.0], [0.0, 0.0, 1.0, 1.0, 2.0, 2.0])
+
+
+def test_contains_unit_square():
+    m = np.array([0.5, 0.01, 0.99, 1.5, -0.5, 0.5, 0.5])
+    h = np.array([0.5, 0.01, 0.99, 0.5, 0.5, 1.5, -0.01])
+    assert polygon_contains(*SQUARE, m, h).tolist() == [True, True, True, False, False, False, False]
+
+
+def test_contains_edges_and_vertices_count_inside():
+    m = np.array([0.0, 1.0, 0.5, 0.5, 1.0, 0.0, 1.0 + 1e-12, 1.0 + 1e-6])
+    h = np.array([0.0, 1.0, 0.0, 1.0, 0.3, 0.7, 0.5, 0.5])
+    assert polygon_contains(*SQUARE, m, h).tolist() == [True] * 7 + [False]
+
+
+def test_contains_concave_l_shape():
+    pts = [((0.5, 0.5), True), ((1.5, 0.5), True), ((0.5, 1.5), True), ((1.5, 1.5), False),
+           ((1.0, 1.5), True), ((1.5, 1.0), True), ((1.2, 1.2), False), ((2.5, 0.5), False),
+           ((0.5, 2.5), False), ((1.99, 0.99), True), ((0.99, 1.99), True)]
+    m = np.array([p[0][0] for p in pts])
+    h = np.array([p[0][1] for p in pts])
+    assert polygon_contains(*L_SHAPE, m, h).tolist() == [p[1] for p in pts]
+
+
+def test_contains_is_scale_free_and_broadcasts():
+    # the L-shape stretched to Mach ~1 and altitude ~10^4 m gives the same answers
+    poly_m = [0.2 + 0.4 * x for x in L_SHAPE[0]]
+    poly_h = [1000.0 + 6000.0 * y for y in L_SHAPE[1]]
+    m = 0.2 + 0.4 * np.array([0.5, 1.5, 1.5])
+    h = 1000.0 + 6000.0 * np.array([[0.5], [1.5]])
+    got = polygon_contains(poly_m, poly_h, m, h)
+    assert got.shape == (2, 3)
+    assert got.tolist() == [[True, True, True], [True, False, False]]
+
+
+def test_contains_nan_is_outside():
+    assert not polygon_contains(*SQUARE, np.nan, 0.5)
+    assert polygon_contains(*SQUARE, 0.5, 0.5).shape == ()
+
+
+def test_bow_tie_self_intersects():
+    assert polygon_self_intersects([0.0, 1.0, 0.0, 1.0], [0.0, 1.0, 1.0, 0.0])
+    assert polygon_crossing_edges([0.0, 1.0, 0.0, 1.0], [0.0, 1.0, 1.0, 0.0]) == (0, 2)
+    assert not polygon_self_intersects(*SQUARE)
+    assert not polygon_self_intersects(*L_SHAPE)
+    assert not polygon_self_intersects([0.0, 1.0, 0.5], [0.0, 0.0, 1.0])
+
+
+def test_touching_and_folding_polygons_count_as_self_intersecting():
+    # vertex 3 lies on edge 0-1
+    assert polygon_self_intersects([0.0, 2.0, 2.0, 1.0, 0.0], [0.0, 0.0, 1.0, 0.0, 1.0])
+    # edge 1-2 runs back along edge 0-1
+    assert polygon_self_intersects([0.0, 2.0, 1.0, 1.0], [0.0, 0.0, 0.0, 1.0])
+
+
+def test_vertices_collinear():
+    assert vertices_collinear([0.1, 0.5, 0.9], [0.0, 5000.0, 10000.0])
+    assert vertices_collinear([0.1, 0.5, 0.9, 0.3], [0.0, 0.0, 0.0, 0.0])
+    assert not vertices_collinear([0.1, 0.5, 0.9], [0.0, 5000.0, 0.0])
+
+
+def test_polygon_area_normalised():
+    assert polygon_area(*SQUARE) == pytest.approx(1.0)
+    assert polygon_area(*L_SHAPE) == pytest.approx(0.75)
+    assert polygon_area([0.2, 0.8, 0.8, 0.2], [0.0, 0.0, 12000.0, 12000.0]) == pytest.approx(1.0)
+    assert polygon_area([0.0, 0.5, 1.0], [0.0, 5000.0, 10000.0]) == pytest.approx(0.0, abs=1e-12)
+    assert polygon_area(list(reversed(SQUARE[0])), list(reversed(SQUARE[1]))) == pytest.approx(1.0)
+
+
+def test_grid_axes_span_bounding_box():
+    env = Envelope(mach=(0.3, 1.1, 1.6, 2.1, 2.1, 0.7, 0.3),
+                   altitude_m=(0.0, 0.0, 6000.0, 11000.0, 16000.0, 16000.0, 6000.0))
+    m, h = grid_axes(env, Grid(mach_points=19, altitude_points=17))
+    assert m.shape == (19,) and h.shape == (17,)
+    assert m[0] == 0.3 and m[-1] == 2.1 and h[0] == 0.0 and h[-1] == 16000.0
+    assert np.allclose(np.diff(m), 0.1) and np.allclose(np.diff(h), 1000.0)
+
+
+def test_envelope_mask_on_grid():
+    env = Envelope(mach=(0.3, 1.1, 1.6, 2.1, 2.1, 0.7, 0.3),
+                   altitude_m=(0.0, 0.0, 6000.0, 11000.0, 16000.0, 16000.0, 6000.0))
+    m, h = grid_axes(env, Grid(mach_points=19, altitude_points=17))
+    mm, hh = np.meshgrid(m, h)
+    mask = envelope_mask(env, mm, hh)
+    assert mask.shape == (17, 19) and mask.dtype == bool
+    j = lambda mach: int(round((mach - 0.3) / 0.1))  # noqa: E731
+    assert mask[0, j(0.3)] and mask[0, j(1.1)] and not mask[0, j(1.2)]  # sea level: subsonic only
+    assert mask[11, j(2.1)] and mask[16, j(2.1)] and mask[16, j(0.7)] and not mask[16, j(0.6)]
+    assert not mask[0, j(2.1)] and mask[6, j(1.6)] and not mask[6, j(1.7)]
+    # every vertex is on the boundary, hence inside
+    assert envelope_mask(env, np.array(env.mach), np.array(env.altitude_m)).all()
+
+
+@settings(max_examples=100, deadline=None)
+@given(x0=st.floats(0, 5), y0=st.floats(-5000, 60000), w=st.floats(0.01, 1), hgt=st.floats(10, 20000),
+       u=st.lists(st.floats(-0.5, 1.5), min_size=1, max_size=20), v=st.floats(-0.5, 1.5))
+def test_contains_rectangle_property(x0, y0, w, hgt, u, v):
+    pm = [x0, x0 + w, x0 + w, x0]
+    ph = [y0, y0, y0 + hgt, y0 + hgt]
+    uu = np.array(u)
+    got = polygon_contains(pm, ph, x0 + w * uu, y0 + hgt * v)
+    strict = (uu > 1e-6) & (uu < 1 - 1e-6) & (1e-6 < v < 1 - 1e-6)
+    outside = (uu < -1e-6) | (uu > 1 + 1e-6) | (v < -1e-6) | (v > 1 + 1e-6)
+    assert got[strict].all() and not got[outside].any()
+
+
+def _reference_contains(pm, ph, m, h):
+    """Plain even-odd ray casting over all points for every edge (no tolerance)."""
+    pm, ph = np.asarray(pm), np.asarray(ph)
+    inside = np.zeros(np.broadcast(m, h).shape, dtype=bool)
+    for i in range(len(pm)):
+        ax, ay, bx, by = pm[i], ph[i], pm[(i + 1) % len(pm)], ph[(i + 1) % len(pm)]
+        if ay != by:
+            crosses = (ay > h) != (by > h)
+            inside ^= crosses & (m < ax + (h - ay) * (bx - ax) / (by - ay))
+    return inside
+
+
+@settings(max_examples=100, deadline=None)
+@given(env=st.deferred(lambda: star_polygons()), seed=st.integers(0, 2**32 - 1))
+def test_contains_matches_plain_ray_casting(env, seed):
+    rng = np.random.default_rng(seed)
+    lo_m, hi_m = min(env.mach), max(env.mach)
+    lo_h, hi_h = min(env.altitude_m), max(env.altitude_m)
+    m = rng.uniform(lo_m - 0.1 * (hi_m - lo_m), hi_m + 0.1 * (hi_m - lo_m), 400)
+    h = rng.uniform(lo_h - 0.1 * (hi_h - lo_h), hi_h + 0.1 * (hi_h - lo_h), 400)
+    got = polygon_contains(env.mach, env.altitude_m, m, h)
+    assert np.array_equal(got, _reference_contains(env.mach, env.altitude_m, m, h))
+
+
+# -- hypothesis: random valid projects round-trip exactly --------------------------------
+
+def _fl(lo, hi, lo_open=True, hi_open=False):
+    return st.floats(min_value=lo, max_value=hi, exclude_min=lo_open, exclude_max=hi_open,
+                     allow_nan=False, allow_infinity=False)
+
+
+def _opt(strategy):
+    return st.none() | strategy
+
+
+names = st.text(min_size=1, max_size=16).filter(lambda s: s.strip() != "")
+
+
+@st.composite
+def star_polygons(draw):
+    """Simple polygons: vertices in angular order around a centre, scaled into the allowed box."""
+    n = draw(st.integers(3, 9))
+    step = 2 * math.pi / n
+    angles = [k * step + draw(_fl(-0.2, 0.2, False)) * step for k in range(n)]
+    radii = [draw(_fl(0.3, 1.0, False)) for _ in range(n)]
+    cm = draw(_fl(0.05, 5.95, False))
+    rm = draw(_fl(0.01, min(cm, 6.0 - cm), False))
+    ca = draw(_fl(-4900.0, 83900.0, False))
+    ra = draw(_fl(10.0, min(ca + 5000.0, 84000.0 - ca), False))
+    mach = tuple(float(np.clip(cm + rm * r * math.cos(a), 0.0, 6.0)) for a, r in zip(angles, radii))
+    alt = tuple(float(np.clip(ca + ra * r * math.sin(a), -5000.0, 84000.0)) for a, r in zip(angles, radii))
+    return Envelope(mach=mach, altitude_m=alt)
+
+
+@st.composite
+def ratings(draw):
+    theta = draw(st.lists(_fl(0.3, 3.0, True, True), min_size=1, max_size=6, unique=True).map(sorted))
+    flow = draw(st.lists(_fl(0.0, 5000.0), min_size=len(theta), max_size=len(theta)))
+    return draw(names), tuple(theta), tuple(flow), draw(_opt(_fl(0.0, 1000.0)))
+
+
+@st.composite
+def projects(draw):
+    limits = Limits(
+        face_mach_max=draw(_fl(0.0, 1.0, True, True)),
+        throat_mach_max=draw(_opt(_fl(0.0, 1.0))),
+        recovery_min=draw(st.none() | _fl(0.0, 1.0) | st.just("mil-e-5008b")),
+        stable_flow_fraction=draw(_opt(_fl(0.0, 1.0, True, True))),
+        relative_tip_mach_max=draw(_opt(_fl(0.0, 3.0, True, True))),
+        spillage_fraction_max=draw(_opt(_fl(0.0, 1.0, False, True))),
+    )
+    capture = draw(_fl(0.0, 100.0))
+    kind = draw(st.sampled_from(["pitot", "external-ramp"]))
+    ramps, lip = (), None
+    if kind == "external-ramp":
+        ramps = tuple(draw(st.lists(_fl(0.0, 25.0), min_size=1, max_size=3).filter(lambda a: sum(a) <= 40.0)))
+        lip = draw(_fl(1.0, 5.0))
+    inlet = Inlet(type=kind, capture_area_m2=capture, throat_area_m2=draw(_fl(0.0, capture)),
+                  face_area_m2=draw(_fl(0.0, 100.0)), duct_loss_coefficient=draw(_fl(0.0, 2.0, False)),
+                  lip_suction_factor=draw(_fl(0.0, 1.0, False)), ramp_angles_deg=ramps, shock_on_lip_mach=lip)
+    raw = draw(st.lists(ratings(), min_size=1, max_size=3, unique_by=lambda r: r[0]))
+    rating_objs = tuple(Rating(name=n, theta=t, corrected_flow_kg_s=f, fan_tip_speed_m_s=u) for n, t, f, u in raw)
+    mp = draw(st.integers(2, 1001))
+    ap = draw(st.integers(2, min(1001, pf.MAX_GRID_POINTS // mp)))
+    case_names = draw(st.lists(names, min_size=1, max_size=3, unique=True))
+    cases = tuple(Case(name=c, rating=draw(st.sampled_from([r.name for r in rating_objs])),
+                       isa_offset_K=draw(_fl(-100.0, 100.0, False))) for c in case_names)
+    return Project(limits=limits, inlet=inlet, ratings=rating_objs, envelope=draw(star_polygons()),
+                   grid=Grid(mp, ap), cases=cases, title=draw(st.text(max_size=40)),
+                   notes=draw(st.text(max_size=80)), format=1)
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(projects())
+def test_random_projects_round_trip_exactly(project):
+    with mock.patch.object(pf, "_check_physics", lambda p, path: None):
+        assert pf.project_from_dict(pf.project_to_dict(copy.deepcopy(project))) == project
+        assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
+        again = pf.project_from_dict(tomllib.loads(pf.dumps_project(project)))
+        assert pf.dumps_project(again) == pf.dumps_project(project)
+
+
+def test_replace_keeps_round_trip():
+    p = pf.project_from_dict(ramp_data())
+    q = replace(p, inlet=replace(p.inlet, ramp_angles_deg=(6.0, 6.0, 6.0)), title="edited")
+    assert pf.project_from_dict(tomllib.loads(pf.dumps_project(q))) == q
