@@ -72,7 +72,7 @@ def mass_flow_parameter(mach, gamma=GAMMA, r=R_AIR):
     """Mass-flow function MFP = W sqrt(T_t) / (A p_t), kg K^0.5 / (N s).
 
     MFP(M) = sqrt(g/R) M (1 + (g-1)/2 M^2)^(-(g+1)/(2(g-1))).
-    At M = 1 (choking) and air, MFP* = 0.040418; times p_ref/sqrt(T_ref) this is
+    At M = 1 (choking) and air, MFP* = 0.0404147; times p_ref/sqrt(T_ref) this is
     the choking corrected flow per unit area, 241.24 kg/(s m^2).
     """
     m = np.asarray(mach, dtype=float)
@@ -133,7 +133,7 @@ def mach_from_flow_ratio(flow_ratio, supersonic=False, gamma=GAMMA):
         m = np.interp(s, s_sub, m_sub)
     # One Newton step on f(M) = MFP(M)/MFP* - r, with
     # f'(M) = (MFP/MFP*) (1 - M^2) / (M (1 + (g-1)/2 M^2)); the table start is good to ~1e-8.
-    polish = (rc > 0.0) & (np.abs(1.0 - m) > 1e-5)
+    polish = (rc > 0.0) & (np.abs(1.0 - m) > 1e-7)
     mm = np.where(polish, m, 2.0)
     f = 1.0 / area_ratio(mm, gamma)
     df = f * (1.0 - mm * mm) / (mm * _isentropic_base(mm, gamma))
@@ -215,6 +215,51 @@ def deflection_from_wave_angle(upstream_mach, wave_angle_rad, gamma=GAMMA):
     return np.arctan(2.0 / np.tan(b) * (m2 * np.sin(b) ** 2 - 1.0) / (m2 * (gamma + np.cos(2.0 * b)) + 2.0))
 
 
+def _polish_weak_wave_angle(m, theta, beta, mu, turning, gamma):
+    """Newton steps on the theta-beta-M relation [1, eq. 138] for the weak wave angle (rad).
+
+    The closed form of [2] cancels catastrophically at small deflections (the
+    numerator M^2 - 1 + 2 L cos(...) tends to 0): at M = 2 it gives a negative
+    wave angle for 1e-9 deg. Where it leaves a residual in theta, the better of
+    it and the weak-shock estimate beta = mu + (g+1) M^2 theta / (4 (M^2 - 1))
+    (mu the Mach angle) starts a few Newton steps, kept within [mu, beta_max]
+    on which theta(beta) rises. Where the closed form is already exact to
+    rounding (in particular near the maximum deflection, where d theta/d beta
+    vanishes) it is kept unchanged.
+    """
+    m2 = m * m
+    sin2_max = ((gamma + 1.0) / 4.0 * m2 - 1.0
+                + np.sqrt((gamma + 1.0) * ((gamma + 1.0) / 16.0 * m2 * m2 + 0.5 * (gamma - 1.0) * m2 + 1.0))) / (gamma * m2)
+    beta_max = np.arcsin(np.sqrt(np.clip(sin2_max, 0.0, 1.0)))
+
+    def residual(b):
+        return deflection_from_wave_angle(m, b, gamma) - theta
+
+    tol = 1e-14 * np.maximum(theta, 1e-300)
+    res = residual(beta)
+    need = turning & ~(np.abs(res) <= tol)  # NaN residuals are polished too
+    if not need.any():
+        return beta
+    estimate = np.clip(mu + (gamma + 1.0) * m2 * theta / (4.0 * np.maximum(m2 - 1.0, 1e-300)), mu, beta_max)
+    res_est = residual(estimate)
+    start = np.where(np.abs(res_est) < np.abs(res), estimate, beta)
+    start = np.where(np.isfinite(res), start, estimate)
+    b = np.where(need, np.clip(start, mu, beta_max), beta)
+    for _ in range(6):
+        # theta = atan(N / D), N = 2 cot(b) (M^2 sin^2 b - 1), D = M^2 (g + cos 2b) + 2
+        sb, cb = np.sin(b), np.cos(b)
+        n = 2.0 * cb / sb * (m2 * sb * sb - 1.0)
+        d = m2 * (gamma + np.cos(2.0 * b)) + 2.0
+        dn = 2.0 * (2.0 * m2 * cb * cb - (m2 * sb * sb - 1.0) / (sb * sb))
+        dd = -2.0 * m2 * np.sin(2.0 * b)
+        slope = (dn * d - n * dd) / (d * d + n * n)
+        r = np.arctan(n / d) - theta
+        active = need & (np.abs(r) > tol) & (slope > 0.0)
+        step = np.where(active, r / np.where(slope > 0.0, slope, 1.0), 0.0)
+        b = np.clip(b - step, mu, beta_max)
+    return np.where(need, b, beta)
+
+
 @dataclass(frozen=True)
 class ObliqueShock:
     """State change across a weak (attached) oblique shock (arrays).
@@ -255,7 +300,9 @@ def oblique_shock(upstream_mach, deflection_rad, gamma=GAMMA) -> ObliqueShock:
     safe_lam = np.where(lam > 0.0, lam, 1.0)
     chi = ((m2 - 1.0) ** 3 - 9.0 * base * (base + 0.25 * (gamma + 1.0) * m2 * m2) * tan_t**2) / safe_lam**3
     tan_b = (m2 - 1.0 + 2.0 * lam * np.cos((4.0 * np.pi + np.arccos(np.clip(chi, -1.0, 1.0))) / 3.0)) / (3.0 * base * tan_t)
-    beta = np.where(turning, np.arctan(tan_b), np.arcsin(1.0 / ms))
+    mu = np.arcsin(1.0 / ms)
+    beta = np.where(turning, np.arctan(tan_b), mu)
+    beta = _polish_weak_wave_angle(ms, ts, beta, mu, turning, gamma)
     normal = normal_shock(np.where(turning, ms * np.sin(beta), 1.0), gamma)
     m_down = np.where(turning, normal.downstream_mach / np.sin(beta - np.where(turning, ts, 0.0)), ms)
     nan = np.nan

@@ -113,16 +113,39 @@ class OperatingPoints:
         return np.asarray(getattr(self, key))
 
 
+def _per_ramp(values: np.ndarray, shape: tuple[int, ...]) -> np.ndarray:
+    """Per-ramp array of shape (n_ramps, *mach.shape) broadcast to (n_ramps, *shape).
+
+    The Mach array may have fewer dimensions than the broadcast shape (e.g. a 1-D
+    row of Mach numbers against a column of altitudes), so the ramp axis is kept
+    in front and the Mach axes are aligned on the right.
+    """
+    values = np.asarray(values)
+    lead = len(shape) - (values.ndim - 1)
+    return np.broadcast_to(values.reshape(values.shape[:1] + (1,) * lead + values.shape[1:]), values.shape[:1] + shape)
+
+
 def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> OperatingPoints:
     """Evaluate the inlet-engine match of ``project`` for ``case`` at flight Mach ``mach`` and
-    geopotential altitude ``altitude_m`` (m). Arrays broadcast; returns arrays of the common shape."""
+    geopotential altitude ``altitude_m`` (m). Arrays broadcast; returns arrays of the common shape.
+
+    A negative Mach number is taken as 0. A Mach number that is NaN or infinite
+    raises ``ValueError`` (there is no flag for it and every result would be an
+    unexplained NaN); an altitude outside the atmosphere model, NaN or infinite
+    included, and an ISA offset that leaves no positive temperature are flagged
+    ``outside-atmosphere`` instead."""
     inlet = project.inlet
     rating = project.rating(case.rating)
     # Mach-only quantities (shock system, reference recovery) are computed on the
     # Mach array's own shape and altitude-only ones on the altitude's: a grid
     # passed as a row of Mach numbers and a column of altitudes costs one
     # evaluation per column or row for them. Everything is broadcast at the end.
-    m0 = np.maximum(np.asarray(mach, dtype=float), 0.0)
+    m_in = np.asarray(mach, dtype=float)
+    if not np.isfinite(m_in).all():
+        bad = m_in[~np.isfinite(m_in)].ravel()[0]
+        raise ValueError(f"flight Mach number must be a finite number, not {bad!r}: no state can be computed "
+                         "from it (altitude outside the atmosphere model is flagged instead)")
+    m0 = np.maximum(m_in, 0.0)
     h = np.asarray(altitude_m, dtype=float)
     shape = np.broadcast_shapes(m0.shape, h.shape)
     bits = np.zeros(shape, dtype=np.int64)
@@ -173,7 +196,10 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         ratio = mfr_demand / mfr_max_geom
         supercritical = supersonic & (ratio > 1.0 + CRITICAL_BAND)
         critical = supersonic & (np.abs(ratio - 1.0) <= CRITICAL_BAND)
-        scale = np.where(supercritical, 1.0 / ratio, 1.0)  # MFR_max / MFR
+        # Above MFR_max the captured flow is held at MFR_max (also inside the
+        # critical band, so that the capture never exceeds what the shocks allow).
+        over = supersonic & (ratio > 1.0)
+        scale = np.where(over, 1.0 / np.where(over, ratio, 1.0), 1.0)  # MFR_max / MFR
         pi = pi * scale
         w = w * scale
         bits |= np.where(supercritical, F.SUPERCRITICAL, 0)
@@ -266,8 +292,8 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         relative_tip_mach=full(m_rel),
         regime=full(regime.astype(np.int8)),
         flags=bits,
-        ramp_wave_angle_rad=np.broadcast_to(shocks.ramp_wave_angle_rad, shocks.ramp_wave_angle_rad.shape[:1] + shape),
-        ramp_downstream_mach=np.broadcast_to(shocks.ramp_downstream_mach, shocks.ramp_downstream_mach.shape[:1] + shape),
+        ramp_wave_angle_rad=_per_ramp(shocks.ramp_wave_angle_rad, shape),
+        ramp_downstream_mach=_per_ramp(shocks.ramp_downstream_mach, shape),
     )
     points.checks = build_checks(project.limits, points)
     points.limiting = limiting_index(points.checks, points.flags)

@@ -1,0 +1,111 @@
+"""Benchmark: whole-map evaluation of a sample project, against the scalar model and numpy.exp.
+
+    python bench/bench_map.py [PROJECT.toml ...] [--grid N] [--repeats R] [--scalar-points K]
+
+(default: sample_projects/supersonic_two_ramp.toml, the costliest chain: ramp shocks and the streamline trace)
+
+Prints, for the vectorised ``engine_air.evaluate.evaluate_project`` on an N x N grid (default 201 x 201,
+every case, best of R repeats):
+1. points per second (case-points: grid points x cases);
+2. the speed ratio vectorised / scalar (bench/scalar_model.py on K random grid points), goal >= 100x;
+3. the cost per point as a multiple of one numpy.exp over a float64 array of the same size, timed in the
+   same run: (time per case-map / n_points) / (time of np.exp on n_points / n_points), goal <= 150.
+"""
+
+from __future__ import annotations
+
+import argparse
+import dataclasses
+import pathlib
+import sys
+import time
+
+import numpy as np
+
+HERE = pathlib.Path(__file__).resolve().parent
+ROOT = HERE.parent
+sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(HERE))
+
+import scalar_model  # noqa: E402
+
+from engine_air.envelope import grid_axes  # noqa: E402
+from engine_air.evaluate import evaluate_project  # noqa: E402
+from engine_air.model import Grid  # noqa: E402
+from engine_air.project_file import load_project  # noqa: E402
+
+SPEED_RATIO_GOAL = 100.0
+EXP_MULTIPLE_GOAL = 150.0
+
+
+def best_time(fn, repeats):
+    best = float("inf")
+    for _ in range(repeats):
+        t = time.perf_counter()
+        fn()
+        best = min(best, time.perf_counter() - t)
+    return best
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("projects", nargs="*", default=[str(ROOT / "sample_projects" / "supersonic_two_ramp.toml")])
+    ap.add_argument("--grid", type=int, default=201, help="grid points per axis (>= 201 gives >= 40 000 points)")
+    ap.add_argument("--repeats", type=int, default=7)
+    ap.add_argument("--scalar-points", type=int, default=300)
+    args = ap.parse_args(argv)
+    for i, path in enumerate(args.projects):
+        if i:
+            print()
+        bench_one(path, args)
+    return 0
+
+
+def bench_one(path, args):
+    project = load_project(path)
+    project = dataclasses.replace(project, grid=Grid(mach_points=args.grid, altitude_points=args.grid))
+    n_points = args.grid * args.grid
+    n_cases = len(project.cases)
+
+    evaluate_project(project)  # warm-up (imports, tables, caches)
+    t_map = best_time(lambda: evaluate_project(project), args.repeats)
+    t_case = t_map / n_cases
+
+    x = np.random.default_rng(0).uniform(-1.0, 1.0, n_points)
+    t_exp = best_time(lambda: np.exp(x), max(20, 3 * args.repeats))
+
+    # scalar model on a random subset of the same grid, every case
+    mach_1d, alt_1d = grid_axes(project.envelope, project.grid)
+    rng = np.random.default_rng(1)
+    mi = rng.integers(0, mach_1d.size, args.scalar_points)
+    ai = rng.integers(0, alt_1d.size, args.scalar_points)
+
+    def run_scalar():
+        for case in project.cases:
+            for j, k in zip(mi, ai):
+                scalar_model.evaluate_point(project, case, mach_1d[j], alt_1d[k])
+
+    t_scalar = best_time(run_scalar, 3)
+    per_point_vec = t_case / n_points
+    per_point_scalar = t_scalar / (args.scalar_points * n_cases)
+
+    points_per_s = n_points * n_cases / t_map
+    ratio = per_point_scalar / per_point_vec
+    exp_multiple = per_point_vec / (t_exp / n_points)
+
+    print(f"project: {pathlib.Path(path).name}: {project.title}")
+    print(f"grid: {args.grid} x {args.grid} = {n_points} points, {n_cases} case(s); best of {args.repeats}")
+    print(f"whole map (evaluate_project, all cases): {t_map * 1e3:.1f} ms; per case-map {t_case * 1e3:.2f} ms")
+    print(f"numpy.exp on {n_points} float64: {t_exp * 1e6:.1f} us")
+    print(f"scalar model: {args.scalar_points} points x {n_cases} case(s) in {t_scalar * 1e3:.1f} ms "
+          f"({per_point_scalar * 1e6:.1f} us per point)")
+    print()
+    print(f"1. vectorised throughput: {points_per_s:,.0f} points/s ({per_point_vec * 1e9:.0f} ns per point)")
+    ok = "meets" if ratio >= SPEED_RATIO_GOAL else "MISSES"
+    print(f"2. vectorised / scalar speed ratio: {ratio:,.0f}x  (goal >= {SPEED_RATIO_GOAL:.0f}x: {ok})")
+    ok = "meets" if exp_multiple <= EXP_MULTIPLE_GOAL else "MISSES"
+    print(f"3. cost per point: {exp_multiple:.1f} x numpy.exp  (goal <= {EXP_MULTIPLE_GOAL:.0f}: {ok})")
+
+
+if __name__ == "__main__":
+    sys.exit(main())
