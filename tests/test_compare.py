@@ -1,0 +1,106 @@
+"""Comparison of two projects on one grid: a project against itself is exactly zero; real differences show."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from engine_air.cli import main
+from engine_air.compare import DIFFERENCE_QUANTITIES, common_axes, compare_projects, evaluate_on_axes
+from engine_air.envelope import grid_axes
+from engine_air.errors import ProjectError
+from engine_air.evaluate import WORST, evaluate_project
+from engine_air.project_file import load_project
+from engine_air.quantities import QUANTITIES
+from engine_air.sizing import with_design_value
+
+SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
+PITOT = SAMPLES / "subsonic_transport_nacelle.toml"
+RAMP = SAMPLES / "supersonic_two_ramp.toml"
+FAILING = SAMPLES / "undersized_business_jet.toml"
+
+
+@pytest.mark.parametrize("path", [PITOT, RAMP, FAILING], ids=lambda p: p.stem)
+def test_project_against_itself_is_exactly_zero(path):
+    p = load_project(path)
+    c = compare_projects(p, p)
+    assert c.identical
+    assert c.cases == [x.name for x in p.cases] + [WORST]
+    assert not c.only_a and not c.only_b
+    for case in c.cases:
+        for key in QUANTITIES:
+            d = c.difference(case, key)
+            value = c.value("a", case, key)
+            defined = np.isfinite(value)
+            assert np.all(d[defined] == 0.0), (case, key)
+            assert np.array_equal(np.isnan(d), ~defined)  # NaN only where the quantity itself is not defined
+    for s in c.stats:
+        assert s.min == s.max == s.max_abs == 0.0 or s.points == 0
+    for row in c.verdicts:
+        assert row.a.holds == row.b.holds and row.a.worst_margin == row.b.worst_margin
+        assert row.change in ("holds in both", "fails in both")
+
+
+def test_own_axes_reproduce_evaluate_project():
+    p = load_project(RAMP)
+    ref = evaluate_project(p)
+    got = evaluate_on_axes(p, *grid_axes(p.envelope, p.grid))
+    assert np.array_equal(ref.inside, got.inside)
+    for a, b in zip(ref.cases, got.cases):
+        for key in ("face_mach", "recovery", "spillage_fraction", "flags", "throat_mach"):
+            assert np.array_equal(np.asarray(getattr(a.points, key)), np.asarray(getattr(b.points, key)),
+                                  equal_nan=True)
+    assert [(s.name, s.holds, s.worst_margin) for s in ref.summary] == \
+        [(s.name, s.holds, s.worst_margin) for s in got.summary]
+
+
+def test_bigger_face_raises_the_face_mach_margin_everywhere():
+    a = load_project(FAILING)
+    b = with_design_value(a, "face_area_m2", a.inlet.face_area_m2 * 1.3)
+    c = compare_projects(a, b)
+    d = c.difference(WORST, "face_mach_margin")
+    inside = c.both
+    assert np.all(d[inside] > 0)
+    assert np.all(np.isnan(d[~inside]))
+    row = {r.name: r for r in c.verdicts}["face-mach"]
+    assert row.b.worst_margin > row.a.worst_margin
+    s = c.stat(WORST, "face_mach_margin")
+    assert s.min > 0 and s.points == int(inside.sum())
+
+
+def test_grid_choices_and_case_sets():
+    a = load_project(PITOT)
+    b = load_project(FAILING)
+    for choice in ("a", "b", "union"):
+        c = compare_projects(a, b, grid_from=choice)
+        assert c.inside_a.shape == c.inside_b.shape == (len(c.altitude_m), len(c.mach))
+    c = compare_projects(a, b, grid_from="union")
+    m, h = common_axes(a, b, "union")
+    assert m[0] == min(a.envelope.mach + b.envelope.mach) and m[-1] == max(a.envelope.mach + b.envelope.mach)
+    assert h[-1] == max(a.envelope.altitude_m + b.envelope.altitude_m)
+    assert c.cases == ["ISA, take-off", WORST]
+    assert c.only_a == ["ISA+20, take-off", "ISA, max continuous"] and c.only_b == ["ISA+25, take-off"]
+    changes = {r.name: r.change for r in c.verdicts}
+    assert changes["face-mach"] == "now fails" and changes["relative-tip-mach"].startswith("only in A")
+    lo, hi = c.shared_levels(WORST, "face_mach_margin")
+    assert lo == -hi  # a margin scale is centred on zero
+    with pytest.raises(KeyError):
+        c.difference("ISA+25, take-off", "recovery")
+    with pytest.raises(ProjectError):
+        compare_projects(a, b, grid_from="c")
+
+
+def test_cli_compare_exit_codes_and_csv(tmp_path, capsys):
+    out = tmp_path / "d.csv"
+    assert main(["compare", str(PITOT), str(PITOT), "--csv", str(out)]) == 0
+    text = capsys.readouterr().out
+    assert "identical results" in text
+    head = out.read_text().splitlines()[0].split(",")
+    assert head[:5] == ["case", "mach", "altitude_m", "inside_a", "inside_b"]
+    assert all(f"{q}_delta" in head for q in DIFFERENCE_QUANTITIES)
+    assert main(["compare", str(PITOT), str(FAILING)]) == 1
+    assert "now fails" in capsys.readouterr().out
+    assert main(["compare", str(PITOT), str(tmp_path / "missing.toml")]) == 2
+    assert "missing.toml" in capsys.readouterr().err
