@@ -1,0 +1,383 @@
+"""The selected point in full: stations, flow, shock system, each limit, and the flags in plain words.
+
+Numbers come from ``engine_air.report`` (``point_record``, ``station_table``,
+``shock_table``) and are shown in the current display units. Every table
+cell that shows a number keeps its display value in ``Qt.UserRole`` and its SI
+value in ``SI_ROLE`` so that tests (and copy-paste) can read them exactly.
+"""
+
+from __future__ import annotations
+
+import html
+import math
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QHeaderView,
+    QLabel,
+    QScrollArea,
+    QTableWidget,
+    QTableWidgetItem,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine_air import flags as F
+from engine_air import report
+
+from .units import Units, group_digits
+
+SI_ROLE = Qt.UserRole + 1
+
+# station table columns: key, heading, dimension
+STATION_COLUMNS = [
+    ("mach", "M", "none"),
+    ("p_pa", "p", "pressure"),
+    ("t_k", "T", "temperature"),
+    ("pt_pa", "p_t", "pressure"),
+    ("tt_k", "T_t", "temperature"),
+    ("v_m_s", "V", "speed"),
+    ("area_m2", "A", "area"),
+]
+
+# flow table rows: record key, label, dimension
+FLOW_ROWS = [
+    ("theta2", "θ2 = T_t2 / T_ref", "none"),
+    ("corrected_flow_kg_s", "Corrected flow demanded W_c2", "flow"),
+    ("mass_flow_kg_s", "Mass flow delivered W", "flow"),
+    ("recovery", "Recovery p_t2/p_t0", "none"),
+    ("external_recovery", "  external shocks π_ext", "none"),
+    ("duct_recovery", "  duct π_duct", "none"),
+    ("reference_recovery", "Reference recovery (MIL-E-5008B)", "none"),
+    ("mass_flow_ratio", "Mass-flow ratio A0/A_c", "none"),
+    ("max_mass_flow_ratio", "Largest mass-flow ratio MFR_max", "none"),
+    ("spillage_fraction", "Spillage fraction", "none"),
+    ("additive_drag_coefficient", "Additive drag coefficient", "none"),
+    ("spillage_drag_coefficient", "Spillage drag coefficient", "none"),
+    ("face_static_to_ambient", "Face static / ambient p2/p0", "none"),
+    ("relative_tip_mach", "Blade relative tip Mach", "none"),
+]
+
+
+def fmt(x, digits: int = 4) -> str:
+    if x is None or (isinstance(x, float) and not math.isfinite(x)):
+        return "—"
+    x = float(x)
+    if x == 0:
+        return "0"
+    if abs(x) >= 1e5 or abs(x) < 1e-3:
+        return f"{x:.3e}"
+    if abs(x) >= 100:
+        return f"{x:,.1f}".replace(",", " ")
+    return f"{x:.{digits}g}" if abs(x) >= 1 else f"{x:.{digits}f}"
+
+
+def _cell(t: QTableWidget, row: int, col: int) -> QTableWidgetItem:
+    """The item at (row, col), made once and then reused (creating items is the slow part of a refill)."""
+    item = t.item(row, col)
+    if item is None:
+        item = QTableWidgetItem()
+        t.setItem(row, col, item)
+    return item
+
+
+def _set_num(t: QTableWidget, row: int, col: int, display, si=None, digits: int = 4) -> QTableWidgetItem:
+    item = _cell(t, row, col)
+    item.setText(fmt(display, digits))
+    item.setData(Qt.UserRole, display)
+    item.setData(SI_ROLE, si if si is not None else display)
+    item.setTextAlignment(Qt.AlignRight | Qt.AlignVCenter)
+    return item
+
+
+def _set_text(t: QTableWidget, row: int, col: int, text: str) -> QTableWidgetItem:
+    item = _cell(t, row, col)
+    item.setText(text)
+    item.setData(Qt.UserRole, text)
+    return item
+
+
+def _set_rows(t: QTableWidget, n: int) -> bool:
+    """Set the row count; True when it changed (the height then needs fitting again)."""
+    if t.rowCount() == n:
+        return False
+    t.setRowCount(n)
+    return True
+
+
+def _table(columns: list[str]) -> QTableWidget:
+    t = QTableWidget(0, len(columns))
+    t.setHorizontalHeaderLabels(columns)
+    t.verticalHeader().setVisible(False)
+    t.setEditTriggers(QAbstractItemView.NoEditTriggers)
+    t.setSelectionMode(QAbstractItemView.ContiguousSelection)
+    t.setVerticalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
+    t.setHorizontalScrollBarPolicy(Qt.ScrollBarAsNeeded)
+    t.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)
+    t.horizontalHeader().setStretchLastSection(True)
+    return t
+
+
+def _fit_height(t: QTableWidget) -> None:
+    """Show every row without a vertical scroll bar."""
+    header = t.horizontalHeader().sizeHint().height()
+    rows = t.verticalHeader().length()
+    scroll = t.horizontalScrollBar().sizeHint().height() if t.horizontalScrollBar().isVisible() else 0
+    t.setFixedHeight(header + rows + scroll + 2 * t.frameWidth() + 2)
+
+
+class DetailPanel(QScrollArea):
+    """Everything about one grid point of one case."""
+
+    def __init__(self, parent=None) -> None:
+        super().__init__(parent)
+        self.setWidgetResizable(True)
+        self._units = Units()
+        self._record = None
+        self._stations_si: list[dict] = []
+        self._shocks: list[dict] = []
+        self._index = None
+        self._case = None
+        self._fitted: dict = {}
+
+        body = QWidget()
+        lay = QVBoxLayout(body)
+        lay.setContentsMargins(6, 6, 6, 6)
+        self.header = QLabel("No point selected. Click the map to select a flight condition.")
+        self.header.setObjectName("detailHeader")
+        self.header.setWordWrap(True)
+        self.header.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.stale_label = QLabel("")
+        self.stale_label.setObjectName("detailStale")
+        self.stale_label.setStyleSheet("background: #8a3b00; color: white; font-weight: bold; padding: 4px;")
+        self.stale_label.hide()
+        self.stations = _table(["", "0 free stream", "1 capture", "th throat", "2 face"])
+        self.flow = _table(["Quantity", "Value", "Unit"])
+        self.shocks = _table(["Shock", "M ahead", "M behind", "Wave angle (°)", "p_t ratio"])
+        self.checks = _table(["Limit: rule", "Value", "Margin", "Status"])
+        self.checks.setWordWrap(True)
+        self.checks.horizontalHeader().setSectionResizeMode(0, QHeaderView.Stretch)
+        self.checks.horizontalHeader().setStretchLastSection(False)
+        self.flags_label = QLabel("")
+        self.flags_label.setWordWrap(True)
+        self.flags_label.setTextFormat(Qt.RichText)
+        self.flags_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.regime_label = QLabel("")
+        self.regime_label.setWordWrap(True)
+
+        def heading(text):
+            h = QLabel(text)
+            h.setObjectName("detailHeading")
+            h.setStyleSheet("font-weight: bold; margin-top: 6px;")
+            return h
+
+        lay.addWidget(self.stale_label)
+        lay.addWidget(self.header)
+        lay.addWidget(heading("Limits at this point"))
+        lay.addWidget(self.checks)
+        lay.addWidget(heading("Stations (SAE AS755 numbering)"))
+        lay.addWidget(self.stations)
+        lay.addWidget(heading("Flow, recovery and capture"))
+        lay.addWidget(self.flow)
+        lay.addWidget(heading("Shock system"))
+        lay.addWidget(self.regime_label)
+        lay.addWidget(self.shocks)
+        lay.addWidget(heading("Flags"))
+        lay.addWidget(self.flags_label)
+        lay.addStretch(1)
+        self.setWidget(body)
+
+    # -- data for tests and export ------------------------------------------
+    def record(self) -> dict | None:
+        """The ``report.point_record`` of the point shown (SI)."""
+        return self._record
+
+    def station_cell(self, station: str, key: str) -> float | None:
+        """The display value shown in the stations table for ``station`` ("0", "1", "th", "2") and ``key``."""
+        col = 1 + [r["station"] for r in self._stations_si].index(station)
+        row = [c[0] for c in STATION_COLUMNS].index(key)
+        return self.stations.item(row, col).data(Qt.UserRole)
+
+    def station_rows(self, si: bool = False) -> list[dict]:
+        """The station table as dicts (keys as ``report.station_table``), in display units unless ``si``."""
+        if si:
+            return [dict(r) for r in self._stations_si]
+        out = []
+        for r in self._stations_si:
+            d = {"station": r["station"], "name": r["name"]}
+            for key, _, dim in STATION_COLUMNS:
+                d[key] = self._units.to_display(dim, r[key]) if dim != "none" else r[key]
+            out.append(d)
+        return out
+
+    def check_rows(self) -> list[dict]:
+        return [] if self._record is None else [dict(c) for c in self._record["checks"]]
+
+    def shock_rows(self) -> list[dict]:
+        return [dict(s) for s in self._shocks]
+
+    @property
+    def index(self):
+        return self._index
+
+    @property
+    def case(self):
+        return self._case
+
+    # -- display ---------------------------------------------------------------
+    def set_units(self, units: Units) -> None:
+        self._units = units
+        if self._record is not None:
+            self._fill()
+
+    def refresh(self) -> None:
+        """Redraw (after a style change: row heights follow the font)."""
+        self._fitted.clear()
+        if self._record is not None:
+            self._fill()
+
+    def _fit(self, t: QTableWidget) -> None:
+        """Fit rows and height once per (row count, style); refits cost more than the refill itself."""
+        key = (t.rowCount(), t.columnCount())
+        if self._fitted.get(id(t)) == key:
+            return
+        t.resizeRowsToContents()
+        _fit_height(t)
+        self._fitted[id(t)] = key
+
+    def set_stale(self, text: str | None) -> None:
+        if text:
+            self.stale_label.setText(text)
+            self.stale_label.show()
+        else:
+            self.stale_label.hide()
+
+    def clear(self) -> None:
+        self._record = None
+        self._stations_si = []
+        self._shocks = []
+        self._index = None
+        self._case = None
+        for t in (self.stations, self.flow, self.shocks, self.checks):
+            t.setRowCount(0)
+        self._fitted.clear()
+        self.header.setText("No point selected. Click the map to select a flight condition.")
+        self.flags_label.setText("")
+        self.regime_label.setText("")
+
+    def show_point(self, result, case_name: str, index: tuple[int, int]) -> None:
+        """Show grid point ``index`` (row, column) of case ``case_name`` from ``result``."""
+        points = result.case_map(case_name).points
+        self._index = tuple(index)
+        self._case = case_name
+        self._record = report.point_record(points, self._index, case_name)
+        self._stations_si = report.station_table(result.project, points, self._index)
+        self._shocks = report.shock_table(result.project, points, self._index)
+        self._inside = bool(result.inside[self._index])
+        self._fill()
+
+    def _fill(self) -> None:
+        tables = (self.checks, self.stations, self.flow, self.shocks)
+        # Item changes with the models' signals blocked, then one repaint per table: a refill
+        # otherwise sends hundreds of dataChanged signals through the views.
+        for t in tables:
+            t.model().blockSignals(True)
+        try:
+            self._fill_all()
+        finally:
+            for t in tables:
+                m = t.model()
+                m.blockSignals(False)
+                if t.rowCount() and t.columnCount():  # one change notice for the whole table
+                    m.dataChanged.emit(m.index(0, 0), m.index(t.rowCount() - 1, t.columnCount() - 1))
+        for t in tables:
+            self._fit(t)
+
+    def _fill_all(self) -> None:
+        u, rec = self._units, self._record
+        alt = u.to_display("altitude", rec["altitude_m"])
+        lim = rec["limiting"]
+        lim_label = next((c["label"] for c in rec["checks"] if c["name"] == lim), lim)
+        lim_holds = next((c["holds"] for c in rec["checks"] if c["name"] == lim), None)
+        verdict = "all limits hold" if rec["holds"] else "SOME LIMIT FAILS"
+        where = "" if self._inside else "  (outside the envelope: computed, not judged)"
+        self.header.setText(
+            f"<b>Case “{html.escape(rec['case'])}”</b> &nbsp; M0 = {rec['mach']:.3f}, "
+            f"altitude = {group_digits(alt)} {u.label('altitude')}" +
+            f"<br>Regime: {rec['regime']} &nbsp;·&nbsp; limiting: {html.escape(str(lim_label))}"
+            f"{'' if lim_holds is None else (' (holds)' if lim_holds else ' (FAILS)')}"
+            f"<br><b>{verdict}</b>{where}"
+        )
+        self.header.setTextFormat(Qt.RichText)
+        self._fill_checks(rec)
+        self._fill_stations()
+        self._fill_flow(rec)
+        self._fill_shocks(rec)
+        names = rec["flags"]
+        self.flags_label.setText("<br>".join(
+            f"<b>{html.escape(n)}</b>: {html.escape(F.DESCRIPTIONS.get(n, ''))}" for n in names))
+
+    def _fill_checks(self, rec) -> None:
+        t = self.checks
+        _set_rows(t, len(rec["checks"]))
+        for r, c in enumerate(rec["checks"]):
+            _set_text(t, r, 0, f"{c['label']}: {c['limit']}")
+            _set_num(t, r, 1, c["value"])
+            _set_num(t, r, 2, c["margin"])
+            status = "not judged here" if c["holds"] is None else ("holds" if c["holds"] else "FAILS")
+            item = _set_text(t, r, 3, status)
+            fails = c["holds"] is False
+            f = item.font()
+            f.setBold(fails)
+            item.setFont(f)
+            item.setBackground(Qt.black if fails else Qt.transparent)
+            item.setForeground(Qt.white if fails else self.palette().text())
+
+    def _fill_stations(self) -> None:
+        """Rows are quantities (M, p, T, ...), columns are the stations, so the table stays narrow."""
+        u = self._units
+        t = self.stations
+        rows = self._stations_si
+        if t.columnCount() != 1 + len(rows):
+            t.setColumnCount(1 + len(rows))
+            t.setHorizontalHeaderLabels([""] + [f"{r['station']} {r['name']}" for r in rows])
+        _set_rows(t, len(STATION_COLUMNS))
+        for q, (key, head, dim) in enumerate(STATION_COLUMNS):
+            _set_text(t, q, 0, head if dim == "none" else f"{head} ({u.label(dim)})")
+            for c, row in enumerate(rows, start=1):
+                si = row[key]
+                disp = u.to_display(dim, si) if dim != "none" else si
+                _set_num(t, q, c, disp, si)
+
+    def _fill_flow(self, rec) -> None:
+        u = self._units
+        t = self.flow
+        _set_rows(t, len(FLOW_ROWS))
+        for r, (key, label, dim) in enumerate(FLOW_ROWS):
+            si = rec.get(key)
+            disp = u.to_display(dim, si) if dim != "none" else si
+            _set_text(t, r, 0, label)
+            _set_num(t, r, 1, disp, si)
+            _set_text(t, r, 2, u.label(dim) if dim != "none" else "–")
+
+    def _fill_shocks(self, rec) -> None:
+        t = self.shocks
+        rows = self._shocks
+        if rec["mach"] is not None and rec["mach"] <= 1.0:
+            self.regime_label.setText("Subsonic flight: no external shock.")
+        elif not rows:
+            self.regime_label.setText(f"Regime: {rec['regime']}.")
+        else:
+            total = 1.0
+            for s in rows:
+                total *= s["total_pressure_ratio"]
+            self.regime_label.setText(f"Regime: {rec['regime']}; the external shocks keep {total:.4f} of p_t0.")
+        _set_rows(t, len(rows))
+        for r, s in enumerate(rows):
+            _set_text(t, r, 0, s["kind"])
+            _set_num(t, r, 1, s["mach_ahead"])
+            _set_num(t, r, 2, s["mach_behind"])
+            _set_num(t, r, 3, s["wave_angle_deg"])
+            _set_num(t, r, 4, s["total_pressure_ratio"])
+        t.setVisible(bool(rows))

@@ -1,0 +1,102 @@
+"""The open project: the current ``Project``, its file, whether it is saved, and undo/redo.
+
+Edits replace the whole (frozen) project. "Unsaved" means the current
+project differs from the one last loaded or saved, so undoing back to the
+saved state makes the document clean again.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from PySide6.QtCore import QObject, Signal
+
+from engine_air.project_file import load_project, save_project
+
+MAX_UNDO = 200
+
+
+class ProjectDocument(QObject):
+    changed = Signal(object)  # the new Project
+    stateChanged = Signal()  # path or saved state changed
+
+    def __init__(self, project, path: str | Path | None = None, parent=None) -> None:
+        super().__init__(parent)
+        self._project = project
+        self._saved = project if path is not None else None
+        self._path = None if path is None else Path(path)
+        self._undo: list = []
+        self._redo: list = []
+
+    @property
+    def project(self):
+        return self._project
+
+    @property
+    def path(self) -> Path | None:
+        return self._path
+
+    @property
+    def dirty(self) -> bool:
+        return self._saved is None or self._project != self._saved
+
+    @property
+    def display_name(self) -> str:
+        return self._path.name if self._path is not None else "untitled.toml"
+
+    def can_undo(self) -> bool:
+        return bool(self._undo)
+
+    def can_redo(self) -> bool:
+        return bool(self._redo)
+
+    def edit(self, project) -> None:
+        """Replace the project by an edited one (undoable)."""
+        if project == self._project:
+            return
+        self._undo.append(self._project)
+        del self._undo[:-MAX_UNDO]
+        self._redo.clear()
+        self._project = project
+        self.changed.emit(project)
+        self.stateChanged.emit()
+
+    def undo(self) -> None:
+        if self._undo:
+            self._redo.append(self._project)
+            self._project = self._undo.pop()
+            self.changed.emit(self._project)
+            self.stateChanged.emit()
+
+    def redo(self) -> None:
+        if self._redo:
+            self._undo.append(self._project)
+            self._project = self._redo.pop()
+            self.changed.emit(self._project)
+            self.stateChanged.emit()
+
+    def reset(self, project, path: str | Path | None, saved: bool) -> None:
+        """A different project (New, Open): clears the history."""
+        self._project = project
+        self._path = None if path is None else Path(path)
+        self._saved = project if saved else None
+        self._undo.clear()
+        self._redo.clear()
+        self.changed.emit(project)
+        self.stateChanged.emit()
+
+    def open(self, path: str | Path) -> None:
+        """Load ``path``; raises ``ProjectError`` and leaves the document unchanged on failure."""
+        project = load_project(path)
+        self.reset(project, Path(path).resolve(), saved=True)
+
+    def save(self, path: str | Path | None = None) -> Path:
+        """Save atomically to ``path`` (or the current file); raises ``ProjectSaveError``, keeping the edits."""
+        target = Path(path) if path is not None else self._path
+        if target is None:
+            raise ValueError("no file name given")
+        save_project(self._project, target)
+        self._path = target.resolve()
+        self._saved = self._project
+        self.stateChanged.emit()
+        return self._path

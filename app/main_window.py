@@ -1,0 +1,608 @@
+"""The main window: verdict banner, the map with its selectors, the selected point, findings and editors.
+
+Data flow: the ``ProjectDocument`` holds the project; every change asks the
+``MapRunner`` for a recompute; only the newest computation's result reaches
+the map, the findings, the verdict and the detail panel. While a computation
+runs the map says "Computing…"; if it fails, the last good map stays, marked
+"OUT OF DATE" with the error.
+"""
+
+from __future__ import annotations
+
+import html
+import logging
+import math
+from pathlib import Path
+
+from PySide6.QtCore import QSettings, Qt, QTimer
+from PySide6.QtGui import QAction, QActionGroup, QFont, QKeySequence
+from PySide6.QtWidgets import (
+    QApplication,
+    QComboBox,
+    QDockWidget,
+    QFileDialog,
+    QLabel,
+    QMainWindow,
+    QMessageBox,
+    QToolBar,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine_air.errors import ProjectError, ProjectSaveError
+from engine_air.evaluate import WORST
+from engine_air.quantities import DEFAULT_QUANTITY, QUANTITIES
+
+from . import APPLICATION, ORGANISATION, analysis, exports, style
+from .about import about_html
+from .detail_panel import DetailPanel
+from .document import ProjectDocument
+from .editors import ProjectEditors
+from .findings import FindingsList
+from .map_view import EnvelopeMap
+from .template import new_project
+from .units import SI, SYSTEM_LABELS, US, Units
+from .worker import MapRunner
+
+log = logging.getLogger(__name__)
+
+MAX_RECENT = 8
+BUSY_DELAY_MS = 120
+WORST_LABEL = "Worst of all cases"
+
+
+class MainWindow(QMainWindow):
+    def __init__(self, project=None, path=None, settings: QSettings | None = None, runner: MapRunner | None = None,
+                 parent=None) -> None:
+        super().__init__(parent)
+        self.settings = settings if settings is not None else QSettings(ORGANISATION, APPLICATION)
+        self.document = ProjectDocument(project if project is not None else new_project(), path, self)
+        self.runner = runner if runner is not None else MapRunner(self)
+        self.result = None  # last good MapResult
+        self.result_generation = 0
+        self.panels_generation = 0
+        self.units = Units(SI)
+        self.presentation = False
+        self._pending_selection = "worst"  # what to select when the next result arrives
+        self._last_error = ""
+        self._shutdown = False
+        self.verdict_state = "busy"
+        self._progress = 0.0
+        self._busy_timer = QTimer(self)
+        self._busy_timer.setSingleShot(True)
+        self._busy_timer.setInterval(BUSY_DELAY_MS)
+        self._busy_timer.timeout.connect(self._show_busy_on_map)
+
+        self._build_central()
+        self._build_docks()
+        self._build_menus()
+        self.setStyleSheet(style.stylesheet(False))
+        self._fit_verdict_height()
+        self.resize(1600, 1000)
+
+        self.document.changed.connect(self._on_project_changed)
+        self.document.stateChanged.connect(self._update_title)
+        self.runner.started.connect(self._on_started)
+        self.runner.progress.connect(self._on_progress)
+        self.runner.finished.connect(self._on_finished)
+        self.runner.failed.connect(self._on_failed)
+        self.map.pointSelected.connect(self._on_point_selected)
+        self.findings.findingActivated.connect(self.go_to_finding)
+        self.editors.projectEdited.connect(self.document.edit)
+
+        self.editors.set_project(self.document.project)
+        self._update_title()
+        self.recompute()
+
+    # -- construction ----------------------------------------------------------
+    def _build_central(self) -> None:
+        central = QWidget()
+        lay = QVBoxLayout(central)
+        lay.setContentsMargins(4, 4, 4, 4)
+        lay.setSpacing(4)
+        self.verdict = QLabel("Computing…")
+        self.verdict.setObjectName("verdict")
+        self.verdict.setAlignment(Qt.AlignCenter)
+        self.verdict.setWordWrap(True)
+        self.verdict.setTextFormat(Qt.RichText)
+        lay.addWidget(self.verdict)
+        self.map = EnvelopeMap()
+        lay.addWidget(self.map, 1)
+        self.setCentralWidget(central)
+
+        bar = QToolBar("Map")
+        bar.setObjectName("mapToolbar")
+        bar.setMovable(False)
+        self.quantity_combo = QComboBox()
+        for key, q in QUANTITIES.items():
+            self.quantity_combo.addItem(q.label, key)
+        self.quantity_combo.setCurrentIndex(max(0, self.quantity_combo.findData(DEFAULT_QUANTITY)))
+        self.quantity_combo.setToolTip("Quantity shown on the map")
+        self.case_combo = QComboBox()
+        self.case_combo.setMinimumContentsLength(18)
+        self.case_combo.setToolTip("Case shown on the map, or the worst of all cases at each point")
+        self.units_combo = QComboBox()
+        for system in (SI, US):
+            self.units_combo.addItem(SYSTEM_LABELS[system], system)
+        bar.addWidget(QLabel("Quantity"))
+        bar.addWidget(self.quantity_combo)
+        bar.addWidget(QLabel("Case"))
+        bar.addWidget(self.case_combo)
+        bar.addWidget(QLabel("Units"))
+        bar.addWidget(self.units_combo)
+        self.addToolBar(Qt.TopToolBarArea, bar)
+        self.toolbar = bar
+        self.quantity_combo.currentIndexChanged.connect(lambda _i: self._redraw())
+        self.case_combo.currentIndexChanged.connect(lambda _i: self._on_case_changed())
+        self.units_combo.currentIndexChanged.connect(lambda _i: self.set_units(self.units_combo.currentData()))
+
+    def _build_docks(self) -> None:
+        self.detail = DetailPanel()
+        self.detail_dock = QDockWidget("Selected point", self)
+        self.detail_dock.setObjectName("detailDock")
+        self.detail_dock.setWidget(self.detail)
+        self.addDockWidget(Qt.RightDockWidgetArea, self.detail_dock)
+        self.editors = ProjectEditors()
+        self.editor_dock = QDockWidget("Edit project", self)
+        self.editor_dock.setObjectName("editorDock")
+        self.editor_dock.setWidget(self.editors)
+        self.addDockWidget(Qt.RightDockWidgetArea, self.editor_dock)
+        self.tabifyDockWidget(self.detail_dock, self.editor_dock)
+        self.detail_dock.raise_()
+        self.findings = FindingsList()
+        self.findings_dock = QDockWidget("Findings over the envelope (all cases)", self)
+        self.findings_dock.setObjectName("findingsDock")
+        self.findings_dock.setWidget(self.findings)
+        self.addDockWidget(Qt.BottomDockWidgetArea, self.findings_dock)
+        self.resizeDocks([self.detail_dock], [560], Qt.Horizontal)
+        self.resizeDocks([self.findings_dock], [190], Qt.Vertical)
+
+    def _action(self, menu, text, slot, shortcut=None, checkable=False) -> QAction:
+        a = QAction(text, self)
+        if shortcut is not None:
+            a.setShortcut(QKeySequence(shortcut))
+        a.setCheckable(checkable)
+        a.triggered.connect(slot)
+        menu.addAction(a)
+        return a
+
+    def _build_menus(self) -> None:
+        mb = self.menuBar()
+        f = mb.addMenu("&File")
+        self._action(f, "&New", self.new_file, QKeySequence.New)
+        self._action(f, "&Open…", self.open_dialog, QKeySequence.Open)
+        self.recent_menu = f.addMenu("Open &recent")
+        self.recent_menu.aboutToShow.connect(self._fill_recent_menu)
+        self._fill_recent_menu()
+        self._action(f, "&Save", self.save, QKeySequence.Save)
+        self._action(f, "Save &as…", self.save_as_dialog, QKeySequence.SaveAs)
+        f.addSeparator()
+        ex = f.addMenu("&Export")
+        self._action(ex, "Map as &PNG (review resolution)…", lambda: self._export_dialog("png"))
+        self._action(ex, "Map as &SVG…", lambda: self._export_dialog("svg"))
+        self._action(ex, "Grid as &CSV (every point, every case)…", lambda: self._export_dialog("csv"))
+        self._action(ex, "&Findings as text…", lambda: self._export_dialog("txt"))
+        f.addSeparator()
+        self._action(f, "&Quit", self.close, QKeySequence.Quit)
+
+        e = mb.addMenu("&Edit")
+        self.undo_action = self._action(e, "&Undo edit", self.document.undo, QKeySequence.Undo)
+        self.redo_action = self._action(e, "&Redo edit", self.document.redo, QKeySequence.Redo)
+
+        v = mb.addMenu("&View")
+        self.presentation_action = self._action(v, "&Presentation mode", self.set_presentation, "F5", checkable=True)
+        v.addSeparator()
+        group = QActionGroup(self)
+        self.unit_actions = {}
+        for system in (SI, US):
+            a = self._action(v, f"{SYSTEM_LABELS[system]} units",
+                             lambda _c=False, s=system: self.set_units(s), checkable=True)
+            group.addAction(a)
+            self.unit_actions[system] = a
+        self.unit_actions[SI].setChecked(True)
+        v.addSeparator()
+        for dock in (self.detail_dock, self.editor_dock, self.findings_dock):
+            v.addAction(dock.toggleViewAction())
+
+        self.design_menu = self._add_design_menu()
+        h = mb.addMenu("&Help")
+        self._action(h, "&About", self.show_about)
+
+    def _add_design_menu(self):
+        """The "Design" menu (sizing, comparison, sweep, review pack) from ``app.design_dialogs``, if present."""
+        try:
+            from .design_dialogs import add_design_menu
+        except ImportError:
+            return None
+        try:
+            return add_design_menu(self, lambda: self.document.project)
+        except Exception:  # noqa: BLE001 - an optional menu must never stop the window from opening
+            log.exception("the Design menu could not be added")
+            return None
+
+    # -- title, verdict ------------------------------------------------------------
+    def _update_title(self) -> None:
+        d = self.document
+        self.setWindowTitle(f"{d.display_name}{'*' if d.dirty else ''} — {APPLICATION}")
+        self.undo_action.setEnabled(d.can_undo())
+        self.redo_action.setEnabled(d.can_redo())
+
+    def _fit_verdict_height(self) -> None:
+        """Two lines of banner text, fixed, so a change of verdict never resizes (and repaints) the map."""
+        big = 28 if self.presentation else 16
+        small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
+        pad = 10 if self.presentation else 6
+        self.verdict.setFixedHeight(int(1.45 * (big + small) * 96 / 72) + 2 * pad + 4)
+
+    def _set_verdict(self, state: str, text: str) -> None:
+        colour = {"holds": style.HOLDS_BG, "fails": style.FAILS_BG, "busy": style.BUSY_BG,
+                  "stale": style.STALE_BG}[state]
+        self.verdict_state = state
+        self.verdict.setText(text)
+        css = f"background: {colour};"
+        if self.verdict.styleSheet() != css:  # restyling costs a few ms: only on a change of colour
+            self.verdict.setStyleSheet(css)
+
+    def _verdict_for(self, result) -> tuple[str, str]:
+        failing, total = analysis.failing_count(result)
+        n_cases = len(result.cases)
+        small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
+        over = f"whole envelope, {n_cases} case{'s' if n_cases != 1 else ''}"
+        if failing == 0:
+            return "holds", (f"✔  ALL {total} LIMITS HOLD<br><span style='font-size:{small}pt; font-weight:normal'>"
+                             f"{over}</span>")
+        names = "; ".join(html.escape(s.label) for s in result.summary if not s.holds)
+        return "fails", (f"✖  {failing} OF {total} LIMITS FAIL<br><span style='font-size:{small}pt; "
+                         f"font-weight:normal'>{names} — {over}</span>")
+
+    # -- computing -----------------------------------------------------------------
+    def recompute(self) -> int:
+        return self.runner.request(self.document.project)
+
+    def _on_project_changed(self, project) -> None:
+        self.editors.set_project(project)
+        self._update_title()
+        self.recompute()
+
+    def _on_started(self, _gen: int) -> None:
+        # The banner says so at once; the map's own overlay follows if the run lasts longer than
+        # BUSY_DELAY_MS, so that quick edits do not flash (and repaint) the whole map twice.
+        self._set_verdict("busy", "Computing…")
+        self.detail.set_stale("Computing… the values below belong to the previous result.")
+        self._busy_timer.start()
+
+    def _show_busy_on_map(self) -> None:
+        if self.runner.busy:
+            self.map.set_computing(self._progress)
+
+    def _on_progress(self, fraction: float) -> None:
+        self._progress = fraction
+        if self.map.state == "computing":
+            self.map.set_computing(fraction)
+
+    def _on_finished(self, gen: int, result) -> None:
+        self._busy_timer.stop()
+        self._progress = 0.0
+        self.result = result
+        self.result_generation = gen
+        self._last_error = ""
+        self._fill_case_combo(result)
+        self._redraw()
+        self.map.set_current()
+        self._set_verdict(*self._verdict_for(result))
+        # The side panels follow in the next turn of the event loop, so that the map's repaint is
+        # not held up behind them and the GUI thread never stalls for their sum.
+        QTimer.singleShot(0, lambda g=gen: self._update_panels(g))
+
+    def _update_panels(self, gen: int) -> None:
+        if gen != self.result_generation or self.result is None:
+            return  # a newer result arrived meanwhile; it schedules its own update
+        self.detail.set_stale(None)
+        self.findings.set_summary(self.result.summary, self.units)
+        self._restore_selection()
+        self.panels_generation = gen
+
+    @property
+    def up_to_date(self) -> bool:
+        """The newest request's result is on the map and in every panel."""
+        return (self.result is not None and self.result_generation == self.runner.generation
+                and self.panels_generation == self.result_generation and not self.runner.busy)
+
+    def _on_failed(self, gen: int, message: str) -> None:
+        self._busy_timer.stop()
+        self._last_error = message
+        log.warning("computation %d failed: %s", gen, message)
+        self.statusBar().showMessage(f"Computation failed: {message}", 15000)
+        if self.result is None:
+            self._set_verdict("stale", f"NO RESULT — the computation failed: {message}")
+            self.map.set_stale(message)
+            return
+        self.map.set_stale(message)
+        self.detail.set_stale("OUT OF DATE — the last computation failed; values are from the previous result.")
+        self._set_verdict("stale", f"OUT OF DATE — computation failed: {message}")
+
+    # -- map -----------------------------------------------------------------------
+    def current_case(self) -> str:
+        data = self.case_combo.currentData()
+        return WORST if data is None else data
+
+    def current_quantity(self) -> str:
+        return self.quantity_combo.currentData()
+
+    def _fill_case_combo(self, result) -> None:
+        names = [c.name for c in result.cases]
+        old = [self.case_combo.itemData(k) for k in range(self.case_combo.count())]
+        if old == [WORST] + names:
+            return
+        keep = self.current_case()
+        self.case_combo.blockSignals(True)
+        self.case_combo.clear()
+        self.case_combo.addItem(WORST_LABEL, WORST)
+        for n in names:
+            self.case_combo.addItem(n, n)
+        k = self.case_combo.findData(keep)
+        self.case_combo.setCurrentIndex(k if k >= 0 else 0)
+        self.case_combo.blockSignals(False)
+
+    def set_case(self, case: str) -> None:
+        k = self.case_combo.findData(case)
+        if k >= 0:
+            self.case_combo.setCurrentIndex(k)
+
+    def set_quantity(self, key: str) -> None:
+        k = self.quantity_combo.findData(key)
+        if k >= 0:
+            self.quantity_combo.setCurrentIndex(k)
+
+    def _redraw(self) -> None:
+        if self.result is None:
+            return
+        self.map.show_result(self.result, self.current_case(), self.current_quantity(), self.units)
+
+    def _on_case_changed(self) -> None:
+        self._redraw()
+        sel = self.map.selected()
+        if sel is not None:
+            self._show_detail(*sel)
+
+    def select_point(self, i: int, j: int) -> None:
+        """Select grid point (altitude row i, Mach column j) on the map and show it."""
+        self.map.select(i, j, emit=True)
+
+    def select_condition(self, mach: float, altitude_m: float) -> tuple[int, int]:
+        i, j = analysis.nearest_index(self.result, mach, altitude_m)
+        self.select_point(i, j)
+        return i, j
+
+    def _on_point_selected(self, i: int, j: int) -> None:
+        if self.result is not None:
+            self._selected_condition = (float(self.result.mach[j]), float(self.result.altitude_m[i]))
+        self._show_detail(i, j)
+
+    def _show_detail(self, i: int, j: int) -> None:
+        if self.result is None:
+            return
+        case = analysis.case_at(self.result, self.current_case(), (i, j))
+        self.detail.show_point(self.result, case, (i, j))
+
+    def _restore_selection(self) -> None:
+        r = self.result
+        if self._pending_selection == "worst":
+            self._pending_selection = None
+            target = next((s for s in r.summary if not s.holds), r.summary[0] if r.summary else None)
+            if target is not None and math.isfinite(target.worst_mach):
+                self.select_condition(target.worst_mach, target.worst_altitude_m)
+                return
+            self.select_point(len(r.altitude_m) // 2, len(r.mach) // 2)
+            return
+        cond = getattr(self, "_selected_condition", None)
+        if cond is not None and self.map.selected() is not None:
+            i, j = analysis.nearest_index(r, *cond)
+            if (i, j) != self.map.selected():
+                self.map.select(i, j, emit=False)
+            self._show_detail(i, j)
+
+    def go_to_finding(self, summary) -> None:
+        """Select a finding's worst point, switching to its case when the map shows another."""
+        if self.result is None or not math.isfinite(summary.worst_mach):
+            return
+        if summary.worst_case and self.current_case() not in (summary.worst_case, ):
+            self.set_case(summary.worst_case)
+        self.select_condition(summary.worst_mach, summary.worst_altitude_m)
+
+    # -- units, presentation -----------------------------------------------------------
+    def set_units(self, system: str) -> None:
+        if system == self.units.system:
+            return
+        self.units = Units(system)
+        for s, a in self.unit_actions.items():
+            a.setChecked(s == system)
+        k = self.units_combo.findData(system)
+        if self.units_combo.currentIndex() != k:
+            self.units_combo.blockSignals(True)
+            self.units_combo.setCurrentIndex(k)
+            self.units_combo.blockSignals(False)
+        self.detail.set_units(self.units)
+        self.editors.set_units(self.units)
+        if self.result is not None:
+            self.findings.set_summary(self.result.summary, self.units)
+            self._redraw()
+
+    def set_presentation(self, on: bool) -> None:
+        on = bool(on)
+        self.presentation = on
+        self.presentation_action.setChecked(on)
+        self.setStyleSheet(style.stylesheet(on))
+        self._fit_verdict_height()
+        if on:
+            # the map and the verdict get the room; the editors and findings come back afterwards
+            self._docks_before = {d: d.isVisible() for d in (self.editor_dock, self.findings_dock)}
+            self.editor_dock.hide()
+            self.findings_dock.hide()
+            self.detail_dock.show()
+            self.detail_dock.raise_()
+        else:
+            for dock, was_visible in getattr(self, "_docks_before", {}).items():
+                dock.setVisible(was_visible)
+            self.detail_dock.raise_()
+        self.map.set_presentation(on)
+        self.detail.refresh()
+        if self.result is not None and self.verdict_state in ("holds", "fails"):
+            self._set_verdict(*self._verdict_for(self.result))
+        self.resizeDocks([self.detail_dock], [600 if on else 560], Qt.Horizontal)
+
+    def show_about(self) -> None:
+        QMessageBox.about(self, f"About {APPLICATION}", about_html())
+
+    # -- files ---------------------------------------------------------------------
+    def _ask_unsaved(self) -> bool:
+        """True when it is fine to drop the current project (saved, discarded, or clean)."""
+        if not self.document.dirty:
+            return True
+        answer = QMessageBox.warning(
+            self, "Unsaved changes",
+            f"{self.document.display_name} has unsaved changes. Save them first?",
+            QMessageBox.Save | QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Save)
+        if answer == QMessageBox.Save:
+            return self.save()
+        return answer == QMessageBox.Discard
+
+    def new_file(self) -> None:
+        if not self._ask_unsaved():
+            return
+        self._pending_selection = "worst"
+        self.map.clear_selection()
+        self.document.reset(new_project(), None, saved=False)
+
+    def open_dialog(self) -> None:
+        if not self._ask_unsaved():
+            return
+        start = str(self.document.path.parent) if self.document.path else ""
+        path, _ = QFileDialog.getOpenFileName(self, "Open project", start, "Project files (*.toml);;All files (*)")
+        if path:
+            self.open_file(path, ask=False)
+
+    def open_file(self, path, ask: bool = True) -> bool:
+        """Open ``path``; on a bad file show the loader's message and keep the current project."""
+        if ask and not self._ask_unsaved():
+            return False
+        try:
+            self._pending_selection = "worst"
+            self.document.open(path)
+        except ProjectError as exc:
+            self._pending_selection = None
+            QMessageBox.critical(self, "Cannot open project",
+                                 f"{exc}\n\nThe project that was open stays open.")
+            return False
+        self.map.clear_selection()
+        self._add_recent(self.document.path)
+        for w in self.document.project.warnings:
+            self.statusBar().showMessage(w, 10000)
+        return True
+
+    def save(self) -> bool:
+        if self.document.path is None:
+            return self.save_as_dialog()
+        return self.save_to(self.document.path)
+
+    def save_as_dialog(self) -> bool:
+        start = str(self.document.path) if self.document.path else self.document.display_name
+        path, _ = QFileDialog.getSaveFileName(self, "Save project as", start, "Project files (*.toml)")
+        if not path:
+            return False
+        if not path.lower().endswith(".toml"):
+            path += ".toml"
+        return self.save_to(path)
+
+    def save_to(self, path) -> bool:
+        self.editors.flush()
+        try:
+            saved = self.document.save(path)
+        except (ProjectSaveError, OSError) as exc:
+            QMessageBox.critical(self, "Could not save",
+                                 f"{exc}\n\nYour edits are kept in the window; try another folder or name.")
+            return False
+        self._add_recent(saved)
+        self.statusBar().showMessage(f"Saved {saved}", 5000)
+        return True
+
+    def recent_files(self) -> list[str]:
+        value = self.settings.value("recent_files", [])
+        if isinstance(value, str):
+            value = [value]
+        return [str(v) for v in (value or [])]
+
+    def _add_recent(self, path) -> None:
+        if path is None:
+            return
+        p = str(Path(path).resolve())
+        files = [f for f in self.recent_files() if f != p]
+        self.settings.setValue("recent_files", [p] + files[: MAX_RECENT - 1])
+
+    def _fill_recent_menu(self) -> None:
+        self.recent_menu.clear()
+        files = self.recent_files()
+        if not files:
+            a = self.recent_menu.addAction("(none)")
+            a.setEnabled(False)
+            return
+        for f in files:
+            a = self.recent_menu.addAction(f)
+            a.triggered.connect(lambda _c=False, f=f: self.open_file(f))
+
+    # -- export --------------------------------------------------------------------
+    def _export_dialog(self, kind: str) -> None:
+        if self.result is None:
+            QMessageBox.information(self, "Nothing to export", "There is no computed map yet.")
+            return
+        stem = Path(self.document.display_name).stem
+        filters = {"png": "PNG image (*.png)", "svg": "SVG drawing (*.svg)", "csv": "CSV table (*.csv)",
+                   "txt": "Text (*.txt)"}
+        suggested = {"png": f"{stem}_map.png", "svg": f"{stem}_map.svg", "csv": f"{stem}_grid.csv",
+                     "txt": f"{stem}_findings.txt"}[kind]
+        folder = self.document.path.parent if self.document.path else Path.cwd()
+        path, _ = QFileDialog.getSaveFileName(self, "Export", str(folder / suggested), filters[kind])
+        if path:
+            self.export(kind, path)
+
+    def export(self, kind: str, path) -> bool:
+        """Write ``kind`` ("png", "svg", "csv", "txt") to ``path``; a failure is reported, never raised."""
+        writers = {
+            "png": lambda: exports.write_map_png(self.map, path),
+            "svg": lambda: exports.write_map_svg(self.map, path),
+            "csv": lambda: exports.write_grid_csv(self.result, path),
+            "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
+                                                       self.document.display_name),
+        }
+        if kind not in writers:
+            raise ValueError(f"unknown export kind {kind!r}")
+        QApplication.setOverrideCursor(Qt.WaitCursor)
+        try:
+            writers[kind]()
+        except OSError as exc:
+            QApplication.restoreOverrideCursor()
+            QMessageBox.critical(self, "Export failed", f"Could not write {path}: {exc.strerror or exc}")
+            return False
+        finally:
+            if QApplication.overrideCursor() is not None:
+                QApplication.restoreOverrideCursor()
+        stale = " (note: the map is out of date)" if self.map.state != "current" else ""
+        self.statusBar().showMessage(f"Exported {path}{stale}", 5000)
+        return True
+
+    # -- closing -------------------------------------------------------------------
+    def closeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        self.editors.flush()
+        if not self._ask_unsaved():
+            event.ignore()
+            return
+        self._shutdown = True
+        self.runner.shutdown()
+        event.accept()
+
+
+def apply_base_font(app: QApplication) -> None:
+    f = QFont(app.font())
+    f.setPointSize(style.BASE_PT)
+    app.setFont(f)
+

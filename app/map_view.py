@@ -1,0 +1,458 @@
+"""The envelope map: one quantity over flight Mach (x) and altitude (y) for one case.
+
+Layers, bottom to top: the quantity as an image (NaN outside the envelope is
+transparent over a neutral grey), the envelope outline, the margin = 0 line
+(of the shown margin, or of the least margin over all limits when a level
+quantity is shown), the dashed face-static = ambient line (p2/p0 = 1, the
+ram-recovery speed), an 'x' on failing grid points (thinned to a regular
+pattern when dense) and the selected point. A legend below the plot names
+every line and marker; a colour bar gives the quantity, its unit and scale.
+
+Hovering shows Mach, altitude, value and the limiting check in the readout
+line; a click selects the nearest grid point (``pointSelected(i, j)``).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QPointF, QRectF, Qt, Signal
+from PySide6.QtGui import QFont
+from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
+
+from engine_air.evaluate import WORST
+from engine_air.quantities import QUANTITIES
+
+from . import analysis
+from .colour_maps import colour_map_for, levels_for
+from .contours import iso_segments, join_segments
+from .units import Units, dimension_of_si_unit, group_digits
+
+OUTSIDE_GREY = "#bdbdbd"
+MAX_MARKER_AXIS = 40  # failing-point markers: at most about this many along either axis
+
+
+def _no_si_prefix(axis) -> None:
+    """Plain tick values (no automatic 'x0.001' scaling), whatever the pyqtgraph version."""
+    if hasattr(axis, "setSIPrefixEnableRanges"):
+        axis.setSIPrefixEnableRanges(())
+    axis.enableAutoSIPrefix(False)
+
+
+def quantity_dimension(key: str) -> str:
+    q = QUANTITIES[key]
+    return dimension_of_si_unit(q.unit) or "none"
+
+
+def quantity_axis_label(key: str, units: Units) -> str:
+    q = QUANTITIES[key]
+    dim = quantity_dimension(key)
+    label = units.label(dim) if dim != "none" else (q.unit or "")
+    return f"{q.label} ({label})" if label else f"{q.label} (–)"
+
+
+def format_value(x: float, digits: int = 4) -> str:
+    if x is None or not math.isfinite(x):
+        return "not defined"
+    if x != 0 and (abs(x) >= 1e5 or abs(x) < 1e-3):
+        return f"{x:.3e}"
+    return f"{x:.{digits}g}" if abs(x) >= 1 else f"{x:.{digits - 1}f}"
+
+
+class EnvelopeMap(QWidget):
+    """The map widget; ``show_result`` draws, ``values()`` gives the array drawn."""
+
+    pointSelected = Signal(int, int)
+
+    def __init__(self, parent=None) -> None:
+        super().__init__(parent)
+        self._result = None
+        self._case = WORST
+        self._key = "face_mach_margin"
+        self._units = Units()
+        self._values = None
+        self._x = np.empty(0)
+        self._y = np.empty(0)
+        self._selected = None
+        self._scale = 1.0
+        self._styled_scale = None
+        self._high_contrast = False
+
+        self.canvas = pg.GraphicsLayoutWidget()
+        self.canvas.setBackground("w")
+        self.canvas.ci.setContentsMargins(6, 6, 6, 6)
+        self.plot = self.canvas.addPlot(row=0, col=0)
+        self.plot.setMenuEnabled(False)
+        self.plot.hideButtons()
+        self.plot.showGrid(x=True, y=True, alpha=0.18)
+        self.view = self.plot.getViewBox()
+        self.view.setBackgroundColor(OUTSIDE_GREY)
+        for ax in (self.plot.getAxis("left"), self.plot.getAxis("bottom")):
+            _no_si_prefix(ax)
+
+        self.image = pg.ImageItem(axisOrder="row-major")
+        self.image.setZValue(-10)
+        self.plot.addItem(self.image)
+        self.colour_bar = pg.ColorBarItem(values=(0.0, 1.0), colorMap=colour_map_for("level"), interactive=False,
+                                          width=24, colorMapMenu=False, pen="k")
+        self.colour_bar.setImageItem(self.image)
+        self.canvas.addItem(self.colour_bar, row=0, col=1)
+
+        self.outline = pg.PlotDataItem()
+        self.zero_halo = pg.PlotDataItem(connect="finite")
+        self.zero_line = pg.PlotDataItem(connect="finite")
+        self.ram_halo = pg.PlotDataItem(connect="finite")
+        self.ram_line = pg.PlotDataItem(connect="finite")
+        self.fail_marks = pg.ScatterPlotItem(symbol="x")
+        self.selection = pg.ScatterPlotItem(symbol="o")
+        for z, item in enumerate((self.outline, self.zero_halo, self.zero_line, self.ram_halo, self.ram_line,
+                                  self.fail_marks, self.selection)):
+            item.setZValue(z)
+            self.plot.addItem(item)
+
+        self.legend = pg.LegendItem(colCount=4, labelTextColor="k", brush=pg.mkBrush(255, 255, 255, 230),
+                                    pen=pg.mkPen("#888888"))
+        self.canvas.addItem(self.legend, row=1, col=0, colspan=2)
+        self._build_legend()
+
+        self.readout = QLabel("Hover over the map for Mach, altitude and value; click to select a point.")
+        self.readout.setObjectName("mapReadout")
+        self.readout.setTextInteractionFlags(Qt.TextSelectableByMouse)
+        self.state_label = QLabel(self.canvas)
+        self.state_label.setObjectName("mapState")
+        self.state_label.setAlignment(Qt.AlignCenter)
+        self.state_label.hide()
+        self.empty_label = QLabel(self.canvas)
+        self.empty_label.setAlignment(Qt.AlignCenter)
+        self.empty_label.setWordWrap(True)
+        self.empty_label.setStyleSheet("background: rgba(255,255,255,225); color: black; padding: 10px;"
+                                       "border: 1px solid #666;")
+        self.empty_label.hide()
+
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(2)
+        lay.addWidget(self.canvas, 1)
+        lay.addWidget(self.readout)
+
+        self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
+        self.canvas.scene().sigMouseClicked.connect(self._on_mouse_clicked)
+        self._apply_style()
+        self._set_state("current")
+
+    # -- public ----------------------------------------------------------------
+    @property
+    def result(self):
+        return self._result
+
+    @property
+    def case(self) -> str:
+        return self._case
+
+    @property
+    def quantity_key(self) -> str:
+        return self._key
+
+    def values(self) -> np.ndarray | None:
+        """The (altitude rows, Mach columns) array drawn, in display units; NaN outside the envelope."""
+        return None if self._values is None else self._values.copy()
+
+    def axes(self) -> tuple[np.ndarray, np.ndarray]:
+        """(Mach, altitude in display units) of the grid drawn."""
+        return self._x.copy(), self._y.copy()
+
+    def selected(self) -> tuple[int, int] | None:
+        return self._selected
+
+    def show_result(self, result, case: str, key: str, units: Units) -> None:
+        """Draw ``key`` of ``case`` (or WORST) from ``result``; keeps the selection if it still fits."""
+        self._result, self._case, self._key, self._units = result, case, key, units
+        if result is None:
+            self._values = None
+            self.image.clear()
+            return
+        q = QUANTITIES[key]
+        dim = quantity_dimension(key)
+        values = np.asarray(result.quantity(case, key), dtype=float)
+        if dim != "none":
+            values = units.to_display(dim, values)
+        self._values = values
+        self._x = np.asarray(result.mach, dtype=float)
+        self._y = np.asarray(units.to_display("altitude", np.asarray(result.altitude_m, dtype=float)))
+
+        cmap = colour_map_for(q.kind)
+        lo, hi = levels_for(q.kind, values)
+        self.image.setImage(values, autoLevels=False, levels=(lo, hi))
+        self.image.setRect(self._image_rect())
+        self.colour_bar.setColorMap(cmap)
+        self.colour_bar.setLevels(values=(lo, hi))
+        self.colour_bar.getAxis("right").setLabel(quantity_axis_label(key, units))
+        self.plot.setLabel("bottom", "Flight Mach number M0")
+        self.plot.setLabel("left", units.with_unit("Pressure altitude", "altitude"))
+        case_text = "worst of all cases" if case == WORST else f"case “{case}”"
+        self.plot.setTitle(f"{q.label} — {case_text}")
+
+        self._draw_outline(result.project)
+        self._draw_zero_line(result, case, key, q.kind, values)
+        self._draw_ram_line(result, case)
+        self._draw_fail_marks(result, case)
+        if self._selected is not None:
+            i, j = self._selected
+            if i < len(self._y) and j < len(self._x):
+                self._draw_selection(i, j)
+            else:
+                self._selected = None
+                self.selection.clear()
+        defined = np.isfinite(values).any()
+        if defined:
+            self.empty_label.hide()
+        else:
+            self.empty_label.setText(f"{q.label} is not defined anywhere in the envelope for this case.\n"
+                                     "Select a point to see the flags that say why.")
+            self.empty_label.show()
+            self._place_overlays()
+        self._rebuild_legend(q.kind == "margin")
+        rect = self._image_rect()
+        if rect != getattr(self, "_last_rect", None):  # re-ranging re-lays out every axis: only on change
+            self._last_rect = rect
+            self.view.setRange(rect, padding=0.02)
+
+    def select(self, i: int, j: int, emit: bool = True) -> None:
+        """Select grid point (row i, column j) and mark it."""
+        if self._result is None:
+            return
+        i = int(np.clip(i, 0, len(self._y) - 1))
+        j = int(np.clip(j, 0, len(self._x) - 1))
+        self._selected = (i, j)
+        self._draw_selection(i, j)
+        if emit:
+            self.pointSelected.emit(i, j)
+
+    def clear_selection(self) -> None:
+        self._selected = None
+        self.selection.clear()
+
+    def set_computing(self, fraction: float | None = None) -> None:
+        pct = "" if fraction is None else f" {100 * fraction:.0f} %"
+        self._set_state("computing", f"Computing…{pct}")
+
+    def set_current(self) -> None:
+        self._set_state("current")
+
+    def set_stale(self, message: str) -> None:
+        self._set_state("stale", f"OUT OF DATE — the last computation failed:\n{message}\n"
+                                 "The map shows the previous result.")
+
+    @property
+    def state(self) -> str:
+        return self._state
+
+    def set_presentation(self, on: bool) -> None:
+        self._scale = 1.45 if on else 1.0
+        self._high_contrast = on
+        self._apply_style()
+        if self._result is not None:
+            self.show_result(self._result, self._case, self._key, self._units)
+
+    def hover_text_at(self, i: int, j: int) -> str:
+        """The readout for grid point (i, j)."""
+        r = self._result
+        if r is None:
+            return ""
+        x, y = self._x[j], self._y[i]
+        alt_unit = self._units.label("altitude")
+        q = QUANTITIES[self._key]
+        value = self._values[i, j]
+        dim = quantity_dimension(self._key)
+        unit = self._units.label(dim) if dim != "none" else ""
+        parts = [f"M0 {x:.3f}", f"{group_digits(y)} {alt_unit}"]
+        if not bool(r.inside[i, j]):
+            parts.append("outside the envelope")
+            return "   ·   ".join(parts)
+        parts.append(f"{q.label} {format_value(float(value))}{(' ' + unit) if unit else ''}")
+        case = analysis.case_at(r, self._case, (i, j))
+        lim = analysis.limiting_at(r.case_map(case).points, (i, j))
+        if lim is not None:
+            label, fails = lim
+            parts.append(f"limiting: {label} ({'FAILS' if fails else 'holds'})")
+        if self._case == WORST:
+            parts.append(f"worst case: {case}")
+        return "   ·   ".join(parts)
+
+    # -- drawing ---------------------------------------------------------------
+    def _image_rect(self) -> QRectF:
+        x, y = self._x, self._y
+        dx = (x[-1] - x[0]) / (len(x) - 1) if len(x) > 1 else 0.01
+        dy = (y[-1] - y[0]) / (len(y) - 1) if len(y) > 1 else 1.0
+        return QRectF(x[0] - dx / 2, y[0] - dy / 2, (x[-1] - x[0]) + dx, (y[-1] - y[0]) + dy)
+
+    def _pen(self, colour, width, style=Qt.SolidLine):
+        return pg.mkPen(colour, width=width * self._scale, style=style, cap=Qt.FlatCap)
+
+    def _draw_outline(self, project) -> None:
+        env = project.envelope
+        mx = list(env.mach) + [env.mach[0]]
+        hy = self._units.to_display("altitude", np.array(list(env.altitude_m) + [env.altitude_m[0]], dtype=float))
+        self.outline.setData(np.array(mx, dtype=float), hy)
+        self.outline.setPen(self._pen("#202020", 2.2))
+
+    def _draw_zero_line(self, result, case, key, kind, values) -> None:
+        field = values if kind == "margin" else analysis.limiting_field(result, case)
+        xs, ys = join_segments(*iso_segments(self._x, self._y, field, 0.0))
+        self._zero_found = xs.size > 0
+        self.zero_halo.setData(xs, ys)
+        self.zero_line.setData(xs, ys)
+        self.zero_halo.setPen(self._pen("w", 6.0))
+        self.zero_line.setPen(self._pen("k", 3.0))
+
+    def _draw_ram_line(self, result, case) -> None:
+        ratio = np.asarray(result.quantity(case, "face_static_to_ambient"), dtype=float)
+        xs, ys = join_segments(*iso_segments(self._x, self._y, ratio, 1.0))
+        self._ram_found = xs.size > 0
+        self.ram_halo.setData(xs, ys)
+        self.ram_line.setData(xs, ys)
+        self.ram_halo.setPen(self._pen("w", 5.5))
+        pen = self._pen("#3d1466", 3.2, Qt.CustomDashLine)
+        pen.setDashPattern([2.5, 1.5])
+        self.ram_line.setPen(pen)
+
+    def _draw_fail_marks(self, result, case) -> None:
+        failing = np.asarray(result.failing(case), dtype=bool)
+        ny, nx = failing.shape
+        stride = max(1, math.ceil(max(nx, ny) / MAX_MARKER_AXIS))
+        pattern = np.zeros_like(failing)
+        pattern[::stride, ::stride] = True
+        shown = failing & pattern
+        if failing.any() and not shown.any():
+            shown = failing
+        ii, jj = np.nonzero(shown)
+        if ii.size > 4000:
+            keep = np.linspace(0, ii.size - 1, 4000).astype(int)
+            ii, jj = ii[keep], jj[keep]
+        self.fail_marks.setData(self._x[jj], self._y[ii], symbol="x", size=9 * self._scale,
+                                pen=pg.mkPen("w", width=0.8), brush=pg.mkBrush("k"))
+        self.fail_mark_count = int(ii.size)
+
+    def _draw_selection(self, i: int, j: int) -> None:
+        x, y = float(self._x[j]), float(self._y[i])
+        self.selection.setData([x, x], [y, y], symbol=["o", "o"], size=[24 * self._scale, 10 * self._scale],
+                               pen=[pg.mkPen("k", width=3.5 * self._scale), pg.mkPen("w", width=2.5 * self._scale)],
+                               brush=[None, pg.mkBrush("k")])
+
+    def _build_legend(self) -> None:
+        """Legend entries are made once (clearing a legend is unsafe with some Qt bindings); texts update."""
+        self._legend_fail = pg.ScatterPlotItem(symbol="x", size=12, pen=pg.mkPen("w", width=0.8),
+                                               brush=pg.mkBrush("k"))
+        self._legend_sel = pg.ScatterPlotItem(symbol="o", size=16, pen=pg.mkPen("k", width=3), brush=None)
+        entries = [(self.outline, "flight envelope"), (self.zero_line, "margin = 0"),
+                   (self.ram_line, "face static = ambient (p2/p0 = 1)"),
+                   (self._legend_fail, "a limit fails here"), (self._legend_sel, "selected point")]
+        for item, text in entries:
+            self.legend.addItem(item, text)
+        self._legend_labels = [label for _sample, label in self.legend.items]
+        self._legend_texts = [text for _item, text in entries]
+
+    def _rebuild_legend(self, margin_shown: bool) -> None:
+        none = " (none here)"
+        self._legend_texts[1] = (f"{QUANTITIES[self._key].label} = 0" if margin_shown
+                                 else "limit boundary (least margin = 0)") + ("" if self._zero_found else none)
+        self._legend_texts[2] = "face static = ambient (p2/p0 = 1)" + ("" if self._ram_found else none)
+        self._legend_texts[3] = "a limit fails here" + ("" if self.fail_mark_count else " (nowhere)")
+        self._update_legend_text()
+
+    def _update_legend_text(self) -> None:
+        size = f"{11 * self._scale:.0f}pt"
+        for label, text in zip(self._legend_labels, self._legend_texts):
+            label.setText(text, size=size, color="k")
+
+    def _apply_style(self) -> None:
+        s = self._scale
+        tick = QFont()
+        tick.setPointSizeF(11 * s)
+        label_css = {"font-size": f"{13 * s:.0f}pt", "color": "#000"}
+        for name in ("left", "bottom"):
+            ax = self.plot.getAxis(name)
+            ax.setStyle(tickFont=tick, tickTextOffset=int(6 * s))
+            ax.setPen(pg.mkPen("k", width=1.2 * s))
+            ax.setTextPen(pg.mkPen("k"))
+            ax.label.setFont(QFont(tick.family(), int(13 * s)))
+            ax.labelStyle = label_css
+        for name in ("left", "right"):
+            ax = self.colour_bar.getAxis(name)
+            _no_si_prefix(ax)
+            ax.setStyle(tickFont=tick, tickTextOffset=int(4 * s))
+            if name == "right":
+                ax.setWidth(int(92 * s))
+            ax.setTextPen(pg.mkPen("k"))
+            ax.labelStyle = label_css
+        bar_width = int(24 * s) + int(92 * s) + 16
+        self.colour_bar.layout.setColumnFixedWidth(1, int(24 * s))
+        self.colour_bar.setMinimumWidth(bar_width)
+        self.colour_bar.setMaximumWidth(bar_width)
+        self.legend.setColumnCount(2 if s > 1.2 else 4)
+        self.plot.titleLabel.opts["size"] = f"{15 * s:.0f}pt"
+        self.plot.titleLabel.opts["color"] = "#000"
+        if hasattr(self, "_legend_labels"):
+            self._update_legend_text()
+        self.readout.setStyleSheet(f"font-size: {12 * s:.0f}pt; padding: 4px; color: black; background: #f2f2f2;")
+
+    def _set_state(self, state: str, text: str = "") -> None:
+        changed = state != getattr(self, "_state", None) or self._styled_scale != self._scale
+        self._state = state
+        if state == "current":
+            self.state_label.hide()
+            self.image.setOpacity(1.0)
+            return
+        if changed:  # restyling is costly: only when the state (or the style) changes
+            if state == "computing":
+                css = "background: rgba(255,255,255,235); color: #000; border: 2px solid #333;"
+                self.image.setOpacity(0.55)
+            else:
+                css = "background: #8a3b00; color: white; border: 2px solid #000;"
+                self.image.setOpacity(0.45)
+            self.state_label.setStyleSheet(css + f"font-size: {14 * self._scale:.0f}pt; font-weight: bold; "
+                                                 "padding: 8px;")
+            self._styled_scale = self._scale
+        self.state_label.setText(text)
+        self.state_label.adjustSize()
+        self._place_overlays()
+        self.state_label.show()
+        self.state_label.raise_()
+
+    def _place_overlays(self) -> None:
+        w = self.canvas.width()
+        lab = self.state_label
+        lab.adjustSize()
+        lab.move(max(0, (w - lab.width()) // 2), 36)
+        e = self.empty_label
+        e.setFixedWidth(min(520, max(200, w - 80)))
+        e.adjustSize()
+        e.move(max(0, (w - e.width()) // 2), max(0, (self.canvas.height() - e.height()) // 2))
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        self._place_overlays()
+
+    # -- mouse -----------------------------------------------------------------
+    def _grid_index_at_scene(self, scene_pos) -> tuple[int, int] | None:
+        if self._result is None or not self.view.sceneBoundingRect().contains(scene_pos):
+            return None
+        p = self.view.mapSceneToView(scene_pos)
+        j = int(np.argmin(np.abs(self._x - p.x())))
+        i = int(np.argmin(np.abs(self._y - p.y())))
+        return i, j
+
+    def _on_mouse_moved(self, scene_pos: QPointF) -> None:
+        idx = self._grid_index_at_scene(scene_pos)
+        if idx is not None:
+            self.readout.setText(self.hover_text_at(*idx))
+
+    def _on_mouse_clicked(self, event) -> None:
+        if event.button() != Qt.LeftButton:
+            return
+        idx = self._grid_index_at_scene(event.scenePos())
+        if idx is not None:
+            event.accept()
+            self.select(*idx)

@@ -1,0 +1,167 @@
+"""GUI latency of the desktop program on a 121 x 101 grid with one case.
+
+Prints
+- edit -> repainted map: from an accepted project edit (after the 150 ms
+  spin-box debounce) to the end of the event loop's repaint of the map with
+  the new result, and the same from the spin-box change itself (debounce
+  included);
+- the longest GUI-thread stall while recomputes run: a QTimer ticking every
+  5 ms on the GUI thread records the gaps between its ticks.
+
+Goals: under 150 ms from the edit to the repainted map, no stall over 50 ms.
+Run: QT_QPA_PLATFORM=offscreen python bench/gui_latency.py [--repeats N]
+(BENCH_DEBUG=1 also lists every tick gap over 25 ms with the phase it ended in.)
+The figures depend on the machine's load: the GUI thread shares the CPU and
+the interpreter lock with the worker thread.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import statistics
+import sys
+import time
+from dataclasses import replace
+from pathlib import Path
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+
+from PySide6.QtCore import QElapsedTimer, QEvent, QObject, QSettings, QTimer  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from app.main_window import MainWindow  # noqa: E402
+from engine_air.model import Grid  # noqa: E402
+from engine_air.project_file import load_project  # noqa: E402
+
+SAMPLE = Path(__file__).resolve().parents[1] / "sample_projects" / "supersonic_two_ramp.toml"
+
+
+class PaintWatch(QObject):
+    """Counts paint events of a widget (the map's viewport) as the event loop delivers them."""
+
+    def __init__(self, widget) -> None:
+        super().__init__()
+        self.count = 0
+        widget.installEventFilter(self)
+
+    def eventFilter(self, obj, event) -> bool:  # noqa: N802 - Qt override
+        if event.type() == QEvent.Paint:
+            self.count += 1
+        return False
+
+
+class StallMeter:
+    """Largest gap between ticks of a 5 ms timer on the GUI thread."""
+
+    def __init__(self) -> None:
+        self.clock = QElapsedTimer()
+        self.timer = QTimer()
+        self.timer.setInterval(5)
+        self.timer.timeout.connect(self._tick)
+        self.gaps: list[float] = []
+        self.marks: list = []
+        self.phase = ""
+        self._last = None
+
+    def start(self) -> None:
+        self.gaps.clear()
+        self.clock.start()
+        self._last = self.clock.nsecsElapsed()
+        self.timer.start()
+
+    def stop(self) -> None:
+        self.timer.stop()
+
+    def _tick(self) -> None:
+        now = self.clock.nsecsElapsed()
+        self.gaps.append((now - self._last) / 1e6)
+        self.marks.append((now / 1e6, self.phase))
+        self._last = now
+
+
+def wait_for(app, predicate, timeout_s=20.0) -> None:
+    end = time.perf_counter() + timeout_s
+    while not predicate():
+        if time.perf_counter() > end:
+            raise TimeoutError("the map did not update in time")
+        app.processEvents()
+        time.sleep(0.0005)
+
+
+def main(argv=None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--repeats", type=int, default=15)
+    args = ap.parse_args(argv)
+
+    app = QApplication.instance() or QApplication([])
+    base = load_project(SAMPLE)
+    project = replace(base, grid=Grid(mach_points=121, altitude_points=101), cases=base.cases[:1])
+    settings = QSettings(str(Path(os.environ.get("TMPDIR", "/tmp")) / "engine_air_bench.ini"), QSettings.IniFormat)
+    w = MainWindow(project, None, settings=settings)
+    w.resize(1600, 1000)
+    w.show()
+    wait_for(app, lambda: w.up_to_date)
+    for _ in range(20):
+        app.processEvents()
+
+    paints = PaintWatch(w.map.canvas.viewport())
+    meter = StallMeter()
+    edit_to_paint, spin_to_paint = [], []
+    meter.start()
+    areas = [0.46 + 0.01 * (k % 8) for k in range(args.repeats)]
+    for k, area in enumerate(areas):
+        current = w.document.project
+        if k % 2 == 0:
+            # a programmatic accepted edit (what the editors emit after their debounce)
+            t0 = time.perf_counter()
+            meter.phase = "edit"
+            w.document.edit(replace(current, inlet=replace(current.inlet, face_area_m2=area)))
+            gen = w.runner.generation
+            meter.phase = "computing"
+            wait_for(app, lambda: w.result_generation == gen)
+            painted = paints.count
+            meter.phase = "repaint"
+            wait_for(app, lambda: paints.count > painted)  # the event loop's own repaint of the new map
+            edit_to_paint.append((time.perf_counter() - t0) * 1e3)
+        else:
+            # a typed spin-box change, debounce included
+            t0 = time.perf_counter()
+            w.editors.face_area.setValue(w.units.to_display("area", area))
+            wait_for(app, lambda: w.document.project.inlet.face_area_m2 != current.inlet.face_area_m2)
+            gen = w.runner.generation
+            wait_for(app, lambda: w.result_generation == gen)
+            painted = paints.count
+            wait_for(app, lambda: paints.count > painted)
+            spin_to_paint.append((time.perf_counter() - t0) * 1e3)
+        for _ in range(5):
+            app.processEvents()
+            time.sleep(0.002)
+    meter.stop()
+
+    grid = f"{project.grid.mach_points} x {project.grid.altitude_points}"
+    print(f"grid {grid}, {len(project.cases)} case, {args.repeats} edits")
+    print(f"edit -> repainted map (accepted edit):   median {statistics.median(edit_to_paint):6.1f} ms, "
+          f"max {max(edit_to_paint):6.1f} ms   (goal < 150 ms)")
+    if spin_to_paint:
+        print(f"spin-box change -> repainted map (incl. 150 ms debounce): median "
+              f"{statistics.median(spin_to_paint):6.1f} ms, max {max(spin_to_paint):6.1f} ms")
+    gaps = meter.gaps or [0.0]
+    print(f"longest GUI-thread stall during recomputes: {max(gaps):6.1f} ms "
+          f"(median tick gap {statistics.median(gaps):.1f} ms, {len(gaps)} ticks)   (goal <= 50 ms)")
+    if os.environ.get("BENCH_DEBUG"):
+        for (t, ph), g in zip(meter.marks, meter.gaps):
+            if g > 25:
+                print(f"  gap {g:5.1f} ms ending in phase {ph}")
+    worst = sorted(gaps, reverse=True)[:8]
+    print("largest tick gaps (ms): " + ", ".join(f"{g:.1f}" for g in worst))
+    ok = statistics.median(edit_to_paint) < 150 and max(gaps) <= 50
+    print("goals met" if ok else "goals NOT met")
+    w.document._saved = w.document.project
+    w.close()
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

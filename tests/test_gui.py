@@ -1,0 +1,447 @@
+"""Desktop program (app/): the map shows exactly what the analysis computes, and the window behaves.
+
+Runs offscreen (pytest-qt). Each test builds its own window with settings in
+a temporary folder, waits for the worker, and checks the views against
+``engine_air`` results computed directly.
+"""
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import csv  # noqa: E402
+import time  # noqa: E402
+from dataclasses import replace  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+
+pytest.importorskip("PySide6")
+pytest.importorskip("pyqtgraph")
+pytest.importorskip("pytestqt")
+
+from PySide6.QtCore import QSettings  # noqa: E402
+from PySide6.QtWidgets import QMessageBox  # noqa: E402
+
+from app import exports  # noqa: E402
+from app.main import DEFAULT_SAMPLE, SAMPLES, load_start_project  # noqa: E402
+from app.main_window import MainWindow  # noqa: E402
+from app.worker import MapRunner  # noqa: E402
+from engine_air import report  # noqa: E402
+from engine_air.evaluate import WORST, evaluate_project  # noqa: E402
+from engine_air.project_file import load_project  # noqa: E402
+from engine_air.quantities import QUANTITIES  # noqa: E402
+
+SAMPLE_NAMES = ["subsonic_transport_nacelle", "supersonic_two_ramp", "undersized_business_jet"]
+WAIT_MS = 15000
+
+
+def sample(name: str) -> Path:
+    return SAMPLES / f"{name}.toml"
+
+
+@pytest.fixture
+def make_window(qtbot, tmp_path):
+    """Factory: a shown MainWindow on a project file, settings kept in tmp_path."""
+    made = []
+
+    def make(path=DEFAULT_SAMPLE, runner=None, project=None):
+        settings = QSettings(str(tmp_path / "settings.ini"), QSettings.IniFormat)
+        project = project if project is not None else load_project(path)
+        w = MainWindow(project, path, settings=settings, runner=runner)
+        w.show()
+        made.append(w)
+        wait_result(qtbot, w)
+        return w
+
+    yield make
+    for w in made:
+        w.document._saved = w.document.project  # never prompt at teardown
+        w.close()
+        w.runner.shutdown()
+        w.deleteLater()
+
+
+def wait_result(qtbot, w):
+    qtbot.waitUntil(lambda: w.up_to_date, timeout=WAIT_MS)
+
+
+def inside_index(result):
+    """A grid point well inside the envelope: the inside point nearest the grid's centre."""
+    ii, jj = np.nonzero(result.inside)
+    ci, cj = result.inside.shape[0] / 2, result.inside.shape[1] / 2
+    k = int(np.argmin((ii - ci) ** 2 + (jj - cj) ** 2))
+    return int(ii[k]), int(jj[k])
+
+
+@pytest.mark.parametrize("name", SAMPLE_NAMES)
+def test_sample_map_equals_analysis(make_window, name):
+    w = make_window(sample(name))
+    expected = evaluate_project(load_project(sample(name)))
+    for case in [WORST, expected.cases[0].name]:
+        w.set_case(case)
+        for key in ("face_mach_margin", "recovery", "mass_flow_ratio"):
+            w.set_quantity(key)
+            assert w.map.case == case and w.map.quantity_key == key
+            np.testing.assert_allclose(w.map.values(), expected.quantity(case, key), equal_nan=True)
+            np.testing.assert_allclose(w.map.image.image, expected.quantity(case, key), equal_nan=True)
+    np.testing.assert_allclose(w.map.axes()[0], expected.mach)
+    np.testing.assert_allclose(w.map.axes()[1], expected.altitude_m)
+    # the verdict banner agrees with the analysis
+    failing = sum(1 for s in expected.summary if not s.holds)
+    assert w.verdict_state == ("holds" if failing == 0 else "fails")
+    assert (f"{failing} OF" in w.verdict.text()) if failing else ("ALL" in w.verdict.text())
+    # the findings list shows the summary
+    assert w.findings.topLevelItemCount() == len(expected.summary)
+    for row, s in enumerate(expected.summary):
+        assert w.findings.topLevelItem(row).text(2) == ("holds" if s.holds else "FAILS")
+
+
+def test_every_quantity_can_be_shown(make_window):
+    w = make_window(sample("supersonic_two_ramp"))
+    for key in QUANTITIES:
+        w.set_quantity(key)
+        np.testing.assert_allclose(w.map.values(), w.result.quantity(w.current_case(), key), equal_nan=True)
+
+
+def test_selected_point_detail_equals_report(make_window):
+    w = make_window(sample("supersonic_two_ramp"))
+    case = w.result.cases[1].name
+    w.set_case(case)
+    i, j = inside_index(w.result)
+    w.select_point(i, j)
+    points = w.result.case_map(case).points
+    assert w.detail.index == (i, j) and w.detail.case == case
+    assert w.detail.record() == report.point_record(points, (i, j), case)
+    expected_rows = report.station_table(w.result.project, points, (i, j))
+    assert w.detail.station_rows(si=True) == expected_rows
+    for row in expected_rows:
+        st = row["station"]
+        assert w.detail.station_cell(st, "mach") == pytest.approx(row["mach"])
+        assert w.detail.station_cell(st, "p_pa") == pytest.approx(row["p_pa"] / 1000.0)  # kPa
+        assert w.detail.station_cell(st, "t_k") == pytest.approx(row["t_k"])
+        assert w.detail.station_cell(st, "pt_pa") == pytest.approx(row["pt_pa"] / 1000.0)
+        assert w.detail.station_cell(st, "area_m2") == pytest.approx(row["area_m2"])
+    rec = report.point_record(points, (i, j), case)
+    for r, c in enumerate(rec["checks"]):
+        assert w.detail.checks.item(r, 1).data(0x0100) == c["value"]  # Qt.UserRole
+        assert w.detail.checks.item(r, 3).text() == ("not judged here" if c["holds"] is None
+                                                     else ("holds" if c["holds"] else "FAILS"))
+    assert w.detail.shock_rows() == report.shock_table(w.result.project, points, (i, j))
+    # US units: same point, converted numbers
+    w.set_units("US")
+    assert w.detail.station_cell("0", "p_pa") == pytest.approx(expected_rows[0]["p_pa"] / 6894.757293168361)
+    assert w.detail.station_cell("2", "area_m2") == pytest.approx(expected_rows[3]["area_m2"] / 0.09290304)
+    np.testing.assert_allclose(w.map.axes()[1], w.result.altitude_m / 0.3048)
+    assert "ft" in w.map.plot.getAxis("left").labelText
+
+
+def test_worst_case_detail_uses_the_worst_case_there(make_window):
+    w = make_window(sample("supersonic_two_ramp"))
+    w.set_case(WORST)
+    s = next(s for s in w.result.summary if not s.holds)
+    i, j = w.select_condition(s.worst_mach, s.worst_altitude_m)
+    assert w.detail.case == s.worst_case
+
+
+def test_click_on_map_selects_nearest_point(make_window, qtbot):
+    from PySide6.QtCore import QPointF, Qt
+
+    w = make_window(sample("subsonic_transport_nacelle"))
+    i, j = inside_index(w.result)
+    x, y = w.result.mach[j], w.result.altitude_m[i]
+    scene_pos = w.map.view.mapViewToScene(QPointF(x, y))
+    view_pos = w.map.canvas.mapFromScene(scene_pos)
+    with qtbot.waitSignal(w.map.pointSelected, timeout=2000) as blocker:
+        qtbot.mouseClick(w.map.canvas.viewport(), Qt.LeftButton, pos=view_pos)
+    assert tuple(blocker.args) == (i, j)
+    assert w.detail.index == (i, j)
+    w.map._on_mouse_moved(scene_pos)
+    assert "M0" in w.map.readout.text() and "limiting" in w.map.readout.text()
+
+
+def test_edit_face_area_changes_the_map(make_window, qtbot):
+    w = make_window(sample("undersized_business_jet"))
+    before = w.map.values()
+    gen = w.result_generation
+    old = w.document.project.inlet.face_area_m2
+    w.editors.tabs.setCurrentIndex(1)
+    w.editors.face_area.setValue(old * 1.3)  # typed edit: debounced
+    assert w.document.project.inlet.face_area_m2 == old  # not yet: debounce
+    qtbot.waitUntil(lambda: w.document.project.inlet.face_area_m2 != old, timeout=3000)
+    wait_result(qtbot, w)
+    assert w.result_generation > gen
+    assert w.document.dirty and w.windowTitle().startswith("undersized_business_jet.toml*")
+    after = w.map.values()
+    assert not np.allclose(np.nan_to_num(before), np.nan_to_num(after))
+    expected = evaluate_project(w.document.project)
+    np.testing.assert_allclose(after, expected.quantity(w.current_case(), w.current_quantity()), equal_nan=True)
+    # undo returns to the saved project: clean again
+    w.document.undo()
+    wait_result(qtbot, w)
+    assert not w.document.dirty and "*" not in w.windowTitle()
+
+
+def test_newer_edit_supersedes_older_run(make_window, qtbot):
+    w = make_window(sample("supersonic_two_ramp"))
+    p = w.document.project
+    first = replace(p, inlet=replace(p.inlet, face_area_m2=0.40))
+    second = replace(p, inlet=replace(p.inlet, face_area_m2=0.65))
+    w.document.edit(first)
+    g1 = w.runner.generation
+    w.document.edit(second)
+    g2 = w.runner.generation
+    assert g2 == g1 + 1
+    wait_result(qtbot, w)
+    qtbot.waitUntil(lambda: g1 in w.runner.dropped, timeout=WAIT_MS)
+    assert w.result_generation == g2
+    assert w.result.project.inlet.face_area_m2 == 0.65
+    expected = evaluate_project(second)
+    np.testing.assert_allclose(w.map.values(), expected.quantity(w.current_case(), w.current_quantity()),
+                               equal_nan=True)
+
+
+def test_slow_stale_run_is_dropped(make_window, qtbot):
+    """An old run that finishes after a newer request never reaches the map."""
+    calls = []
+
+    def slow_evaluate(project, progress=None, cancelled=None):
+        calls.append(project.inlet.face_area_m2)
+        if project.inlet.face_area_m2 == 0.41:
+            time.sleep(0.4)  # ignores its cancel flag on purpose: finishes late
+            return evaluate_project(project)
+        return evaluate_project(project, progress=progress, cancelled=cancelled)
+
+    runner = MapRunner(evaluate=slow_evaluate)
+    w = make_window(sample("supersonic_two_ramp"), runner=runner)
+    p = w.document.project
+    w.document.edit(replace(p, inlet=replace(p.inlet, face_area_m2=0.41)))
+    g_old = runner.generation
+    qtbot.waitUntil(lambda: 0.41 in calls, timeout=3000)
+    w.document.edit(replace(p, inlet=replace(p.inlet, face_area_m2=0.62)))
+    g_new = runner.generation
+    qtbot.waitUntil(lambda: g_old in runner.dropped, timeout=WAIT_MS)
+    wait_result(qtbot, w)
+    assert w.result_generation == g_new
+    assert w.result.project.inlet.face_area_m2 == 0.62
+
+
+def test_failed_run_keeps_last_map_marked_out_of_date(make_window, qtbot):
+    fail = {"on": False}
+
+    def flaky(project, progress=None, cancelled=None):
+        if fail["on"]:
+            raise RuntimeError("solver exploded")
+        return evaluate_project(project, progress=progress, cancelled=cancelled)
+
+    w = make_window(sample("supersonic_two_ramp"), runner=MapRunner(evaluate=flaky))
+    good = w.map.values()
+    fail["on"] = True
+    p = w.document.project
+    w.document.edit(replace(p, inlet=replace(p.inlet, face_area_m2=0.45)))
+    qtbot.waitUntil(lambda: w.map.state == "stale", timeout=WAIT_MS)
+    assert "OUT OF DATE" in w.map.state_label.text() and "solver exploded" in w.map.state_label.text()
+    assert w.verdict_state == "stale"
+    np.testing.assert_allclose(w.map.values(), good, equal_nan=True)
+    fail["on"] = False  # the runner still works
+    w.document.edit(replace(p, inlet=replace(p.inlet, face_area_m2=0.46)))
+    wait_result(qtbot, w)
+    assert w.map.state == "current" and w.result.project.inlet.face_area_m2 == 0.46
+
+
+def test_invalid_edit_is_rejected_with_the_loader_message(make_window):
+    w = make_window(sample("subsonic_transport_nacelle"))
+    before = w.document.project
+    cap = before.inlet.capture_area_m2
+    w.editors.throat_area.setValue(cap * 1.5)
+    assert w.editors.flush() is False
+    assert "throat_area_m2" in w.editors.error.text()
+    assert w.document.project == before
+
+
+def test_rating_table_edit(make_window, qtbot):
+    w = make_window(sample("subsonic_transport_nacelle"))
+    t = w.editors.rating_table
+    old = w.document.project.ratings[0].corrected_flow_kg_s
+    t.item(0, 1).setText(str(old[0] * 0.9))
+    qtbot.waitUntil(lambda: w.document.project.ratings[0].corrected_flow_kg_s[0] != old[0], timeout=3000)
+    assert w.document.project.ratings[0].corrected_flow_kg_s[1:] == old[1:]  # untouched cells exact
+    t.item(1, 0).setText("0.1")  # theta below the allowed range
+    assert "theta" in w.editors.error.text()
+
+
+def test_save_and_open_round_trip(make_window, qtbot, tmp_path):
+    w = make_window(sample("supersonic_two_ramp"))
+    p = w.document.project
+    w.document.edit(replace(p, inlet=replace(p.inlet, face_area_m2=0.52), title="Round trip"))
+    assert w.document.dirty
+    target = tmp_path / "variant.toml"
+    assert w.save_to(target)
+    assert not w.document.dirty and w.windowTitle().startswith("variant.toml —")
+    assert load_project(target) == w.document.project
+    assert str(target.resolve()) in w.recent_files()
+    w2 = make_window(target)
+    assert w2.document.project == w.document.project
+
+
+def test_failed_save_keeps_edits(make_window, monkeypatch, tmp_path):
+    w = make_window(sample("supersonic_two_ramp"))
+    p = w.document.project
+    w.document.edit(replace(p, title="keep me"))
+    shown = []
+    monkeypatch.setattr(QMessageBox, "critical", staticmethod(lambda *a, **k: shown.append(a[2])))
+    assert not w.save_to(tmp_path / "no such folder" / "x.toml")
+    assert shown and "could not save" in shown[0].lower()
+    assert w.document.dirty and w.document.project.title == "keep me"
+
+
+def test_unsaved_changes_prompt_cancel_keeps_window(make_window, monkeypatch):
+    w = make_window(sample("supersonic_two_ramp"))
+    p = w.document.project
+    w.document.edit(replace(p, title="changed"))
+    asked = []
+
+    def answer(*args, **kwargs):
+        asked.append(args[1])
+        return QMessageBox.Cancel
+
+    monkeypatch.setattr(QMessageBox, "warning", staticmethod(answer))
+    assert w.close() is False
+    assert w.isVisible() and asked
+    w.new_file()
+    assert w.document.project.title == "changed"  # New was cancelled too
+    monkeypatch.setattr(QMessageBox, "warning", staticmethod(lambda *a, **k: QMessageBox.Discard))
+    assert w.close() is True
+
+
+def test_malformed_file_shows_message_and_keeps_project(make_window, monkeypatch, tmp_path):
+    w = make_window(sample("supersonic_two_ramp"))
+    before = w.document.project
+    bad = tmp_path / "broken.toml"
+    bad.write_text(sample("supersonic_two_ramp").read_text().replace("throat_area_m2 = 0.40",
+                                                                      "throat_area_m2 = -1.0"))
+    shown = []
+    monkeypatch.setattr(QMessageBox, "critical", staticmethod(lambda *a, **k: shown.append(a[2])))
+    assert w.open_file(bad) is False
+    assert shown and "throat_area_m2" in shown[0] and "broken.toml" in shown[0]
+    assert w.document.project is before and w.document.path == DEFAULT_SAMPLE.resolve()
+    bad.write_text("this is [not toml")
+    assert w.open_file(bad) is False and len(shown) == 2
+
+
+def test_start_up_with_bad_file_opens_sample(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text("[project]\nformat = 99\n")
+    project, path, message = load_start_project(str(bad))
+    assert path == DEFAULT_SAMPLE and message and "format" in message
+    assert project == load_project(DEFAULT_SAMPLE)
+
+
+def test_findings_click_selects_worst_point(make_window):
+    w = make_window(sample("supersonic_two_ramp"))
+    other = w.result.cases[0].name
+    w.set_case(other)
+    rows = [k for k, s in enumerate(w.result.summary) if not s.holds]
+    assert rows
+    s = w.result.summary[rows[0]]
+    w.findings.activate_row(rows[0])
+    assert w.current_case() == s.worst_case
+    i, j = w.map.selected()
+    assert w.result.mach[j] == pytest.approx(s.worst_mach)
+    assert w.result.altitude_m[i] == pytest.approx(s.worst_altitude_m)
+
+
+def test_exports(make_window, tmp_path):
+    w = make_window(sample("supersonic_two_ramp"))
+    png, svg, csv_path, txt = (tmp_path / n for n in ("m.png", "m.svg", "g.csv", "f.txt"))
+    assert w.export("png", png)
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert w.export("svg", svg)
+    assert "<svg" in svg.read_text(errors="replace")[:2000]
+    assert w.export("csv", csv_path)
+    with open(csv_path, newline="") as f:
+        rows = list(csv.reader(f))
+    assert rows[0] == exports.CSV_HEADER
+    r = w.result
+    assert len(rows) - 1 == len(r.cases) * r.mach.size * r.altitude_m.size
+    first = dict(zip(rows[0], rows[1]))
+    assert first["case"] == r.cases[0].name and float(first["mach"]) == pytest.approx(r.mach[0])
+    assert all(len(x) == len(rows[0]) for x in rows)
+    assert w.export("txt", txt)
+    text = txt.read_text()
+    assert "Verdict" in text and "Preliminary-design" in text
+
+
+def test_presentation_mode_and_about(make_window, monkeypatch):
+    w = make_window(sample("supersonic_two_ramp"))
+    w.set_presentation(True)
+    assert w.presentation and not w.editor_dock.isVisible()
+    assert "28pt" in w.styleSheet()
+    np.testing.assert_allclose(w.map.values(), w.result.quantity(w.current_case(), w.current_quantity()),
+                               equal_nan=True)
+    w.set_presentation(False)
+    assert not w.presentation
+    texts = []
+    monkeypatch.setattr(QMessageBox, "about", staticmethod(lambda *a: texts.append(a[2])))
+    w.show_about()
+    assert "NACA Report 1135" in texts[0] and "MIL-E-5008B" in texts[0] and "airworthiness" in texts[0]
+
+
+def test_main_opens_sample_when_start_file_is_bad(qtbot, monkeypatch, tmp_path):
+    import sys
+
+    from PySide6.QtWidgets import QApplication
+
+    from app import main as app_main
+    from app.main_window import MainWindow as Window
+
+    bad = tmp_path / "bad.toml"
+    bad.write_text("not = [valid")
+    shown, windows = [], []
+    monkeypatch.setenv("ENGINE_AIR_LOG_DIR", str(tmp_path))
+    monkeypatch.setattr(QMessageBox, "warning", staticmethod(lambda *a, **k: shown.append(a[2])))
+    monkeypatch.setattr(QApplication, "exec", lambda self: 0)
+    original_init = Window.__init__
+
+    def init(self, *a, **k):
+        k["settings"] = QSettings(str(tmp_path / "s.ini"), QSettings.IniFormat)
+        original_init(self, *a, **k)
+        windows.append(self)
+
+    monkeypatch.setattr(Window, "__init__", init)
+    hook = sys.excepthook
+    try:
+        assert app_main.main([str(bad)]) == 0
+        assert shown and "bad.toml" in shown[0] and "sample" in shown[0]
+        w = windows[0]
+        assert w.document.path == DEFAULT_SAMPLE.resolve() or w.document.path == DEFAULT_SAMPLE
+        # the installed hook turns an unexpected error into a message box, not a traceback
+        crit = []
+        monkeypatch.setattr(QMessageBox, "critical", staticmethod(lambda *a, **k: crit.append(a[2])))
+        try:
+            raise RuntimeError("boom")
+        except RuntimeError:
+            sys.excepthook(*sys.exc_info())
+        assert crit and "boom" in crit[0]
+        wait_result(qtbot, w)
+        w.close()
+        w.runner.shutdown()
+    finally:
+        sys.excepthook = hook
+
+
+def test_grid_edit_keeps_the_selected_condition(make_window, qtbot):
+    w = make_window(sample("supersonic_two_ramp"))
+    w.set_case(w.result.cases[0].name)
+    i, j = inside_index(w.result)
+    w.select_point(i, j)
+    cond = (w.result.mach[j], w.result.altitude_m[i])
+    p = w.document.project
+    w.document.edit(replace(p, grid=replace(p.grid, mach_points=61, altitude_points=51)))
+    wait_result(qtbot, w)
+    i2, j2 = w.map.selected()
+    assert w.result.mach.size == 61
+    assert abs(w.result.mach[j2] - cond[0]) <= (w.result.mach[1] - w.result.mach[0]) / 2 + 1e-12
+    assert abs(w.result.altitude_m[i2] - cond[1]) <= (w.result.altitude_m[1] - w.result.altitude_m[0]) / 2 + 1e-9
+    assert w.detail.index == (i2, j2)
