@@ -20,8 +20,10 @@ import numpy as np
 
 from . import flags as F
 from .envelope import envelope_mask, grid_axes
+from .errors import ProjectError
 from .match import OperatingPoints, evaluate_conditions
 from .model import Project
+from .project_file import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
 
 WORST = "worst of all cases"
 
@@ -124,6 +126,37 @@ def _limiting_relative_margin(points: OperatingPoints) -> np.ndarray:
     return np.min(rel, axis=0)
 
 
+def check_grid_size(project: Project, n_cases: int | None = None) -> None:
+    """Refuse a grid the project-file loader would refuse, before any array is allocated.
+
+    A ``Project`` built in code (not read from a file) is not validated by the
+    loader; its ``grid`` must still hold whole numbers of points from
+    ``MIN_AXIS_POINTS`` to ``MAX_AXIS_POINTS`` per axis, at most
+    ``MAX_GRID_POINTS`` per case, and at most ``MAX_CASE_POINTS`` over the
+    ``n_cases`` cases evaluated (default: all of the project's). Raises
+    ``ProjectError`` (a ``ValueError``) naming the key, the value and the limit.
+    """
+    grid = project.grid
+    for key in ("mach_points", "altitude_points"):
+        value = getattr(grid, key)
+        if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, np.integer)):
+            raise ProjectError(None, f"grid.{key}", value,
+                               f"must be a whole number from {MIN_AXIS_POINTS} to {MAX_AXIS_POINTS}")
+        if not MIN_AXIS_POINTS <= value <= MAX_AXIS_POINTS:
+            raise ProjectError(None, f"grid.{key}", value,
+                               f"must be a whole number from {MIN_AXIS_POINTS} to {MAX_AXIS_POINTS}")
+    points = int(grid.mach_points) * int(grid.altitude_points)
+    if points > MAX_GRID_POINTS:
+        raise ProjectError(None, "grid", points,
+                           f"mach_points x altitude_points = {grid.mach_points} x {grid.altitude_points} = {points} "
+                           f"points; at most {MAX_GRID_POINTS} per case are allowed")
+    cases = len(project.cases) if n_cases is None else n_cases
+    if points * cases > MAX_CASE_POINTS:
+        raise ProjectError(None, "case", cases,
+                           f"{cases} cases x {points} grid points = {points * cases} case-points; at most "
+                           f"{MAX_CASE_POINTS} can be evaluated together: use fewer cases or a coarser grid")
+
+
 def evaluate_project(
     project: Project,
     case_names: list[str] | None = None,
@@ -134,15 +167,18 @@ def evaluate_project(
 
     ``progress(fraction)`` is called after each case; ``cancelled()`` is polled
     before each case and ``Cancelled`` raised when it returns True.
+    A grid beyond the file limits raises ``ProjectError`` (see ``check_grid_size``)
+    before anything is allocated.
     """
-    mach_1d, alt_1d = grid_axes(project.envelope, project.grid)
-    mach_2d, alt_2d = np.meshgrid(mach_1d, alt_1d)
-    inside = envelope_mask(project.envelope, mach_2d, alt_2d)
     chosen = [c for c in project.cases if case_names is None or c.name in case_names]
     if case_names is not None:
         unknown = set(case_names) - {c.name for c in project.cases}
         if unknown:
             raise KeyError(f"no case named {sorted(unknown)}; cases are {[c.name for c in project.cases]}")
+    check_grid_size(project, len(chosen))
+    mach_1d, alt_1d = grid_axes(project.envelope, project.grid)
+    mach_2d, alt_2d = np.meshgrid(mach_1d, alt_1d)
+    inside = envelope_mask(project.envelope, mach_2d, alt_2d)
     maps = []
     for i, case in enumerate(chosen):
         if cancelled is not None and cancelled():

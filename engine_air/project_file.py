@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import os
+import re
 import stat
 import tempfile
 import tomllib
@@ -44,6 +45,11 @@ MIN_AXIS_POINTS = 2
 """Fewest grid points along one axis."""
 MAX_GRID_POINTS = 250_000
 """Most grid points per case (mach_points x altitude_points)."""
+MAX_CASES = 100
+"""Most [[case]] tables in one file."""
+MAX_CASE_POINTS = 2_000_000
+"""Most grid points per case x cases evaluated together (each case-point keeps about 260 bytes:
+8 cases of the largest grid, about 520 MB)."""
 MAX_ENVELOPE_VERTICES = 1000
 """Most envelope polygon vertices (the crossing test is quadratic in this)."""
 SUPPORTED_FORMATS = (1,)
@@ -69,6 +75,15 @@ _GRID_KEYS = ("mach_points", "altitude_points")
 _CASE_KEYS = ("name", "rating", "isa_offset_K")
 
 _MISSING = object()
+
+MAX_KEY_PARTS = 64
+"""Most parts of one dotted key or table name (``a.b.c`` has 3). ``tomllib`` spends time and memory
+quadratic in this number: a 500 kB key of 100 000 parts would take gigabytes."""
+
+_KEY_PART = r"""(?:[A-Za-z0-9_-]+|"(?:[^"\\\n]|\\.)*"|'[^'\n]*')"""
+_LONG_DOTTED_KEY = re.compile(r"""(?<![A-Za-z0-9_\-."'\\])""" + _KEY_PART
+                              + rf"(?:[ \t]*\.[ \t]*{_KEY_PART}){{{MAX_KEY_PARTS}}}")
+"""A run of more than MAX_KEY_PARTS dot-joined key parts (bare or quoted); linear-time to search."""
 
 
 def _kind(value: object) -> str:
@@ -384,8 +399,16 @@ def _read_grid(r: _Reader, data: dict) -> Grid:
     return Grid(mach_points=m, altitude_points=a)
 
 
-def _read_cases(r: _Reader, data: dict, ratings: tuple[Rating, ...]) -> tuple[Case, ...]:
+def _read_cases(r: _Reader, data: dict, ratings: tuple[Rating, ...], grid: Grid) -> tuple[Case, ...]:
     items = r.table_array(data, "case", "case", "[[case]]")
+    if len(items) > MAX_CASES:
+        r.fail("case", len(items), f"the file has {len(items)} [[case]] tables; at most {MAX_CASES} are allowed")
+    points = grid.mach_points * grid.altitude_points
+    if points * len(items) > MAX_CASE_POINTS:
+        r.fail("case", len(items),
+               f"{len(items)} cases x {points} grid points = {points * len(items)} case-points; at most "
+               f"{MAX_CASE_POINTS} are allowed, because every case keeps a few dozen arrays of the grid's size in "
+               "memory: use fewer cases or a coarser [grid]")
     names = [x.name for x in ratings]
     cases: list[Case] = []
     seen: dict[str, int] = {}
@@ -442,7 +465,7 @@ def project_from_dict(data: dict, path: str | os.PathLike | None = None) -> Proj
     ratings = _read_ratings(r, data)
     envelope = _read_envelope(r, data)
     grid = _read_grid(r, data)
-    cases = _read_cases(r, data, ratings)
+    cases = _read_cases(r, data, ratings, grid)
     if limits.relative_tip_mach_max is not None and all(x.fan_tip_speed_m_s is None for x in ratings):
         r.warn("limits.relative_tip_mach_max", "no rating gives fan_tip_speed_m_s, so this limit cannot be checked")
     project = Project(limits=limits, inlet=inlet, ratings=ratings, envelope=envelope, grid=grid, cases=cases,
@@ -480,6 +503,11 @@ def load_project(path: str | os.PathLike) -> Project:
         line = raw[: exc.start].count(b"\n") + 1
         raise ProjectError(p, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
                                               "cannot be decoded; save the file as UTF-8") from exc
+    long_key = _LONG_DOTTED_KEY.search(text)
+    if long_key is not None:
+        line = text.count("\n", 0, long_key.start()) + 1
+        raise ProjectError(p, "(file)", None, f"line {line} has a dotted key or table name of more than "
+                                              f"{MAX_KEY_PARTS} parts; keys may be nested at most {MAX_KEY_PARTS} deep")
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:

@@ -1,0 +1,526 @@
+"""Extreme flight conditions: no exception, no warning, and never a silent NaN (method §8, DEVELOPERS.md).
+
+Every value that is not defined (NaN in the arrays, None in the point record) must be explained by a flag:
+``outside-atmosphere`` explains anything; ``low-speed`` the stream tube, MFR, MFR_max, spillage and the drag
+quantities; ``additive-drag-not-modelled`` the drag quantities of a ramp inlet in supersonic flight;
+``no-tip-speed`` the blade relative tip Mach. The face and throat checks must be judged at every point inside
+the atmosphere (a NaN margin there would silently drop the check).
+
+Every test runs with every warning turned into an error (numpy RuntimeWarnings must not escape).
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import fields, replace
+from pathlib import Path
+
+import numpy as np
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+from scipy.optimize import brentq
+
+from engine_air import flags as F
+from engine_air.atmosphere import MAX_ALTITUDE_M, MIN_ALTITUDE_M
+from engine_air.constants import GAMMA, LOW_SPEED_MACH, P_REF, R_AIR, T_REF
+from engine_air.evaluate import evaluate_project
+from engine_air.gasdynamics import (
+    choked_corrected_flow_per_area,
+    choked_mass_flow_parameter,
+    max_deflection_rad,
+    normal_shock,
+    oblique_shock,
+)
+from engine_air.match import REGIMES, SUBSONIC, evaluate_conditions
+from engine_air.model import Case, Grid, Inlet, Project, Rating
+from engine_air.project_file import ProjectError, load_project, project_from_dict, project_to_dict
+from engine_air.reference import mil_e_5008b_recovery
+from engine_air.report import point_record
+
+SAMPLES = Path(__file__).resolve().parent.parent / "sample_projects"
+PITOT = load_project(SAMPLES / "subsonic_transport_nacelle.toml")      # pitot, tip speed on two ratings
+RAMP = load_project(SAMPLES / "supersonic_two_ramp.toml")              # 8 + 7 deg ramps, shock on lip at M 2
+SMALL = load_project(SAMPLES / "undersized_business_jet.toml")         # pitot with a small throat
+PROJECTS = {"pitot": PITOT, "ramp": RAMP, "small-throat": SMALL}
+
+MACHS = np.array([0.0, 1e-9, 0.049, 0.05, 0.3, 0.8, 0.999999, 1.0, 1.0 + 1e-12, 1.0001, 1.01, 1.2, 1.35, 1.6,
+                  2.0, 2.0 + 1e-9, 2.5, 3.0, 4.0, 5.0, 6.0])
+ALTITUDES = np.array([MIN_ALTITUDE_M, 0.0, 11000.0, 20000.0, 32000.0, 47000.0, 71000.0, MAX_ALTITUDE_M])
+OUTSIDE_ALTITUDES = np.array([-6000.0, MIN_ALTITUDE_M - 1e-6, MAX_ALTITUDE_M + 1e-6, 90000.0, np.nan, np.inf,
+                              -np.inf])
+
+# which flag may explain a NaN in each OperatingPoints array (outside-atmosphere explains every one)
+_DRAG = F.LOW_SPEED | F.ADDITIVE_DRAG_NOT_MODELLED
+EXPLAINED_BY = {
+    "stream_tube_area_m2": F.LOW_SPEED,
+    "mass_flow_ratio": F.LOW_SPEED,
+    "max_mass_flow_ratio": F.LOW_SPEED,
+    "spillage_fraction": F.LOW_SPEED,
+    "additive_drag_n": _DRAG,
+    "additive_drag_coefficient": _DRAG,
+    "spillage_drag_coefficient": _DRAG,
+    "relative_tip_mach": F.NO_TIP_SPEED,
+}
+# the same for the keys of the point record
+RECORD_EXPLAINED_BY = dict(EXPLAINED_BY)
+
+
+@pytest.fixture(autouse=True)
+def warnings_are_errors():
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        yield
+
+
+def unexplained_nans(points) -> list[str]:
+    """Names of arrays holding a NaN that no flag at that point explains (empty when all is explained)."""
+    bits = np.asarray(points.flags)
+    problems = []
+    for f in fields(points):
+        a = getattr(points, f.name)
+        if not isinstance(a, np.ndarray) or a.dtype.kind != "f" or f.name.startswith("ramp_"):
+            continue
+        if f.name == "terminal_shock_mach":
+            continue  # documented NaN wherever no terminal normal shock stands (subsonic flow ahead of it)
+        allowed = F.OUTSIDE_ATMOSPHERE | EXPLAINED_BY.get(f.name, 0)
+        bad = np.isnan(a) & ((bits & allowed) == 0)
+        if bad.any():
+            problems.append(f"{f.name} at {int(bad.sum())} points")
+    # per-ramp arrays: NaN only for subsonic flight, a detached shock, or outside the atmosphere
+    for name in ("ramp_wave_angle_rad", "ramp_downstream_mach"):
+        a = getattr(points, name)
+        if a is not None and a.size:
+            ok = (np.asarray(points.mach) <= 1.0) | F.has(bits, F.SHOCK_DETACHED)
+            if (np.isnan(a) & ~ok).any():
+                problems.append(name)
+    # infinities are never acceptable inside the atmosphere
+    inside = ~F.has(bits, F.OUTSIDE_ATMOSPHERE)
+    for f in fields(points):
+        a = getattr(points, f.name)
+        if isinstance(a, np.ndarray) and a.dtype.kind == "f" and a.shape == bits.shape and f.name != "altitude_m":
+            if (np.isinf(a) & inside).any():
+                problems.append(f"{f.name} is infinite")
+    # the face and throat checks are judged wherever the atmosphere is defined
+    inside = ~F.has(bits, F.OUTSIDE_ATMOSPHERE)
+    for name in ("face-mach", "throat-mach"):
+        chk = points.check(name)
+        if (inside & ~chk.applies).any():
+            problems.append(f"check {name} silently not judged at {int((inside & ~chk.applies).sum())} points")
+        if (~inside & chk.applies).any():
+            problems.append(f"check {name} judged outside the atmosphere")
+    for chk in points.checks:
+        if (chk.applies & ~np.isfinite(chk.margin)).any():
+            problems.append(f"check {chk.name} applies with a non-finite margin")
+    return problems
+
+
+def record_problems(record: dict) -> list[str]:
+    """Keys of a point record that are None without a flag saying why."""
+    flags = set(record["flags"])
+    bits = sum(F.FLAG_BITS[n] for n in flags if n in F.FLAG_BITS)
+    out = []
+    values = {k: v for k, v in record.items() if k not in ("freestream", "flags", "flag_descriptions", "checks")}
+    values.update({f"freestream.{k}": v for k, v in record["freestream"].items()})
+    for key, value in values.items():
+        if value is not None:
+            continue
+        allowed = F.OUTSIDE_ATMOSPHERE | RECORD_EXPLAINED_BY.get(key, 0)
+        if not bits & allowed:
+            out.append(key)
+    assert set(record["flag_descriptions"]) == flags
+    return out
+
+
+def assert_all_explained(project: Project, case: Case, mach, altitude):
+    points = evaluate_conditions(project, case, mach, altitude)
+    assert unexplained_nans(points) == []
+    for index in np.ndindex(points.flags.shape):
+        record = point_record(points, index, case.name)
+        assert record_problems(record) == [], (index, record["mach"], record["altitude_m"], record["flags"])
+        assert record["regime"] in REGIMES
+    return points
+
+
+# -- the whole table of extreme conditions, every sample, every case -------------------------------------------------
+
+@pytest.mark.parametrize("name", PROJECTS)
+def test_every_extreme_condition_is_explained(name):
+    project = PROJECTS[name]
+    for case in project.cases:
+        assert_all_explained(project, case, MACHS[None, :], ALTITUDES[:, None])
+        points = assert_all_explained(project, case, MACHS[None, :], OUTSIDE_ALTITUDES[:, None])
+        assert F.has(points.flags, F.OUTSIDE_ATMOSPHERE).all()
+        assert all(not c.applies.any() for c in points.checks)
+        assert (points.limiting == -1).all()
+
+
+def test_one_dimensional_and_scalar_inputs_broadcast():
+    # a 1-D row of Mach numbers against a 2-D column of altitudes (fewer Mach dimensions than the result)
+    for project in PROJECTS.values():
+        case = project.cases[0]
+        points = evaluate_conditions(project, case, MACHS, ALTITUDES[:, None])
+        assert points.face_mach.shape == (ALTITUDES.size, MACHS.size)
+        assert points.ramp_wave_angle_rad.shape == (len(project.inlet.ramp_angles_deg), ALTITUDES.size, MACHS.size)
+        j = list(MACHS).index(1.6)
+        np.testing.assert_array_equal(points.recovery[2], evaluate_conditions(project, case, MACHS, 11000.0).recovery)
+        scalar = evaluate_conditions(project, case, 1.6, 11000.0)
+        assert scalar.face_mach.shape == ()
+        assert float(scalar.recovery) == points.recovery[2, j]
+
+
+def test_evaluate_project_emits_no_warning_on_any_sample():
+    for project in PROJECTS.values():
+        result = evaluate_project(replace(project, grid=Grid(41, 31)))
+        for cm in result.cases:
+            assert unexplained_nans(cm.points) == []
+
+
+# -- M0 -> 0 -------------------------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("mach", [0.0, 1e-9, 0.049, np.nextafter(LOW_SPEED_MACH, 0.0)])
+def test_low_speed_points(mach):
+    points = assert_all_explained(SMALL, SMALL.cases[0], np.array([mach]), np.array([0.0, 11000.0]))
+    assert F.has(points.flags, F.LOW_SPEED).all()
+    for key in ("mass_flow_ratio", "max_mass_flow_ratio", "spillage_fraction", "additive_drag_coefficient",
+                "spillage_drag_coefficient", "stream_tube_area_m2"):
+        assert np.isnan(getattr(points, key)).all(), key
+    # face and throat Mach still computed, with p_t0 = p0 (method §5)
+    assert np.isfinite(points.face_mach).all() and np.isfinite(points.throat_mach).all()
+    assert points.check("face-mach").applies.all() and points.check("throat-mach").applies.all()
+    assert (points.regime == SUBSONIC).all()
+
+
+def test_low_speed_threshold_and_continuity():
+    m = np.array([0.049, np.nextafter(LOW_SPEED_MACH, 0.0), LOW_SPEED_MACH, 0.051])
+    points = assert_all_explained(SMALL, SMALL.cases[0], m, 0.0)
+    assert F.has(points.flags, F.LOW_SPEED).tolist() == [True, True, False, False]
+    assert np.isfinite(points.mass_flow_ratio[2:]).all()
+    # Face and throat Mach cross the threshold continuously: the switch from p_t0 = p0 to the isentropic p_t0
+    # changes both W and the throat's p_t in the same ratio. Tolerance 1e-6 relative across the switch
+    # (the change over dM = 1e-17 itself is nil).
+    for key in ("face_mach", "throat_mach", "recovery"):
+        a = getattr(points, key)
+        assert a[2] == pytest.approx(a[1], rel=1e-6), key
+
+
+def test_negative_mach_is_taken_as_zero():
+    points = assert_all_explained(PITOT, PITOT.cases[0], np.array([-0.5, 0.0]), 0.0)
+    assert points.mach.tolist() == [0.0, 0.0]
+    assert F.has(points.flags, F.LOW_SPEED).all()
+    assert points.face_mach[0] == points.face_mach[1]
+
+
+@pytest.mark.parametrize("bad", [np.nan, np.inf, -np.inf])
+def test_non_finite_mach_is_refused_with_a_clear_message(bad):
+    with pytest.raises(ValueError, match="flight Mach number must be a finite number"):
+        evaluate_conditions(PITOT, PITOT.cases[0], np.array([0.5, bad]), 0.0)
+
+
+# -- M0 at and just above 1 -----------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("name", PROJECTS)
+def test_sonic_flight(name):
+    project = PROJECTS[name]
+    m = np.array([1.0, 1.0 + 1e-12, 1.0001, 1.01])
+    points = assert_all_explained(project, project.cases[0], m, 11000.0)
+    assert points.regime[0] == SUBSONIC and (points.regime[1:] != SUBSONIC).all()
+    assert points.reference_recovery[0] == 1.0
+    if project.inlet.type == "external-ramp":
+        # every ramp shock is detached just above Mach 1: one normal shock at M0 (method §4)
+        assert F.has(points.flags[1:], F.SHOCK_DETACHED).all()
+        assert F.has(points.flags[1:], F.ADDITIVE_DRAG_NOT_MODELLED).all()
+        assert np.isnan(points.additive_drag_coefficient[1:]).all()
+        np.testing.assert_allclose(points.external_recovery, normal_shock(m).total_pressure_ratio, rtol=1e-14)
+
+
+def test_pitot_continuous_across_mach_one():
+    # A pitot inlet has no physical jump at M0 = 1: the normal-shock loss starts as (M0 - 1)^3, so recovery,
+    # face Mach and MFR change by O(dM) across the switch of regime. Tolerance: 1e-6 relative between
+    # 1 - 1e-9 and 1 + 1e-9 (found: about 1e-9). MFR < 1 at M0 = 1 here, as it must be (A0 <= A_th at M0 = 1).
+    m = np.array([1.0 - 1e-9, 1.0, 1.0 + 1e-12, 1.0 + 1e-9])
+    for project in (PITOT, SMALL):
+        for h in (0.0, 5000.0, 11000.0, 20000.0):
+            for case in project.cases:
+                points = assert_all_explained(project, case, m, h)
+                for key in ("recovery", "face_mach", "mass_flow_ratio", "throat_mach", "mass_flow_kg_s",
+                            "spillage_fraction", "face_static_to_ambient"):
+                    a = getattr(points, key)
+                    assert np.ptp(a) <= 1e-6 * np.max(np.abs(a)) + 1e-15, (key, a)
+                assert (points.mass_flow_ratio < 1.0).all()
+                assert not F.has(points.flags, F.SUPERCRITICAL).any()
+                # The one quantity that changes its definition at M0 = 1: MFR_max is the throat-choking limit in
+                # subsonic flight and the shock-geometry limit (1 for a pitot) above (README "Maximum MFR").
+                assert points.max_mass_flow_ratio[-1] == 1.0
+                assert points.max_mass_flow_ratio[0] < 1.0
+
+
+def test_reference_recovery_switches():
+    # MIL-E-5008B: 1 at M0 <= 1, the (M0 - 1)^1.35 law to Mach 5, 800/(M0^4 + 935) above; the two laws differ by
+    # 1.2e-4 at Mach 5 (a jump in the specification itself, stated tolerance 2e-4).
+    m = np.array([1.0, 1.0 + 1e-9, 2.0, 5.0 - 1e-9, 5.0, 6.0])
+    ref = mil_e_5008b_recovery(m)
+    assert ref[0] == 1.0 and ref[1] == pytest.approx(1.0, abs=1e-9)
+    assert ref[2] == pytest.approx(0.925)
+    assert abs(ref[4] - ref[3]) < 2e-4
+    assert ref[5] == pytest.approx(800.0 / (6.0**4 + 935.0))
+
+
+# -- ramp shocks: detachment and shock on lip ------------------------------------------------------------------------
+
+def _attachment_machs(ramps_deg):
+    """Flight Mach at which each ramp's shock attaches (NACA Report 1135 eq. 168 for the maximum deflection)."""
+    out = []
+    for k in range(len(ramps_deg)):
+        def local_margin(m0, k=k):
+            m = m0
+            for angle in ramps_deg[:k]:
+                s = oblique_shock(m, math.radians(angle))
+                if not bool(s.attached):
+                    return -1.0
+                m = float(s.downstream_mach)
+            return math.degrees(float(max_deflection_rad(m))) - ramps_deg[k]
+        lo = out[-1] + 1e-9 if out else 1.0 + 1e-9
+        out.append(brentq(local_margin, lo, 6.0, xtol=1e-13))
+    return out
+
+
+def test_detachment_of_each_ramp_and_shock_on_lip():
+    ramps = RAMP.inlet.ramp_angles_deg
+    attach = _attachment_machs(ramps)
+    assert attach == pytest.approx([1.34825, 1.59313], abs=1e-5)  # derived here from eq. 168
+    d = 1e-7
+    m = np.array([1.0 + 1e-9, attach[0] - d, attach[0] + d, attach[1] - d, attach[1] + d,
+                  RAMP.inlet.shock_on_lip_mach, RAMP.inlet.shock_on_lip_mach + 1e-6, 5.0, 6.0])
+    points = assert_all_explained(RAMP, RAMP.cases[0], m, 11000.0)
+    detached = F.has(points.flags, F.SHOCK_DETACHED)
+    assert detached.tolist() == [True, True, True, True, False, False, False, False, False]
+    inside_cowl = F.has(points.flags, F.SHOCK_INSIDE_COWL)
+    assert inside_cowl.tolist() == [False] * 6 + [True] * 3
+    # beyond the detachment of every ramp: one normal shock at M0
+    nsh = normal_shock(m[:2]).total_pressure_ratio
+    np.testing.assert_allclose(points.external_recovery[:2], nsh, rtol=1e-13)
+    # ramp 1 attached, ramp 2 detached: oblique shock 1, then one normal shock at the Mach behind it
+    s1 = oblique_shock(m[2:4], math.radians(ramps[0]))
+    np.testing.assert_allclose(points.external_recovery[2:4],
+                               s1.total_pressure_ratio * normal_shock(s1.downstream_mach).total_pressure_ratio,
+                               rtol=1e-12)
+    assert np.isnan(points.ramp_wave_angle_rad[1, 2:4]).all() and np.isfinite(points.ramp_wave_angle_rad[0, 2:4]).all()
+    # MFR_max: 1 while ramp 1 is detached, below 1 below the design Mach, 1 at and above it (README choice)
+    mfr_max = points.max_mass_flow_ratio
+    assert mfr_max[0] == 1.0 and mfr_max[1] == 1.0
+    assert (mfr_max[2:5] < 1.0).all()
+    assert (mfr_max[5:] == 1.0).all()
+    # Recovery jumps where a ramp attaches: a physical jump of the model (a detached ramp is one normal shock);
+    # it must be an improvement, and it is flagged on the detached side.
+    assert points.external_recovery[2] > points.external_recovery[1]
+    assert points.external_recovery[4] > points.external_recovery[3]
+
+
+def test_three_ramps_beyond_every_detachment():
+    data = project_to_dict(RAMP)
+    data["inlet"]["ramp_angles_deg"] = [6.0, 6.0, 6.0]
+    data["inlet"]["shock_on_lip_mach"] = 2.2
+    project = project_from_dict(data)
+    attach = _attachment_machs([6.0, 6.0, 6.0])
+    assert attach[0] < attach[1] < attach[2] < 2.2
+    m = np.array([1.0001, 0.5 * (1 + attach[0]), 0.5 * (attach[0] + attach[1]), 0.5 * (attach[1] + attach[2]),
+                  0.5 * (attach[2] + 2.2), 2.2, 5.0, 6.0])
+    for case in project.cases:
+        points = assert_all_explained(project, case, m, np.array([[0.0], [16000.0]]))
+        assert F.has(points.flags[:, :4], F.SHOCK_DETACHED).all()
+        assert not F.has(points.flags[:, 4:], F.SHOCK_DETACHED).any()
+        attached = np.isfinite(points.ramp_wave_angle_rad[:, 0, :]).sum(axis=0)
+        assert attached.tolist() == [0, 0, 1, 2, 3, 3, 3, 3]
+        np.testing.assert_allclose(points.external_recovery[:, :2], normal_shock(m[:2]).total_pressure_ratio[None, :]
+                                   * np.ones((2, 1)), rtol=1e-13)
+
+
+def test_very_high_mach():
+    m = np.array([5.0, 6.0])
+    # NACA Report 1135 normal-shock table: p_t2/p_t1 = 0.06172 at M1 = 5, 0.02965 at M1 = 6
+    for project in (PITOT, SMALL):
+        points = assert_all_explained(project, project.cases[0], m, np.array([[0.0], [20000.0], [47000.0]]))
+        np.testing.assert_allclose(points.external_recovery[0], [0.06172, 0.02965], atol=5e-6)
+        assert (points.recovery > 0).all() and (points.recovery < points.reference_recovery).all()
+        assert (points.regime != SUBSONIC).all()
+    points = assert_all_explained(RAMP, RAMP.cases[1], m, np.array([[0.0], [20000.0], [47000.0]]))
+    assert F.has(points.flags, F.SHOCK_INSIDE_COWL).all() and not F.has(points.flags, F.SHOCK_DETACHED).any()
+    assert (points.max_mass_flow_ratio == 1.0).all()
+    # shock system: oblique 8 deg, oblique 7 deg, normal (NACA Report 1135 relations, evaluated here)
+    for j, m0 in enumerate(m):
+        s1 = oblique_shock(m0, math.radians(8.0))
+        s2 = oblique_shock(float(s1.downstream_mach), math.radians(7.0))
+        expected = float(s1.total_pressure_ratio * s2.total_pressure_ratio
+                         * normal_shock(float(s2.downstream_mach)).total_pressure_ratio)
+        assert points.external_recovery[0, j] == pytest.approx(expected, rel=1e-12)
+
+
+# -- demand past face and throat choking -----------------------------------------------------------------------------
+
+def _flat_demand(project: Project, flow_kg_s: float, **inlet_changes) -> tuple[Project, Case]:
+    rating = Rating("flat", (0.3001, 2.999), (flow_kg_s, flow_kg_s), fan_tip_speed_m_s=400.0)
+    inlet = replace(project.inlet, **inlet_changes)
+    case = Case("flat day", "flat", 0.0)
+    return replace(project, inlet=inlet, ratings=(rating,), cases=(case,)), case
+
+
+@pytest.mark.parametrize("factor", [1.0 - 1e-12, 1.0, 1.0 + 1e-12, 1.01, 2.0, 100.0])
+def test_demand_at_and_past_face_choking(factor):
+    # W_c2/A2 at and beyond the choking value 241.24 kg/(s m^2) (method §3)
+    face_area = 1.0
+    flow = factor * choked_corrected_flow_per_area() * face_area
+    project, case = _flat_demand(PITOT, flow, face_area_m2=face_area, capture_area_m2=50.0, throat_area_m2=40.0)
+    m = np.array([0.0, 0.3, 0.9, 1.5, 3.0])
+    points = assert_all_explained(project, case, m, np.array([[0.0], [11000.0]]))
+    choked = F.has(points.flags, F.FACE_CHOKED)
+    if factor >= 1.0 + 1e-12 or (factor == 1.0 and choked.any()):
+        assert choked.all()
+        assert (points.face_mach == 1.0).all()
+        face = points.check("face-mach")
+        assert face.fails.all() and (face.relative_margin <= -1.0).all()
+        assert (points.limiting == 0).all()
+        # the engine gets the choking flow: W_c2 at the face = 241.24 A2 (derived from method §3)
+        wc_face = points.mass_flow_kg_s * np.sqrt(points.theta2) / (points.recovery * points.total_pressure_pa / P_REF)
+        lowspeed = F.has(points.flags, F.LOW_SPEED)
+        wc_face = np.where(lowspeed, points.mass_flow_kg_s * np.sqrt(points.theta2)
+                           / (points.recovery * points.static_pressure_pa / P_REF), wc_face)
+        thr = F.has(points.flags, F.THROAT_CHOKED) | F.has(points.flags, F.SUPERCRITICAL)
+        np.testing.assert_allclose(wc_face[~thr], choked_corrected_flow_per_area() * face_area, rtol=1e-9)
+    else:
+        assert not choked.any()
+        assert (points.face_mach < 1.0).all() and (points.face_mach > 0.99).all()
+
+
+def test_demand_past_throat_choking():
+    # A throat far too small: the throat chokes, the flow is held at the sonic throat flow and recovery falls in
+    # proportion (method §6): W = A_th pi_ext p_t0 MFP* / sqrt(T_t0).
+    project, case = _flat_demand(PITOT, 300.0, throat_area_m2=0.5)
+    m = np.array([0.0, 0.2, 0.5, 0.8, 0.95, 1.0, 1.2, 2.0])
+    points = assert_all_explained(project, case, m, np.array([[0.0], [11000.0]]))
+    assert F.has(points.flags, F.THROAT_CHOKED).all()
+    assert (points.throat_mach == 1.0).all()
+    throat = points.check("throat-mach")
+    assert throat.fails.all()
+    low = F.has(points.flags, F.LOW_SPEED)
+    pt_inlet = np.where(low, points.static_pressure_pa, points.total_pressure_pa)
+    w_choke = 0.5 * points.external_recovery * pt_inlet * choked_mass_flow_parameter() / np.sqrt(points.total_temperature_k)
+    np.testing.assert_allclose(points.mass_flow_kg_s, w_choke, rtol=1e-12)
+    assert (points.recovery < points.external_recovery * points.duct_recovery).all()
+    assert (points.recovery > 0).all()
+
+
+def test_face_and_throat_choked_together():
+    project, case = _flat_demand(PITOT, 1000.0, throat_area_m2=0.3, face_area_m2=0.5)
+    points = assert_all_explained(project, case, np.array([0.0, 0.01, 0.5, 1.0, 1.5, 6.0]),
+                                  np.array([[MIN_ALTITUDE_M], [0.0], [MAX_ALTITUDE_M]]))
+    assert F.has(points.flags, F.FACE_CHOKED).all() and F.has(points.flags, F.THROAT_CHOKED).all()
+    assert points.check("face-mach").fails.all() and points.check("throat-mach").fails.all()
+
+
+# -- outside the atmosphere, impossible temperatures ---------------------------------------------------------------
+
+@pytest.mark.parametrize("name", PROJECTS)
+def test_outside_the_atmosphere(name):
+    project = PROJECTS[name]
+    for case in project.cases:
+        points = assert_all_explained(project, case, MACHS, OUTSIDE_ALTITUDES[:, None])
+        assert F.has(points.flags, F.OUTSIDE_ATMOSPHERE).all()
+        record = point_record(points, (0, 5), case.name)
+        assert record["freestream"]["static_pressure_pa"] is None and record["limiting"] is None
+        assert all(c["holds"] is None for c in record["checks"])
+        # the model's own ends are inside it
+        edge = assert_all_explained(project, case, MACHS, np.array([[MIN_ALTITUDE_M], [MAX_ALTITUDE_M]]))
+        assert not F.has(edge.flags, F.OUTSIDE_ATMOSPHERE).any()
+
+
+@pytest.mark.parametrize("offset, altitude, outside", [
+    (-300.0, 20000.0, True),      # T = 216.65 - 300 < 0
+    (-216.65, 11000.0, True),     # T = 0 K exactly
+    (-216.6, 11000.0, False),     # T = 0.05 K: absurd, but a positive temperature
+    (-100.0, MAX_ALTITUDE_M, False),
+    (500.0, 0.0, False),
+    (np.nan, 0.0, True),
+    (np.inf, 0.0, True),
+    (-np.inf, 0.0, True),
+])
+def test_isa_offset_extremes(offset, altitude, outside):
+    # Outside the loader's -100..100 K, reachable only by building a Case in code.
+    for project in PROJECTS.values():
+        case = Case("odd day", project.ratings[0].name, offset)
+        points = assert_all_explained(project, case, MACHS, np.array([altitude]))
+        assert F.has(points.flags, F.OUTSIDE_ATMOSPHERE).all() == outside
+        assert F.has(points.flags, F.OUTSIDE_ATMOSPHERE).any() == outside
+
+
+def test_evaluate_project_over_the_whole_model_range():
+    # An envelope spanning every Mach and altitude the loader allows, on every sample inlet, every case.
+    for project in PROJECTS.values():
+        data = project_to_dict(project)
+        data["envelope"] = {"mach": [0.0, 6.0, 6.0, 0.0], "altitude_m": [-5000.0, -5000.0, 84000.0, 84000.0]}
+        data["grid"] = {"mach_points": 61, "altitude_points": 45}
+        wide = project_from_dict(data)
+        result = evaluate_project(wide)
+        for cm in result.cases:
+            assert unexplained_nans(cm.points) == []
+        assert all(np.isfinite(s.worst_value) for s in result.summary if s.judged_points)
+
+
+# -- random projects inside the loader's rules, random conditions --------------------------------------------------
+
+@st.composite
+def valid_projects(draw):
+    capture = draw(st.floats(0.01, 100.0))
+    throat = capture * draw(st.floats(0.01, 1.0))
+    face = draw(st.floats(0.01, 100.0))
+    inlet = {"type": draw(st.sampled_from(["pitot", "external-ramp"])), "capture_area_m2": capture,
+             "throat_area_m2": throat, "face_area_m2": face,
+             "duct_loss_coefficient": draw(st.floats(0.0, 2.0)), "lip_suction_factor": draw(st.floats(0.0, 1.0))}
+    if inlet["type"] == "external-ramp":
+        n = draw(st.integers(1, 3))
+        inlet["ramp_angles_deg"] = [draw(st.floats(1e-9, 12.0)) for _ in range(n)]
+        inlet["shock_on_lip_mach"] = draw(st.floats(1.0 + 1e-6, 5.0))
+    k = draw(st.integers(1, 6))
+    theta = sorted(set(draw(st.lists(st.floats(0.3001, 2.999), min_size=k, max_size=k))))
+    rating = {"name": "r", "theta": theta,
+              "corrected_flow_kg_s": [draw(st.floats(1e-3, 5000.0)) for _ in theta]}
+    if draw(st.booleans()):
+        rating["fan_tip_speed_m_s"] = draw(st.floats(1e-3, 1000.0))
+    limits = {"face_mach_max": draw(st.floats(1e-3, 0.999))}
+    for key, lo, hi in (("throat_mach_max", 1e-3, 1.0), ("stable_flow_fraction", 1e-3, 0.999),
+                        ("relative_tip_mach_max", 1e-3, 2.99), ("spillage_fraction_max", 0.0, 0.999)):
+        if draw(st.booleans()):
+            limits[key] = draw(st.floats(lo, hi))
+    if draw(st.booleans()):
+        limits["recovery_min"] = draw(st.sampled_from(["mil-e-5008b", 0.5, 0.95, 1.0]))
+    m_lo, m_hi = sorted(draw(st.lists(st.floats(0.0, 6.0), min_size=2, max_size=2, unique=True)))
+    h_lo, h_hi = sorted(draw(st.lists(st.floats(-5000.0, 84000.0), min_size=2, max_size=2, unique=True)))
+    data = {
+        "project": {"format": 1},
+        "limits": limits,
+        "inlet": inlet,
+        "engine": {"rating": [rating]},
+        "envelope": {"mach": [m_lo, m_hi, m_hi, m_lo], "altitude_m": [h_lo, h_lo, h_hi, h_hi]},
+        "grid": {"mach_points": 9, "altitude_points": 7},
+        "case": [{"name": "c", "rating": "r", "isa_offset_K": draw(st.floats(-100.0, 100.0))}],
+    }
+    return data
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(data=valid_projects(), mach=st.lists(st.floats(0.0, 10.0), min_size=1, max_size=8),
+       altitude=st.lists(st.floats(-1e5, 2e5) | st.sampled_from([np.nan, np.inf, -np.inf]), min_size=1, max_size=4))
+def test_random_projects_and_conditions_never_give_a_silent_nan(data, mach, altitude):
+    try:
+        project = project_from_dict(data, "random.toml")
+    except ProjectError as err:  # e.g. a ramp shock detached at the design Mach, or a degenerate envelope
+        assert err.key and err.allowed
+        return
+    result = evaluate_project(project)
+    for cm in result.cases:
+        assert unexplained_nans(cm.points) == []
+    points = evaluate_conditions(project, project.cases[0], np.array(mach)[None, :], np.array(altitude)[:, None])
+    assert unexplained_nans(points) == []
+    record = point_record(points, (0, 0), "c")
+    assert record_problems(record) == []
