@@ -57,8 +57,8 @@ DESCRIPTIONS: dict[str, str] = {
     "corrected flow is held.",
     "low-speed": "Flight Mach below 0.05: the captured stream tube, mass-flow ratio, spillage and drag coefficients "
     "are not defined (static suction); face and throat Mach use p_t0 = p0.",
-    "outside-atmosphere": "Altitude outside the standard atmosphere model (-5 km to 84.852 km geopotential): nothing "
-    "can be computed.",
+    "outside-atmosphere": "Altitude outside the standard atmosphere model (-5 km to 84.852 km geopotential), or an "
+    "ISA offset that leaves no positive temperature: nothing can be computed or judged.",
     "additive-drag-not-modelled": "Supersonic ramp inlet: the ramp surface force is not in the stream-tube balance, "
     "so additive drag is not computed.",
     "no-tip-speed": "The rating gives no fan tip speed: blade relative tip Mach is not computed.",

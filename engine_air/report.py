@@ -84,7 +84,8 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
         "flag_descriptions": {n: F.DESCRIPTIONS[n] for n in names},
         "limiting": points.checks[limiting].name if limiting >= 0 else None,
         "checks": checks,
-        "holds": not any(c["holds"] is False for c in checks),
+        # None where no limit could be judged (e.g. outside the atmosphere model)
+        "holds": (not any(c["holds"] is False for c in checks)) if any(c["holds"] is not None for c in checks) else None,
     }
 
 

@@ -125,3 +125,12 @@ def test_missing_file_and_unknown_case_exit_2(tmp_path):
     assert res.returncode == 2 and "Traceback" not in res.stderr and res.stderr.strip()
     res = run("point", PITOT, "--mach", "0.5", "--altitude-m", "1000", "--case", "no such case", "--json")
     assert res.returncode == 2 and "no such case" in res.stderr
+
+
+def test_point_outside_atmosphere_is_not_judged(capsys):
+    code = main(["point", str(RAMP), "--mach", "1.0", "--altitude-m", "90000", "--json"])
+    captured = capsys.readouterr()
+    record = json.loads(captured.out)
+    assert code == 2
+    assert record["holds"] is None and "outside-atmosphere" in record["flags"]
+    assert "no limit can be judged" in captured.err
