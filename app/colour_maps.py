@@ -14,16 +14,11 @@ import math
 import numpy as np
 import pyqtgraph as pg
 
-# position (0..1) -> colour; 0.5 is margin = 0
-_MARGIN_STOPS = [
-    (0.00, (94, 40, 4)),
-    (0.18, (176, 84, 10)),
-    (0.36, (236, 150, 62)),
-    (0.50, (246, 244, 238)),
-    (0.64, (120, 174, 214)),
-    (0.82, (33, 102, 172)),
-    (1.00, (8, 40, 92)),
-]
+from engine_air.picture import DIVERGING_ANCHORS
+
+# position (0..1) -> colour; 0.5 is margin = 0. The same ramp as the pictures the
+# analysis package writes (review pack, ``engine-air map --png``), so both read alike.
+_MARGIN_STOPS = DIVERGING_ANCHORS
 
 
 def margin_colour_map() -> pg.ColorMap:
