@@ -3,6 +3,14 @@
 Edits replace the whole (frozen) project. "Unsaved" means the current
 project differs from the one last loaded or saved, so undoing back to the
 saved state makes the document clean again.
+
+``edit(project)`` checks the project by the file loader's rules first and
+raises ``ProjectError`` (leaving the document as it was) for one the loader
+would refuse, so no project that could not be saved and loaded back, or
+whose grid is beyond the limits, ever reaches the views or the worker.
+
+``has_unsaved_work`` is what autosave keeps: unsaved edits, or a project
+restored from a recovery file; not an untouched New project.
 """
 
 from __future__ import annotations
@@ -12,6 +20,8 @@ from pathlib import Path
 from PySide6.QtCore import QObject, Signal
 
 from engine_air.project_file import load_project, save_project
+
+from .validation import validate
 
 MAX_UNDO = 200
 
@@ -27,6 +37,7 @@ class ProjectDocument(QObject):
         self._path = None if path is None else Path(path)
         self._undo: list = []
         self._redo: list = []
+        self._blank = project if path is None else None  # an untitled start nobody has edited yet
 
     @property
     def project(self):
@@ -41,6 +52,13 @@ class ProjectDocument(QObject):
         return self._saved is None or self._project != self._saved
 
     @property
+    def has_unsaved_work(self) -> bool:
+        """Unsaved edits worth autosaving (an untouched untitled project is not)."""
+        if not self.dirty:
+            return False
+        return not (self._blank is not None and self._path is None and self._project == self._blank)
+
+    @property
     def display_name(self) -> str:
         return self._path.name if self._path is not None else "untitled.toml"
 
@@ -50,10 +68,16 @@ class ProjectDocument(QObject):
     def can_redo(self) -> bool:
         return bool(self._redo)
 
-    def edit(self, project) -> None:
-        """Replace the project by an edited one (undoable)."""
+    def edit(self, project, validated: bool = False) -> None:
+        """Replace the project by an edited one (undoable).
+
+        Raises ``ProjectError`` and changes nothing if the loader's rules refuse ``project``;
+        ``validated=True`` skips the check for a project just checked by ``app.validation.validate``.
+        """
         if project == self._project:
             return
+        if not validated:
+            validate(project)
         self._undo.append(self._project)
         del self._undo[:-MAX_UNDO]
         self._redo.clear()
@@ -75,11 +99,16 @@ class ProjectDocument(QObject):
             self.changed.emit(self._project)
             self.stateChanged.emit()
 
-    def reset(self, project, path: str | Path | None, saved: bool) -> None:
-        """A different project (New, Open): clears the history."""
+    def reset(self, project, path: str | Path | None, saved: bool, recovered: bool = False) -> None:
+        """A different project (New, Open, a restored recovery file): clears the history.
+
+        ``recovered``: the project comes from a recovery file, so it is unsaved work even when
+        untitled (``path`` is then the file it will be saved to, if it had one).
+        """
         self._project = project
         self._path = None if path is None else Path(path)
         self._saved = project if saved else None
+        self._blank = project if (path is None and not saved and not recovered) else None
         self._undo.clear()
         self._redo.clear()
         self.changed.emit(project)

@@ -14,6 +14,7 @@ Spin-box ranges follow the loader's rules (``engine_air.project_file``).
 
 from __future__ import annotations
 
+import logging
 from dataclasses import replace
 
 from PySide6.QtCore import Qt, QTimer, Signal
@@ -43,6 +44,8 @@ from .units import Units
 from .validation import validate
 
 DEBOUNCE_MS = 150
+
+log = logging.getLogger(__name__)
 
 
 def _c(name: str, default):
@@ -135,6 +138,10 @@ class ProjectEditors(QWidget):
             checked = validate(candidate)
         except (ProjectError, CellError, ValueError) as exc:
             self.show_error(str(exc))
+            return False
+        except Exception as exc:  # noqa: BLE001 - an edit the rules did not foresee is refused, never fatal
+            log.exception("edit not applied")
+            self.show_error(f"{type(exc).__name__}: {' '.join(str(exc).split())}")
             return False
         self.error.hide()
         self.error.setText("")
@@ -707,7 +714,10 @@ class ProjectEditors(QWidget):
 
     def _grid_note_update(self) -> None:
         n = self.mach_points.value() * self.alt_points.value()
-        self.grid_note.setText(f"{n:,} points per case (at most {MAX_GRID:,}).".replace(",", " "))
+        text = f"{n:,} points per case (at most {MAX_GRID:,}).".replace(",", " ")
+        if n > MAX_GRID:
+            text += " Too many: this grid is not applied."
+        self.grid_note.setText(text)
 
     def _load_grid(self, p) -> None:
         self.mach_points.setValue(p.grid.mach_points)

@@ -3,7 +3,9 @@
 With no argument it opens the bundled sample ``sample_projects/supersonic_two_ramp.toml``.
 A project that cannot be loaded at start-up is reported in a message box and
 the sample opens instead. Unexpected errors are logged and shown in a message
-box, never as a traceback.
+box, never as a traceback. Unsaved work left in the recovery folder by a
+session that did not close normally is offered back (Restore / Discard /
+Later, ``app.recovery.offer_recovery``).
 """
 
 from __future__ import annotations
@@ -55,6 +57,7 @@ def main(argv=None) -> int:
     from . import APPLICATION, ORGANISATION
     from .error_hook import install_excepthook, setup_logging
     from .main_window import MainWindow, apply_base_font
+    from .recovery import offer_recovery
 
     setup_logging()
     app = QApplication.instance() or QApplication([sys.argv[0] if sys.argv else "engine-air-gui"])
@@ -70,6 +73,16 @@ def main(argv=None) -> int:
     window.show()
     if message:
         QMessageBox.warning(window, "Cannot open project", message)
+
+    def another_window():
+        from .template import new_project
+
+        extra = MainWindow(new_project(), None)
+        windows.append(extra)
+        extra.show()
+        return extra
+
+    offer_recovery(window, another_window)
     return app.exec()
 
 

@@ -5,6 +5,13 @@ Data flow: the ``ProjectDocument`` holds the project; every change asks the
 the map, the findings, the verdict and the detail panel. While a computation
 runs the map says "Computing…"; if it fails, the last good map stays, marked
 "OUT OF DATE" with the error.
+
+Work is never lost: unsaved edits are autosaved at intervals (``AUTOSAVE_MS``,
+``autosave_timer``) to the window's slot in the recovery folder
+(``app.recovery``); the files go on a clean save, New/Open after Discard, and
+a clean close. A failed autosave is a note in the status bar. A failed save
+keeps the edits and the unsaved mark and says why; a bad file on Open is
+reported and the open project stays.
 """
 
 from __future__ import annotations
@@ -14,7 +21,7 @@ import logging
 import math
 from pathlib import Path
 
-from PySide6.QtCore import QSettings, Qt, QTimer
+from PySide6.QtCore import QSettings, Qt, QTime, QTimer
 from PySide6.QtGui import QAction, QActionGroup, QFont, QKeySequence
 from PySide6.QtWidgets import (
     QApplication,
@@ -40,6 +47,7 @@ from .document import ProjectDocument
 from .editors import ProjectEditors
 from .findings import FindingsList
 from .map_view import EnvelopeMap
+from .recovery import AUTOSAVE_MS, RecoveryStore, reason_of
 from .template import new_project
 from .units import SI, SYSTEM_LABELS, US, Units
 from .worker import MapRunner
@@ -53,7 +61,7 @@ WORST_LABEL = "Worst of all cases"
 
 class MainWindow(QMainWindow):
     def __init__(self, project=None, path=None, settings: QSettings | None = None, runner: MapRunner | None = None,
-                 parent=None) -> None:
+                 parent=None, recovery: RecoveryStore | None = None, autosave_ms: int | None = None) -> None:
         super().__init__(parent)
         self.settings = settings if settings is not None else QSettings(ORGANISATION, APPLICATION)
         self.document = ProjectDocument(project if project is not None else new_project(), path, self)
@@ -72,12 +80,21 @@ class MainWindow(QMainWindow):
         self._busy_timer.setSingleShot(True)
         self._busy_timer.setInterval(BUSY_DELAY_MS)
         self._busy_timer.timeout.connect(self._show_busy_on_map)
+        self.recovery = recovery if recovery is not None else RecoveryStore(parent=self)
+        self._autosaved = None  # (project, path) last handed to the recovery store
+        self.autosave_error = ""
+        self.autosave_timer = QTimer(self)
+        self.autosave_timer.setInterval(int(autosave_ms) if autosave_ms else AUTOSAVE_MS)
+        self.autosave_timer.timeout.connect(self.autosave_now)
 
         self._build_central()
         self._build_docks()
         self._build_menus()
         self.setStyleSheet(style.stylesheet(False))
         self._fit_verdict_height()
+        self.autosave_label = QLabel("")
+        self.autosave_label.setObjectName("autosaveNote")
+        self.statusBar().addPermanentWidget(self.autosave_label)
         self.resize(1600, 1000)
 
         self.document.changed.connect(self._on_project_changed)
@@ -88,11 +105,14 @@ class MainWindow(QMainWindow):
         self.runner.failed.connect(self._on_failed)
         self.map.pointSelected.connect(self._on_point_selected)
         self.findings.findingActivated.connect(self.go_to_finding)
-        self.editors.projectEdited.connect(self.document.edit)
+        self.editors.projectEdited.connect(lambda p: self.document.edit(p, validated=True))
+        self.document.stateChanged.connect(self._sync_recovery)
+        self.recovery.reported.connect(self._on_recovery_report)
 
         self.editors.set_project(self.document.project)
         self._update_title()
         self.recompute()
+        self.autosave_timer.start()
 
     # -- construction ----------------------------------------------------------
     def _build_central(self) -> None:
@@ -188,6 +208,8 @@ class MainWindow(QMainWindow):
         e = mb.addMenu("&Edit")
         self.undo_action = self._action(e, "&Undo edit", self.document.undo, QKeySequence.Undo)
         self.redo_action = self._action(e, "&Redo edit", self.document.redo, QKeySequence.Redo)
+        e.addSeparator()
+        self._action(e, "Re&compute map", self.recompute, "Ctrl+R")
 
         v = mb.addMenu("&View")
         self.presentation_action = self._action(v, "&Presentation mode", self.set_presentation, "F5", checkable=True)
@@ -494,6 +516,14 @@ class MainWindow(QMainWindow):
             QMessageBox.critical(self, "Cannot open project",
                                  f"{exc}\n\nThe project that was open stays open.")
             return False
+        except Exception as exc:  # noqa: BLE001 - whatever the file holds, the open project stays
+            log.exception("opening %s failed", path)
+            self._pending_selection = None
+            text = " ".join(str(exc).split())
+            QMessageBox.critical(self, "Cannot open project",
+                                 f"{path}: cannot be opened ({type(exc).__name__}: {text})"
+                                 "\n\nThe project that was open stays open.")
+            return False
         self.map.clear_selection()
         self._add_recent(self.document.path)
         for w in self.document.project.warnings:
@@ -521,6 +551,12 @@ class MainWindow(QMainWindow):
         except (ProjectSaveError, OSError) as exc:
             QMessageBox.critical(self, "Could not save",
                                  f"{exc}\n\nYour edits are kept in the window; try another folder or name.")
+            return False
+        except Exception as exc:  # noqa: BLE001 - never lose the edits to an unexpected error
+            log.exception("saving to %s failed", path)
+            QMessageBox.critical(self, "Could not save",
+                                 f"could not save the project to {path}: {type(exc).__name__}: "
+                                 f"{' '.join(str(exc).split())}\n\nYour edits are kept in the window.")
             return False
         self._add_recent(saved)
         self.statusBar().showMessage(f"Saved {saved}", 5000)
@@ -579,15 +615,83 @@ class MainWindow(QMainWindow):
         QApplication.setOverrideCursor(Qt.WaitCursor)
         try:
             writers[kind]()
-        except OSError as exc:
+        except Exception as exc:  # noqa: BLE001 - a failed export is reported, never fatal
             QApplication.restoreOverrideCursor()
-            QMessageBox.critical(self, "Export failed", f"Could not write {path}: {exc.strerror or exc}")
+            if not isinstance(exc, OSError):
+                log.exception("export to %s failed", path)
+            QMessageBox.critical(self, "Export failed", f"Could not write {path}: {reason_of(exc)}")
             return False
         finally:
             if QApplication.overrideCursor() is not None:
                 QApplication.restoreOverrideCursor()
         stale = " (note: the map is out of date)" if self.map.state != "current" else ""
         self.statusBar().showMessage(f"Exported {path}{stale}", 5000)
+        return True
+
+    # -- autosave and recovery ------------------------------------------------------------
+    def autosave_now(self) -> bool:
+        """Hand the project to the recovery store if it holds unsaved work not autosaved yet (timer slot)."""
+        if self._shutdown or self.recovery.closed:
+            return False
+        d = self.document
+        if not d.has_unsaved_work:
+            self._sync_recovery()
+            return False
+        key = (d.project, d.path)
+        if self._autosaved is not None and self._autosaved[1] == key[1] and self._autosaved[0] == key[0]:
+            return False
+        self._autosaved = key
+        self.recovery.write(d.project, d.path)
+        return True
+
+    def _sync_recovery(self) -> None:
+        """No unsaved work any more (saved, undone, New/Open after Discard): the recovery copy goes."""
+        if not self.document.has_unsaved_work and not self.recovery.closed:
+            self._autosaved = None
+            self.recovery.remove()
+
+    def _on_recovery_report(self, action: str, ok: bool, message: str) -> None:
+        if action == "write":
+            if ok:
+                self.autosave_error = ""
+                self.autosave_label.setStyleSheet("")
+                self.autosave_label.setText(f"Autosaved {QTime.currentTime().toString('HH:mm:ss')}")
+                self.autosave_label.setToolTip(f"Unsaved edits are kept in {self.recovery.project_file}")
+                return
+            self._autosaved = None  # try again at the next tick
+            if message != self.autosave_error:
+                log.warning("autosave to %s failed: %s", self.recovery.folder, message)
+            self.autosave_error = message
+            self.autosave_label.setStyleSheet("color: #8a3b00; font-weight: bold;")
+            self.autosave_label.setText("Autosave failed")
+            self.autosave_label.setToolTip(f"Autosave to {self.recovery.folder} failed: {message}")
+            self.statusBar().showMessage(
+                f"Autosave failed: {message}. Your edits are still here; save them to keep them.", 15000)
+        elif action == "remove":
+            if ok:
+                self.autosave_label.setStyleSheet("")
+                self.autosave_label.setText("")
+                self.autosave_label.setToolTip("")
+            else:
+                self.statusBar().showMessage(f"Could not delete the recovery copy: {message}", 15000)
+
+    def restore_recovered(self, entry, project=None) -> bool:
+        """Open a recovered project marked unsaved, its own file (if any) as the save target."""
+        if project is None:
+            try:
+                project = entry.load()
+            except ProjectError as exc:
+                QMessageBox.critical(self, "Cannot restore", f"{exc}\n\nThe project that was open stays open.")
+                return False
+        if self.document.has_unsaved_work and not self._ask_unsaved():
+            return False
+        self._pending_selection = "worst"
+        self.map.clear_selection()
+        self.document.reset(project, entry.original_path, saved=False, recovered=True)
+        self.recovery.adopt(entry)
+        self._autosaved = (self.document.project, self.document.path)
+        target = f"; Save writes it to {entry.original_path}" if entry.original_path is not None else ""
+        self.statusBar().showMessage(f"Restored unsaved work — not saved yet{target}", 15000)
         return True
 
     # -- closing -------------------------------------------------------------------
@@ -597,7 +701,9 @@ class MainWindow(QMainWindow):
             event.ignore()
             return
         self._shutdown = True
+        self.autosave_timer.stop()
         self.runner.shutdown()
+        self.recovery.close(remove=True)  # a clean close: saved or discarded
         event.accept()
 
 

@@ -9,17 +9,23 @@ generation is dropped, so only the newest request can ever reach the views.
 Signals (all on the GUI thread): ``started(generation)``, ``progress(fraction)``,
 ``finished(generation, MapResult)``, ``failed(generation, message)``.
 A failure never kills the runner: the next request works as usual.
+
+Without an ``evaluate`` argument the runner calls
+``engine_air.evaluate.evaluate_project`` as found in that module at the
+time of each request (so a test can replace it there).
 """
 
 from __future__ import annotations
 
 import logging
 import threading
+from collections import deque
 import traceback
 
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
 
-from engine_air.evaluate import Cancelled, evaluate_project
+from engine_air import evaluate as _evaluate_module
+from engine_air.evaluate import Cancelled
 
 log = logging.getLogger(__name__)
 
@@ -71,7 +77,7 @@ class MapRunner(QObject):
     finished = Signal(int, object)
     failed = Signal(int, str)
 
-    def __init__(self, parent=None, evaluate=evaluate_project, threads: int = 2) -> None:
+    def __init__(self, parent=None, evaluate=None, threads: int = 2) -> None:
         super().__init__(parent)
         self._evaluate = evaluate
         self._pool = QThreadPool(self)
@@ -80,7 +86,8 @@ class MapRunner(QObject):
         self._stops: dict[int, threading.Event] = {}
         self._signals: dict[int, _JobSignals] = {}
         self.shown_generation = 0
-        self.dropped: list[int] = []  # stale generations whose results were thrown away
+        self.dropped: deque[int] = deque(maxlen=1000)  # the latest stale generations whose results were dropped
+        self.dropped_total = 0
 
     @property
     def generation(self) -> int:
@@ -105,7 +112,8 @@ class MapRunner(QObject):
         sig.cancelled.connect(self._on_cancelled)
         self._stops[gen] = stop
         self._signals[gen] = sig
-        self._pool.start(_Job(gen, project, self._evaluate, stop, sig))
+        evaluate = self._evaluate if self._evaluate is not None else _evaluate_module.evaluate_project
+        self._pool.start(_Job(gen, project, evaluate, stop, sig))
         self.started.emit(gen)
         return gen
 
@@ -122,6 +130,10 @@ class MapRunner(QObject):
         self._pool.waitForDone(10000)
 
     # -- GUI thread --------------------------------------------------------
+    def _drop(self, gen: int) -> None:
+        self.dropped.append(gen)
+        self.dropped_total += 1
+
     def _forget(self, gen: int) -> None:
         self._stops.pop(gen, None)
         sig = self._signals.pop(gen, None)
@@ -135,7 +147,7 @@ class MapRunner(QObject):
     def _on_done(self, gen: int, result) -> None:
         self._forget(gen)
         if gen != self._generation:
-            self.dropped.append(gen)
+            self._drop(gen)
             log.debug("dropped stale result of computation %d (newest is %d)", gen, self._generation)
             return
         self.shown_generation = gen
@@ -144,11 +156,11 @@ class MapRunner(QObject):
     def _on_error(self, gen: int, message: str) -> None:
         self._forget(gen)
         if gen != self._generation:
-            self.dropped.append(gen)
+            self._drop(gen)
             return
         self.failed.emit(gen, message)
 
     def _on_cancelled(self, gen: int) -> None:
         self._forget(gen)
         if gen != self._generation:
-            self.dropped.append(gen)
+            self._drop(gen)

@@ -21,11 +21,14 @@ import argparse
 import os
 import statistics
 import sys
+import tempfile
 import time
 from dataclasses import replace
 from pathlib import Path
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+# autosave copies of the edits made here go to a temporary folder, never the user's recovery folder
+os.environ.setdefault("ENGINE_AIR_RECOVERY_DIR", os.path.join(tempfile.gettempdir(), "engine-air-bench-recovery"))
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from PySide6.QtCore import QElapsedTimer, QEvent, QObject, QSettings, QTimer  # noqa: E402
