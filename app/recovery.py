@@ -35,7 +35,7 @@ from PySide6.QtCore import QLockFile, QObject, QStandardPaths, Signal
 from PySide6.QtWidgets import QMessageBox
 
 from engine_air.errors import ProjectError, ProjectSaveError
-from engine_air.project_file import load_project, save_project
+from engine_air.project_file import load_project, save_project, write_bytes_atomic
 
 log = logging.getLogger(__name__)
 
@@ -138,22 +138,7 @@ class Slot:
 
 
 def _write_text_atomic(path: Path, text: str) -> None:
-    tmp = None
-    try:
-        with tempfile.NamedTemporaryFile("w", encoding="utf-8", dir=path.parent, prefix=f".{path.name}.",
-                                         suffix=".tmp", delete=False) as f:
-            tmp = f.name
-            f.write(text)
-            f.flush()
-            os.fsync(f.fileno())
-        os.replace(tmp, path)
-        tmp = None
-    finally:
-        if tmp is not None:
-            try:
-                os.unlink(tmp)
-            except OSError:
-                pass
+    write_bytes_atomic(path, text.encode("utf-8"))
 
 
 # -- finding what a crashed session left behind -------------------------------------------------------------

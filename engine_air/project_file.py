@@ -601,16 +601,15 @@ def _default_mode() -> int:
 _NEW_FILE_MODE = _default_mode()
 
 
-def save_project(project: Project, path: str | os.PathLike) -> None:
-    """Write ``project`` to ``path`` atomically.
+def write_bytes_atomic(path: str | os.PathLike, data: bytes) -> None:
+    """Write ``data`` to ``path`` so that a crash never leaves half a file.
 
-    The text goes to a temporary file in the target's folder, is flushed and
-    fsync'ed, then renamed over the target (``os.replace``). A symbolic link
-    at ``path`` is followed, so the file it points to is replaced. On any
+    The bytes go to a temporary file in the target's folder, are flushed and
+    fsync'ed, then renamed over the target (``os.replace``); the target's
+    permissions are kept. A symbolic link at ``path`` is followed. On any
     ``OSError`` the temporary file is removed, the previous file is left as it
-    was, and ``ProjectSaveError`` is raised.
+    was, and the ``OSError`` is raised.
     """
-    text = dumps_project(project).encode("utf-8")
     target = os.path.realpath(os.fspath(path))
     folder = os.path.dirname(target)
     tmp_name = None
@@ -622,20 +621,31 @@ def save_project(project: Project, path: str | os.PathLike) -> None:
         with tempfile.NamedTemporaryFile("wb", dir=folder, prefix="." + os.path.basename(target) + ".",
                                          suffix=".tmp", delete=False) as f:
             tmp_name = f.name
-            f.write(text)
+            f.write(data)
             f.flush()
             os.fsync(f.fileno())
         os.chmod(tmp_name, mode)
         os.replace(tmp_name, target)
         tmp_name = None
-    except OSError as exc:
+    finally:
         if tmp_name is not None:
             try:
                 os.unlink(tmp_name)
             except OSError:
                 pass
-        raise ProjectSaveError(os.fspath(path), exc.strerror or str(exc), exc.errno) from exc
     _sync_folder(folder)
+
+
+def save_project(project: Project, path: str | os.PathLike) -> None:
+    """Write ``project`` to ``path`` atomically (``write_bytes_atomic``).
+
+    On any ``OSError`` the previous file is left as it was and
+    ``ProjectSaveError`` is raised.
+    """
+    try:
+        write_bytes_atomic(path, dumps_project(project).encode("utf-8"))
+    except OSError as exc:
+        raise ProjectSaveError(os.fspath(path), exc.strerror or str(exc), exc.errno) from exc
 
 
 def _sync_folder(folder: str) -> None:

@@ -32,9 +32,9 @@ from engine_air import report  # noqa: E402
 from engine_air.evaluate import WORST, evaluate_project  # noqa: E402
 from engine_air.project_file import load_project  # noqa: E402
 from engine_air.quantities import QUANTITIES  # noqa: E402
+from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
 
 SAMPLE_NAMES = ["subsonic_transport_nacelle", "supersonic_two_ramp", "undersized_business_jet"]
-WAIT_MS = 15000
 
 
 def sample(name: str) -> Path:
@@ -44,27 +44,8 @@ def sample(name: str) -> Path:
 @pytest.fixture
 def make_window(qtbot, tmp_path):
     """Factory: a shown MainWindow on a project file, settings kept in tmp_path."""
-    made = []
-
-    def make(path=DEFAULT_SAMPLE, runner=None, project=None):
-        settings = QSettings(str(tmp_path / "settings.ini"), QSettings.IniFormat)
-        project = project if project is not None else load_project(path)
-        w = MainWindow(project, path, settings=settings, runner=runner)
-        w.show()
-        made.append(w)
-        wait_result(qtbot, w)
-        return w
-
-    yield make
-    for w in made:
-        w.document._saved = w.document.project  # never prompt at teardown
-        w.close()
-        w.runner.shutdown()
-        w.deleteLater()
-
-
-def wait_result(qtbot, w):
-    qtbot.waitUntil(lambda: w.up_to_date, timeout=WAIT_MS)
+    with window_factory(qtbot, tmp_path, DEFAULT_SAMPLE) as make:
+        yield make
 
 
 def inside_index(result):

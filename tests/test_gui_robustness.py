@@ -38,8 +38,8 @@ from engine_air.errors import ProjectError  # noqa: E402
 from engine_air.evaluate import evaluate_project  # noqa: E402
 from engine_air.model import Grid  # noqa: E402
 from engine_air.project_file import load_project, project_from_dict, project_to_dict  # noqa: E402
+from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
 
-WAIT_MS = 15000
 RAMP = SAMPLES / "supersonic_two_ramp.toml"
 PITOT = SAMPLES / "subsonic_transport_nacelle.toml"
 ROOT = Path(__file__).resolve().parents[1]
@@ -71,29 +71,8 @@ def dialogs(monkeypatch):
 
 @pytest.fixture
 def make_window(qtbot, tmp_path, rec_dir):
-    made = []
-
-    def make(path=RAMP, project=None, autosave_ms=None, wait=True, runner=None):
-        settings = QSettings(str(tmp_path / "settings.ini"), QSettings.IniFormat)
-        project = project if project is not None else load_project(path)
-        w = MainWindow(project, path, settings=settings, autosave_ms=autosave_ms, runner=runner)
-        w.show()
-        made.append(w)
-        if wait:
-            wait_result(qtbot, w)
-        return w
-
-    yield make
-    for w in made:
-        if not w.recovery.closed:
-            w.document._saved = w.document.project  # never prompt at teardown
-            w.close()
-        w.runner.shutdown()
-        w.deleteLater()
-
-
-def wait_result(qtbot, w):
-    qtbot.waitUntil(lambda: w.up_to_date, timeout=WAIT_MS)
+    with window_factory(qtbot, tmp_path, RAMP) as make:
+        yield make
 
 
 def copy_sample(tmp_path, src=RAMP, name="study.toml") -> Path:
