@@ -1,4 +1,4 @@
-"""Small read-only helpers over an ``engine_air.evaluate.MapResult`` for the views.
+"""Small read-only helpers over an ``engine_air.envelope.evaluate.MapResult`` for the views.
 
 Only the documented names of the analysis package are used: ``MapResult``
 (mach, altitude_m, inside, cases, quantity, failing, flags, summary),
@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from engine_air.evaluate import WORST
+from engine_air.envelope.evaluate import WORST
 
 _FAIL_OFFSET = 1e6  # a failing check outranks every holding one
 

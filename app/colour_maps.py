@@ -14,7 +14,7 @@ import math
 import numpy as np
 import pyqtgraph as pg
 
-from engine_air.picture import DIVERGING_ANCHORS
+from engine_air.outputs.pictures import DIVERGING_ANCHORS
 
 # position (0..1) -> colour; 0.5 is margin = 0. The same ramp as the pictures the
 # analysis package writes (review pack, ``engine-air map --png``), so both read alike.

@@ -1,7 +1,7 @@
 """Design answers in the desktop program: sizing, comparison, trade sweep and the review pack.
 
-Self-contained dialogs over ``engine_air.sizing``, ``engine_air.compare``,
-``engine_air.sweep`` and ``engine_air.review_pack``; the main window opens them
+Self-contained dialogs over ``engine_air.studies.sizing``, ``engine_air.studies.compare``,
+``engine_air.studies.sweep`` and ``engine_air.outputs.review_pack``; the main window opens them
 through ``add_design_menu(main_window, get_project)``, which adds a "Design"
 menu. Every computation runs on a ``QThread`` worker with a progress bar and a
 Cancel button; results come back to the GUI thread by queued signals. Values
@@ -57,14 +57,14 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine_air.compare import DIFFERENCE_QUANTITIES, compare_projects
-from engine_air.errors import ProjectError
-from engine_air.evaluate import Cancelled
-from engine_air.picture import DIVERGING_ANCHORS, OUTSIDE_GREY, SEQUENTIAL_ANCHORS, levels_for
-from engine_air.project_file import load_project
-from engine_air.quantities import QUANTITIES
-from engine_air.review_pack import write_review_pack
-from engine_air.sizing import (
+from engine_air.studies.compare import DIFFERENCE_QUANTITIES, compare_projects
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import Cancelled
+from engine_air.outputs.pictures import DIVERGING_ANCHORS, OUTSIDE_GREY, SEQUENTIAL_ANCHORS, levels_for
+from engine_air.project.toml_file import load_project
+from engine_air.outputs.quantities import QUANTITIES
+from engine_air.outputs.review_pack import write_review_pack
+from engine_air.studies.sizing import (
     POINT_OBJECTIVES,
     default_search_range,
     design_value,
@@ -74,7 +74,7 @@ from engine_air.sizing import (
     variable_label,
     variable_unit,
 )
-from engine_air.sweep import MAX_VALUES_PER_VARIABLE, MAX_VARIABLES, sweep
+from engine_air.studies.sweep import MAX_VALUES_PER_VARIABLE, MAX_VARIABLES, sweep
 
 # -- shared pieces -------------------------------------------------------------------
 
@@ -857,7 +857,7 @@ class ReviewPackDialog(_TaskDialog):
 def add_design_menu(main_window, get_project: Callable[[], object]):
     """Add a "Design" menu to ``main_window`` (a QMainWindow) and return it.
 
-    ``get_project()`` returns the current ``engine_air.model.Project`` (or None
+    ``get_project()`` returns the current ``engine_air.project.model.Project`` (or None
     when there is none). Actions: feasible range and optimum, compare with a
     project file, trade sweep, write review pack. Dialogs are modeless; the menu
     keeps a reference to each open one (``menu.open_dialogs``).

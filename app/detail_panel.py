@@ -1,6 +1,6 @@
 """The selected point in full: stations, flow, shock system, each limit, and the flags in plain words.
 
-Numbers come from ``engine_air.report`` (``point_record``, ``station_table``,
+Numbers come from ``engine_air.outputs.point_record`` (``point_record``, ``station_table``,
 ``shock_table``) and are shown in the current display units. Every table
 cell that shows a number keeps its display value in ``Qt.UserRole`` and its SI
 value in ``SI_ROLE`` so that tests (and copy-paste) can read them exactly.
@@ -23,8 +23,8 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine_air import flags as F
-from engine_air import report
+from engine_air.envelope import flags as F
+from engine_air.outputs import point_record as report
 
 from .units import Units, group_digits
 

@@ -19,7 +19,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, Signal
 
-from engine_air.project_file import load_project, save_project
+from engine_air.project.toml_file import load_project, save_project
 
 from .validation import validate
 

@@ -9,7 +9,7 @@ red bar above the tabs and the project is not changed. An accepted candidate
 is emitted as ``projectEdited(Project)``; the main window records it (undo)
 and asks for a recompute.
 
-Spin-box ranges follow the loader's rules (``engine_air.project_file``).
+Spin-box ranges follow the loader's rules (``engine_air.project.toml_file``).
 """
 
 from __future__ import annotations
@@ -35,9 +35,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine_air import project_file as pf
-from engine_air.errors import ProjectError
-from engine_air.model import INLET_TYPES, REFERENCE_RECOVERY_NAME, Case
+from engine_air.project import toml_file as pf
+from engine_air.project.errors import ProjectError
+from engine_air.project.model import INLET_TYPES, REFERENCE_RECOVERY_NAME, Case
 
 from .edit_widgets import CellError, UnitSpin, cell_si, make_table, number_item
 from .units import Units

@@ -11,8 +11,8 @@ import numpy as np
 import pyqtgraph.exporters as pgx
 
 import engine_air
-from engine_air import flags as F
-from engine_air import match
+from engine_air.envelope import flags as F
+from engine_air.flow import match
 
 from .findings import finding_lines
 from .units import Units

@@ -36,9 +36,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine_air.errors import ProjectError, ProjectSaveError
-from engine_air.evaluate import WORST
-from engine_air.quantities import DEFAULT_QUANTITY, QUANTITIES
+from engine_air.project.errors import ProjectError, ProjectSaveError
+from engine_air.envelope.evaluate import WORST
+from engine_air.outputs.quantities import DEFAULT_QUANTITY, QUANTITIES
 
 from . import APPLICATION, ORGANISATION, analysis, exports, style
 from .about import about_html

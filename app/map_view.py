@@ -22,8 +22,8 @@ from PySide6.QtCore import QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 
-from engine_air.evaluate import WORST
-from engine_air.quantities import QUANTITIES
+from engine_air.envelope.evaluate import WORST
+from engine_air.outputs.quantities import QUANTITIES
 
 from . import analysis
 from .colour_maps import colour_map_for, levels_for

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from engine_air.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
+from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
 
 
 def new_project() -> Project:

@@ -27,7 +27,7 @@ _TABLE: dict[str, dict[str, tuple[str, float]]] = {
     "none": {SI: ("", 1.0), US: ("", 1.0)},
 }
 
-# SI unit strings used by engine_air.quantities -> dimension
+# SI unit strings used by engine_air.outputs.quantities -> dimension
 _SI_UNIT_DIMENSION = {
     "m": "altitude", "Pa": "pressure", "K": "temperature", "m/s": "speed",
     "m^2": "area", "m²": "area", "kg/s": "flow", "N": "force", "": "none",

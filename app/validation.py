@@ -8,9 +8,9 @@ if the same values would load from a file; otherwise the loader's one-line
 
 from __future__ import annotations
 
-from engine_air.project_file import project_from_dict, project_to_dict
+from engine_air.project.toml_file import project_from_dict, project_to_dict
 
 
 def validate(project):
-    """The project as the loader would build it; raises ``engine_air.errors.ProjectError``."""
+    """The project as the loader would build it; raises ``engine_air.project.errors.ProjectError``."""
     return project_from_dict(project_to_dict(project))

@@ -11,7 +11,7 @@ Signals (all on the GUI thread): ``started(generation)``, ``progress(fraction)``
 A failure never kills the runner: the next request works as usual.
 
 Without an ``evaluate`` argument the runner calls
-``engine_air.evaluate.evaluate_project`` as found in that module at the
+``engine_air.envelope.evaluate.evaluate_project`` as found in that module at the
 time of each request (so a test can replace it there).
 """
 
@@ -24,8 +24,8 @@ import traceback
 
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
 
-from engine_air import evaluate as _evaluate_module
-from engine_air.evaluate import Cancelled
+from engine_air.envelope import evaluate as _evaluate_module
+from engine_air.envelope.evaluate import Cancelled
 
 log = logging.getLogger(__name__)
 

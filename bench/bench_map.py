@@ -4,7 +4,7 @@
 
 (default: sample_projects/supersonic_two_ramp.toml, the costliest chain: ramp shocks and the streamline trace)
 
-Prints, for the vectorised ``engine_air.evaluate.evaluate_project`` on an N x N grid (default 201 x 201,
+Prints, for the vectorised ``engine_air.envelope.evaluate.evaluate_project`` on an N x N grid (default 201 x 201,
 every case, best of R repeats):
 1. points per second (case-points: grid points x cases);
 2. the speed ratio vectorised / scalar (bench/scalar_model.py on K random grid points), goal >= 100x;
@@ -29,10 +29,10 @@ sys.path.insert(0, str(HERE))
 
 import scalar_model  # noqa: E402
 
-from engine_air.envelope import grid_axes  # noqa: E402
-from engine_air.evaluate import evaluate_project  # noqa: E402
-from engine_air.model import Grid  # noqa: E402
-from engine_air.project_file import load_project  # noqa: E402
+from engine_air.envelope.polygon import grid_axes  # noqa: E402
+from engine_air.envelope.evaluate import evaluate_project  # noqa: E402
+from engine_air.project.model import Grid  # noqa: E402
+from engine_air.project.toml_file import load_project  # noqa: E402
 
 SPEED_RATIO_GOAL = 100.0
 EXP_MULTIPLE_GOAL = 150.0

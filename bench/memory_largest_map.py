@@ -33,8 +33,8 @@ MB = 1e6
 
 
 def _project(path: str, nx: int, ny: int, n_cases: int):
-    from engine_air.model import Case, Grid
-    from engine_air.project_file import load_project
+    from engine_air.project.model import Case, Grid
+    from engine_air.project.toml_file import load_project
 
     project = load_project(path)
     cases = list(project.cases)
@@ -79,7 +79,7 @@ def child(mode: str, path: str, nx: int, ny: int, n_cases: int) -> dict:
 
     import psutil
 
-    from engine_air.evaluate import evaluate_project
+    from engine_air.envelope.evaluate import evaluate_project
 
     project = _project(path, nx, ny, n_cases)
     # warm the imports and caches on a tiny grid first

@@ -13,7 +13,7 @@ every edit and, now and then, for up to a quarter second (so debounced edits fir
 finish or are superseded). Autosave runs every 250 ms into a temporary recovery folder.
 
 At the end it waits for the final map and checks that
-  * the displayed quantity array (and the image) equals a fresh ``engine_air.evaluate.evaluate_project``
+  * the displayed quantity array (and the image) equals a fresh ``engine_air.envelope.evaluate.evaluate_project``
     of the final project, for the quantity and case on screen;
   * the editors hold the document's project, which passes the loader's rules;
   * the autosaved recovery copy loads back equal to the project (when there is unsaved work).
@@ -194,8 +194,8 @@ class Driver:
         self._count("inlet type")
 
     def api_edit(self) -> None:
-        from engine_air.errors import ProjectError
-        from engine_air.model import Grid
+        from engine_air.project.errors import ProjectError
+        from engine_air.project.model import Grid
 
         d = self.w.document
         p = d.project
@@ -264,8 +264,8 @@ def drive(window, edits: int, seed: int = 1, checkpoints: int = 10, on_checkpoin
 def final_check(window, timeout_s: float = WAIT_FINAL_S) -> dict:
     """Wait for the final map; assert it equals a fresh evaluation of the final project."""
     from app.validation import validate
-    from engine_air.evaluate import evaluate_project
-    from engine_air.project_file import load_project
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.project.toml_file import load_project
 
     w = window
     w.editors.flush()
@@ -334,7 +334,7 @@ def main(argv=None) -> int:
 
     from app.main import SAMPLES
     from app.main_window import MainWindow, apply_base_font
-    from engine_air.project_file import load_project
+    from engine_air.project.toml_file import load_project
 
     app = QApplication.instance() or QApplication([])
     apply_base_font(app)

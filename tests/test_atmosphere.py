@@ -9,14 +9,14 @@ import numpy as np
 import pytest
 from ambiance import Atmosphere as IcaoAtmosphere
 
-from engine_air.atmosphere import (
+from engine_air.physics.atmosphere import (
     MAX_ALTITUDE_M,
     MIN_ALTITUDE_M,
     geometric_to_geopotential,
     geopotential_to_geometric,
     standard_atmosphere,
 )
-from engine_air.constants import EARTH_RADIUS_M, GAMMA, R_AIR
+from engine_air.physics.constants import EARTH_RADIUS_M, GAMMA, R_AIR
 
 
 def _at(h, dt=0.0):

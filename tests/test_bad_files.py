@@ -25,11 +25,11 @@ import tomli_w
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from engine_air import project_file as pf
+from engine_air.project import toml_file as pf
 from engine_air.cli import main as cli_main
-from engine_air.errors import ProjectError
-from engine_air.evaluate import evaluate_project
-from engine_air.model import Grid, Project
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import evaluate_project
+from engine_air.project.model import Grid, Project
 
 SAMPLE_DIR = Path(__file__).resolve().parent.parent / "sample_projects"
 SAMPLES = sorted(SAMPLE_DIR.glob("*.toml"))

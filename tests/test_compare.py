@@ -8,13 +8,13 @@ import numpy as np
 import pytest
 
 from engine_air.cli import main
-from engine_air.compare import DIFFERENCE_QUANTITIES, common_axes, compare_projects, evaluate_on_axes
-from engine_air.envelope import grid_axes
-from engine_air.errors import ProjectError
-from engine_air.evaluate import WORST, evaluate_project
-from engine_air.project_file import load_project
-from engine_air.quantities import QUANTITIES
-from engine_air.sizing import with_design_value
+from engine_air.studies.compare import DIFFERENCE_QUANTITIES, common_axes, compare_projects, evaluate_on_axes
+from engine_air.envelope.polygon import grid_axes
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import WORST, evaluate_project
+from engine_air.project.toml_file import load_project
+from engine_air.outputs.quantities import QUANTITIES
+from engine_air.studies.sizing import with_design_value
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 PITOT = SAMPLES / "subsonic_transport_nacelle.toml"

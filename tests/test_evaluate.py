@@ -8,10 +8,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from engine_air.evaluate import WORST, evaluate_project
-from engine_air.match import evaluate_conditions
-from engine_air.model import Grid
-from engine_air.project_file import load_project
+from engine_air.envelope.evaluate import WORST, evaluate_project
+from engine_air.flow.match import evaluate_conditions
+from engine_air.project.model import Grid
+from engine_air.project.toml_file import load_project
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 

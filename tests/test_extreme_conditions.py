@@ -22,22 +22,17 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from scipy.optimize import brentq
 
-from engine_air import flags as F
-from engine_air.atmosphere import MAX_ALTITUDE_M, MIN_ALTITUDE_M
-from engine_air.constants import GAMMA, LOW_SPEED_MACH, P_REF, R_AIR, T_REF
-from engine_air.evaluate import evaluate_project
-from engine_air.gasdynamics import (
-    choked_corrected_flow_per_area,
-    choked_mass_flow_parameter,
-    max_deflection_rad,
-    normal_shock,
-    oblique_shock,
-)
-from engine_air.match import REGIMES, SUBSONIC, evaluate_conditions
-from engine_air.model import Case, Grid, Inlet, Project, Rating
-from engine_air.project_file import ProjectError, load_project, project_from_dict, project_to_dict
-from engine_air.reference import mil_e_5008b_recovery
-from engine_air.report import point_record
+from engine_air.envelope import flags as F
+from engine_air.physics.atmosphere import MAX_ALTITUDE_M, MIN_ALTITUDE_M
+from engine_air.physics.constants import GAMMA, LOW_SPEED_MACH, P_REF, R_AIR, T_REF
+from engine_air.envelope.evaluate import evaluate_project
+from engine_air.physics.isentropic import choked_corrected_flow_per_area, choked_mass_flow_parameter
+from engine_air.physics.shocks import max_deflection_rad, normal_shock, oblique_shock
+from engine_air.flow.match import REGIMES, SUBSONIC, evaluate_conditions
+from engine_air.project.model import Case, Grid, Inlet, Project, Rating
+from engine_air.project.toml_file import ProjectError, load_project, project_from_dict, project_to_dict
+from engine_air.physics.reference_recovery import mil_e_5008b_recovery
+from engine_air.outputs.point_record import point_record
 
 SAMPLES = Path(__file__).resolve().parent.parent / "sample_projects"
 PITOT = load_project(SAMPLES / "subsonic_transport_nacelle.toml")      # pitot, tip speed on two ratings

@@ -24,8 +24,8 @@ from pathlib import Path
 
 import pytest
 
-from engine_air import project_file as pf
-from engine_air.errors import ProjectSaveError
+from engine_air.project import toml_file as pf
+from engine_air.project.errors import ProjectSaveError
 
 ROOT = Path(__file__).resolve().parent.parent
 SOURCE_DIRS = ("engine_air", "app")

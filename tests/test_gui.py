@@ -28,10 +28,10 @@ from app import exports  # noqa: E402
 from app.main import DEFAULT_SAMPLE, SAMPLES, load_start_project  # noqa: E402
 from app.main_window import MainWindow  # noqa: E402
 from app.worker import MapRunner  # noqa: E402
-from engine_air import report  # noqa: E402
-from engine_air.evaluate import WORST, evaluate_project  # noqa: E402
-from engine_air.project_file import load_project  # noqa: E402
-from engine_air.quantities import QUANTITIES  # noqa: E402
+from engine_air.outputs import point_record as report  # noqa: E402
+from engine_air.envelope.evaluate import WORST, evaluate_project  # noqa: E402
+from engine_air.project.toml_file import load_project  # noqa: E402
+from engine_air.outputs.quantities import QUANTITIES  # noqa: E402
 from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
 
 SAMPLE_NAMES = ["subsonic_transport_nacelle", "supersonic_two_ramp", "undersized_business_jet"]

@@ -29,15 +29,15 @@ pytest.importorskip("pytestqt")
 from PySide6.QtCore import QSettings, QTimer  # noqa: E402
 from PySide6.QtWidgets import QApplication, QMessageBox  # noqa: E402
 
-import engine_air.evaluate as evaluate_module  # noqa: E402
+import engine_air.envelope.evaluate as evaluate_module  # noqa: E402
 from app import recovery  # noqa: E402
 from app.main import SAMPLES  # noqa: E402
 from app.main_window import MainWindow  # noqa: E402
-from engine_air import project_file as pf  # noqa: E402
-from engine_air.errors import ProjectError  # noqa: E402
-from engine_air.evaluate import evaluate_project  # noqa: E402
-from engine_air.model import Grid  # noqa: E402
-from engine_air.project_file import load_project, project_from_dict, project_to_dict  # noqa: E402
+from engine_air.project import toml_file as pf  # noqa: E402
+from engine_air.project.errors import ProjectError  # noqa: E402
+from engine_air.envelope.evaluate import evaluate_project  # noqa: E402
+from engine_air.project.model import Grid  # noqa: E402
+from engine_air.project.toml_file import load_project, project_from_dict, project_to_dict  # noqa: E402
 from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
 
 RAMP = SAMPLES / "supersonic_two_ramp.toml"
@@ -499,7 +499,7 @@ def _raise_once(monkeypatch, message="solver diverged"):
 
 
 def test_worker_that_raises_leaves_last_good_map_marked_stale(make_window, qtbot, monkeypatch):
-    w = make_window(RAMP)  # the window's own MapRunner, calling engine_air.evaluate.evaluate_project
+    w = make_window(RAMP)  # the window's own MapRunner, calling engine_air.envelope.evaluate.evaluate_project
     good, good_result = w.map.values().copy(), w.result
     state = _raise_once(monkeypatch)
     p = edited(w, inlet=replace(w.document.project.inlet, face_area_m2=0.45))
@@ -652,7 +652,7 @@ def test_too_many_cases_for_the_grid_are_refused_in_the_editor(make_window):
     big = replace(p, grid=Grid(500, 500))
     w.document.edit(big)
     n_ok = limit // (500 * 500)
-    from engine_air.model import Case
+    from engine_air.project.model import Case
     cases = tuple(Case(name=f"c{k}", rating=p.ratings[0].name, isa_offset_K=0.0) for k in range(n_ok))
     w.document.edit(replace(big, cases=cases))
     w.editors.set_project(w.document.project)

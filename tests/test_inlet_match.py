@@ -1,6 +1,6 @@
 """Inlet and match (method §2-§8): worked cases built by hand from the relations, and properties.
 
-Tiny projects are built inline from the ``engine_air.model`` dataclasses. Every expected number is
+Tiny projects are built inline from the ``engine_air.project.model`` dataclasses. Every expected number is
 computed here from the method's relations (with ``math`` and ``scipy``), not from engine_air.
 """
 
@@ -15,12 +15,12 @@ from hypothesis import strategies as st
 from pygasflow.shockwave import beta_from_mach_theta
 from scipy.optimize import brentq
 
-from engine_air import flags as F
-from engine_air.inlet import external_shocks, ramp_design_problems
-from engine_air.match import REGIMES, evaluate_conditions
-from engine_air.model import Case, Envelope, Inlet, Limits, Project, Rating
-from engine_air.reference import mil_e_5008b_recovery
-from engine_air.report import point_record
+from engine_air.envelope import flags as F
+from engine_air.inlets.ramp_layout import external_shocks, ramp_design_problems
+from engine_air.flow.match import REGIMES, evaluate_conditions
+from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating
+from engine_air.physics.reference_recovery import mil_e_5008b_recovery
+from engine_air.outputs.point_record import point_record
 
 G = 1.4
 R = 8314.32 / 28.9644

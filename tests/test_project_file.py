@@ -19,8 +19,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import engine_air
-from engine_air import project_file as pf
-from engine_air.envelope import (
+from engine_air.project import toml_file as pf
+from engine_air.envelope.polygon import (
     envelope_mask,
     grid_axes,
     polygon_area,
@@ -29,8 +29,8 @@ from engine_air.envelope import (
     polygon_self_intersects,
     vertices_collinear,
 )
-from engine_air.errors import ProjectError, ProjectSaveError
-from engine_air.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
+from engine_air.project.errors import ProjectError, ProjectSaveError
+from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
 
 SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_projects").glob("*.toml"))
 
@@ -593,15 +593,16 @@ def test_save_into_missing_folder(tmp_path):
 # -- physics hook -----------------------------------------------------------------
 
 def _fake_inlet_module(monkeypatch, module):
-    monkeypatch.setitem(sys.modules, "engine_air.inlet", module)
+    monkeypatch.setitem(sys.modules, "engine_air.inlets.ramp_layout", module)
+    import engine_air.inlets
     if module is None:
-        monkeypatch.delattr(engine_air, "inlet", raising=False)
+        monkeypatch.delattr(engine_air.inlets, "ramp_layout", raising=False)
     else:
-        monkeypatch.setattr(engine_air, "inlet", module, raising=False)
+        monkeypatch.setattr(engine_air.inlets, "ramp_layout", module, raising=False)
 
 
 def test_physics_hook_problem_becomes_project_error(monkeypatch, tmp_path):
-    fake = types.ModuleType("engine_air.inlet")
+    fake = types.ModuleType("engine_air.inlets.ramp_layout")
     seen = []
 
     def check_design(inlet):
@@ -616,13 +617,13 @@ def test_physics_hook_problem_becomes_project_error(monkeypatch, tmp_path):
 
 
 def test_physics_hook_no_problems(monkeypatch):
-    fake = types.ModuleType("engine_air.inlet")
+    fake = types.ModuleType("engine_air.inlets.ramp_layout")
     fake.check_design = lambda inlet: []
     _fake_inlet_module(monkeypatch, fake)
     assert pf.project_from_dict(ramp_data()).inlet.type == "external-ramp"
 
 
-@pytest.mark.parametrize("module", [None, types.ModuleType("engine_air.inlet")], ids=["no-module", "no-function"])
+@pytest.mark.parametrize("module", [None, types.ModuleType("engine_air.inlets.ramp_layout")], ids=["no-module", "no-function"])
 def test_physics_hook_skipped_when_unavailable(module, monkeypatch):
     _fake_inlet_module(monkeypatch, module)
     assert pf.project_from_dict(ramp_data()).inlet.type == "external-ramp"

@@ -15,11 +15,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from engine_air import evaluate as ev
-from engine_air import project_file as pf
-from engine_air.errors import ProjectError
-from engine_air.evaluate import check_grid_size, evaluate_project
-from engine_air.model import Case, Grid
+from engine_air.envelope import evaluate as ev
+from engine_air.project import toml_file as pf
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import check_grid_size, evaluate_project
+from engine_air.project.model import Case, Grid
 
 SAMPLES = Path(__file__).resolve().parent.parent / "sample_projects"
 PROJECT = pf.load_project(SAMPLES / "supersonic_two_ramp.toml")

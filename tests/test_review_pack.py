@@ -11,11 +11,11 @@ import numpy as np
 import pytest
 
 import engine_air
-from engine_air import picture as P
+from engine_air.outputs import pictures as P
 from engine_air.cli import main
-from engine_air.evaluate import WORST, evaluate_project
-from engine_air.project_file import load_project
-from engine_air.review_pack import PACK_QUANTITIES, SECTION_IDS, SOURCES, write_review_pack
+from engine_air.envelope.evaluate import WORST, evaluate_project
+from engine_air.project.toml_file import load_project
+from engine_air.outputs.review_pack import PACK_QUANTITIES, SECTION_IDS, SOURCES, write_review_pack
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 PITOT = SAMPLES / "subsonic_transport_nacelle.toml"
@@ -180,8 +180,8 @@ def test_analysis_modules_never_import_qt():
     import subprocess
     import sys
 
-    code = ("import sys, engine_air.sizing, engine_air.compare, engine_air.sweep, engine_air.review_pack, "
-            "engine_air.picture, engine_air.cli; "
+    code = ("import sys, engine_air.studies.sizing, engine_air.studies.compare, engine_air.studies.sweep, engine_air.outputs.review_pack, "
+            "engine_air.outputs.pictures, engine_air.cli; "
             "print(any(m.split('.')[0] in ('PySide6', 'pyqtgraph', 'PyQt5', 'PyQt6') for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "False"

@@ -1,4 +1,4 @@
-"""The vectorised match (engine_air.match.evaluate_conditions) against the independent per-point scalar
+"""The vectorised match (engine_air.flow.match.evaluate_conditions) against the independent per-point scalar
 implementation in bench/scalar_model.py, on every sample project, at random envelope points."""
 
 from __future__ import annotations
@@ -15,10 +15,10 @@ sys.path.insert(0, str(ROOT / "bench"))
 
 import scalar_model  # noqa: E402
 
-from engine_air import flags as F  # noqa: E402
-from engine_air.envelope import envelope_mask  # noqa: E402
-from engine_air.match import REGIMES, evaluate_conditions  # noqa: E402
-from engine_air.project_file import load_project  # noqa: E402
+from engine_air.envelope import flags as F  # noqa: E402
+from engine_air.envelope.polygon import envelope_mask  # noqa: E402
+from engine_air.flow.match import REGIMES, evaluate_conditions  # noqa: E402
+from engine_air.project.toml_file import load_project  # noqa: E402
 
 SAMPLES = sorted((ROOT / "sample_projects").glob("*.toml"))
 N_POINTS = 200

@@ -16,11 +16,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from engine_air.errors import ProjectError
-from engine_air.evaluate import Cancelled, evaluate_project
-from engine_air.gasdynamics import choked_corrected_flow_per_area, mach_from_flow_ratio
-from engine_air.project_file import load_project, project_from_dict
-from engine_air import sizing as S
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import Cancelled, evaluate_project
+from engine_air.physics.isentropic import choked_corrected_flow_per_area, mach_from_flow_ratio
+from engine_air.project.toml_file import load_project, project_from_dict
+from engine_air.studies import sizing as S
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 FLOW_PER_AREA_AT_M04 = 151.708920543  # kg/(s m^2), derived from method section 3
@@ -203,8 +203,8 @@ def test_cli_size_exit_codes(tmp_path, capsys):
     from dataclasses import replace
 
     from engine_air.cli import main
-    from engine_air.model import Grid
-    from engine_air.project_file import save_project
+    from engine_air.project.model import Grid
+    from engine_air.project.toml_file import save_project
 
     def coarse(name):
         path = tmp_path / f"{name}.toml"

@@ -9,11 +9,11 @@ import numpy as np
 import pytest
 
 from engine_air.cli import main
-from engine_air.errors import ProjectError
-from engine_air.evaluate import Cancelled, evaluate_project
-from engine_air.project_file import load_project
-from engine_air.sizing import with_design_values, worst_point
-from engine_air.sweep import MAX_POINT_EVALUATIONS, parse_vary, sweep, variant_row, write_sweep_csv
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import Cancelled, evaluate_project
+from engine_air.project.toml_file import load_project
+from engine_air.studies.sizing import with_design_values, worst_point
+from engine_air.studies.sweep import MAX_POINT_EVALUATIONS, parse_vary, sweep, variant_row, write_sweep_csv
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 PITOT = SAMPLES / "subsonic_transport_nacelle.toml"
@@ -26,7 +26,7 @@ def small():
     """The failing sample on a coarse grid (sweeps stay fast)."""
     from dataclasses import replace
 
-    from engine_air.model import Grid
+    from engine_air.project.model import Grid
 
     p = load_project(FAILING)
     return replace(p, grid=Grid(mach_points=31, altitude_points=26))

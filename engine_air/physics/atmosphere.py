@@ -25,7 +25,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .constants import EARTH_RADIUS_M, G0, GAMMA, R_AIR
+from engine_air.physics.constants import EARTH_RADIUS_M, G0, GAMMA, R_AIR
 
 # Layer base geopotential altitudes (m) and lapse rates (K/m), [1] Table 4.
 _BASE_ALTITUDE_M = np.array([0.0, 11000.0, 20000.0, 32000.0, 47000.0, 51000.0, 71000.0])

@@ -2,15 +2,15 @@
 
 ``sweep(project, {"capture_area_m2": [...], "face_area_m2": [...]})`` builds every
 combination of the given values (the last variable varies fastest), sets them
-with ``engine_air.sizing.with_design_values``, evaluates each variant with
-``engine_air.evaluate.evaluate_project`` over the envelope grid for every case,
+with ``engine_air.studies.sizing.with_design_values``, evaluates each variant with
+``engine_air.envelope.evaluate.evaluate_project`` over the envelope grid for every case,
 and keeps one ``SweepRow`` per variant:
 
 - the values, the verdict (``"holds"``, ``"fails"``, or ``"invalid"`` when the
   combination breaks a project-file rule, e.g. a throat larger than the capture
   area: ``message`` says which),
 - the worst relative margin over every check, envelope point and case (as in
-  ``engine_air.sizing.worst_point``; >= 0 exactly when every limit holds), its
+  ``engine_air.studies.sizing.worst_point``; >= 0 exactly when every limit holds), its
   check and its point,
 - the worst face Mach margin (limit - M2, least over the envelope and cases),
 - the limits that fail somewhere,
@@ -33,7 +33,7 @@ Both paths run ``run_chunk``, so a variant's row equals ``variant_row`` of the
 single-map evaluation of the same inputs exactly, whichever path ran it.
 
 ``progress(fraction)`` is called as chunks finish; ``cancelled()`` is polled
-between them (every 0.1 s locally) and ``engine_air.evaluate.Cancelled`` raised.
+between them (every 0.1 s locally) and ``engine_air.envelope.evaluate.Cancelled`` raised.
 
 Size limit
 ----------
@@ -62,12 +62,12 @@ from typing import Callable, Mapping, Sequence
 
 import numpy as np
 
-from .errors import ProjectError
-from .evaluate import Cancelled, MapResult, evaluate_project
-from .match import evaluate_conditions
-from .model import Project
-from .project_file import dumps_project, project_from_dict
-from .sizing import _parse, _resolve_at, variable_unit, with_design_values, worst_point
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
+from engine_air.flow.match import evaluate_conditions
+from engine_air.project.model import Project
+from engine_air.project.toml_file import dumps_project, project_from_dict
+from engine_air.studies.sizing import _parse, _resolve_at, variable_unit, with_design_values, worst_point
 
 MAX_VARIABLES = 4
 MAX_VALUES_PER_VARIABLE = 1001
@@ -275,7 +275,7 @@ def _context():
     methods = multiprocessing.get_all_start_methods()
     if "forkserver" in methods:
         ctx = multiprocessing.get_context("forkserver")
-        ctx.set_forkserver_preload(["engine_air.sweep"])
+        ctx.set_forkserver_preload(["engine_air.studies.sweep"])
         return ctx
     return multiprocessing.get_context("spawn")
 
@@ -336,7 +336,7 @@ def sweep(
     Parameters
     ----------
     variables : mapping or sequence of (name, values)
-        1 to 4 design variables of ``engine_air.sizing`` and their values (SI).
+        1 to 4 design variables of ``engine_air.studies.sizing`` and their values (SI).
     cruise : (mach, altitude_m, case) or None
         Named point for the spillage column (case None: the first case).
     case_names : list of str, optional

@@ -2,7 +2,7 @@
 
 ``evaluate_project(project)`` builds the grid over the envelope's bounding box,
 masks it by the envelope polygon and evaluates every (or the chosen) case with
-``engine_air.match.evaluate_conditions``, one vectorised call per case.
+``engine_air.flow.match.evaluate_conditions``, one vectorised call per case.
 Grid arrays have shape (altitude_points, mach_points): row i is altitude
 ``altitude_m[i]``, column j is Mach ``mach[j]``.
 
@@ -18,12 +18,12 @@ from typing import Callable
 
 import numpy as np
 
-from . import flags as F
-from .envelope import envelope_mask, grid_axes
-from .errors import ProjectError
-from .match import OperatingPoints, evaluate_conditions
-from .model import Project
-from .project_file import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
+from engine_air.envelope import flags as F
+from engine_air.envelope.polygon import envelope_mask, grid_axes
+from engine_air.project.errors import ProjectError
+from engine_air.flow.match import OperatingPoints, evaluate_conditions
+from engine_air.project.model import Project
+from engine_air.project.toml_file import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
 
 WORST = "worst of all cases"
 

@@ -29,20 +29,20 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from . import flags as F
-from .atmosphere import standard_atmosphere
-from .constants import CRITICAL_BAND, GAMMA, LOW_SPEED_MACH, P_REF, R_AIR, T_REF
-from .demand import corrected_flow_demand
-from .gasdynamics import (
+from engine_air.envelope import flags as F
+from engine_air.physics.atmosphere import standard_atmosphere
+from engine_air.physics.constants import CRITICAL_BAND, GAMMA, LOW_SPEED_MACH, P_REF, R_AIR, T_REF
+from engine_air.flow.demand import corrected_flow_demand
+from engine_air.physics.isentropic import (
     choked_mass_flow_parameter,
     dynamic_to_total_pressure,
     mach_from_flow_ratio,
     pressure_ratio,
 )
-from .inlet import external_shocks
-from .limits import Check, build_checks, limiting_index
-from .model import Case, Project
-from .reference import mil_e_5008b_recovery
+from engine_air.inlets.ramp_layout import external_shocks
+from engine_air.envelope.checks import Check, build_checks, limiting_index
+from engine_air.project.model import Case, Project
+from engine_air.physics.reference_recovery import mil_e_5008b_recovery
 
 REGIMES = ("subsonic", "subcritical", "critical", "supercritical")
 SUBSONIC, SUBCRITICAL, CRITICAL, SUPERCRITICAL = range(4)
@@ -88,7 +88,7 @@ class OperatingPoints:
     relative_tip_mach: np.ndarray
     # status
     regime: np.ndarray  # int index into REGIMES
-    flags: np.ndarray  # int bits, see engine_air.flags
+    flags: np.ndarray  # int bits, see engine_air.envelope.flags
     checks: list[Check] = field(default_factory=list)
     limiting: np.ndarray | None = None  # int index into checks, -1 where nothing is judged
     ramp_wave_angle_rad: np.ndarray | None = None  # (n_ramps, ...)

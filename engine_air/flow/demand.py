@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .model import Rating
+from engine_air.project.model import Rating
 
 
 def corrected_flow_demand(rating: Rating, theta2) -> tuple[np.ndarray, np.ndarray]:

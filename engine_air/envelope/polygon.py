@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .model import Envelope, Grid
+from engine_air.project.model import Envelope, Grid
 
 EDGE_TOLERANCE = 1e-9
 """Distance, in normalised units, within which a point counts as on an edge."""

@@ -32,8 +32,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .gasdynamics import max_deflection_rad, normal_shock, oblique_shock
-from .model import Inlet
+from engine_air.physics.shocks import max_deflection_rad, normal_shock, oblique_shock
+from engine_air.project.model import Inlet
 
 
 @dataclass(frozen=True)

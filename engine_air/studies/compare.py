@@ -40,15 +40,15 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from . import flags as F
-from .envelope import envelope_mask, grid_axes
-from .errors import ProjectError
-from .evaluate import WORST, CaseMap, LimitSummary, MapResult, summarise
-from .match import evaluate_conditions
-from .model import Project
-from . import project_file as _pf
-from .project_file import MAX_AXIS_POINTS, MAX_GRID_POINTS
-from .quantities import QUANTITIES
+from engine_air.envelope import flags as F
+from engine_air.envelope.polygon import envelope_mask, grid_axes
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import WORST, CaseMap, LimitSummary, MapResult, summarise
+from engine_air.flow.match import evaluate_conditions
+from engine_air.project.model import Project
+from engine_air.project import toml_file as _pf
+from engine_air.project.toml_file import MAX_AXIS_POINTS, MAX_GRID_POINTS
+from engine_air.outputs.quantities import QUANTITIES
 
 GRID_CHOICES = ("a", "b", "union")
 DIFFERENCE_QUANTITIES = (
@@ -61,7 +61,7 @@ DIFFERENCE_QUANTITIES = (
 def evaluate_on_axes(project: Project, mach_1d, altitude_1d, case_names: list[str] | None = None) -> MapResult:
     """Evaluate ``project`` at the grid ``mach_1d`` x ``altitude_1d`` (not necessarily its own).
 
-    The same steps as ``engine_air.evaluate.evaluate_project``: one vectorised
+    The same steps as ``engine_air.envelope.evaluate.evaluate_project``: one vectorised
     ``evaluate_conditions`` call per case, ``outside-envelope`` flagged by the
     project's own polygon, then the per-limit summary. On the project's own axes
     the result equals ``evaluate_project(project)``.
@@ -200,7 +200,7 @@ class CompareResult:
 
     def shared_levels(self, case: str, key: str) -> tuple[float, float]:
         """One colour scale for A's and B's maps of ``key`` (symmetric about 0 for margins)."""
-        from .picture import levels_for
+        from engine_air.outputs.pictures import levels_for
 
         both = np.concatenate([self.value("a", case, key).ravel(), self.value("b", case, key).ravel()])
         return levels_for(QUANTITIES[key].kind if key in QUANTITIES else "level", both)
@@ -257,7 +257,7 @@ def compare_projects(
     grid_from : {"a", "b", "union"}
         Whose grid to use (module text).
     quantities : tuple of str
-        Keys of ``engine_air.quantities.QUANTITIES`` for which ``stats`` is
+        Keys of ``engine_air.outputs.quantities.QUANTITIES`` for which ``stats`` is
         prepared (``difference`` works for any key at any time).
 
     Returns
@@ -269,7 +269,7 @@ def compare_projects(
     """
     for key in quantities:
         if key not in QUANTITIES:
-            raise ProjectError(None, "quantities", key, "must be keys of engine_air.quantities.QUANTITIES: "
+            raise ProjectError(None, "quantities", key, "must be keys of engine_air.outputs.quantities.QUANTITIES: "
                                + ", ".join(QUANTITIES))
     mach, alt = common_axes(a, b, grid_from)
     ra = evaluate_on_axes(a, mach, alt)

@@ -14,15 +14,15 @@ import sys
 
 import numpy as np
 
-from . import __version__
-from . import flags as F
-from .errors import ProjectError
-from .evaluate import evaluate_project
-from .match import REGIMES, evaluate_conditions
-from .envelope import polygon_contains
-from .explain import mechanism
-from .project_file import load_project
-from .report import point_record
+from engine_air import __version__
+from engine_air.envelope import flags as F
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import evaluate_project
+from engine_air.flow.match import REGIMES, evaluate_conditions
+from engine_air.envelope.polygon import polygon_contains
+from engine_air.envelope.explain import mechanism
+from engine_air.project.toml_file import load_project
+from engine_air.outputs.point_record import point_record
 
 EXIT_HOLDS, EXIT_FAILS, EXIT_UNUSABLE = 0, 1, 2
 
@@ -211,7 +211,7 @@ def cmd_map(args) -> int:
         raise UsageError(f"{args.csv}: cannot write the CSV file: {exc.strerror or exc}") from None
     print(f"wrote {rows} rows to {args.csv}")
     if args.png:
-        from .picture import write_map_png
+        from engine_air.outputs.pictures import write_map_png
 
         try:
             write_map_png(result, args.png, args.quantity)
@@ -276,7 +276,7 @@ def _progress_printer(what: str):
 
 
 def cmd_size(args) -> int:
-    from .sizing import feasible_range, optimise
+    from engine_air.studies.sizing import feasible_range, optimise
 
     project = load_project(args.project)
     _warn(project)
@@ -314,9 +314,9 @@ def cmd_size(args) -> int:
 
 
 def cmd_compare(args) -> int:
-    from .compare import compare_projects, write_compare_csv
-    from .evaluate import WORST
-    from .quantities import QUANTITIES
+    from engine_air.studies.compare import compare_projects, write_compare_csv
+    from engine_air.envelope.evaluate import WORST
+    from engine_air.outputs.quantities import QUANTITIES
 
     a = load_project(args.a)
     _warn(a)
@@ -365,7 +365,7 @@ def cmd_compare(args) -> int:
 
 
 def cmd_sweep(args) -> int:
-    from .sweep import format_rows, parse_vary, sweep, write_sweep_csv
+    from engine_air.studies.sweep import format_rows, parse_vary, sweep, write_sweep_csv
 
     project = load_project(args.project)
     _warn(project)
@@ -417,13 +417,13 @@ def cmd_sweep(args) -> int:
 
 
 def cmd_pack(args) -> int:
-    from .review_pack import PACK_QUANTITIES, write_review_pack
+    from engine_air.outputs.review_pack import PACK_QUANTITIES, write_review_pack
 
     project = load_project(args.project)
     _warn(project)
     cases = _cases(project, args.case)
     quantities = tuple(args.quantity) if args.quantity else PACK_QUANTITIES
-    from .quantities import QUANTITIES
+    from engine_air.outputs.quantities import QUANTITIES
 
     for q in quantities:
         if q not in QUANTITIES:

@@ -17,7 +17,7 @@ envelope for every case and writes into ``folder``:
   reproduces the verdict;
 - ``maps/<case>__<quantity>.png``: the map pictures as files too.
 
-The pictures come from ``engine_air.picture`` (no Qt). Every text taken from
+The pictures come from ``engine_air.outputs.pictures`` (no Qt). Every text taken from
 the project (title, notes, case names) is HTML-escaped.
 
 Example::
@@ -42,16 +42,16 @@ from typing import Callable
 
 import numpy as np
 
-from . import CAUTION, __version__
-from . import flags as F
-from .evaluate import WORST, Cancelled, MapResult, evaluate_project
-from .match import REGIMES
-from .model import Project
-from .picture import render_map
-from .project_file import dumps_project, load_project, project_from_dict
-from .quantities import QUANTITIES
-from .report import shock_table, station_table
-from .sizing import worst_point
+from engine_air import CAUTION, __version__
+from engine_air.envelope import flags as F
+from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project
+from engine_air.flow.match import REGIMES
+from engine_air.project.model import Project
+from engine_air.outputs.pictures import render_map
+from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
+from engine_air.outputs.quantities import QUANTITIES
+from engine_air.outputs.point_record import shock_table, station_table
+from engine_air.studies.sizing import worst_point
 
 PACK_QUANTITIES = ("face_mach_margin", "recovery", "spillage_fraction", "throat_mach")
 """Quantities mapped in a pack by default."""
@@ -197,7 +197,7 @@ def write_review_pack(
     folder : path
         Output folder; existing files of the same names are replaced.
     quantities : tuple of str
-        Keys of ``engine_air.quantities.QUANTITIES`` to map.
+        Keys of ``engine_air.outputs.quantities.QUANTITIES`` to map.
     case_names : list of str, optional
         Evaluate only these cases (default every case).
 

@@ -26,8 +26,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from . import flags as F
-from .model import REFERENCE_RECOVERY_NAME, Limits
+from engine_air.envelope import flags as F
+from engine_air.project.model import REFERENCE_RECOVERY_NAME, Limits
 
 
 @dataclass

@@ -9,10 +9,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from . import flags as F
-from .gasdynamics import choked_corrected_flow_per_area, mass_flow_parameter, choked_mass_flow_parameter
-from .match import REGIMES, OperatingPoints
-from .model import Project
+from engine_air.envelope import flags as F
+from engine_air.physics.isentropic import choked_corrected_flow_per_area, mass_flow_parameter, choked_mass_flow_parameter
+from engine_air.flow.match import REGIMES, OperatingPoints
+from engine_air.project.model import Project
 
 
 def _flow_per_area_at(mach: float) -> float:

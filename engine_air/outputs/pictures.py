@@ -1,7 +1,7 @@
 """Map pictures as PNG files without Qt: a raster writer on zlib and struct.
 
 ``write_map_png(result, path, quantity_key, case=None)`` draws one quantity of
-an envelope evaluation (``engine_air.evaluate.MapResult``) for one case, or the
+an envelope evaluation (``engine_air.envelope.evaluate.MapResult``) for one case, or the
 worst of all cases when ``case`` is None:
 
 - one grid cell per map point, upscaled by whole numbers (nearest neighbour) to
@@ -40,8 +40,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .evaluate import WORST, MapResult
-from .quantities import QUANTITIES
+from engine_air.envelope.evaluate import WORST, MapResult
+from engine_air.outputs.quantities import QUANTITIES
 
 # position along the ramp (0..1) -> sRGB colour. Viridis-like: dark blue-violet
 # through teal and green to yellow, lightness rising steadily.
@@ -328,7 +328,7 @@ def render_map(
     colour_bar: bool = True,
     labels: bool = True,
 ) -> MapPicture:
-    """Render ``quantity_key`` (a key of ``engine_air.quantities.QUANTITIES``) for ``case``
+    """Render ``quantity_key`` (a key of ``engine_air.outputs.quantities.QUANTITIES``) for ``case``
     (None: the worst of all cases) of ``result``; KeyError for an unknown quantity or case."""
     q = QUANTITIES[quantity_key]
     name = WORST if case is None else case

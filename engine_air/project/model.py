@@ -1,7 +1,7 @@
 """The design variant as plain, immutable data (SI units throughout).
 
 These dataclasses mirror the project file of the interfaces document one to
-one; ``engine_air.project_file`` loads, validates and saves them. Edits make a
+one; ``engine_air.project.toml_file`` loads, validates and saves them. Edits make a
 new object with ``dataclasses.replace``.
 """
 

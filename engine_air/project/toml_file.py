@@ -23,9 +23,9 @@ from datetime import date, datetime, time
 
 import tomli_w
 
-from .envelope import polygon_area, polygon_crossing_edges, vertices_collinear
-from .errors import ProjectError, ProjectSaveError
-from .model import (
+from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
+from engine_air.project.errors import ProjectError, ProjectSaveError
+from engine_air.project.model import (
     INLET_TYPES,
     REFERENCE_RECOVERY_NAME,
     Case,
@@ -431,12 +431,12 @@ def _read_cases(r: _Reader, data: dict, ratings: tuple[Rating, ...], grid: Grid)
 def _check_physics(project: Project, path: str | os.PathLike | None) -> None:
     """Design checks that need the gas dynamics (e.g. ramp shocks attached at the shock-on-lip Mach).
 
-    Calls ``engine_air.inlet.check_design(project.inlet)``, which returns a list
+    Calls ``engine_air.inlets.ramp_layout.check_design(project.inlet)``, which returns a list
     of ``(key, value, allowed)`` problems, and raises the first as a
     ``ProjectError``. Skipped when that function is not available.
     """
     try:
-        from . import inlet as inlet_module
+        from engine_air.inlets import ramp_layout as inlet_module
         check_design = inlet_module.check_design
     except (ImportError, AttributeError):
         return

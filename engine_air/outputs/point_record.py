@@ -12,11 +12,12 @@ import math
 
 import numpy as np
 
-from . import flags as F
-from .constants import GAMMA, R_AIR
-from .gasdynamics import normal_shock, oblique_shock, pressure_ratio, temperature_ratio
-from .match import REGIMES, OperatingPoints
-from .model import Project
+from engine_air.envelope import flags as F
+from engine_air.physics.constants import GAMMA, R_AIR
+from engine_air.physics.isentropic import pressure_ratio, temperature_ratio
+from engine_air.physics.shocks import normal_shock, oblique_shock
+from engine_air.flow.match import REGIMES, OperatingPoints
+from engine_air.project.model import Project
 
 
 def _num(x) -> float | None:

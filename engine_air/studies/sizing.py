@@ -61,12 +61,12 @@ from typing import Callable, Mapping
 import numpy as np
 from scipy.optimize import brentq, minimize_scalar
 
-from . import flags as F
-from .errors import ProjectError
-from .evaluate import Cancelled, MapResult, evaluate_project
-from .match import evaluate_conditions
-from .model import Project
-from .project_file import MAX_AREA_M2, MAX_RAMP_DEG, MAX_TOTAL_RAMP_DEG, project_from_dict, project_to_dict
+from engine_air.envelope import flags as F
+from engine_air.project.errors import ProjectError
+from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
+from engine_air.flow.match import evaluate_conditions
+from engine_air.project.model import Project
+from engine_air.project.toml_file import MAX_AREA_M2, MAX_RAMP_DEG, MAX_TOTAL_RAMP_DEG, project_from_dict, project_to_dict
 
 AREA_VARIABLES = ("capture_area_m2", "throat_area_m2", "face_area_m2")
 SCALAR_VARIABLES = AREA_VARIABLES + ("duct_loss_coefficient", "shock_on_lip_mach")
@@ -562,7 +562,7 @@ def feasible_range(
         Judge only these cases (default: every case).
     progress, cancelled : callables, optional
         ``progress(fraction)`` after each envelope evaluation; ``cancelled()``
-        polled before each, raising ``engine_air.evaluate.Cancelled``.
+        polled before each, raising ``engine_air.envelope.evaluate.Cancelled``.
 
     Returns
     -------

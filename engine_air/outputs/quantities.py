@@ -2,7 +2,7 @@
 
 ``kind`` is "margin" (signed, zero is the limit: a diverging scale centred on
 zero) or "level" (a sequential scale). Keys are attribute names of
-``engine_air.match.OperatingPoints`` and keys of the point JSON.
+``engine_air.flow.match.OperatingPoints`` and keys of the point JSON.
 """
 
 from __future__ import annotations
