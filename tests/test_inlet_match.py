@@ -16,7 +16,12 @@ from pygasflow.shockwave import beta_from_mach_theta
 from scipy.optimize import brentq
 
 from engine_air.envelope import flags as F
-from engine_air.inlets.ramp_layout import external_shocks, ramp_design_problems
+from engine_air.inlets.ramp_layout import ramp_design_problems
+from engine_air.inlets.registry import inlet_type
+
+
+def external_shocks(inlet, mach):
+    return inlet_type(inlet.type).shock_system(inlet, mach)
 from engine_air.flow.match import REGIMES, evaluate_conditions
 from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery

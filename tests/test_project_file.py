@@ -140,7 +140,7 @@ def test_loaded_values_match_file(tmp_path):
     p = pf.load_project(write(tmp_path, pitot_data()))
     assert p.format == 1 and p.title == "Test nacelle"
     assert p.limits == Limits(0.55, 0.8, "mil-e-5008b", 0.85, 1.5, None)
-    assert p.inlet == Inlet("pitot", 1.2, 1.02, 1.1, 0.03, 0.8, (), None)
+    assert p.inlet == Inlet("pitot", 1.2, 1.02, 1.1, 0.03, 0.8)
     assert p.rating("max").theta == (0.8, 1.0, 1.1, 1.35)
     assert p.rating("idle").fan_tip_speed_m_s is None
     assert p.grid == Grid(121, 101)
@@ -590,42 +590,27 @@ def test_save_into_missing_folder(tmp_path):
     assert str(target) in str(info.value)
 
 
-# -- physics hook -----------------------------------------------------------------
+# -- the inlet type's design check -------------------------------------------------
 
-def _fake_inlet_module(monkeypatch, module):
-    monkeypatch.setitem(sys.modules, "engine_air.inlets.ramp_layout", module)
-    import engine_air.inlets
-    if module is None:
-        monkeypatch.delattr(engine_air.inlets, "ramp_layout", raising=False)
-    else:
-        monkeypatch.setattr(engine_air.inlets, "ramp_layout", module, raising=False)
+def test_design_check_problem_becomes_project_error(monkeypatch, tmp_path):
+    from engine_air.inlets.registry import inlet_type
 
-
-def test_physics_hook_problem_becomes_project_error(monkeypatch, tmp_path):
-    fake = types.ModuleType("engine_air.inlets.ramp_layout")
     seen = []
 
     def check_design(inlet):
         seen.append(inlet)
         return [("inlet.ramp_angles_deg[1]", 7.0, "the second ramp shock detaches at shock_on_lip_mach")]
 
-    fake.check_design = check_design
-    _fake_inlet_module(monkeypatch, fake)
+    monkeypatch.setattr(inlet_type("external-ramp"), "check_design", check_design)
     err = load_error(tmp_path, ramp_data())
     assert err.key == "inlet.ramp_angles_deg[1]" and err.value == 7.0 and "detaches" in err.allowed
     assert seen and seen[0].ramp_angles_deg == (8.0, 7.0)
 
 
-def test_physics_hook_no_problems(monkeypatch):
-    fake = types.ModuleType("engine_air.inlets.ramp_layout")
-    fake.check_design = lambda inlet: []
-    _fake_inlet_module(monkeypatch, fake)
-    assert pf.project_from_dict(ramp_data()).inlet.type == "external-ramp"
+def test_design_check_no_problems(monkeypatch):
+    from engine_air.inlets.registry import inlet_type
 
-
-@pytest.mark.parametrize("module", [None, types.ModuleType("engine_air.inlets.ramp_layout")], ids=["no-module", "no-function"])
-def test_physics_hook_skipped_when_unavailable(module, monkeypatch):
-    _fake_inlet_module(monkeypatch, module)
+    monkeypatch.setattr(inlet_type("external-ramp"), "check_design", lambda inlet: [])
     assert pf.project_from_dict(ramp_data()).inlet.type == "external-ramp"
 
 

@@ -39,7 +39,8 @@ from engine_air.physics.isentropic import (
     mach_from_flow_ratio,
     pressure_ratio,
 )
-from engine_air.inlets.ramp_layout import external_shocks
+from engine_air.inlets.base import CaptureState
+from engine_air.inlets.registry import inlet_type
 from engine_air.envelope.checks import Check, build_checks, limiting_index
 from engine_air.project.model import Case, Project
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
@@ -178,7 +179,8 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         wc2_face = np.where(face_choked, wc2 / face_ratio, wc2)  # what a choked face passes
 
         # 4. recovery ahead of any regime correction
-        shocks = external_shocks(inlet, m0)
+        kind = inlet_type(inlet.type)
+        shocks = kind.shock_system(inlet, m0)
         bits |= np.where(shocks.detached, F.SHOCK_DETACHED, 0)
         bits |= np.where(shocks.inside_cowl, F.SHOCK_INSIDE_COWL, 0)
         pi_ext = shocks.external_recovery
@@ -236,8 +238,17 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         a1 = inlet.capture_area_m2
         d_add = p1 * a1 * (1.0 + GAMMA * m1 * m1) - p0 * a0_tube * (1.0 + GAMMA * m0 * m0) - p0 * (a1 - a0_tube)
         q0 = 0.5 * GAMMA * p0 * m0 * m0
-        not_modelled = supersonic & (inlet.type == "external-ramp")
-        bits |= np.where(not_modelled, F.ADDITIVE_DRAG_NOT_MODELLED, 0)
+        if supersonic.any():
+            state = CaptureState(m0, p0, q0, mfr, inlet.capture_area_m2, d_add)
+            d_super = kind.supersonic_pre_entry_drag(inlet, shocks, state)
+        else:
+            d_super = d_add
+        if d_super is None:
+            not_modelled = supersonic
+            bits |= np.where(not_modelled, F.ADDITIVE_DRAG_NOT_MODELLED, 0)
+        else:
+            not_modelled = np.zeros(shape, bool)
+            d_add = np.where(supersonic, d_super, d_add)
         d_add = np.where(low | not_modelled, np.nan, d_add)
         c_add = d_add / (q0 * inlet.capture_area_m2)
         suction = np.where(supersonic, 0.0, inlet.lip_suction_factor)

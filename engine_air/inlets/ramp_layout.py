@@ -1,8 +1,6 @@
-"""External compression of the inlet: shock system and maximum capture (method §4, §6).
+"""Two-dimensional ramps laid out shock-on-lip: shock system and maximum capture (method §4, §6).
 
-``pitot``: one normal shock at the flight Mach number M0 (none for M0 <= 1).
-
-``external-ramp`` (two-dimensional, 1 to 3 ramps of given deflections): weak
+Ramps (two-dimensional, 1 to 3 ramps of given deflections): weak
 oblique shocks in sequence, then a terminal normal shock at the Mach number
 behind the last ramp. A ramp whose deflection exceeds the maximum for its local
 Mach number detaches: the rest of the compression is taken as one normal shock at
@@ -33,7 +31,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine_air.physics.shocks import max_deflection_rad, normal_shock, oblique_shock
-from engine_air.project.model import Inlet
+from engine_air.inlets.base import ShockSystem
 
 
 @dataclass(frozen=True)
@@ -99,61 +97,13 @@ def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
     return RampGeometry(lip, np.array(corners), flow)
 
 
-def check_design(inlet: Inlet) -> list[tuple[str, object, str]]:
-    """Problems with an inlet's design as (key path, value, what is allowed); empty when sound."""
-    if inlet.type != "external-ramp" or not inlet.ramp_angles_deg or inlet.shock_on_lip_mach is None:
-        return []
-    problems = ramp_design_problems(inlet.ramp_angles_deg, inlet.shock_on_lip_mach)
-    if not problems:
-        return []
-    return [
-        (
-            "inlet.ramp_angles_deg",
-            list(inlet.ramp_angles_deg),
-            "every ramp shock must stay attached at inlet.shock_on_lip_mach "
-            f"= {inlet.shock_on_lip_mach:g}: " + "; ".join(problems),
-        )
-    ]
-
-
-@dataclass(frozen=True)
-class ShockSystem:
-    """External compression at each flight Mach number (arrays over points; per-ramp arrays stacked on axis 0)."""
-
-    external_recovery: np.ndarray  # p_t after the external shocks / p_t0
-    terminal_upstream_mach: np.ndarray  # Mach ahead of the terminal normal shock (M0 for pitot)
-    terminal_downstream_mach: np.ndarray  # Mach behind it (subsonic), = M0 when M0 <= 1
-    max_mass_flow_ratio: np.ndarray  # from the shock geometry; 1 for pitot; NaN for M0 <= 1
-    detached: np.ndarray  # bool: some ramp shock detached
-    inside_cowl: np.ndarray  # bool: ramp shocks fall inside the cowl (M0 > M_d)
-    ramp_wave_angle_rad: np.ndarray  # (n_ramps, ...) NaN where detached or subsonic
-    ramp_downstream_mach: np.ndarray  # (n_ramps, ...) Mach behind each ramp shock
-    ramp_total_pressure_ratio: np.ndarray  # (n_ramps, ...)
-    ramp_static_pressure_ratio: np.ndarray  # (n_ramps, ...) p behind / p ahead of each ramp shock
-
-
-def external_shocks(inlet: Inlet, flight_mach) -> ShockSystem:
-    """Shock system ahead of the cowl at flight Mach ``flight_mach`` (array)."""
+def ramp_shock_system(ramp_angles_deg, design_mach, flight_mach) -> ShockSystem:
+    """Ramp shocks, terminal normal shock and maximum capture at flight Mach ``flight_mach`` (array)
+    for ramps laid out shock-on-lip at ``design_mach``."""
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
-    if inlet.type == "pitot" or not inlet.ramp_angles_deg:
-        ns = normal_shock(m0)
-        empty = np.empty((0,) + m0.shape)
-        return ShockSystem(
-            external_recovery=ns.total_pressure_ratio,
-            terminal_upstream_mach=m0,
-            terminal_downstream_mach=ns.downstream_mach,
-            max_mass_flow_ratio=np.where(supersonic, 1.0, np.nan),
-            detached=np.zeros(m0.shape, bool),
-            inside_cowl=np.zeros(m0.shape, bool),
-            ramp_wave_angle_rad=empty,
-            ramp_downstream_mach=empty,
-            ramp_total_pressure_ratio=empty,
-            ramp_static_pressure_ratio=empty,
-        )
-
-    geometry = ramp_design_geometry(inlet.ramp_angles_deg, inlet.shock_on_lip_mach)
-    deltas = np.radians(np.asarray(inlet.ramp_angles_deg, dtype=float))
+    geometry = ramp_design_geometry(ramp_angles_deg, design_mach)
+    deltas = np.radians(np.asarray(ramp_angles_deg, dtype=float))
     n = len(deltas)
     m_local = m0.copy()
     recovery = np.ones_like(m0)
@@ -189,7 +139,7 @@ def external_shocks(inlet: Inlet, flight_mach) -> ShockSystem:
         t = np.where(behind, side / _cross(ex, ey, tx, ty), 0.0)
         px = px - t * tx
         py = py - t * ty
-    design = float(inlet.shock_on_lip_mach)
+    design = float(design_mach)
     mfr_max = np.where(supersonic, np.where(m0 >= design, 1.0, np.clip(py, 0.0, 1.0)), np.nan)
     return ShockSystem(
         external_recovery=recovery,
@@ -202,4 +152,5 @@ def external_shocks(inlet: Inlet, flight_mach) -> ShockSystem:
         ramp_downstream_mach=np.array(machs),
         ramp_total_pressure_ratio=np.array(pts),
         ramp_static_pressure_ratio=np.array(ps),
+        oblique_ahead_of_cowl=supersonic & np.isfinite(betas[0]),
     )

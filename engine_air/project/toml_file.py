@@ -429,18 +429,11 @@ def _read_cases(r: _Reader, data: dict, ratings: tuple[Rating, ...], grid: Grid)
 
 
 def _check_physics(project: Project, path: str | os.PathLike | None) -> None:
-    """Design checks that need the gas dynamics (e.g. ramp shocks attached at the shock-on-lip Mach).
+    """Design checks of the inlet's own type (e.g. ramp shocks attached at the shock-on-lip Mach),
+    raised as the first ``ProjectError``."""
+    from engine_air.inlets.registry import inlet_type
 
-    Calls ``engine_air.inlets.ramp_layout.check_design(project.inlet)``, which returns a list
-    of ``(key, value, allowed)`` problems, and raises the first as a
-    ``ProjectError``. Skipped when that function is not available.
-    """
-    try:
-        from engine_air.inlets import ramp_layout as inlet_module
-        check_design = inlet_module.check_design
-    except (ImportError, AttributeError):
-        return
-    for key, value, allowed in check_design(project.inlet) or ():
+    for key, value, allowed in inlet_type(project.inlet.type).check_design(project.inlet):
         raise ProjectError(path, key, value, allowed)
 
 
