@@ -159,46 +159,11 @@ def cmd_check(args) -> int:
     return EXIT_HOLDS
 
 
-CSV_COLUMNS = (
-    "mach", "altitude_m", "static_pressure_pa", "static_temperature_k", "total_pressure_pa", "total_temperature_k",
-    "velocity_m_s", "density_kg_m3", "theta2", "corrected_flow_kg_s", "mass_flow_kg_s", "recovery",
-    "external_recovery", "duct_recovery", "reference_recovery", "face_mach", "face_mach_margin", "throat_mach",
-    "capture_mach", "mass_flow_ratio", "max_mass_flow_ratio", "spillage_fraction", "additive_drag_coefficient",
-    "spillage_drag_coefficient", "face_static_to_ambient", "relative_tip_mach",
-)
-
-
 def write_map_csv(result, path) -> int:
     """Every grid point of every case of ``result`` as CSV rows; returns the number of rows."""
-    rows = 0
-    with open(path, "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        w.writerow(("case", "inside_envelope", *CSV_COLUMNS, "regime", "limiting", "holds", "flags"))
-        for cm in result.cases:
-            pts = cm.points
-            cols = [np.asarray(pts.value(k), dtype=float).ravel() for k in CSV_COLUMNS]
-            inside = result.inside.ravel()
-            regime = pts.regime.ravel()
-            limiting = pts.limiting.ravel()
-            fails = np.zeros(inside.shape, bool)
-            for c in pts.checks:
-                fails |= c.fails.ravel()
-            bits = pts.flags.ravel()
-            names = [c.name for c in pts.checks]
-            for n in range(inside.size):
-                w.writerow(
-                    (
-                        cm.name,
-                        int(inside[n]),
-                        *("" if not math.isfinite(col[n]) else repr(float(col[n])) for col in cols),
-                        REGIMES[regime[n]],
-                        names[limiting[n]] if limiting[n] >= 0 else "",
-                        int(not fails[n]),
-                        ";".join(F.names_of(int(bits[n]))),
-                    )
-                )
-                rows += 1
-    return rows
+    from engine_air.outputs.table import write_point_table
+
+    return write_point_table(result, path, "csv")
 
 
 def cmd_map(args) -> int:

@@ -100,6 +100,13 @@ class OperatingPoints:
         return self.check("face-mach").margin
 
     @property
+    def worst_relative_margin(self) -> np.ndarray:
+        """Least relative margin over the checks judged at each point (NaN where none is judged)."""
+        from engine_air.envelope.ranking import worst_relative_margin
+
+        return worst_relative_margin(self.checks, np.shape(self.mach))
+
+    @property
     def recovery_minus_reference(self) -> np.ndarray:
         return self.recovery - self.reference_recovery
 

@@ -1,13 +1,41 @@
-"""The quantities a map can be coloured by: key, label, SI unit and kind of scale.
+"""The one registry of output quantities: key, label, SI unit, US unit and conversion, kind, where it is judged.
+
+Every output that lists quantities reads this module, so a quantity is added in
+one place:
+
+- the point JSON (``engine_air.outputs.point_record``): ``JSON_KEYS`` (with the
+  free-stream ones grouped under ``"freestream"``),
+- the columns of ``engine-air map --csv`` / ``--parquet`` and of the program's
+  CSV export: ``TABLE_KEYS`` (``engine_air.outputs.point_table``),
+- the quantities a map can be coloured by (the program's quantity list, the
+  review pack, ``map --png``): ``QUANTITIES`` (keys ``MAP_KEYS``),
+- compare's difference maps and the US text of ``check`` / ``point --units us``.
 
 ``kind`` is "margin" (signed, zero is the limit: a diverging scale centred on
-zero) or "level" (a sequential scale). Keys are attribute names of
-``engine_air.flow.match.OperatingPoints`` and keys of the point JSON.
+zero) or "level" (a sequential scale). ``judged_by`` names the check of
+``engine_air.envelope.checks`` that judges the quantity (None: not judged).
+Keys are attribute names of ``engine_air.flow.match.OperatingPoints``.
+
+US customary display: ``us_value = si_value * us_scale`` (all conversions are
+linear; kelvin to degrees Rankine is x 1.8).
+
+>>> REGISTRY["altitude_m"].to_us(3048.0)
+10000.0
+>>> QUANTITIES["face_mach_margin"].kind
+'margin'
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+
+import numpy as np
+
+FT = 0.3048  # m, exact
+LBM = 0.45359237  # kg, exact
+LBF = 4.4482216152605  # N, exact (lbm x standard gravity)
+PSI = 6894.757293168361  # Pa per lbf/in^2
+SLUG_FT3 = LBM * 9.80665 / FT / FT ** 3  # kg/m^3 per slug/ft^3 (515.379...)
 
 
 @dataclass(frozen=True)
@@ -17,24 +45,119 @@ class Quantity:
     unit: str  # SI unit, "" for dimensionless
     kind: str  # "margin" | "level"
     description: str
+    us_unit: str = ""  # US customary unit ("" when dimensionless or the same)
+    us_scale: float = 1.0  # US value = SI value x us_scale
+    judged_by: str | None = None  # name of the check that judges this quantity, None when none does
+    group: str = ""  # "freestream": listed under that key in the point JSON
+    in_table: bool = True  # a column of map --csv / --parquet
+    in_json: bool = True  # a key of the point JSON
+
+    def to_us(self, value):
+        """The value in US customary units (arrays or scalars; None stays None)."""
+        if value is None:
+            return None
+        if isinstance(value, np.ndarray):
+            return value * self.us_scale
+        return float(value) * self.us_scale
+
+    def display_unit(self, units: str = "si") -> str:
+        return self.us_unit if units == "us" and self.us_unit else self.unit
+
+    def values(self, points) -> np.ndarray:
+        """The quantity's array from an ``OperatingPoints``."""
+        return np.asarray(points.value(self.key), dtype=float)
 
 
-QUANTITIES: dict[str, Quantity] = {
-    q.key: q
-    for q in (
-        Quantity("face_mach_margin", "Face Mach margin", "", "margin", "Face Mach limit minus engine-face Mach number M2"),
-        Quantity("face_mach", "Face Mach number", "", "level", "Engine-face axial Mach number M2"),
-        Quantity("recovery", "Total-pressure recovery", "", "level", "p_t2 / p_t0"),
-        Quantity("recovery_minus_reference", "Recovery minus MIL-E-5008B", "", "margin",
-                 "Recovery less the MIL-E-5008B reference recovery at the flight Mach number"),
-        Quantity("spillage_fraction", "Spillage fraction", "", "level", "max(0, 1 - mass-flow ratio)"),
-        Quantity("mass_flow_ratio", "Mass-flow ratio", "", "level", "A0 / A_c, captured stream tube over capture area"),
-        Quantity("throat_mach", "Throat Mach number", "", "level", "Average Mach number at the inlet throat"),
-        Quantity("additive_drag_coefficient", "Additive drag coefficient", "", "level",
-                 "Pre-entry (additive) drag over q0 A_c"),
-        Quantity("face_static_to_ambient", "Face static / ambient pressure", "", "level", "p2 / p0"),
-        Quantity("relative_tip_mach", "Blade relative tip Mach", "", "level", "sqrt(M2^2 + (U_tip/a2)^2)"),
-    )
-}
+def _q(key, label, unit, description, kind="level", us=("", 1.0), judged_by=None, group="", table=True,
+       json=True) -> Quantity:
+    return Quantity(key, label, unit, kind, description, us[0], us[1], judged_by, group, table, json)
+
+
+_PA = ("psia", 1.0 / PSI)
+_K = ("°R", 1.8)
+_MS = ("ft/s", 1.0 / FT)
+_KGS = ("lbm/s", 1.0 / LBM)
+_N = ("lbf", 1.0 / LBF)
+_M2 = ("ft^2", 1.0 / FT ** 2)
+
+# Registry order is the column order of the map table (the first 26 are the historic columns).
+_ALL = (
+    _q("mach", "Flight Mach number", "", "Flight (free-stream) Mach number M0"),
+    _q("altitude_m", "Altitude", "m", "Geopotential pressure altitude", us=("ft", 1.0 / FT)),
+    _q("static_pressure_pa", "Static pressure p0", "Pa", "Free-stream static pressure", us=_PA, group="freestream"),
+    _q("static_temperature_k", "Static temperature T0", "K", "Free-stream static temperature (with the ISA offset)",
+       us=_K, group="freestream"),
+    _q("total_pressure_pa", "Total pressure p_t0", "Pa", "Free-stream total pressure", us=_PA, group="freestream"),
+    _q("total_temperature_k", "Total temperature T_t0", "K", "Free-stream total temperature", us=_K,
+       group="freestream"),
+    _q("velocity_m_s", "Flight speed V0", "m/s", "True air speed", us=_MS, group="freestream"),
+    _q("density_kg_m3", "Density rho0", "kg/m^3", "Free-stream density", us=("slug/ft^3", 1.0 / SLUG_FT3),
+       group="freestream"),
+    _q("theta2", "theta2", "", "Face total temperature over the standard-day reference, T_t2 / 288.15 K"),
+    _q("corrected_flow_kg_s", "Corrected flow demand", "kg/s", "Engine corrected-flow demand W_c2 at theta2", us=_KGS),
+    _q("mass_flow_kg_s", "Mass flow", "kg/s", "Physical mass flow W delivered to the engine", us=_KGS),
+    _q("recovery", "Total-pressure recovery", "", "p_t2 / p_t0", judged_by="recovery"),
+    _q("external_recovery", "Shock-system recovery", "", "Total-pressure ratio of the external shock system"),
+    _q("duct_recovery", "Duct recovery", "", "1 - K q2 / p_t2 (subsonic duct friction)"),
+    _q("reference_recovery", "MIL-E-5008B recovery", "", "MIL-E-5008B reference recovery at the flight Mach number"),
+    _q("face_mach", "Face Mach number", "", "Engine-face axial Mach number M2", judged_by="face-mach"),
+    _q("face_mach_margin", "Face Mach margin", "", "Face Mach limit minus engine-face Mach number M2", kind="margin",
+       judged_by="face-mach"),
+    _q("throat_mach", "Throat Mach number", "", "Average Mach number at the inlet throat", judged_by="throat-mach"),
+    _q("capture_mach", "Capture-plane Mach number", "", "Mach number M1 at the capture plane (subsonic side)"),
+    _q("mass_flow_ratio", "Mass-flow ratio", "", "A0 / A_c, captured stream tube over capture area"),
+    _q("max_mass_flow_ratio", "Maximum mass-flow ratio", "", "Largest mass-flow ratio the shock system captures"),
+    _q("spillage_fraction", "Spillage fraction", "", "max(0, 1 - mass-flow ratio)", judged_by="spillage"),
+    _q("additive_drag_coefficient", "Additive drag coefficient", "", "Pre-entry (additive) drag over q0 A_c"),
+    _q("spillage_drag_coefficient", "Spillage drag coefficient", "",
+       "Additive drag less lip suction over q0 A_c"),
+    _q("face_static_to_ambient", "Face static / ambient pressure", "", "p2 / p0"),
+    _q("relative_tip_mach", "Blade relative tip Mach", "", "sqrt(M2^2 + (U_tip/a2)^2)",
+       judged_by="relative-tip-mach"),
+    # added after the historic columns
+    _q("speed_of_sound_m_s", "Speed of sound a0", "m/s", "Free-stream speed of sound", us=_MS, group="freestream"),
+    _q("additive_drag_n", "Additive drag", "N", "Pre-entry (additive) drag force", us=_N),
+    _q("recovery_minus_reference", "Recovery minus MIL-E-5008B", "",
+       "Recovery less the MIL-E-5008B reference recovery at the flight Mach number", kind="margin", json=False),
+    _q("worst_relative_margin", "Least relative margin (all limits)", "",
+       "Least relative margin (margin over the limit's magnitude) over every check judged at the point; a failing "
+       "check ranks first. Not defined (NaN / null) where nothing is judged: outside the atmosphere model "
+       "(flag outside-atmosphere) or outside the envelope (flag outside-envelope) on a map",
+       kind="margin", judged_by="*"),
+)
+
+REGISTRY: dict[str, Quantity] = {q.key: q for q in _ALL}
+"""Every output quantity, by key, in table-column order."""
+
+TABLE_KEYS: tuple[str, ...] = tuple(q.key for q in _ALL if q.in_table)
+"""Numeric columns of the map table (after ``case`` and ``inside_envelope``)."""
+
+JSON_KEYS: tuple[str, ...] = tuple(q.key for q in _ALL if q.in_json)
+"""Numeric keys of the point JSON (those with ``group`` nested under it)."""
+
+MAP_KEYS: tuple[str, ...] = (
+    "face_mach_margin", "worst_relative_margin", "face_mach", "recovery", "recovery_minus_reference",
+    "spillage_fraction", "mass_flow_ratio", "throat_mach", "additive_drag_coefficient", "face_static_to_ambient",
+    "relative_tip_mach",
+)
+"""The quantities a map can be coloured by, in the order offered."""
+
+QUANTITIES: dict[str, Quantity] = {k: REGISTRY[k] for k in MAP_KEYS}
+"""The map quantities (the program's quantity list, the review pack, ``map --png``, compare)."""
 
 DEFAULT_QUANTITY = "face_mach_margin"
+
+TEXT_COLUMNS = ("case", "regime", "limiting", "flags")
+"""Text columns of the map table (neutralised against spreadsheet formulas by ``engine_air.outputs.table``)."""
+
+
+def quantity(key: str) -> Quantity:
+    """The registry entry of ``key``; KeyError naming the known keys otherwise."""
+    try:
+        return REGISTRY[key]
+    except KeyError:
+        raise KeyError(f"unknown quantity {key!r}; known: {', '.join(REGISTRY)}") from None
+
+
+__all__ = ["DEFAULT_QUANTITY", "JSON_KEYS", "MAP_KEYS", "QUANTITIES", "REGISTRY", "TABLE_KEYS", "TEXT_COLUMNS",
+           "Quantity", "quantity"]

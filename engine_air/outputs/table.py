@@ -1,0 +1,148 @@
+"""The one table writer: CSV or Parquet from named columns, vectorised with pyarrow.
+
+``write_table(columns, path, fmt="csv")`` takes an ordered mapping of column
+name -> values (a numpy array of floats, ints or bools, or a sequence of texts)
+and writes every row at once:
+
+- floats are written in the shortest text that reads back to the same double
+  (the round trip is exact, as Python's ``repr``); a value that is not finite
+  (NaN, +-inf) is an empty cell in CSV and a null in Parquet (the point's flags
+  say why);
+- integers and bools as whole numbers (0/1 for bools);
+- a text cell that begins with ``=``, ``+``, ``-``, ``@``, a tab or a carriage
+  return is neutralised for spreadsheets by a leading single quote (``'=SUM(1)``);
+  numbers are never changed. Texts are quoted where needed (commas, quotes,
+  line breaks).
+
+``point_table(result)`` builds the columns of ``engine-air map`` (and of the
+program's CSV export) from an ``engine_air.envelope.evaluate.MapResult``: ``case``,
+``inside_envelope``, every quantity of ``engine_air.outputs.quantities.TABLE_KEYS``,
+then ``regime``, ``limiting``, ``holds``, ``flags``.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Mapping, Sequence
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+
+FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
+"""First characters a spreadsheet may take as the start of a formula."""
+
+
+def neutralise(text: str) -> str:
+    """``text`` with a leading single quote when it begins like a spreadsheet formula."""
+    return "'" + text if text[:1] in FORMULA_LEADS else text
+
+
+def _text_array(values) -> pa.Array:
+    arr = values if isinstance(values, (pa.Array, pa.ChunkedArray)) else pa.array(
+        [None if v is None else str(v) for v in values], type=pa.string())
+    if isinstance(arr, pa.ChunkedArray):
+        arr = arr.combine_chunks()
+    if arr.type != pa.string():
+        arr = arr.cast(pa.string())
+    lead = pc.utf8_slice_codeunits(arr, 0, 1)
+    risky = pc.is_in(lead, value_set=pa.array(FORMULA_LEADS))
+    risky = pc.fill_null(risky, False)
+    return pc.if_else(risky, pc.binary_join_element_wise(pa.scalar("'"), arr, ""), arr)
+
+
+def _array(values) -> pa.Array:
+    if isinstance(values, (pa.Array, pa.ChunkedArray)) and pa.types.is_string(values.type):
+        return _text_array(values)
+    if isinstance(values, np.ndarray):
+        if values.dtype.kind == "f":
+            v = np.ascontiguousarray(values.ravel(), dtype=np.float64)
+            return pa.array(v, mask=~np.isfinite(v))
+        if values.dtype.kind == "b":
+            return pa.array(values.ravel().astype(np.int8))
+        if values.dtype.kind in "iu":
+            return pa.array(values.ravel())
+        return _text_array(values.ravel().tolist())
+    if isinstance(values, (pa.Array, pa.ChunkedArray)):
+        return values
+    return _text_array(values)
+
+
+def to_arrow(columns: Mapping[str, object]) -> pa.Table:
+    """The columns as an Arrow table (floats not finite become nulls, texts neutralised)."""
+    return pa.table({name: _array(values) for name, values in columns.items()})
+
+
+def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv") -> int:
+    """Write ``columns`` to ``path`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows."""
+    table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
+    path = str(Path(path))
+    if fmt == "csv":
+        import pyarrow.csv as pacsv
+
+        pacsv.write_csv(table, path, pacsv.WriteOptions(include_header=True, quoting_style="needed"))
+    elif fmt == "parquet":
+        import pyarrow.parquet as pq
+
+        pq.write_table(table, path)
+    else:
+        raise ValueError(f"unknown table format {fmt!r}: csv or parquet")
+    return table.num_rows
+
+
+def coded_text(codes: np.ndarray, names: Sequence[str], missing: str = "") -> pa.Array:
+    """Texts from integer ``codes`` into ``names`` (a code < 0 gives ``missing``), without a loop over rows."""
+    codes = np.asarray(codes).ravel().astype(np.int64)
+    dictionary = pa.array([missing, *names], type=pa.string())
+    return pc.take(dictionary, pa.array(np.where(codes < 0, 0, codes + 1)))
+
+
+def flag_text(bits: np.ndarray) -> pa.Array:
+    """``;``-joined flag names of every point's bits (one name list per distinct value, not per point)."""
+    from engine_air.envelope import flags as F
+
+    bits = np.asarray(bits).ravel()
+    unique, inverse = np.unique(bits, return_inverse=True)
+    names = [";".join(F.names_of(int(b))) for b in unique]
+    return pc.take(pa.array(names, type=pa.string()), pa.array(inverse.ravel().astype(np.int64)))
+
+
+def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
+    """Every grid point of every case of a ``MapResult`` as an Arrow table (see the module text)."""
+    from engine_air.flow.match import REGIMES
+    from engine_air.outputs.quantities import REGISTRY, TABLE_KEYS
+
+    keys = TABLE_KEYS if keys is None else tuple(keys)
+    inside = np.asarray(result.inside, dtype=bool).ravel()
+    parts = []
+    for cm in result.cases:
+        pts = cm.points
+        n = inside.size
+        cols: dict[str, object] = {
+            "case": pa.array([cm.name], type=pa.string()).take(pa.array(np.zeros(n, dtype=np.int64))),
+            "inside_envelope": inside.astype(np.int8),
+        }
+        for k in keys:
+            cols[k] = np.broadcast_to(REGISTRY[k].values(pts), result.inside.shape).astype(float).ravel()
+        fails = np.zeros(n, bool)
+        for c in pts.checks:
+            fails |= np.asarray(c.fails, dtype=bool).ravel()
+        limiting = pts.limiting if pts.limiting is not None else np.full(n, -1)
+        cols["regime"] = coded_text(np.asarray(pts.regime), REGIMES)
+        cols["limiting"] = coded_text(np.asarray(limiting), [c.name for c in pts.checks])
+        cols["holds"] = (~fails).astype(np.int8)
+        cols["flags"] = flag_text(pts.flags)
+        parts.append(to_arrow(cols))
+    if not parts:
+        return to_arrow({"case": [], "inside_envelope": np.zeros(0, np.int8), **{k: np.zeros(0) for k in keys},
+                         "regime": [], "limiting": [], "holds": np.zeros(0, np.int8), "flags": []})
+    return pa.concat_tables(parts)
+
+
+def write_point_table(result, path, fmt: str = "csv") -> int:
+    """``point_table(result)`` written to ``path`` as CSV or Parquet; returns the number of rows."""
+    return write_table(point_table(result), path, fmt)
+
+
+__all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "to_arrow", "write_point_table",
+           "write_table"]
