@@ -18,6 +18,7 @@ from engine_air.physics.isentropic import pressure_ratio, temperature_ratio
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.flow.match import REGIMES, OperatingPoints
 from engine_air.project.model import Project
+from engine_air.outputs.quantities import JSON_KEYS, REGISTRY
 
 
 def _num(x) -> float | None:
@@ -30,8 +31,16 @@ def _at(array, index):
 
 
 def point_record(points: OperatingPoints, index, case_name: str) -> dict:
-    """The JSON-ready record of the point at ``index`` (a tuple or int into the points' arrays)."""
-    g = lambda name: _num(_at(getattr(points, name), index))  # noqa: E731
+    """The JSON-ready record of the point at ``index`` (a tuple or int into the points' arrays).
+
+    Keys come from ``engine_air.outputs.quantities`` (``JSON_KEYS``; those of group
+    "freestream" nested under ``"freestream"``), then ``regime``, ``flags``,
+    ``flag_descriptions``, ``limiting``, ``checks``, ``judged`` and ``holds``.
+    ``judged`` is false where no limit is judged: outside the envelope polygon
+    (flag ``outside-envelope``: the point is computed but never judged) or where
+    no check applies (e.g. outside the atmosphere model). ``holds`` is null
+    where the point is not judged, else whether every judged check holds.
+    """
     bits = int(_at(points.flags, index))
     limiting = int(_at(points.limiting, index)) if points.limiting is not None else -1
     checks = []
@@ -48,46 +57,49 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
             }
         )
     names = F.names_of(bits)
-    return {
-        "mach": g("mach"),
-        "altitude_m": g("altitude_m"),
-        "case": case_name,
-        "freestream": {
-            "static_pressure_pa": g("static_pressure_pa"),
-            "static_temperature_k": g("static_temperature_k"),
-            "total_pressure_pa": g("total_pressure_pa"),
-            "total_temperature_k": g("total_temperature_k"),
-            "velocity_m_s": g("velocity_m_s"),
-            "density_kg_m3": g("density_kg_m3"),
-            "speed_of_sound_m_s": g("speed_of_sound_m_s"),
-        },
-        "theta2": g("theta2"),
-        "corrected_flow_kg_s": g("corrected_flow_kg_s"),
-        "mass_flow_kg_s": g("mass_flow_kg_s"),
-        "recovery": g("recovery"),
-        "external_recovery": g("external_recovery"),
-        "duct_recovery": g("duct_recovery"),
-        "reference_recovery": g("reference_recovery"),
-        "face_mach": g("face_mach"),
-        "face_mach_margin": _num(_at(points.face_mach_margin, index)),
-        "throat_mach": g("throat_mach"),
-        "capture_mach": g("capture_mach"),
-        "mass_flow_ratio": g("mass_flow_ratio"),
-        "max_mass_flow_ratio": g("max_mass_flow_ratio"),
-        "spillage_fraction": g("spillage_fraction"),
-        "additive_drag_n": g("additive_drag_n"),
-        "additive_drag_coefficient": g("additive_drag_coefficient"),
-        "spillage_drag_coefficient": g("spillage_drag_coefficient"),
-        "face_static_to_ambient": g("face_static_to_ambient"),
-        "relative_tip_mach": g("relative_tip_mach"),
+    record: dict = {}
+    groups: dict[str, dict] = {}
+    for key in JSON_KEYS:
+        q = REGISTRY[key]
+        value = _num(_at(q.values(points), index))
+        if q.group:
+            if q.group not in groups:
+                groups[q.group] = record[q.group] = {}
+            groups[q.group][key] = value
+        else:
+            record[key] = value
+        if key == "altitude_m":
+            record["case"] = case_name
+    outside = bool(bits & F.OUTSIDE_ENVELOPE)
+    judged = (not outside) and any(c["holds"] is not None for c in checks)
+    record.update({
         "regime": REGIMES[int(_at(points.regime, index))],
         "flags": names,
         "flag_descriptions": {n: F.DESCRIPTIONS[n] for n in names},
         "limiting": points.checks[limiting].name if limiting >= 0 else None,
         "checks": checks,
-        # None where no limit could be judged (e.g. outside the atmosphere model)
-        "holds": (not any(c["holds"] is False for c in checks)) if any(c["holds"] is not None for c in checks) else None,
-    }
+        "judged": judged,
+        # None where the point is not judged (outside the envelope, or no limit applies)
+        "holds": (not any(c["holds"] is False for c in checks)) if judged else None,
+    })
+    return record
+
+
+def record_in_us_units(record: dict) -> dict:
+    """A copy of a point record for ``--units us``: the SI keys and values are unchanged; ``"units": "us"`` and a
+    ``"us"`` block are added with every dimensional quantity of the registry in US customary units, as
+    ``{"altitude_m": {"value": 30000.0, "unit": "ft"}, ...}`` (keyed by the SI key it converts)."""
+    us = {}
+    for key in JSON_KEYS:
+        q = REGISTRY[key]
+        if not q.us_unit:
+            continue
+        value = record[q.group][key] if q.group else record.get(key)
+        us[key] = {"value": q.to_us(value), "unit": q.us_unit}
+    out = dict(record)
+    out["units"] = "us"
+    out["us"] = us
+    return out
 
 
 def station_table(project: Project, points: OperatingPoints, index) -> list[dict]:

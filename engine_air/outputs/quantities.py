@@ -16,8 +16,8 @@ zero) or "level" (a sequential scale). ``judged_by`` names the check of
 ``engine_air.envelope.checks`` that judges the quantity (None: not judged).
 Keys are attribute names of ``engine_air.flow.match.OperatingPoints``.
 
-US customary display: ``us_value = si_value * us_scale`` (all conversions are
-linear; kelvin to degrees Rankine is x 1.8).
+US customary display: ``us_value = si_value / us_factor`` where ``us_factor`` is the
+SI value of one US unit (all conversions are linear; one degree Rankine is 1/1.8 K).
 
 >>> REGISTRY["altitude_m"].to_us(3048.0)
 10000.0
@@ -46,7 +46,7 @@ class Quantity:
     kind: str  # "margin" | "level"
     description: str
     us_unit: str = ""  # US customary unit ("" when dimensionless or the same)
-    us_scale: float = 1.0  # US value = SI value x us_scale
+    us_factor: float = 1.0  # SI value of one US unit: US value = SI value / us_factor
     judged_by: str | None = None  # name of the check that judges this quantity, None when none does
     group: str = ""  # "freestream": listed under that key in the point JSON
     in_table: bool = True  # a column of map --csv / --parquet
@@ -57,8 +57,8 @@ class Quantity:
         if value is None:
             return None
         if isinstance(value, np.ndarray):
-            return value * self.us_scale
-        return float(value) * self.us_scale
+            return value / self.us_factor
+        return float(value) / self.us_factor
 
     def display_unit(self, units: str = "si") -> str:
         return self.us_unit if units == "us" and self.us_unit else self.unit
@@ -73,17 +73,16 @@ def _q(key, label, unit, description, kind="level", us=("", 1.0), judged_by=None
     return Quantity(key, label, unit, kind, description, us[0], us[1], judged_by, group, table, json)
 
 
-_PA = ("psia", 1.0 / PSI)
-_K = ("°R", 1.8)
-_MS = ("ft/s", 1.0 / FT)
-_KGS = ("lbm/s", 1.0 / LBM)
-_N = ("lbf", 1.0 / LBF)
-_M2 = ("ft^2", 1.0 / FT ** 2)
+_PA = ("psia", PSI)
+_K = ("°R", 1.0 / 1.8)
+_MS = ("ft/s", FT)
+_KGS = ("lbm/s", LBM)
+_N = ("lbf", LBF)
 
 # Registry order is the column order of the map table (the first 26 are the historic columns).
 _ALL = (
     _q("mach", "Flight Mach number", "", "Flight (free-stream) Mach number M0"),
-    _q("altitude_m", "Altitude", "m", "Geopotential pressure altitude", us=("ft", 1.0 / FT)),
+    _q("altitude_m", "Altitude", "m", "Geopotential pressure altitude", us=("ft", FT)),
     _q("static_pressure_pa", "Static pressure p0", "Pa", "Free-stream static pressure", us=_PA, group="freestream"),
     _q("static_temperature_k", "Static temperature T0", "K", "Free-stream static temperature (with the ISA offset)",
        us=_K, group="freestream"),
@@ -91,7 +90,7 @@ _ALL = (
     _q("total_temperature_k", "Total temperature T_t0", "K", "Free-stream total temperature", us=_K,
        group="freestream"),
     _q("velocity_m_s", "Flight speed V0", "m/s", "True air speed", us=_MS, group="freestream"),
-    _q("density_kg_m3", "Density rho0", "kg/m^3", "Free-stream density", us=("slug/ft^3", 1.0 / SLUG_FT3),
+    _q("density_kg_m3", "Density rho0", "kg/m^3", "Free-stream density", us=("slug/ft^3", SLUG_FT3),
        group="freestream"),
     _q("theta2", "theta2", "", "Face total temperature over the standard-day reference, T_t2 / 288.15 K"),
     _q("corrected_flow_kg_s", "Corrected flow demand", "kg/s", "Engine corrected-flow demand W_c2 at theta2", us=_KGS),
