@@ -78,9 +78,16 @@ def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv"
     table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
     path = str(Path(path))
     if fmt == "csv":
+        import csv
+        import io
+
         import pyarrow.csv as pacsv
 
-        pacsv.write_csv(table, path, pacsv.WriteOptions(include_header=True, quoting_style="needed"))
+        head = io.StringIO()
+        csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in table.column_names])
+        with pa.OSFile(path, "wb") as fh:
+            fh.write(head.getvalue().encode("utf-8"))
+            pacsv.write_csv(table, fh, pacsv.WriteOptions(include_header=False, quoting_style="needed"))
     elif fmt == "parquet":
         import pyarrow.parquet as pq
 
@@ -105,6 +112,14 @@ def flag_text(bits: np.ndarray) -> pa.Array:
     unique, inverse = np.unique(bits, return_inverse=True)
     names = [";".join(F.names_of(int(b))) for b in unique]
     return pc.take(pa.array(names, type=pa.string()), pa.array(inverse.ravel().astype(np.int64)))
+
+
+def point_table_columns(keys: Sequence[str] | None = None) -> list[str]:
+    """The column names of ``point_table`` (header of ``map --csv`` and of the program's CSV export)."""
+    from engine_air.outputs.quantities import TABLE_KEYS
+
+    return ["case", "inside_envelope", *(TABLE_KEYS if keys is None else keys), "regime", "limiting", "holds",
+            "flags"]
 
 
 def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
@@ -144,5 +159,5 @@ def write_point_table(result, path, fmt: str = "csv") -> int:
     return write_table(point_table(result), path, fmt)
 
 
-__all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "to_arrow", "write_point_table",
+__all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns", "to_arrow", "write_point_table",
            "write_table"]

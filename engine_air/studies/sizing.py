@@ -325,20 +325,15 @@ class WorstPoint:
 
 def worst_point(result: MapResult) -> WorstPoint:
     """The worst relative margin of an envelope evaluation and where it occurs."""
-    best = None
-    for cm in result.cases:
-        for chk in cm.points.checks:
-            judged = chk.applies & result.inside
-            if not judged.any():
-                continue
-            rel = np.where(judged, chk.relative_margin, np.inf)
-            j = np.unravel_index(int(np.argmin(rel)), rel.shape)
-            if best is None or rel[j] < best[0]:
-                best = (float(rel[j]), cm, chk, j)
+    from engine_air.envelope.ranking import worst_point as _worst
+
+    best = _worst([cm.points for cm in result.cases], result.inside)
     holds = all(s.holds for s in result.summary)
     if best is None:
         return WorstPoint(math.inf, math.nan, math.nan, None, "", "", math.nan, math.nan, "", holds)
-    rel, cm, chk, j = best
+    cm = result.cases[best.case]
+    chk, j = cm.points.checks[best.check], best.index
+    rel = float(chk.relative_margin[j])
     return WorstPoint(
         relative_margin=rel, margin=float(chk.margin[j]), value=float(chk.value[j]), check=chk.name,
         label=chk.label, limit_text=chk.limit_text, mach=float(result.mach[j[1]]),

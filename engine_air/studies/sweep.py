@@ -421,7 +421,8 @@ def _run_dask(text, variables, chunks, cruise, case_names, scheduler, on_chunk, 
         pending = set(futures)
         while pending:
             try:
-                done, pending = dask_wait(list(pending), timeout=timeout, return_when="FIRST_COMPLETED")
+                with client.as_current():
+                    done, pending = dask_wait(list(pending), timeout=timeout, return_when="FIRST_COMPLETED")
             except (TimeoutError, asyncio.TimeoutError):
                 client.cancel(list(pending))
                 raise SchedulerError(f"scheduler {getattr(client, 'scheduler', None) and client.scheduler.address}: "
