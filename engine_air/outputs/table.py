@@ -73,21 +73,101 @@ def to_arrow(columns: Mapping[str, object]) -> pa.Table:
     return pa.table({name: _array(values) for name, values in columns.items()})
 
 
+def _csv_quote(text: str) -> str:
+    if any(ch in text for ch in ',"\n\r'):
+        return '"' + text.replace('"', '""') + '"'
+    return text
+
+
+def _column_csv_text(arr) -> tuple[pa.Array, bool]:
+    """One column as CSV cell texts (nulls stay null: empty cells) and whether a cell needs quoting.
+
+    Numbers are cast by Arrow to their shortest round-trip text; a column with
+    few distinct values (an axis, a free-stream quantity that depends on the
+    altitude only, a text column) is cast once per distinct value and taken.
+    """
+    if isinstance(arr, pa.ChunkedArray):
+        arr = arr.combine_chunks()
+    text = pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type)
+    n = len(arr)
+    if text:
+        enc = arr.dictionary_encode()
+        values = enc.dictionary.to_pylist()
+        needs = any(v is not None and any(ch in v for ch in ',"\n\r') for v in values)
+        if needs:  # quoted here; written by the caller's own join, never by Arrow's unquoted writer
+            quoted = pa.array([None if v is None else _csv_quote(v) for v in values], type=pa.string())
+            return pc.take(quoted, enc.indices), True
+        return pc.take(enc.dictionary, enc.indices), False
+    few = False
+    if n > 4096:
+        step = max(1, n // 1024)
+        sample = pc.take(arr, pa.array(np.arange(0, n, step)))
+        few = len(pc.unique(sample)) < len(sample) // 2
+    if few:
+        enc = arr.dictionary_encode()
+        return pc.take(pc.cast(enc.dictionary, pa.string()), enc.indices), False
+    return pc.cast(arr, pa.string()), False
+
+
+def write_csv(table: pa.Table, path) -> None:
+    """``table`` as CSV: a header, then one line per row, cells joined by commas, nulls as empty cells.
+
+    The columns are turned into text in parallel threads (Arrow releases the
+    interpreter lock) and written by Arrow's CSV writer, so no Python code runs
+    per row or per cell. Text cells are quoted where needed (a comma, a quote, a
+    line break); numbers never are.
+    """
+    import csv
+    import io
+    import os
+    from concurrent.futures import ThreadPoolExecutor
+
+    import pyarrow.csv as pacsv
+
+    head = io.StringIO()
+    csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in table.column_names])
+    columns = [table.column(k) for k in range(table.num_columns)]
+    workers = max(1, min(len(columns), os.cpu_count() or 1))
+    if workers > 1 and table.num_rows > 10_000:
+        with ThreadPoolExecutor(workers) as ex:
+            texts = list(ex.map(_column_csv_text, columns))
+    else:
+        texts = [_column_csv_text(c) for c in columns]
+    with pa.OSFile(str(path), "wb") as fh:
+        fh.write(head.getvalue().encode("utf-8"))
+        if not table.num_columns:
+            return
+        quoted = [k for k, (_, needs) in enumerate(texts) if needs]
+        if not quoted:
+            strings = pa.table([t for t, _ in texts], names=[f"c{k}" for k in range(len(texts))])
+            pacsv.write_csv(strings, fh, pacsv.WriteOptions(include_header=False, quoting_style="none"))
+        elif quoted[-1] == len(quoted) - 1 < len(texts) - 1:
+            # quoted text only in leading columns (e.g. case names with commas): the rest is written unquoted
+            # by Arrow, split into lines without a copy, and each line joined behind its leading cells
+            rest = pa.table([t for t, _ in texts[len(quoted):]], names=[f"c{k}" for k in range(len(texts) -
+                                                                                             len(quoted))])
+            sink = pa.BufferOutputStream()
+            pacsv.write_csv(rest, sink, pacsv.WriteOptions(include_header=False, quoting_style="none"))
+            buf = sink.getvalue()
+            ends = np.flatnonzero(np.frombuffer(buf, dtype=np.uint8) == 10) + 1
+            offsets = np.concatenate([[0], ends]).astype(np.int64)
+            lines = pa.LargeStringArray.from_buffers(len(ends), pa.py_buffer(offsets), buf)
+            lead = [pc.fill_null(texts[k][0], "").cast(pa.large_string()) for k in quoted]
+            joined = pc.binary_join_element_wise(*lead, lines, pa.scalar(",", pa.large_string()))
+            offs = np.frombuffer(joined.buffers()[1], dtype=np.int64)
+            data = joined.buffers()[2]
+            fh.write(data[int(offs[joined.offset]):int(offs[joined.offset + len(joined)])])
+        else:
+            # quoted text elsewhere: Arrow quotes every text cell and no number
+            pacsv.write_csv(table, fh, pacsv.WriteOptions(include_header=False, quoting_style="needed"))
+
+
 def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv") -> int:
     """Write ``columns`` to ``path`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows."""
     table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
     path = str(Path(path))
     if fmt == "csv":
-        import csv
-        import io
-
-        import pyarrow.csv as pacsv
-
-        head = io.StringIO()
-        csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in table.column_names])
-        with pa.OSFile(path, "wb") as fh:
-            fh.write(head.getvalue().encode("utf-8"))
-            pacsv.write_csv(table, fh, pacsv.WriteOptions(include_header=False, quoting_style="needed"))
+        write_csv(table, path)
     elif fmt == "parquet":
         import pyarrow.parquet as pq
 
