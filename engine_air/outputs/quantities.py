@@ -129,7 +129,11 @@ REGISTRY: dict[str, Quantity] = {q.key: q for q in _ALL}
 """Every output quantity, by key, in table-column order."""
 
 TABLE_KEYS: tuple[str, ...] = tuple(q.key for q in _ALL if q.in_table)
-"""Numeric columns of the map table (after ``case`` and ``inside_envelope``)."""
+"""Numeric columns of the map table, in order (``case`` and ``inside_envelope`` come first)."""
+
+HISTORIC_TABLE_KEYS: tuple[str, ...] = TABLE_KEYS[:26]
+"""The numeric columns of the first map table: they keep their places, before ``regime, limiting, holds, flags``;
+columns added since follow ``flags``, so a reader that counts columns is not disturbed."""
 
 JSON_KEYS: tuple[str, ...] = tuple(q.key for q in _ALL if q.in_json)
 """Numeric keys of the point JSON (those with ``group`` nested under it)."""
@@ -158,5 +162,5 @@ def quantity(key: str) -> Quantity:
         raise KeyError(f"unknown quantity {key!r}; known: {', '.join(REGISTRY)}") from None
 
 
-__all__ = ["DEFAULT_QUANTITY", "JSON_KEYS", "MAP_KEYS", "QUANTITIES", "REGISTRY", "TABLE_KEYS", "TEXT_COLUMNS",
+__all__ = ["DEFAULT_QUANTITY", "HISTORIC_TABLE_KEYS", "JSON_KEYS", "MAP_KEYS", "QUANTITIES", "REGISTRY", "TABLE_KEYS", "TEXT_COLUMNS",
            "Quantity", "quantity"]

@@ -16,8 +16,11 @@ and writes every row at once:
 
 ``point_table(result)`` builds the columns of ``engine-air map`` (and of the
 program's CSV export) from an ``engine_air.envelope.evaluate.MapResult``: ``case``,
-``inside_envelope``, every quantity of ``engine_air.outputs.quantities.TABLE_KEYS``,
-then ``regime``, ``limiting``, ``holds``, ``flags``.
+``inside_envelope``, the historic quantities (``HISTORIC_TABLE_KEYS``), ``regime``,
+``limiting`` (the limiting check's name), ``holds`` (1/0; every check at the point
+holds, as computed, inside or outside the envelope), ``flags``, then the quantities
+added since (e.g. ``worst_relative_margin``), all from
+``engine_air.outputs.quantities``.
 """
 
 from __future__ import annotations
@@ -196,10 +199,12 @@ def flag_text(bits: np.ndarray) -> pa.Array:
 
 def point_table_columns(keys: Sequence[str] | None = None) -> list[str]:
     """The column names of ``point_table`` (header of ``map --csv`` and of the program's CSV export)."""
-    from engine_air.outputs.quantities import TABLE_KEYS
+    from engine_air.outputs.quantities import HISTORIC_TABLE_KEYS, TABLE_KEYS
 
-    return ["case", "inside_envelope", *(TABLE_KEYS if keys is None else keys), "regime", "limiting", "holds",
-            "flags"]
+    keys = TABLE_KEYS if keys is None else tuple(keys)
+    first = [k for k in keys if k in HISTORIC_TABLE_KEYS]
+    later = [k for k in keys if k not in HISTORIC_TABLE_KEYS]
+    return ["case", "inside_envelope", *first, "regime", "limiting", "holds", "flags", *later]
 
 
 def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
@@ -208,6 +213,7 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
     from engine_air.outputs.quantities import REGISTRY, TABLE_KEYS
 
     keys = TABLE_KEYS if keys is None else tuple(keys)
+    order = point_table_columns(keys)
     inside = np.asarray(result.inside, dtype=bool).ravel()
     parts = []
     for cm in result.cases:
@@ -227,10 +233,11 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
         cols["limiting"] = coded_text(np.asarray(limiting), [c.name for c in pts.checks])
         cols["holds"] = (~fails).astype(np.int8)
         cols["flags"] = flag_text(pts.flags)
-        parts.append(to_arrow(cols))
+        parts.append(to_arrow({name: cols[name] for name in order}))
     if not parts:
-        return to_arrow({"case": [], "inside_envelope": np.zeros(0, np.int8), **{k: np.zeros(0) for k in keys},
-                         "regime": [], "limiting": [], "holds": np.zeros(0, np.int8), "flags": []})
+        empty = {"case": [], "inside_envelope": np.zeros(0, np.int8), **{k: np.zeros(0) for k in keys},
+                 "regime": [], "limiting": [], "holds": np.zeros(0, np.int8), "flags": []}
+        return to_arrow({name: empty[name] for name in order})
     return pa.concat_tables(parts)
 
 
