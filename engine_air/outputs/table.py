@@ -55,7 +55,11 @@ def _text_array(values) -> pa.Array:
 
 
 def _array(values) -> pa.Array:
-    if isinstance(values, (pa.Array, pa.ChunkedArray)) and pa.types.is_string(values.type):
+    if isinstance(values, pa.ChunkedArray):
+        values = values.combine_chunks()
+    if isinstance(values, pa.DictionaryArray):
+        return pa.DictionaryArray.from_arrays(values.indices, _text_array(values.dictionary.cast(pa.string())))
+    if isinstance(values, pa.Array) and pa.types.is_string(values.type):
         return _text_array(values)
     if isinstance(values, np.ndarray):
         if values.dtype.kind == "f":
@@ -91,10 +95,11 @@ def _column_csv_text(arr) -> tuple[pa.Array, bool]:
     """
     if isinstance(arr, pa.ChunkedArray):
         arr = arr.combine_chunks()
-    text = pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type)
+    text = pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type) or (
+        pa.types.is_dictionary(arr.type) and pa.types.is_string(arr.type.value_type))
     n = len(arr)
     if text:
-        enc = arr.dictionary_encode()
+        enc = arr if pa.types.is_dictionary(arr.type) else arr.dictionary_encode()
         values = enc.dictionary.to_pylist()
         needs = any(v is not None and any(ch in v for ch in ',"\n\r') for v in values)
         if needs:  # quoted here; written by the caller's own join, never by Arrow's unquoted writer
@@ -105,7 +110,7 @@ def _column_csv_text(arr) -> tuple[pa.Array, bool]:
     if n > 4096:
         step = max(1, n // 1024)
         sample = pc.take(arr, pa.array(np.arange(0, n, step)))
-        few = len(pc.unique(sample)) < len(sample) // 2
+        few = len(pc.unique(sample)) < 0.9 * len(sample)
     if few:
         enc = arr.dictionary_encode()
         return pc.take(pc.cast(enc.dictionary, pa.string()), enc.indices), False
@@ -152,7 +157,13 @@ def write_csv(table: pa.Table, path) -> None:
             sink = pa.BufferOutputStream()
             pacsv.write_csv(rest, sink, pacsv.WriteOptions(include_header=False, quoting_style="none"))
             buf = sink.getvalue()
-            ends = np.flatnonzero(np.frombuffer(buf, dtype=np.uint8) == 10) + 1
+            # line lengths from the cells' lengths: cells, a comma between them, a line end
+            length = np.full(rest.num_rows, rest.num_columns, dtype=np.int64)
+            for col in rest.columns:
+                length += np.asarray(pc.fill_null(pc.binary_length(col), 0), dtype=np.int64)
+            ends = np.cumsum(length)
+            if ends.size and ends[-1] != buf.size:  # pragma: no cover - Arrow's writer changed its layout
+                ends = np.flatnonzero(np.frombuffer(buf, dtype=np.uint8) == 10) + 1
             offsets = np.concatenate([[0], ends]).astype(np.int64)
             lines = pa.LargeStringArray.from_buffers(len(ends), pa.py_buffer(offsets), buf)
             lead = [pc.fill_null(texts[k][0], "").cast(pa.large_string()) for k in quoted]
@@ -182,9 +193,9 @@ def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv"
 
 def coded_text(codes: np.ndarray, names: Sequence[str], missing: str = "") -> pa.Array:
     """Texts from integer ``codes`` into ``names`` (a code < 0 gives ``missing``), without a loop over rows."""
-    codes = np.asarray(codes).ravel().astype(np.int64)
+    codes = np.asarray(codes).ravel().astype(np.int32)
     dictionary = pa.array([missing, *names], type=pa.string())
-    return pc.take(dictionary, pa.array(np.where(codes < 0, 0, codes + 1)))
+    return pa.DictionaryArray.from_arrays(pa.array(np.where(codes < 0, 0, codes + 1).astype(np.int32)), dictionary)
 
 
 def flag_text(bits: np.ndarray) -> pa.Array:
@@ -194,7 +205,7 @@ def flag_text(bits: np.ndarray) -> pa.Array:
     bits = np.asarray(bits).ravel()
     unique, inverse = np.unique(bits, return_inverse=True)
     names = [";".join(F.names_of(int(b))) for b in unique]
-    return pc.take(pa.array(names, type=pa.string()), pa.array(inverse.ravel().astype(np.int64)))
+    return pa.DictionaryArray.from_arrays(pa.array(inverse.ravel().astype(np.int32)), pa.array(names, type=pa.string()))
 
 
 def point_table_columns(keys: Sequence[str] | None = None) -> list[str]:
@@ -220,7 +231,8 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
         pts = cm.points
         n = inside.size
         cols: dict[str, object] = {
-            "case": pa.array([cm.name], type=pa.string()).take(pa.array(np.zeros(n, dtype=np.int64))),
+            "case": pa.DictionaryArray.from_arrays(pa.array(np.zeros(n, dtype=np.int32)),
+                                                   pa.array([cm.name], type=pa.string())),
             "inside_envelope": inside.astype(np.int8),
         }
         for k in keys:
