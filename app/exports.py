@@ -10,7 +10,7 @@ import pyqtgraph.exporters as pgx
 import engine_air
 from engine_air.outputs.table import point_table_columns, write_point_table
 
-from .findings import finding_lines
+from .findings import finding_lines, mechanisms
 from .units import Units
 
 CSV_HEADER = point_table_columns()
@@ -33,7 +33,7 @@ def findings_text(result, units: Units, title: str = "", file_name: str = "") ->
         f"Verdict: {verdict}",
         "",
     ]
-    body = [f"- {line}" for line in finding_lines(result.summary, units)]
+    body = [f"- {line}" for line in finding_lines(result.summary, units, mechanisms(result))]
     tail = ["", engine_air.CAUTION, ""]
     return "\n".join([h for h in head if h is not None] + body + tail)
 

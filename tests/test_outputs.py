@@ -200,3 +200,20 @@ def test_safe_path_shows_non_utf8_bytes():
 
     assert safe_path(os.fsdecode(b"/tmp/a\xffb.toml")) == "/tmp/a\\xffb.toml"
     assert safe_path(b"/tmp/a\xffb.toml") == "/tmp/a\\xffb.toml"
+
+
+def test_limiting_map_names_the_check_of_the_least_margin():
+    p = coarse(FAILING, 41, 31)
+    result = evaluate_project(p)
+    for case in [c.name for c in result.cases] + [WORST]:
+        margin, index, names, labels = ranking.limiting_map(result, case)
+        q = result.quantity(case, "worst_relative_margin")
+        assert np.array_equal(np.isnan(margin), np.isnan(q))
+        assert np.allclose(margin[np.isfinite(margin)], q[np.isfinite(q)])
+        assert np.all((index >= 0) == np.isfinite(margin))
+        # the named check's relative margin is the least margin, in the case that limits the point
+        cm = result.cases[0] if case == WORST else result.case_map(case)
+        if case != WORST:
+            for i, j in zip(*np.nonzero(index >= 0)):
+                assert cm.points.checks[index[i, j]].relative_margin[i, j] == margin[i, j]
+        assert set(names) == {c.name for c in cm.points.checks} and len(labels) == len(names)

@@ -128,6 +128,33 @@ def worst_case_index(point_sets, shape=None, mask=None) -> np.ndarray:
     return np.argmin(rank, axis=0)
 
 
+def limiting_map(result, case: str) -> tuple[np.ndarray, np.ndarray, list[str], list[str]]:
+    """The least-margin map of a ``MapResult`` for ``case`` (or ``WORST``) and what limits it.
+
+    Returns ``(margin, index, names, labels)``: ``margin`` (ny, nx) is the least
+    relative margin over every judged check (for WORST, over every case too), NaN
+    outside the envelope or where nothing is judged (flags ``outside-envelope`` /
+    ``outside-atmosphere`` say which); ``index`` (ny, nx) points into ``names``
+    and ``labels`` (the check's name and label), -1 where ``margin`` is NaN.
+    """
+    from engine_air.envelope.evaluate import WORST
+
+    cases = result.cases if case == WORST else [result.case_map(case)]
+    inside = np.asarray(result.inside, dtype=bool)
+    shape = inside.shape
+    if not cases or not cases[0].points.checks:
+        return np.full(shape, np.nan), np.full(shape, -1, dtype=np.int16), [], []
+    pick = worst_case_index([c.points for c in cases], shape) if len(cases) > 1 else np.zeros(shape, dtype=np.intp)
+    margins = np.stack([worst_relative_margin(c.points.checks, shape) for c in cases])
+    indices = np.stack([limiting_index(c.points.checks, shape) for c in cases])
+    margin = np.take_along_axis(margins, pick[None], axis=0)[0]
+    index = np.take_along_axis(indices, pick[None], axis=0)[0]
+    margin = np.where(inside, margin, np.nan)
+    index = np.where(np.isfinite(margin), index, -1).astype(np.int16)
+    checks = cases[0].points.checks
+    return margin, index, [c.name for c in checks], [c.label for c in checks]
+
+
 def nearest_index(mach_axis, altitude_axis, mach: float, altitude_m: float) -> tuple[int, int]:
     """Grid (row i along the altitude axis, column j along the Mach axis) nearest to a flight condition."""
     i = int(np.argmin(np.abs(np.asarray(altitude_axis, dtype=float) - altitude_m)))
@@ -135,5 +162,6 @@ def nearest_index(mach_axis, altitude_axis, mach: float, altitude_m: float) -> t
     return i, j
 
 
-__all__ = ["FAIL_OFFSET", "Worst", "argworst", "check_rank", "limiting_index", "limiting_rank", "nearest_index",
+__all__ = ["FAIL_OFFSET", "Worst", "argworst", "check_rank", "limiting_index", "limiting_map", "limiting_rank",
+           "nearest_index",
            "worst_case_index", "worst_of_check", "worst_point", "worst_relative_margin"]
