@@ -270,3 +270,18 @@ def test_map_csv_neutralises_formula_case_names(tmp_path, capsys):
         cases = {r["case"] for r in csv.DictReader(fh)}
     assert "'=HYPERLINK(\"http://x\")" in cases
     assert not any(c[:1] in "=+-@\t\r" for c in cases)
+
+
+def test_point_worst_relative_margin_is_the_least_judged_margin(capsys):
+    code = main(["point", str(FAILING), "--mach", "0.8", "--altitude-m", "9000", "--json"])
+    record = json.loads(capsys.readouterr().out)
+    judged = [c for c in record["checks"] if c["holds"] is not None]
+    assert record["judged"] is True and judged
+    # relative margin = margin over the limit's magnitude; the face-Mach check's scale is face_mach_max
+    face = next(c for c in judged if c["name"] == "face-mach")
+    assert record["worst_relative_margin"] <= face["margin"] / float(face["limit"].split("<=")[1]) + 1e-15
+    assert (record["worst_relative_margin"] >= 0) == (code == 0)
+    main(["point", str(FAILING), "--mach", "0.3", "--altitude-m", "40000", "--json"])
+    outside = json.loads(capsys.readouterr().out)
+    assert outside["worst_relative_margin"] is None and outside["judged"] is False
+    assert {"outside-envelope", "outside-atmosphere"} & set(outside["flags"])

@@ -38,8 +38,10 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
     ``flag_descriptions``, ``limiting``, ``checks``, ``judged`` and ``holds``.
     ``judged`` is false where no limit is judged: outside the envelope polygon
     (flag ``outside-envelope``: the point is computed but never judged) or where
-    no check applies (e.g. outside the atmosphere model). ``holds`` is null
-    where the point is not judged, else whether every judged check holds.
+    no check applies (e.g. outside the atmosphere model). ``holds`` and
+    ``worst_relative_margin`` are null where the point is not judged (the flags
+    ``outside-envelope`` / ``outside-atmosphere`` say why); else whether every
+    judged check holds, and the least relative margin over them.
     """
     bits = int(_at(points.flags, index))
     limiting = int(_at(points.limiting, index)) if points.limiting is not None else -1
@@ -72,6 +74,8 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
             record["case"] = case_name
     outside = bool(bits & F.OUTSIDE_ENVELOPE)
     judged = (not outside) and any(c["holds"] is not None for c in checks)
+    if not judged:
+        record["worst_relative_margin"] = None  # nothing is judged here; the flags say why
     record.update({
         "regime": REGIMES[int(_at(points.regime, index))],
         "flags": names,
