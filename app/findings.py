@@ -25,7 +25,8 @@ def where_text(s, units: Units) -> str:
 
 
 def mechanisms(result) -> list[str]:
-    """Per finding of ``result.summary``: what drives that limit at its own worst point (engine_air.envelope.explain)."""
+    """Per finding of ``result.summary``: what drives that limit at its own worst point
+    (``engine_air.envelope.explain.finding_mechanism``)."""
     from engine_air.envelope.explain import finding_mechanism
 
     return [finding_mechanism(result.project, result, s)[2] for s in result.summary]

@@ -117,7 +117,8 @@ _ALL = (
     _q("speed_of_sound_m_s", "Speed of sound a0", "m/s", "Free-stream speed of sound", us=_MS, group="freestream"),
     _q("additive_drag_n", "Additive drag", "N", "Pre-entry (additive) drag force", us=_N),
     _q("recovery_minus_reference", "Recovery minus MIL-E-5008B", "",
-       "Recovery less the MIL-E-5008B reference recovery at the flight Mach number", kind="margin", json=False),
+       "Recovery less the MIL-E-5008B reference recovery at the flight Mach number", kind="margin", table=False,
+       json=False),
     _q("worst_relative_margin", "Least relative margin (all limits)", "",
        "Least relative margin (margin over the limit's magnitude) over every check judged at the point; a failing "
        "check ranks first. Not defined (NaN / null) where nothing is judged: outside the atmosphere model "
@@ -162,5 +163,6 @@ def quantity(key: str) -> Quantity:
         raise KeyError(f"unknown quantity {key!r}; known: {', '.join(REGISTRY)}") from None
 
 
-__all__ = ["DEFAULT_QUANTITY", "HISTORIC_TABLE_KEYS", "JSON_KEYS", "MAP_KEYS", "QUANTITIES", "REGISTRY", "TABLE_KEYS", "TEXT_COLUMNS",
+__all__ = ["DEFAULT_QUANTITY", "HISTORIC_TABLE_KEYS", "JSON_KEYS", "MAP_KEYS", "QUANTITIES", "REGISTRY", "TABLE_KEYS",
+           "TEXT_COLUMNS",
            "Quantity", "quantity"]

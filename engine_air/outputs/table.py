@@ -258,5 +258,5 @@ def write_point_table(result, path, fmt: str = "csv") -> int:
     return write_table(point_table(result), path, fmt)
 
 
-__all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns", "to_arrow", "write_point_table",
-           "write_table"]
+__all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns", "to_arrow",
+           "write_csv", "write_point_table", "write_table"]

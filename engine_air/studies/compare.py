@@ -52,7 +52,8 @@ from engine_air.outputs.quantities import QUANTITIES
 
 GRID_CHOICES = ("a", "b", "union")
 DIFFERENCE_QUANTITIES = (
-    "worst_relative_margin", "face_mach_margin", "recovery", "spillage_fraction", "mass_flow_ratio", "throat_mach", "face_mach",
+    "worst_relative_margin", "face_mach_margin", "recovery", "spillage_fraction", "mass_flow_ratio", "throat_mach",
+    "face_mach",
     "recovery_minus_reference", "additive_drag_coefficient",
 )
 """Quantities whose difference maps and statistics ``compare_projects`` prepares; the first is the default.
