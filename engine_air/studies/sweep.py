@@ -343,7 +343,10 @@ def parse_scheduler(address: str) -> tuple[str, str, int]:
     return scheme, host, int(port_text)
 
 
-def _recv_exactly(sock, n: int) -> bytes:
+def _recv_exactly(sock, n: int, received: list) -> bytes:
+    """``n`` bytes from ``sock``; ``received[0]`` counts every byte received so far (kept on a timeout)."""
+    if not received:
+        received.append(0)
     chunks, got = [], 0
     while got < n:
         part = sock.recv(min(n - got, 1 << 20))
@@ -351,6 +354,7 @@ def _recv_exactly(sock, n: int) -> bytes:
             raise ConnectionError("closed the connection")
         chunks.append(part)
         got += len(part)
+        received[0] += len(part)
     return b"".join(chunks)
 
 
@@ -374,26 +378,32 @@ def probe_scheduler(address: str, timeout: float) -> None:
         raise SchedulerError(f"scheduler {address}: no connection within {timeout:g} s") from None
     except OSError as exc:
         raise SchedulerError(f"scheduler {address}: cannot connect ({exc.strerror or exc})") from None
+    received = []
     try:
         sock.settimeout(timeout)
         try:
-            head = _recv_exactly(sock, 8)
+            head = _recv_exactly(sock, 8, received)
             (size,) = struct.unpack("<Q", head)
             if not 16 <= size <= MAX_HANDSHAKE_BYTES:
                 raise ValueError
-            body = _recv_exactly(sock, size)
+            body = _recv_exactly(sock, size, received)
             (frames,) = struct.unpack("<Q", body[:8])
             if not 1 <= frames <= 1000 or 8 * (frames + 1) > size:
                 raise ValueError
         except socket.timeout:
+            if received and received[0]:
+                raise SchedulerError(f"scheduler {address}: answered with something that is not the dask.distributed "
+                                     f"protocol (an incomplete message, then nothing for {timeout:g} s)") from None
             raise SchedulerError(f"scheduler {address}: connected, but no answer within {timeout:g} s "
                                  "(is it a dask.distributed scheduler?)") from None
         except (ValueError, struct.error):
             raise SchedulerError(f"scheduler {address}: answered with something that is not the dask.distributed "
                                  "protocol (garbage); check the address and port") from None
         except OSError as exc:
+            what = "closed the connection" if isinstance(exc, ConnectionError) and not exc.errno else \
+                (exc.strerror or str(exc))
             raise SchedulerError(f"scheduler {address}: the connection failed while waiting for its answer "
-                                 f"({exc.strerror or exc})") from None
+                                 f"({what})") from None
     finally:
         sock.close()
 
