@@ -217,3 +217,15 @@ def test_limiting_map_names_the_check_of_the_least_margin():
             for i, j in zip(*np.nonzero(index >= 0)):
                 assert cm.points.checks[index[i, j]].relative_margin[i, j] == margin[i, j]
         assert set(names) == {c.name for c in cm.points.checks} and len(labels) == len(names)
+
+
+def test_map_table_judged_column():
+    from engine_air.outputs.table import point_table
+
+    p = coarse(RAMP)
+    result = evaluate_project(p)
+    t = point_table(result)
+    judged = np.asarray(t.column("judged").to_numpy(zero_copy_only=False))
+    inside = np.asarray(t.column("inside_envelope").to_numpy(zero_copy_only=False))
+    assert np.array_equal(judged, inside)  # inside the atmosphere every inside point has a judged check
+    assert judged.sum() == result.inside.sum() * len(result.cases)

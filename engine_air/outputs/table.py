@@ -18,9 +18,10 @@ and writes every row at once:
 program's CSV export) from an ``engine_air.envelope.evaluate.MapResult``: ``case``,
 ``inside_envelope``, the historic quantities (``HISTORIC_TABLE_KEYS``), ``regime``,
 ``limiting`` (the limiting check's name), ``holds`` (1/0; every check at the point
-holds, as computed, inside or outside the envelope), ``flags``, then the quantities
-added since (e.g. ``worst_relative_margin``), all from
-``engine_air.outputs.quantities``.
+holds, as computed, inside or outside the envelope), ``flags``, ``judged`` (1 where
+the point is judged: inside the envelope with some check applying; read ``holds``
+only there), then the quantities added since (e.g. ``worst_relative_margin``), all
+from ``engine_air.outputs.quantities``.
 """
 
 from __future__ import annotations
@@ -215,7 +216,7 @@ def point_table_columns(keys: Sequence[str] | None = None) -> list[str]:
     keys = TABLE_KEYS if keys is None else tuple(keys)
     first = [k for k in keys if k in HISTORIC_TABLE_KEYS]
     later = [k for k in keys if k not in HISTORIC_TABLE_KEYS]
-    return ["case", "inside_envelope", *first, "regime", "limiting", "holds", "flags", *later]
+    return ["case", "inside_envelope", *first, "regime", "limiting", "holds", "flags", "judged", *later]
 
 
 def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
@@ -244,11 +245,13 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
         cols["regime"] = coded_text(np.asarray(pts.regime), REGIMES)
         cols["limiting"] = coded_text(np.asarray(limiting), [c.name for c in pts.checks])
         cols["holds"] = (~fails).astype(np.int8)
+        cols["judged"] = (inside & (np.asarray(limiting).ravel() >= 0)).astype(np.int8)
         cols["flags"] = flag_text(pts.flags)
         parts.append(to_arrow({name: cols[name] for name in order}))
     if not parts:
         empty = {"case": [], "inside_envelope": np.zeros(0, np.int8), **{k: np.zeros(0) for k in keys},
-                 "regime": [], "limiting": [], "holds": np.zeros(0, np.int8), "flags": []}
+                 "regime": [], "limiting": [], "holds": np.zeros(0, np.int8), "flags": [],
+                 "judged": np.zeros(0, np.int8)}
         return to_arrow({name: empty[name] for name in order})
     return pa.concat_tables(parts)
 
