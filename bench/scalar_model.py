@@ -287,6 +287,8 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
     out["flags"] = flags
     if rating.fan_tip_speed_m_s is None:
         flags.add("no-tip-speed")
+    if rating.net_thrust_n is None:  # the installation ledger (method section 13) is not modelled here
+        flags.add("no-thrust-data")
     out["reference_recovery"] = mil_e_5008b(m0)
     low = m0 < LOW_SPEED_MACH
     if low:

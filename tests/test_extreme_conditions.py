@@ -57,6 +57,12 @@ EXPLAINED_BY = {
     "additive_drag_coefficient": _DRAG,
     "spillage_drag_coefficient": _DRAG,
     "relative_tip_mach": F.NO_TIP_SPEED,
+    "tip_speed_m_s": F.NO_TIP_SPEED,
+    # the installation ledger (method section 13)
+    "spillage_drag_n": F.ADDITIVE_DRAG_NOT_MODELLED,
+    "net_thrust_n": F.NO_THRUST_DATA,
+    "installed_thrust_n": F.NO_THRUST_DATA | F.ADDITIVE_DRAG_NOT_MODELLED,
+    "installation_loss_fraction": F.NO_THRUST_DATA | F.ADDITIVE_DRAG_NOT_MODELLED,
 }
 # the same for the keys of the point record
 RECORD_EXPLAINED_BY = dict(EXPLAINED_BY)

@@ -125,7 +125,7 @@ def test_pitot_mach_2_recovery_is_normal_shock():
     assert rec["regime"] == "subcritical"
     assert rec["max_mass_flow_ratio"] == 1.0
     assert rec["mass_flow_ratio"] < 0.2
-    assert set(rec["flags"]) == {"no-tip-speed"}
+    assert set(rec["flags"]) == {"no-tip-speed", "no-thrust-data"}
 
 
 def test_pitot_subsonic_duct_loss():
@@ -507,7 +507,8 @@ def test_outside_atmosphere_point():
 LOW_SPEED_KEYS = {"mass_flow_ratio", "max_mass_flow_ratio", "spillage_fraction", "additive_drag_n",
                   "additive_drag_coefficient", "spillage_drag_coefficient"}
 DRAG_KEYS = {"additive_drag_n", "additive_drag_coefficient", "spillage_drag_coefficient"}
-EXPLAINING = {"low-speed", "outside-atmosphere", "additive-drag-not-modelled", "no-tip-speed"}
+EXPLAINING = {"low-speed", "outside-atmosphere", "additive-drag-not-modelled", "no-tip-speed", "no-thrust-data"}
+LEDGER_KEYS = {"net_thrust_n", "installed_thrust_n", "installation_loss_fraction"}
 
 
 def _explained(key, flags):
@@ -517,7 +518,12 @@ def _explained(key, flags):
         return True
     if key in DRAG_KEYS and "additive-drag-not-modelled" in flags:
         return True
-    if key == "relative_tip_mach" and "no-tip-speed" in flags:
+    if key in ("relative_tip_mach", "tip_speed_m_s") and "no-tip-speed" in flags:
+        return True
+    if key in LEDGER_KEYS and "no-thrust-data" in flags:
+        return True
+    if key in ("spillage_drag_n", "installed_thrust_n", "installation_loss_fraction") \
+            and "additive-drag-not-modelled" in flags:
         return True
     return False
 

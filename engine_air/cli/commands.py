@@ -242,6 +242,8 @@ def cmd_point(args) -> int:
     record = point_record(points, 0, case.name)
     json.dump(record, sys.stdout, indent=2, allow_nan=False)
     sys.stdout.write("\n")
+    if record["holds"] is None and "outside-case-region" in record["flags"]:
+        return EXIT_HOLDS  # computed, not judged: the case does not apply here (method section 14)
     if record["holds"] is None:
         print(f"engine-air: no limit can be judged at Mach {args.mach:g}, {args.altitude_m:g} m: "
               + "; ".join(F.DESCRIPTIONS[n] for n in record["flags"] if n != "ok"), file=sys.stderr)

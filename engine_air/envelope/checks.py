@@ -18,6 +18,10 @@ Checks, in order:
 - ``stability``: MFR/MFR_max - stable flow fraction, supersonic subcritical only.
 - ``relative-tip-mach``: limit - blade relative tip Mach, where a tip speed is given.
 - ``spillage``: spillage limit - spillage fraction (an extension of the file format).
+- ``installation-loss``: limit - installation loss 1 - F_inst/F_n (method section 13), where thrust data give it.
+
+No check applies outside the atmosphere model or outside the case's region (``outside-case-region``, method
+section 14): such points are computed but judged by no limit.
 """
 
 from __future__ import annotations
@@ -61,7 +65,7 @@ def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=N
 
 def build_checks(limits: Limits, points) -> list[Check]:
     """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints)."""
-    inside = (points.flags & F.OUTSIDE_ATMOSPHERE) == 0
+    inside = (points.flags & (F.OUTSIDE_ATMOSPHERE | F.OUTSIDE_CASE_REGION)) == 0
     bits = points.flags
     checks = [
         _check(
@@ -124,6 +128,15 @@ def build_checks(limits: Limits, points) -> list[Check]:
                 "spillage", "Spillage fraction", f"spillage <= {cap:g}",
                 points.spillage_fraction, cap - points.spillage_fraction, max(cap, 0.01),
                 inside & np.isfinite(points.spillage_fraction),
+            )
+        )
+    if limits.installation_loss_max is not None:
+        cap = limits.installation_loss_max
+        loss = points.installation_loss_fraction
+        checks.append(
+            _check(
+                "installation-loss", "Installation loss", f"1 - F_inst/F_n <= {cap:g}",
+                loss, cap - loss, max(cap, 0.01), inside & np.isfinite(loss),
             )
         )
     return checks

@@ -42,6 +42,7 @@ from engine_air.flow.demand import corrected_flow_demand
 from engine_air.physics.isentropic import (
     choked_mass_flow_parameter,
     dynamic_to_total_pressure,
+    mass_flow_parameter,
     mach_from_flow_ratio,
     pressure_ratio,
 )
@@ -179,12 +180,15 @@ def _tip_speed(rating, theta2):
     return rating.fan_tip_speed_m_s
 
 
-def _bypass(inlet, open_, needed, duct_total_pressure, total_temperature, static_pressure, bits):
-    """Bypass door flow (kg/s) where the doors are ``open_`` and the flags with ``bypass-insufficient`` added."""
+def _bypass(inlet, open_, needed, throat_room, duct_total_pressure, total_temperature, static_pressure, bits):
+    """Bypass door flow (kg/s) where the doors are ``open_`` and the flags with ``bypass-insufficient`` added.
+
+    The doors pass what is needed up to the lesser of their capacity and the throat's room (kg/s)."""
     if inlet.bypass_area_m2 <= 0.0:
         return np.zeros(np.shape(open_)), bits
     capacity = airflow.door_flow(inlet.bypass_area_m2, inlet.bypass_discharge_coefficient, duct_total_pressure,
                                  total_temperature, static_pressure)
+    capacity = np.minimum(capacity, np.maximum(throat_room, 0.0))
     flow, short = airflow.bypass_flow(np.where(open_, needed, 0.0), capacity)
     flow = np.where(open_, flow, 0.0)
     return flow, bits | np.where(open_ & short, F.BYPASS_INSUFFICIENT, 0)
@@ -274,13 +278,16 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         w = w * scale
         bits |= np.where(supercritical, F.SUPERCRITICAL, 0)
 
-        # bypass doors (supersonic, below critical): hold the inlet critical up to their capacity
-        w_bp, bits = _bypass(inlet, supersonic & ~over & ~low, mfr_max_geom * capture_flow * (1.0 - bleed) - w,
-                             pi_ext * pt0_inlet, tt0, p0, bits)
-
         # throat, with the auxiliary doors in parallel where they are open; it passes engine + bypass flow
         a_throat, aux_share, _ = airflow.auxiliary_share(throat_area, inlet.auxiliary_inlet_area_m2, m0,
                                                          inlet.auxiliary_door_mach_max)
+
+        # bypass doors (supersonic, below critical): hold the inlet critical up to their capacity and as far as
+        # the throat passes the extra air within its Mach limit (unchoked without one); the rest spills
+        throat_mach_cap = (project.limits.throat_mach_max if project.limits.throat_mach_max is not None else 1.0) * (1.0 - 1e-9)
+        throat_room = a_throat * pi_ext * pt0_inlet * mass_flow_parameter(throat_mach_cap) / np.sqrt(tt0) - w
+        w_bp, bits = _bypass(inlet, supersonic & ~over & ~low, mfr_max_geom * capture_flow * (1.0 - bleed) - w,
+                             throat_room, pi_ext * pt0_inlet, tt0, p0, bits)
         throat_flow = w + w_bp
         throat_ratio = throat_flow * np.sqrt(tt0) / (a_throat * pi_ext * pt0_inlet) / mfp_star
         throat_choked = throat_ratio >= 1.0
@@ -301,6 +308,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         w_aux = aux_share * (w + w_bp)
         captured = (w + w_bp - w_aux) / (1.0 - bleed)  # through the capture plane; bleed = b x captured
         w_bleed = bleed * captured
+        bypass_fraction = np.where(w_bp > 0.0, w_bp / captured, 0.0)
         held = supersonic & (w_bp > 0.0) & (np.abs(captured / capture_flow / mfr_max_geom - 1.0) <= CRITICAL_BAND)
         critical = (critical | held) & ~supercritical
 
@@ -407,7 +415,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         captured_flow_kg_s=full(captured),
         bleed_fraction=full(bleed),
         bleed_flow_kg_s=full(w_bleed),
-        bypass_fraction=full(w_bp / captured),
+        bypass_fraction=full(bypass_fraction),
         bypass_flow_kg_s=full(w_bp),
         auxiliary_flow_kg_s=full(w_aux),
         tip_speed_m_s=full(u_tip),
