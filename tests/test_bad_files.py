@@ -507,7 +507,7 @@ def test_huge_values_inside_the_size_limit(tmp_path):
 def test_unknown_keys_warn_and_loading_goes_on(tmp_path, capsys):
     data = sample_data()
     data["extra_table"] = {"x": 1}
-    data["inlet"]["bleed_fraction"] = 0.02
+    data["inlet"]["cowl_colour"] = 0.02
     data["engine"]["rating"][0]["spool"] = "fan"
     data["engine"]["other"] = 3
     data["case"][1]["humidity"] = 0.5
@@ -517,7 +517,7 @@ def test_unknown_keys_warn_and_loading_goes_on(tmp_path, capsys):
     project = pf.load_project(path)
     assert project == pf.load_project(PITOT)
     text = "\n".join(project.warnings)
-    for key in ("extra_table", "inlet.bleed_fraction", "engine.rating[0].spool", "engine.other",
+    for key in ("extra_table", "inlet.cowl_colour", "engine.rating[0].spool", "engine.other",
                 "case[1].humidity", "grid.refine", "project.author"):
         assert f"{path}: {key}: unknown key, ignored" in text
     assert cli_main(["check", str(path)]) == 0
