@@ -143,6 +143,8 @@ def test_bypass_capacity_exceeded_spills_the_rest_and_says_so():
     assert REGIMES[int(pts.regime[0])] == "subcritical"
     assert F.has(pts.flags, F.BYPASS_INSUFFICIENT)[0]
     assert "bypass-insufficient" in F.DESCRIPTIONS
+    # the excess is exposed (a mixed-compression inlet would unstart on it)
+    assert float(pts.bypass_shortfall_kg_s[0]) == pytest.approx(capture_flow - w_e - capacity, rel=1e-3)
 
 
 def test_bypass_doors_shut_in_subsonic_flight_and_when_supercritical():

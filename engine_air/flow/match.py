@@ -105,6 +105,7 @@ class OperatingPoints:
     bypass_fraction: np.ndarray
     bypass_flow_kg_s: np.ndarray
     auxiliary_flow_kg_s: np.ndarray  # through the auxiliary doors (not through the capture plane)
+    bypass_shortfall_kg_s: np.ndarray  # critical capture (x (1 - b)) that engine and doors do not take; M0 > 1
     tip_speed_m_s: np.ndarray  # physical fan tip speed used for the relative tip Mach (NaN without one)
     # the ledger (method section 13), newtons
     ram_drag_n: np.ndarray
@@ -286,8 +287,12 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         # the throat passes the extra air within its Mach limit (unchoked without one); the rest spills
         throat_mach_cap = (project.limits.throat_mach_max if project.limits.throat_mach_max is not None else 1.0) * (1.0 - 1e-9)
         throat_room = a_throat * pi_ext * pt0_inlet * mass_flow_parameter(throat_mach_cap) / np.sqrt(tt0) - w
-        w_bp, bits = _bypass(inlet, supersonic & ~over & ~low, mfr_max_geom * capture_flow * (1.0 - bleed) - w,
-                             throat_room, pi_ext * pt0_inlet, tt0, p0, bits)
+        doors_open = supersonic & ~over & ~low
+        bypass_needed = np.where(doors_open, np.maximum(mfr_max_geom * capture_flow * (1.0 - bleed) - w, 0.0), 0.0)
+        w_bp, bits = _bypass(inlet, doors_open, bypass_needed, throat_room, pi_ext * pt0_inlet, tt0, p0, bits)
+        # what neither engine, bleed nor doors take of the critical capture: it spills (external compression)
+        # or would unstart a mixed-compression inlet, whose type judges it
+        bypass_shortfall = np.where(doors_open, np.maximum(bypass_needed - w_bp, 0.0), 0.0)
         throat_flow = w + w_bp
         throat_ratio = throat_flow * np.sqrt(tt0) / (a_throat * pi_ext * pt0_inlet) / mfp_star
         throat_choked = throat_ratio >= 1.0
@@ -418,6 +423,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         bypass_fraction=full(bypass_fraction),
         bypass_flow_kg_s=full(w_bp),
         auxiliary_flow_kg_s=full(w_aux),
+        bypass_shortfall_kg_s=full(bypass_shortfall),
         tip_speed_m_s=full(u_tip),
         ram_drag_n=full(ledger.ram_drag_n),
         spillage_drag_n=full(d_spill),

@@ -87,6 +87,7 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
         "bypass_fraction": g("bypass_fraction"),
         "bypass_flow_kg_s": g("bypass_flow_kg_s"),
         "auxiliary_flow_kg_s": g("auxiliary_flow_kg_s"),
+        "bypass_shortfall_kg_s": g("bypass_shortfall_kg_s"),
         "tip_speed_m_s": g("tip_speed_m_s"),
         "ram_drag_n": g("ram_drag_n"),
         "spillage_drag_n": g("spillage_drag_n"),
