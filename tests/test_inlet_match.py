@@ -617,3 +617,24 @@ def test_property_no_silent_nan(pc, cond):
         if any(True for _ in _nones(rec)):
             assert flags & EXPLAINING
         assert all(name in F.DESCRIPTIONS for name in rec["flags"])
+
+
+def test_recovery_minus_reference_maps_what_the_reference_check_compares():
+    """The map quantity equals the check's value - reference (pi / pi_duct against MIL-E-5008B), supersonic only.
+
+    MIL-E-5008B: pi_ref = 1 - 0.075 (M0 - 1)^1.35 for 1 < M0 < 5 (0.925 at M0 = 2)."""
+    from dataclasses import replace
+    from pathlib import Path
+
+    from engine_air.project.toml_file import load_project
+
+    project = load_project(Path(__file__).resolve().parents[1] / "sample_projects" / "supersonic_two_ramp.toml")
+    project = replace(project, limits=replace(project.limits, recovery_min="mil-e-5008b"))
+    mach = np.array([0.8, 1.5, 2.0])
+    pts = evaluate_conditions(project, project.cases[0], mach, np.array([10000.0]))
+    assert np.isnan(pts.recovery_minus_reference[0])  # subsonic: not judged
+    reference = 1.0 - 0.075 * (mach[1:] - 1.0) ** 1.35
+    expected = pts.recovery[1:] / pts.duct_recovery[1:] - reference
+    np.testing.assert_allclose(pts.recovery_minus_reference[1:], expected, rtol=1e-12)
+    check = pts.check("recovery")
+    np.testing.assert_allclose(check.margin[1:], pts.recovery_minus_reference[1:], rtol=1e-12)
