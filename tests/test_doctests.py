@@ -24,6 +24,7 @@ DOCUMENTED = [
     "engine_air.physics.atmosphere",
     "engine_air.physics.reference_recovery",
     "engine_air.flow.demand",
+    "engine_air.inlets.ramp_layout",
 ]
 
 
