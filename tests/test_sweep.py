@@ -66,7 +66,7 @@ def test_variant_reproduces_the_single_map_result(small):
         # cruise spillage: a one-point evaluation of the variant at the cruise point (first case)
         pts = evaluate_conditions(variant, variant.cases[0], np.array([CRUISE[0]]), np.array([CRUISE[1]]))
         assert row.cruise_spillage_fraction == float(pts.spillage_fraction[0])
-        assert row.values == tuple(float(v) for v in row.values) and row.message == ""
+        assert row.values == tuple(axis[k] for axis, k in zip(r.axes, row.index)) and row.message == ""
     assert r.grid().shape == (2, 3)
     assert r.count("holds") + r.count("fails") == 6
 
