@@ -130,7 +130,11 @@ class OperatingPoints:
 
     @property
     def recovery_minus_reference(self) -> np.ndarray:
-        return self.recovery - self.reference_recovery
+        """What the MIL-E-5008B recovery check compares: the recovery of the shock system and its regime
+        corrections (pi / pi_duct) less the reference, in supersonic flight only; NaN (not judged) at M0 <= 1."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            shock_recovery = self.recovery / self.duct_recovery
+        return np.where(self.mach > 1.0, shock_recovery - self.reference_recovery, np.nan)
 
     @property
     def judged(self) -> np.ndarray:
