@@ -69,7 +69,12 @@ def door_flow(area_m2, discharge_coefficient, total_pressure_pa, total_temperatu
 
 
 def bypass_flow(needed_kg_s, capacity_kg_s):
-    """(door flow, insufficient): the doors pass what is needed up to their capacity (kg/s)."""
+    """(door flow, insufficient): the doors pass what is needed up to their capacity (kg/s).
+
+    >>> flow, short = bypass_flow([5.0, 12.0], 10.0)
+    >>> flow.tolist(), short.tolist()
+    ([5.0, 10.0], [False, True])
+    """
     need = np.maximum(np.asarray(needed_kg_s, dtype=float), 0.0)
     cap = np.maximum(np.asarray(capacity_kg_s, dtype=float), 0.0)
     with np.errstate(invalid="ignore"):
@@ -81,6 +86,10 @@ def auxiliary_share(throat_area_m2, auxiliary_area_m2, flight_mach, door_mach_ma
     """(effective area, door share of the throat flow, open) for auxiliary doors open where M0 < ``door_mach_max``.
 
     Doors and throat at one Mach number pass flow in proportion to area: share = A_aux/(A_th + A_aux).
+
+    >>> area, share, open_ = auxiliary_share(0.2, 0.1, [0.2, 0.5], 0.35)
+    >>> area.tolist(), [round(float(x), 6) for x in share], open_.tolist()
+    ([0.30000000000000004, 0.2], [0.333333, 0.0], [True, False])
     """
     m0 = np.asarray(flight_mach, dtype=float)
     if door_mach_max is None or auxiliary_area_m2 <= 0.0:
@@ -97,15 +106,32 @@ def auxiliary_recovery(share, loss_coefficient, throat_mach):
 
     The doors' air loses K_aux times its dynamic pressure (q/p_t = (g/2) M^2 (1 + (g-1)/2 M^2)^(-g/(g-1)));
     the throat's air loses nothing more; mixed by mass (the shares are mass shares at one Mach number).
+
+    Example: a third of the flow through doors of K_aux = 0.6 at M = 0.5 (q/p_t = 0.7 x 0.25 x 0.84302 = 0.14753,
+    NACA 1135 isentropic table p/p_t = 0.84302 at M = 0.5):
+
+    >>> round(float(auxiliary_recovery(1.0 / 3.0, 0.6, 0.5)), 5)
+    0.97049
     """
     return 1.0 - share * loss_coefficient * dynamic_to_total_pressure(throat_mach)
 
 
 def bleed_drag(bleed_flow_kg_s, velocity_m_s, exit_velocity_ratio):
-    """Bleed drag (N) from the momentum relation: D_b = W_b (V0 - r_b V0) = W_b V0 (1 - r_b)."""
+    """Bleed drag (N) from the momentum relation: D_b = W_b (V0 - r_b V0) = W_b V0 (1 - r_b).
+
+    ``bleed_flow_kg_s`` in kg/s, ``velocity_m_s`` V0 in m/s, ``exit_velocity_ratio`` r_b. Source: momentum
+    theorem on the bled stream tube (Seddon & Goldsmith, bleed drag).
+
+    >>> float(bleed_drag(2.0, 500.0, 0.25))
+    750.0
+    """
     return bleed_flow_kg_s * velocity_m_s * (1.0 - exit_velocity_ratio)
 
 
 def bypass_drag(bypass_flow_kg_s, velocity_m_s, exit_velocity_ratio):
-    """Bypass drag (N): D_bp = W_bp V0 (1 - r_bp)."""
+    """Bypass drag (N): D_bp = W_bp V0 (1 - r_bp), as the bleed drag (kg/s, m/s).
+
+    >>> float(bypass_drag(4.0, 600.0, 0.0))
+    2400.0
+    """
     return bypass_flow_kg_s * velocity_m_s * (1.0 - exit_velocity_ratio)

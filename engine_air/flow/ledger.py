@@ -72,7 +72,14 @@ def bilinear_held(x_axis, y_axis, table, x, y) -> np.ndarray:
 
 
 def net_thrust(rating: Rating, flight_mach, altitude_m) -> np.ndarray:
-    """Uninstalled net thrust F_n (N) of ``rating`` at (M0, H) from its table; NaN without thrust data."""
+    """Uninstalled net thrust F_n (N) of ``rating`` at (M0, H) from its table; NaN without thrust data.
+
+    >>> from engine_air.project.model import Rating
+    >>> r = Rating("r", (1.0,), (50.0,), thrust_mach=(0.0, 1.0), thrust_altitude_m=(0.0,),
+    ...            net_thrust_n=((10000.0, 12000.0),), thrust_reference_recovery=1.0, recovery_thrust_exchange=1.0)
+    >>> float(net_thrust(r, 0.25, 5000.0))
+    10500.0
+    """
     m0, h = np.broadcast_arrays(np.asarray(flight_mach, dtype=float), np.asarray(altitude_m, dtype=float))
     if not has_thrust_data(rating):
         return np.full(m0.shape, np.nan)
@@ -81,7 +88,12 @@ def net_thrust(rating: Rating, flight_mach, altitude_m) -> np.ndarray:
 
 
 def reference_recovery_of(rating: Rating, flight_mach) -> np.ndarray:
-    """pi_ref of the thrust table: MIL-E-5008B at M0 for "mil-e-5008b", else the given number."""
+    """pi_ref of the thrust table: MIL-E-5008B at M0 for "mil-e-5008b", else the given number.
+
+    >>> from engine_air.project.model import Rating
+    >>> float(reference_recovery_of(Rating("r", (1.0,), (50.0,), thrust_reference_recovery="mil-e-5008b"), 2.0))
+    0.925
+    """
     m0 = np.asarray(flight_mach, dtype=float)
     ref = rating.thrust_reference_recovery
     if ref is None or ref == REFERENCE_RECOVERY_NAME:
