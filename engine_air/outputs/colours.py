@@ -99,8 +99,7 @@ def matplotlib_colormap(kind: str, n: int = 256):
     from matplotlib.colors import ListedColormap
 
     cmap = ListedColormap(np.asarray(lut(kind, n)), name=f"engine-air-{kind_of(kind)}")
-    cmap.set_bad((0, 0, 0, 0))
-    return cmap
+    return cmap.with_extremes(bad=(0, 0, 0, 0))
 
 
 def nice_ceiling(x: float) -> float:
