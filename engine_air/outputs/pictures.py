@@ -48,7 +48,6 @@ from engine_air.outputs.sections import (
     Section,
     check_of,
     cut,
-    failing_map,
     judged_map,
     stretches,
 )
@@ -232,8 +231,7 @@ def map_figure(
     judged = judged_map(result, name, quantity_key) if kind == C.MARGIN else (result.inside & np.isfinite(values))
     not_judged = result.inside & ~judged
     shown = np.where(judged, values, np.nan)
-    failing = failing_map(result, name, quantity_key) if kind == C.MARGIN else result.failing(name)
-    failing = failing & result.inside
+    failing = result.failing(name) & result.inside  # any limit, as in the program's map
     if levels is None:
         levels = C.levels_for(kind, shown)
     vmin, vmax = float(levels[0]), float(levels[1])
