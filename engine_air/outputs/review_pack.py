@@ -313,7 +313,7 @@ th { background: #efefef; text-align: left; } td.n { text-align: right; font-var
 .banner { padding: 8px 12px; border: 2px solid; display: inline-block; margin: 8px 0; font-weight: bold; }
 .banner.holds { border-color: #0b4f8a; background: #eaf2fa; } .banner.fails { border-color: #b35806; background: #fdf0e3; }
 .meta { color: #555; } .maps { display: flex; flex-wrap: wrap; gap: 18px; }
-figure { margin: 0; max-width: 820px; } figure img { display: block; max-width: 100%; height: auto; }
+figure { margin: 0; width: 540px; } figure img { display: block; width: 100%; height: auto; }
 figcaption { font-size: 12px; color: #333; }
 pre { background: #f6f6f6; border: 1px solid #ddd; padding: 10px; white-space: pre-wrap; overflow-wrap: anywhere;
       font-size: 12px; }
@@ -382,6 +382,7 @@ def write_review_pack(
     case_names: list[str] | None = None,
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
+    units: str = "si",
 ) -> ReviewPack:
     """Evaluate a project and write its review pack into ``folder`` (created if needed).
 
@@ -398,6 +399,8 @@ def write_review_pack(
         Keys of ``engine_air.outputs.quantities.QUANTITIES`` to map.
     case_names : list of str, optional
         Evaluate only these cases (default every case).
+    units : "si" or "us"
+        Axes of the pictures: altitude in km ("si") or ft ("us").
 
     Returns a ``ReviewPack`` (paths, verdict, the evaluation). Raises
     ``ProjectError`` for an unusable project, KeyError for an unknown quantity,
@@ -406,12 +409,14 @@ def write_review_pack(
     for q in quantities:
         if q not in QUANTITIES:
             raise KeyError(q)
+    if str(units).lower() not in ("si", "us"):
+        raise ValueError(f"units must be 'si' or 'us', got {units!r}")
     project, text, source_name, notes = _read_source(project_or_path, source_text)
     folder = os.fspath(folder)
     result = evaluate_project(project, case_names, cancelled=cancelled)
     out = _Folder(folder)
     try:
-        return _write(out, project, text, source_name, notes, result, quantities, progress, cancelled)
+        return _write(out, project, text, source_name, notes, result, quantities, progress, cancelled, units)
     finally:
         out.close()
 
@@ -419,7 +424,8 @@ def write_review_pack(
 _PREVIOUS = re.compile(r"^(maps|sections)/[^/\\]+$")
 
 
-def _write(out: _Folder, project, text, source_name, notes, result, quantities, progress, cancelled) -> ReviewPack:
+def _write(out: _Folder, project, text, source_name, notes, result, quantities, progress, cancelled,
+           units) -> ReviewPack:
     folder = out.path
     written: list[str] = []
     out.manifest(sorted(set(out.previous) | {MANIFEST}), complete=False)  # ours from the first byte on
@@ -447,7 +453,7 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
         figures[q] = []
         for case in cases:
             check_cancel()
-            pic = render_map(result, q, None if case == WORST else case)
+            pic = render_map(result, q, None if case == WORST else case, units=units)
             name = f"{stems[case]}__{q}.png"
             pictures.append(out.write(f"maps/{name}", pic.png))
             written.append(f"maps/{name}")
@@ -484,7 +490,7 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
         for tag, kw in (("along-mach", {"altitude_m": at_alt}), ("along-altitude", {"mach": at_mach})):
             check_cancel()
             sec = cut(result, q, cases=cases, **kw)
-            png = figure_png(section_figure(sec, project_title=project.title).figure)
+            png = figure_png(section_figure(sec, units=units, project_title=project.title).figure)
             name = f"{q}__{tag}.png"
             section_pictures.append(out.write(f"sections/{name}", png))
             written.append(f"sections/{name}")
