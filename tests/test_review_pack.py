@@ -98,7 +98,9 @@ def test_pack_pictures_are_valid_pngs(ramp_pack):
     result = ramp_pack.result
     n_cases = len(result.cases) + 1  # each case and the worst of all
     assert len(ramp_pack.pictures) == n_cases * len(PACK_QUANTITIES)
-    assert len(ramp_pack.section_pictures) == 2 * len(PACK_QUANTITIES)
+    # sections: the limiting check's own quantity (recovery against MIL-E-5008B here), then every mapped one
+    assert len(ramp_pack.section_pictures) == 2 * (len(PACK_QUANTITIES) + 1)
+    assert Path(ramp_pack.section_pictures[0]).name == "recovery_minus_reference__along-mach.png"
     assert len(page.images) == len(ramp_pack.pictures) + len(ramp_pack.section_pictures)
     for img in page.images:
         prefix = "data:image/png;base64,"

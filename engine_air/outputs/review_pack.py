@@ -20,7 +20,8 @@ envelope for every case and writes into ``folder``:
   ``all-worst`` for the worst of all cases, so every name is unique and short
   whatever the case names;
 - ``sections/<quantity>__along-mach.png`` and ``..__along-altitude.png``: section
-  plots (every case) through the overall worst point;
+  plots (every case) through the overall worst point, of the limiting check's own
+  quantity and of every mapped quantity;
 - ``engine-air-pack.json``: the manifest, naming every file the pack wrote.
 
 Safe output: the pack writes only into a new or empty folder, or into one that
@@ -68,7 +69,7 @@ from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_p
 from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
 from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
-from engine_air.outputs.sections import cut
+from engine_air.outputs.sections import check_of, cut
 from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.point_record import shock_table, station_table
@@ -434,7 +435,7 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
     cases = [c.name for c in result.cases] + ([WORST] if len(result.cases) > 1 else [])
     stems = picture_stems(cases)
     worst = worst_point(result)
-    total = len(cases) * len(quantities) + 2 * len(quantities) + 1
+    total = len(cases) * len(quantities) + 2 * (len(quantities) + 1) + 1
     done = 0
 
     def tick():
@@ -484,7 +485,12 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
         where = "through the middle of the grid (no check applies anywhere)"
     section_pictures = []
     section_html = []
-    for q in quantities:
+    section_quantities = list(quantities)
+    if worst.check is not None:  # the limiting check's own quantity first, mapped or not
+        own = next((k for k in QUANTITIES if check_of(result, k) == worst.check), None)
+        if own is not None:
+            section_quantities = [own] + [k for k in section_quantities if k != own]
+    for q in section_quantities:
         quantity = QUANTITIES[q]
         row = []
         for tag, kw in (("along-mach", {"altitude_m": at_alt}), ("along-altitude", {"mach": at_mach})):
