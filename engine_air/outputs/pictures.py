@@ -33,12 +33,6 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
-from matplotlib.backends.backend_agg import FigureCanvasAgg
-from matplotlib.colors import ListedColormap, Normalize
-from matplotlib.figure import Figure
-from matplotlib.lines import Line2D
-from matplotlib.patches import Patch
-from matplotlib import patheffects
 
 from engine_air.envelope.evaluate import WORST, MapResult
 from engine_air.outputs import colours as C
@@ -57,8 +51,15 @@ levels_for = C.levels_for
 OUTSIDE_GREY = C.OUTSIDE_GREY
 UNDEFINED_GREY = C.NOT_JUDGED_GREY
 NOT_JUDGED_GREY = C.NOT_JUDGED_GREY
-DIVERGING_ANCHORS = C.anchors(C.MARGIN)
-SEQUENTIAL_ANCHORS = C.anchors(C.LEVEL)
+
+
+def __getattr__(name: str):
+    """``DIVERGING_ANCHORS`` / ``SEQUENTIAL_ANCHORS``: the scales as (position, (r, g, b)) stops, made on first use."""
+    if name == "DIVERGING_ANCHORS":
+        return C.anchors(C.MARGIN)
+    if name == "SEQUENTIAL_ANCHORS":
+        return C.anchors(C.LEVEL)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 DPI = 100
 MAP_SIZE_IN = (8.0, 6.4)
@@ -107,8 +108,21 @@ def _rgb(c) -> tuple[float, float, float]:
     return tuple(v / 255 for v in c[:3])
 
 
+def _mpl():
+    """matplotlib's pieces, imported on first use (importing this module stays cheap for the colour names)."""
+    from matplotlib import patheffects
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.colors import ListedColormap, Normalize
+    from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Patch
+
+    return patheffects, FigureCanvasAgg, ListedColormap, Normalize, Figure, Line2D, Patch
+
+
 def figure_png(fig: Figure) -> bytes:
     """PNG bytes of ``fig`` (Agg)."""
+    _, FigureCanvasAgg, *_rest = _mpl()
     canvas = fig.canvas if isinstance(fig.canvas, FigureCanvasAgg) else FigureCanvasAgg(fig)
     buf = io.BytesIO()
     canvas.print_png(buf, metadata={"Software": None})
@@ -133,6 +147,7 @@ def _contour(ax, x, y, field, level, **style) -> bool:
         warnings.simplefilter("ignore")
         cs = ax.contour(x, y, np.ma.masked_invalid(field), levels=[level], **style)
     if halo:
+        patheffects = _mpl()[0]
         cs.set(path_effects=[patheffects.withStroke(linewidth=halo, foreground="white")])
     return True
 
@@ -238,6 +253,7 @@ def map_figure(
     if not (math.isfinite(vmin) and math.isfinite(vmax)) or vmax <= vmin:
         vmin, vmax = C.levels_for(kind, np.array([vmin, vmax]))
 
+    _, FigureCanvasAgg, ListedColormap, Normalize, Figure, Line2D, Patch = _mpl()
     fig = Figure(figsize=MAP_SIZE_IN, dpi=DPI, layout="constrained")
     FigureCanvasAgg(fig)
     ax = fig.add_subplot()
@@ -347,7 +363,9 @@ def write_map_png(
 
 # -- sections ------------------------------------------------------------------------
 
-_FAIL_COLOUR = C.anchors(C.MARGIN, 9)[1][1]
+def _fail_colour() -> tuple[int, int, int]:
+    """The failing band of section plots: the orange arm of the margin scale."""
+    return C.anchors(C.MARGIN, 9)[1][1]
 
 
 @dataclass(frozen=True)
@@ -365,6 +383,7 @@ def section_figure(section: Section, *, units: str = SI, project_title: str | No
     alt_unit, alt_f = altitude_scale(units)
     q_unit, q_f = quantity_scale(section.quantity, units)
     along_mach = section.axis != ALTITUDE
+    _, FigureCanvasAgg, _, _, Figure, Line2D, _ = _mpl()
     fig = Figure(figsize=SECTION_SIZE_IN, dpi=DPI, layout="constrained")
     FigureCanvasAgg(fig)
     ax = fig.add_subplot()
@@ -395,7 +414,7 @@ def section_figure(section: Section, *, units: str = SI, project_title: str | No
             finite = np.isfinite(v)
             xs = np.interp(at, np.arange(n), position)
             ys = np.interp(at, np.flatnonzero(finite), v[finite])
-            draw(xs, ys, color=_rgb(_FAIL_COLOUR), lw=9, alpha=0.45, solid_capstyle="round", zorder=1,
+            draw(xs, ys, color=_rgb(_fail_colour()), lw=9, alpha=0.45, solid_capstyle="round", zorder=1,
                  marker="o" if len(at) == 1 else None, ms=9)
             any_fail = True
         draw(position, np.where(cs.judged, v, np.nan), color=colour, lw=width, ls=style,
@@ -409,7 +428,7 @@ def section_figure(section: Section, *, units: str = SI, project_title: str | No
         (ax.axhline if along_mach else ax.axvline)(lim, color="k", lw=1.4, ls=(0, (6, 2, 1, 2)), zorder=2)
         handles.append(Line2D([], [], color="k", lw=1.4, ls=(0, (6, 2, 1, 2))))
         labels.append("margin = 0 (the limit)" if section.kind == C.MARGIN else f"limit {lim:g}")
-    handles.append(Line2D([], [], color=_rgb(_FAIL_COLOUR), lw=9, alpha=0.45))
+    handles.append(Line2D([], [], color=_rgb(_fail_colour()), lw=9, alpha=0.45))
     labels.append("limit fails" + ("" if any_fail else " (nowhere on this cut)"))
     handles.append(Line2D([], [], color="0.3", lw=0.9, ls=":"))
     labels.append("not judged")
