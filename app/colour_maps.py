@@ -13,7 +13,6 @@ import numpy as np
 import pyqtgraph as pg
 
 from engine_air.outputs import colours
-from engine_air.outputs.colours import nice_ceiling as _nice_ceiling  # noqa: F401 - kept for callers
 
 NOT_JUDGED_GREY = colours.NOT_JUDGED_GREY
 OUTSIDE_GREY = colours.OUTSIDE_GREY

@@ -12,7 +12,6 @@ import html.parser
 from dataclasses import replace
 from pathlib import Path
 
-import numpy as np
 import pytest
 
 import engine_air
