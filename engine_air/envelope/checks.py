@@ -18,6 +18,9 @@ Checks, in order:
 - ``stability``: MFR/MFR_max - stable flow fraction, supersonic subcritical only.
 - ``relative-tip-mach``: limit - blade relative tip Mach, where a tip speed is given.
 - ``spillage``: spillage limit - spillage fraction (an extension of the file format).
+- ``started``: mixed-compression inlets (``limits.started_required``, default true for them), supersonic
+  points only: fails where the inlet is ``unstarted`` or, started, at ``unstart-risk`` (method §11).
+  Margin +1 where it holds, -1 where it fails (a yes/no check).
 """
 
 from __future__ import annotations
@@ -75,7 +78,8 @@ def build_checks(limits: Limits, points) -> list[Check]:
         _check(
             "throat-mach", "Throat Mach number",
             f"M_th <= {throat_limit:g}" if limits.throat_mach_max is not None else "throat not choked",
-            points.throat_mach, throat_limit - points.throat_mach, throat_limit, inside,
+            points.throat_mach, throat_limit - points.throat_mach, throat_limit,
+            inside if points.started is None else inside & ~points.started,  # started: a supersonic throat
             forced_fail=F.has(bits, F.THROAT_CHOKED),
         )
     )
@@ -124,6 +128,15 @@ def build_checks(limits: Limits, points) -> list[Check]:
                 "spillage", "Spillage fraction", f"spillage <= {cap:g}",
                 points.spillage_fraction, cap - points.spillage_fraction, max(cap, 0.01),
                 inside & np.isfinite(points.spillage_fraction),
+            )
+        )
+    started = getattr(points, "started", None)
+    if started is not None and (limits.started_required is None or limits.started_required):
+        bad = F.has(bits, F.UNSTARTED) | F.has(bits, F.UNSTART_RISK)
+        checks.append(
+            _check(
+                "started", "Inlet started (mixed compression)", "started, no unstart risk",
+                np.where(bad, 0.0, 1.0), np.where(bad, -1.0, 1.0), 1.0, inside & (points.mach > 1.0),
             )
         )
     return checks
