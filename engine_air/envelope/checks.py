@@ -9,7 +9,9 @@ check closest to failing.
 Checks, in order:
 - ``face-mach``: face Mach limit - M2 (a choked face, M2 = 1, always fails).
 - ``throat-mach``: throat Mach limit - M_th; without a given limit only choking
-  (M_th = 1) fails it, with the limit taken as 1.
+  (M_th = 1) fails it, with the limit taken as 1. A started mixed-compression inlet has a supersonic throat
+  with the terminal shock just behind it: there the judged value is the Mach number behind that shock
+  (the subsonic side of the throat, NACA Report 1135 eq. 96), not the supersonic M_th reported.
 - ``recovery``: a number: pi - pi_min. The name "mil-e-5008b": the recovery of
   the shock system and its regime corrections (pi / pi_duct: everything except the
   subsonic duct's own friction loss, which the reference does not contain) less
@@ -30,6 +32,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine_air.envelope import flags as F
+from engine_air.physics.shocks import normal_shock
 from engine_air.project.model import REFERENCE_RECOVERY_NAME, Limits
 
 
@@ -74,12 +77,14 @@ def build_checks(limits: Limits, points) -> list[Check]:
         )
     ]
     throat_limit = limits.throat_mach_max if limits.throat_mach_max is not None else 1.0
+    throat_judged = points.throat_mach
+    if points.started is not None:  # started: the subsonic side of the throat, behind the terminal shock
+        throat_judged = np.where(points.started, normal_shock(points.throat_mach).downstream_mach, throat_judged)
     checks.append(
         _check(
             "throat-mach", "Throat Mach number",
             f"M_th <= {throat_limit:g}" if limits.throat_mach_max is not None else "throat not choked",
-            points.throat_mach, throat_limit - points.throat_mach, throat_limit,
-            inside if points.started is None else inside & ~points.started,  # started: a supersonic throat
+            throat_judged, throat_limit - throat_judged, throat_limit, inside,
             forced_fail=F.has(bits, F.THROAT_CHOKED),
         )
     )
