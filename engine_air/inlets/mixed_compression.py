@@ -111,7 +111,8 @@ def _scan(can_run: np.ndarray, starts: np.ndarray) -> np.ndarray:
 
 def started_along(inlet: Inlet, mach_history) -> np.ndarray:
     """Started state at each Mach number of a flight history ``mach_history`` (1-D, in time order; the
-    flight Mach varies linearly between its entries, sampled every ``SCAN_STEP``), starting unstarted.
+    flight Mach varies linearly between its entries, sampled every ``SCAN_STEP``). The history begins
+    unstarted at Mach 1 (or at its first entry if that is lower) and accelerates to its first entry.
 
     Use it for a deceleration: a history up past the self-start Mach and back down stays started down to the
     unstart Mach; an acceleration alone does not start it until the self-start Mach.
