@@ -17,7 +17,6 @@ import pathlib
 import sys
 import time
 
-import numpy as np
 
 ROOT = pathlib.Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))

@@ -25,7 +25,7 @@ from engine_air.inlets.mixed_compression import INLET, started_accelerating, sta
 from engine_air.inlets.registry import inlet_type
 from engine_air.outputs.point_record import point_record
 from engine_air.project.errors import ProjectError
-from engine_air.project.model import Inlet, Schedule
+from engine_air.project.model import Schedule
 from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
 
 ROOT = pathlib.Path(__file__).resolve().parent.parent
