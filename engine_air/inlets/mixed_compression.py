@@ -29,8 +29,11 @@ layer except through eta_int), the cowl shock as a plane oblique shock at the me
 terminal shock taken at the throat, ramp angles and the shock-on-lip Mach fixed (only the throat area is
 read from a schedule), pre-entry drag not modelled (as for the external-ramp type).
 
-Example (ramps [6, 6] deg, M_d = 2.4, A_th/A_c = 0.75 at M0 = 2.4): see the tests, where the started
-recovery is rebuilt from NACA Report 1135 relations shock by shock.
+Example (checked in tests/test_mixed_compression.py shock by shock with NACA Report 1135 relations): ramps
+[5, 5] deg, M_d = 2.5, A_th/A_c = 0.85, eta_int = 0.97. Accelerating, it self-starts at M0 = 2.2225; at
+M0 = 2.5, started, M_th = 1.4778 and pi_ext = 0.8879 (Kantrowitz limit at M_e: 0.8078). With the throat
+scheduled 0.80 -> 0.85 between M0 2.3 and 2.6 it self-starts at 2.413 and, decelerating, stays started down
+to 2.328 (the hysteresis band).
 """
 
 from __future__ import annotations
