@@ -81,7 +81,41 @@ class MixedState:
 
 
 def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
-    """The Mach-only state of the mixed-compression ``inlet`` at flight Mach numbers ``flight_mach`` (array)."""
+    """The Mach-only state of the mixed-compression ``inlet`` at flight Mach numbers ``flight_mach``.
+
+    Ramps as ``ramp_layout.ramp_shock_system`` (post-ramp Mach M_e), the cowl shock turning by the ramp sum at
+    M_e [NACA Report 1135, eqs. 132, 138], the contraction c = A_th(M0)/A_c, the started throat Mach (supersonic
+    root of A(M_th)/A* = c A(M1)/A*, ``starting.started_throat_mach``), can-run-started (ramps and cowl shock
+    attached, M1 > 1, a root), the Kantrowitz limit at M_e (``starting.self_start_contraction``) and
+    self-starting (can run started and c at or above that limit).
+
+    Parameters
+    ----------
+    inlet : Inlet
+        A mixed-compression inlet (ramps, shock-on-lip Mach, capture area; throat area fixed or scheduled).
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless), any shape.
+
+    Returns
+    -------
+    MixedState
+        Arrays of the shape of ``flight_mach`` (the ramp shock system's per-ramp arrays lead with the ramp axis).
+
+    Examples
+    --------
+    Two 5 deg ramps at M0 = 2.5 turn the flow to M_e = 2.097 (two NACA 1135 oblique shocks); the Kantrowitz
+    limit there is 0.8078 and the scheduled contraction 0.8333 is above it: it can run started and starts itself.
+
+    >>> from engine_air.project.model import Inlet, Schedule
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
+    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
+    >>> st = mixed_state(inlet, 2.5)
+    >>> print(f"{float(st.entrance_mach):.3f} {float(st.self_start_limit):.4f} {float(st.contraction):.4f}")
+    2.097 0.8078 0.8333
+    >>> bool(st.can_run), bool(st.starts)
+    (True, True)
+    """
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -119,6 +153,29 @@ def started_along(inlet: Inlet, mach_history) -> np.ndarray:
 
     Use it for a deceleration: a history up past the self-start Mach and back down stays started down to the
     unstart Mach; an acceleration alone does not start it until the self-start Mach.
+
+    Parameters
+    ----------
+    inlet : Inlet
+        A mixed-compression inlet.
+    mach_history : array_like
+        Flight Mach numbers (dimensionless) in time order, 1-D.
+
+    Returns
+    -------
+    ndarray of bool
+        Started at each entry of ``mach_history``.
+
+    Examples
+    --------
+    The throat schedule below self-starts the inlet at M0 2.413 and keeps it started, decelerating, to 2.328:
+
+    >>> from engine_air.project.model import Inlet, Schedule
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
+    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
+    >>> started_along(inlet, [2.38, 2.5, 2.38, 2.3]).tolist()
+    [False, True, True, False]
     """
     path = np.asarray(mach_history, dtype=float).ravel()
     pieces = [np.array([min(SCAN_START, path[0]) if path.size else SCAN_START])]
@@ -135,9 +192,31 @@ def started_along(inlet: Inlet, mach_history) -> np.ndarray:
 
 
 def started_accelerating(inlet: Inlet, flight_mach) -> np.ndarray:
-    """Started state at each flight Mach number (any shape) for an inlet that accelerated from Mach 1 at
-    constant geometry schedule (method §11 history): one scan along a dense Mach axis that contains every
-    asked Mach number, read back per Mach number."""
+    """Started state at each flight Mach number for an inlet that accelerated from Mach 1 along its geometry
+    schedule (method §11 history): one running scan along a dense Mach axis (every ``SCAN_STEP``) that contains
+    every asked Mach number, read back per Mach number (the same on every altitude row).
+
+    Parameters
+    ----------
+    inlet : Inlet
+        A mixed-compression inlet.
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless), any shape.
+
+    Returns
+    -------
+    ndarray of bool
+        Started, the shape of ``flight_mach``; False where M0 <= 1.
+
+    Examples
+    --------
+    >>> from engine_air.project.model import Inlet, Schedule
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
+    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
+    >>> started_accelerating(inlet, [0.9, 2.38, 2.42, 3.0]).tolist()
+    [False, False, True, True]
+    """
     m0 = np.asarray(flight_mach, dtype=float)
     sup = m0 > SCAN_START
     if not sup.any():
@@ -167,6 +246,27 @@ def starting_machs(inlet: Inlet, top_mach: float = TOP_MACH) -> tuple[float | No
     Unstart Mach: decelerating from there, the lowest Mach number down to which it still runs started
     (at or below the self-start Mach; the band between them is the hysteresis band). ``(None, None)``
     when it does not start below ``top_mach``. Resolved to about SCAN_STEP/256.
+
+    Parameters
+    ----------
+    inlet : Inlet
+        A mixed-compression inlet.
+    top_mach : float
+        Highest flight Mach number searched (dimensionless).
+
+    Returns
+    -------
+    tuple
+        (self-start Mach, unstart Mach), floats or ``None``.
+
+    Examples
+    --------
+    >>> from engine_air.project.model import Inlet, Schedule
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
+    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
+    >>> print("%.3f %.3f" % starting_machs(inlet))
+    2.413 2.328
     """
     axis = np.arange(SCAN_START, top_mach + SCAN_STEP / 2, SCAN_STEP)
     state = mixed_state(inlet, axis)

@@ -31,12 +31,29 @@ from engine_air.physics.shocks import normal_shock
 
 
 def isentropic_contraction_limit(mach, gamma=GAMMA):
-    """Smallest throat-to-entrance area ratio A_th/A_c passing a stream of entrance Mach ``mach`` without a
-    shock: A*/A(M) = M [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^(-(g+1)/(2(g-1))), dimensionless [1, eq. 80].
+    """Isentropic contraction limit: the smallest throat-to-entrance area ratio A_th/A_c that passes a stream of
+    entrance Mach M without a shock (the throat is then sonic) [1, eq. 80].
 
-    1 where M <= 1 (a subsonic entrance has no supersonic contraction).
+    (A_th/A_c)_min = A*/A(M) = M [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^(-(g+1)/(2(g-1)))
 
-    >>> round(float(isentropic_contraction_limit(2.0)), 4)   # NACA Report 1135: A/A* = 1.6875 at M = 2
+    Parameters
+    ----------
+    mach : array_like
+        Entrance Mach number M (dimensionless).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        A*/A (dimensionless, 0 < value <= 1), the shape of ``mach``; 1 where M <= 1 (a subsonic entrance has no
+        supersonic contraction).
+
+    Examples
+    --------
+    NACA Report 1135, Table I: A/A* = 1.6875 at M = 2, so A*/A = 0.5926.
+
+    >>> print(f"{float(isentropic_contraction_limit(2.0)):.4f}")
     0.5926
     """
     m = np.asarray(mach, dtype=float)
@@ -47,18 +64,33 @@ def isentropic_contraction_limit(mach, gamma=GAMMA):
 
 
 def self_start_contraction(mach, gamma=GAMMA):
-    """Kantrowitz-Donaldson self-start limit on A_th/A_c for an entrance Mach number ``mach`` [2]:
+    """Kantrowitz-Donaldson self-start limit on the throat-to-entrance area ratio A_th/A_c [2]: with a normal shock
+    at the entrance, the throat must pass, sonic, the whole stream behind it.
 
-        (A_th/A_c)_start = (A*/A)(M) / pi_ns(M)
+    (A_th/A_c)_start = (A*/A)(M) / pi_ns(M)
 
-    with A*/A the isentropic area ratio [1, eq. 80] and pi_ns the normal-shock total-pressure ratio
-    [1, eq. 99]: the throat must pass, sonic, the whole stream behind a normal shock at the entrance.
-    Dimensionless; 1 where M <= 1 (the limit tends to 1 as M -> 1 from above). It falls monotonically
-    with M: 0.9144 at M = 1.5, 0.8220 at M = 2, 0.7192 at M = 3, towards about 0.600 at very high Mach
-    numbers (g = 1.4).
+    with A*/A the isentropic area ratio [1, eq. 80] and pi_ns the normal-shock total-pressure ratio [1, eq. 99].
+    It falls monotonically with M: 0.9144 at M = 1.5, 0.8220 at M = 2, 0.7192 at M = 3, towards about 0.600 at
+    very high Mach numbers (g = 1.4); it tends to 1 as M -> 1 from above.
 
-    >>> round(float(self_start_contraction(2.0)), 4)   # 0.59259 / 0.72087, NACA Report 1135 tables
-    0.822
+    Parameters
+    ----------
+    mach : array_like
+        Entrance Mach number M ahead of the (starting) normal shock (dimensionless).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        The self-start limit (dimensionless, 0.6 < value <= 1), the shape of ``mach``; 1 where M <= 1.
+
+    Examples
+    --------
+    NACA Report 1135, Tables I and II at M = 2: (1/1.6875)/0.72087 = 0.8220.
+
+    >>> print(f"{float(self_start_contraction(2.0)):.4f}")
+    0.8220
     """
     m = np.asarray(mach, dtype=float)
     sup = m > 1.0
@@ -69,18 +101,36 @@ def self_start_contraction(mach, gamma=GAMMA):
 
 
 def started_throat_mach(contraction, entrance_mach, gamma=GAMMA):
-    """Supersonic throat Mach number M_th of a started isentropic contraction, dimensionless:
+    """Supersonic throat Mach number M_th of a started isentropic contraction [1, eq. 80]:
 
-        A(M_th)/A* = (A_th/A_c) A(M1)/A*,   supersonic root  [1, eq. 80]
+    A(M_th)/A* = (A_th/A_c) A(M1)/A*,   supersonic root
 
-    ``contraction`` = A_th/A_c, ``entrance_mach`` = M1 (supersonic, at area A_c). Uses the inverse of the
-    flow function (``engine_air.physics.isentropic.mach_from_flow_ratio``, supersonic branch).
-    NaN where there is no supersonic root (the contraction is tighter than the isentropic limit, or M1 <= 1):
-    the contraction cannot run started there.
+    solved with the inverse of the flow function (``engine_air.physics.isentropic.mach_from_flow_ratio``,
+    supersonic branch).
 
-    >>> round(float(started_throat_mach(1.0, 2.0)), 6)   # no contraction: the Mach number is kept
-    2.0
-    >>> round(float(started_throat_mach(1.6875 / 1.25, 2.0)), 4) > 1.0   # A/A* = 1.25 at the throat
+    Parameters
+    ----------
+    contraction : array_like
+        Throat-to-entrance area ratio A_th/A_c (dimensionless, > 0).
+    entrance_mach : array_like
+        Mach number M1 at the entrance area A_c (dimensionless, supersonic).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        M_th (dimensionless, 1 <= M_th <= M1), the broadcast shape; NaN where there is no supersonic root (the
+        contraction is tighter than the isentropic limit A*/A(M1), or M1 <= 1): it cannot run started there.
+
+    Examples
+    --------
+    M1 = 2 (A/A* = 1.6875, NACA Report 1135 Table I) through A_th/A_c = 0.8: A/A* = 1.35 at the throat, the
+    supersonic root of which is M_th = 1.7130; no contraction keeps M1.
+
+    >>> print(f"{float(started_throat_mach(0.8, 2.0)):.4f} {float(started_throat_mach(1.0, 2.0)):.4f}")
+    1.7130 2.0000
+    >>> bool(np.isnan(started_throat_mach(0.5, 2.0)))   # tighter than A*/A = 0.5926
     True
     """
     c = np.asarray(contraction, dtype=float)
