@@ -2,8 +2,8 @@
 at the selected Mach, one line per case, with the limit line and the failing stretch marked.
 
 A design review reads schedules and margins as lines; these two plots give them for the selected point. The
-numbers are the map's own (``MapResult.quantity`` and ``MapResult.failing``), so a cut never disagrees with the
-map. ``export(path)`` writes the two plots as PNG or SVG, like the map.
+cuts are ``engine_air.outputs.sections.cut`` (the review pack draws the same arrays), so a cut never disagrees
+with the map. ``export(path)`` writes the two plots as PNG or SVG, like the map.
 """
 
 from __future__ import annotations
@@ -16,47 +16,12 @@ from PySide6.QtWidgets import QWidget
 
 from engine_air.envelope.evaluate import WORST
 from engine_air.outputs.quantities import QUANTITIES
+from engine_air.outputs.sections import cut
 
 from .units import Units, dimension_of_si_unit
 
-# which check judges a quantity, and the limit value drawn for a level quantity
-_CHECK_OF = {
-    "face_mach_margin": "face-mach", "face_mach": "face-mach", "throat_mach": "throat-mach",
-    "recovery": "recovery", "recovery_minus_reference": "recovery", "relative_tip_mach": "relative-tip-mach",
-    "spillage_fraction": "spillage",
-}
-_LIMIT_OF = {
-    "face_mach": "face_mach_max", "throat_mach": "throat_mach_max", "relative_tip_mach": "relative_tip_mach_max",
-    "spillage_fraction": "spillage_fraction_max", "recovery": "recovery_min",
-}
 _CASE_COLOURS = [(31, 119, 180), (214, 39, 40), (44, 160, 44), (148, 103, 189), (140, 86, 75), (23, 190, 207),
                  (188, 189, 34), (127, 127, 127)]
-
-
-def check_of(key: str) -> str | None:
-    """The check that judges quantity ``key`` (None: shown against every check)."""
-    q = QUANTITIES.get(key)
-    return getattr(q, "check", None) or _CHECK_OF.get(key)
-
-
-def limit_value(project, key: str) -> float | None:
-    """The line drawn as the limit: 0 for a margin, the file's limit for a judged level quantity."""
-    q = QUANTITIES[key]
-    if q.kind == "margin":
-        return 0.0
-    name = _LIMIT_OF.get(key)
-    value = getattr(project.limits, name, None) if name else None
-    return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else None
-
-
-def section(result, case: str, key: str, along: str, index: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(x, y, failing) of one case along a grid row (``along="mach"``, row ``index``) or column
-    (``along="altitude"``, column ``index``); y is NaN outside the envelope."""
-    values = result.quantity(case, key)
-    failing = result.failing(case, check_of(key))
-    if along == "mach":
-        return np.asarray(result.mach), values[index, :], failing[index, :]
-    return np.asarray(result.altitude_m), values[:, index], failing[:, index]
 
 
 class SectionPlots(pg.GraphicsLayoutWidget):
@@ -104,21 +69,24 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         self.by_mach.setLabel("left", ylabel)
         self.by_altitude.setLabel("left", units.with_unit("pressure altitude", "altitude"))
         self.by_altitude.setLabel("bottom", ylabel)
-        limit = limit_value(result.project, key)
+        along_mach = cut(result, key, altitude_m=altitude, cases=names)
+        along_altitude = cut(result, key, mach=mach, cases=names)
+        limit = along_mach.limit
         for k, name in enumerate(names):
             colour = _CASE_COLOURS[k % len(_CASE_COLOURS)]
             pen = pg.mkPen(colour, width=2)
-            for plot, along, idx in ((self.by_mach, "mach", i), (self.by_altitude, "altitude", j)):
-                x, y, fails = section(result, name, key, along, idx)
-                y_disp = y / qf
+            for plot, along, section in ((self.by_mach, "mach", along_mach), (self.by_altitude, "altitude", along_altitude)):
+                data = section.case(name)
+                y_disp = data.values / qf
                 if along == "mach":
-                    px, py = x, y_disp
+                    px, py = section.x, y_disp
                 else:
-                    px, py = y_disp, x / af  # altitude up the side, the quantity across
+                    px, py = y_disp, section.x / af  # altitude up the side, the quantity across
                 plot.plot(px, py, pen=pen, name=name, connect="finite")
                 self.lines[(along, name)] = (px, py)
-                self.failing[(along, name)] = fails
-                if fails.any():
+                self.failing[(along, name)] = data.failing
+                if data.failing.any():
+                    fails = data.failing
                     plot.plot(px[fails], py[fails], pen=None, symbol="x", symbolSize=9,
                               symbolPen=pg.mkPen((200, 30, 30), width=2), symbolBrush=None,
                               name="fails" if k == 0 else None)

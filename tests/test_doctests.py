@@ -25,6 +25,8 @@ DOCUMENTED = [
     "engine_air.physics.reference_recovery",
     "engine_air.flow.demand",
     "engine_air.inlets.ramp_layout",
+    "engine_air.physics.starting",
+    "engine_air.inlets.mixed_compression",
 ]
 
 

@@ -23,11 +23,14 @@ from engine_air.project.toml_file import load_project  # noqa: E402
 
 
 def _fixed_geometry_without_airflow_management(path) -> bool:
-    """The scalar model predates schedules, bleed, bypass and auxiliary doors (method section 12), case regions
-    and corrected tip speed: samples using them are checked in test_airflow.py and test_schedule.py instead."""
+    """The scalar model reads a throat schedule but not the other schedules, bleed, bypass and auxiliary doors
+    (method section 12), case regions or corrected tip speed: samples using them are checked in test_airflow.py,
+    test_schedule.py and test_case_regions.py instead."""
     p = load_project(path)
     i = p.inlet
-    return (i.schedule is None and i.bleed_fraction == 0.0 and i.bypass_area_m2 == 0.0
+    s = i.schedule
+    only_throat = s is None or (s.shock_on_lip_mach is None and s.ramp_angles_deg is None and s.bleed_fraction is None)
+    return (only_throat and i.bleed_fraction == 0.0 and i.bypass_area_m2 == 0.0
             and i.auxiliary_inlet_area_m2 == 0.0 and all(r.corrected_tip_speed_m_s is None for r in p.ratings)
             and all(c.mach_range is None and c.altitude_range_m is None for c in p.cases))
 

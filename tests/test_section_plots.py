@@ -20,7 +20,7 @@ SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 
 
 def test_sections_draw_the_map_row_and_column_for_every_case(qtbot, tmp_path):
-    from app.section_plots_view import SectionPlots, limit_value
+    from app.section_plots_view import SectionPlots
 
     project = load_project(SAMPLES / "undersized_business_jet.toml")
     result = evaluate_project(project)
@@ -39,7 +39,5 @@ def test_sections_draw_the_map_row_and_column_for_every_case(qtbot, tmp_path):
         # failing where the face Mach exceeds the file's limit, inside the envelope
         expected = np.nan_to_num(values[:, j], nan=-1.0) > project.limits.face_mach_max
         np.testing.assert_array_equal(view.failing[("altitude", case.name)], expected)
-    assert limit_value(project, "face_mach") == project.limits.face_mach_max
-    assert limit_value(project, "face_mach_margin") == 0.0
     view.export(str(tmp_path / "cuts.png"))
     assert (tmp_path / "cuts.png").stat().st_size > 1000

@@ -123,6 +123,8 @@ class OperatingPoints:
     limiting: np.ndarray | None = None  # int index into checks, -1 where nothing is judged
     ramp_wave_angle_rad: np.ndarray | None = None  # (n_ramps, ...)
     ramp_downstream_mach: np.ndarray | None = None
+    started: np.ndarray | None = None  # bool, mixed compression only (method §11)
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
 
     @property
     def face_mach_margin(self) -> np.ndarray:
@@ -282,6 +284,10 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         pi = pi * scale
         w = w * scale
         bits |= np.where(supercritical, F.SUPERCRITICAL, 0)
+        # mixed compression (method §11): unstarted, or started with the demand below the capture
+        started = None if shocks.started is None else supersonic & shocks.started
+        if started is not None:
+            bits |= np.where(supersonic & ~started, F.UNSTARTED, 0)
 
         # throat, with the auxiliary doors in parallel where they are open; it passes engine + bypass flow
         a_throat, aux_share, _ = airflow.auxiliary_share(throat_area, inlet.auxiliary_inlet_area_m2, m0,
@@ -291,6 +297,8 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         # the throat passes the extra air within its Mach limit (unchoked without one); the rest spills
         throat_mach_cap = (project.limits.throat_mach_max if project.limits.throat_mach_max is not None else 1.0) * (1.0 - 1e-9)
         throat_room = a_throat * pi_ext * pt0_inlet * mass_flow_parameter(throat_mach_cap) / np.sqrt(tt0) - w
+        if started is not None:  # a started throat is supersonic: it passes the whole capture
+            throat_room = np.where(started, np.inf, throat_room)
         doors_open = supersonic & ~over & ~low
         bypass_needed = np.where(doors_open, np.maximum(mfr_max_geom * capture_flow * (1.0 - bleed) - w, 0.0), 0.0)
         w_bp, bits = _bypass(inlet, doors_open, bypass_needed, throat_room, pi_ext * pt0_inlet, tt0, p0, bits)
@@ -300,6 +308,8 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         throat_flow = w + w_bp
         throat_ratio = throat_flow * np.sqrt(tt0) / (a_throat * pi_ext * pt0_inlet) / mfp_star
         throat_choked = throat_ratio >= 1.0
+        if started is not None:  # started: the throat is supersonic, the terminal shock just behind it
+            throat_choked = throat_choked & ~started
         bits |= np.where(throat_choked, F.THROAT_CHOKED, 0)
         # a choked throat closes the bypass first, then starves the engine (recovery falls in proportion)
         choke_flow = throat_flow / throat_ratio
@@ -320,6 +330,11 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         bypass_fraction = np.where(w_bp > 0.0, w_bp / captured, 0.0)
         held = supersonic & (w_bp > 0.0) & (np.abs(captured / capture_flow / mfr_max_geom - 1.0) <= CRITICAL_BAND)
         critical = (critical | held) & ~supercritical
+        if started is not None:
+            m_th = np.where(started, shocks.terminal_upstream_mach, m_th)
+            # started with the capture (after any bypass) below the critical one: the shock may be expelled
+            bits |= np.where(started & (captured / capture_flow / mfr_max_geom < 1.0 - CRITICAL_BAND),
+                             F.UNSTART_RISK, 0)
 
         regime = np.where(
             supersonic,
@@ -441,6 +456,8 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         flags=bits,
         ramp_wave_angle_rad=_per_ramp(shocks.ramp_wave_angle_rad, shape),
         ramp_downstream_mach=_per_ramp(shocks.ramp_downstream_mach, shape),
+        started=None if started is None else full(started),
+        self_start_contraction=None if shocks.self_start_contraction is None else full(shocks.self_start_contraction),
     )
     points.checks = build_checks(project.limits, points)
     points.limiting = limiting_index(points.checks, points.flags)

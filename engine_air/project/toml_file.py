@@ -26,7 +26,6 @@ import tomli_w
 from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
 from engine_air.project.errors import ProjectError, ProjectSaveError
 from engine_air.project.model import (
-    INLET_TYPES,
     REFERENCE_RECOVERY_NAME,
     Case,
     Envelope,
@@ -66,13 +65,14 @@ MAX_TOTAL_RAMP_DEG = 40.0
 _TOP_KEYS = ("project", "limits", "inlet", "engine", "envelope", "grid", "case")
 _PROJECT_KEYS = ("format", "title", "notes")
 _LIMIT_KEYS = ("face_mach_max", "throat_mach_max", "recovery_min", "stable_flow_fraction",
-               "relative_tip_mach_max", "spillage_fraction_max", "installation_loss_max")
+               "relative_tip_mach_max", "spillage_fraction_max", "started_required", "installation_loss_max")
 _INLET_KEYS = ("type", "capture_area_m2", "throat_area_m2", "face_area_m2", "duct_loss_coefficient",
-               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach") + (
+               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "internal_recovery_factor",
+               "schedule") + (
     # airflow management (method section 12)
     "supersonic_lip_suction_factor", "bleed_fraction", "bleed_exit_velocity_ratio", "bypass_area_m2",
     "bypass_discharge_coefficient", "bypass_exit_velocity_ratio", "auxiliary_inlet_area_m2",
-    "auxiliary_door_mach_max", "auxiliary_loss_coefficient", "schedule")
+    "auxiliary_door_mach_max", "auxiliary_loss_coefficient")
 _AIRFLOW_NUMBERS = (  # key, lo, hi, lo_open, hi_open, default
     ("supersonic_lip_suction_factor", 0.0, 1.0, False, False, 0.0),
     ("bleed_fraction", 0.0, 0.5, False, False, 0.0),
@@ -84,8 +84,9 @@ _AIRFLOW_NUMBERS = (  # key, lo, hi, lo_open, hi_open, default
     ("auxiliary_door_mach_max", 0.0, 1.0, True, False, None),
     ("auxiliary_loss_coefficient", 0.0, 5.0, False, False, 0.0),
 )
-_SCHEDULE_KEYS = ("mach", "throat_area_m2", "shock_on_lip_mach", "ramp_angles_deg", "bleed_fraction")
 _RAMP_KEYS = ("ramp_angles_deg", "shock_on_lip_mach")
+_RAMP_TYPES = ("external-ramp", "mixed-compression")
+_SCHEDULE_KEYS = ("mach", "throat_area_m2", "shock_on_lip_mach", "ramp_angles_deg", "bleed_fraction")
 _RATING_KEYS = ("name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s", "corrected_tip_speed_m_s",
                 "thrust_mach", "thrust_altitude_m", "net_thrust_n", "thrust_reference_recovery",
                 "recovery_thrust_exchange")
@@ -295,6 +296,9 @@ def _read_limits(r: _Reader, data: dict) -> Limits:
                    f"not {_kind(recovery)}")
         else:
             recovery = r.check_number(recovery, "limits.recovery_min", "recovery_min", 0.0, 1.0)
+    started_required = t.get("started_required", None)
+    if started_required is not None and not isinstance(started_required, bool):
+        r.fail("limits.started_required", started_required, f"must be true or false, not {_kind(started_required)}")
     return Limits(
         face_mach_max=r.number(t, "face_mach_max", "limits.face_mach_max", 0.0, 1.0, hi_open=True),
         throat_mach_max=r.number(t, "throat_mach_max", "limits.throat_mach_max", 0.0, 1.0, default=None),
@@ -305,6 +309,7 @@ def _read_limits(r: _Reader, data: dict) -> Limits:
                                        hi_open=True, default=None),
         spillage_fraction_max=r.number(t, "spillage_fraction_max", "limits.spillage_fraction_max", 0.0, 1.0,
                                        lo_open=False, hi_open=True, default=None),
+        started_required=started_required,
         installation_loss_max=r.number(t, "installation_loss_max", "limits.installation_loss_max", -1.0, 1.0,
                                        hi_open=True, default=None),
     )
@@ -314,8 +319,10 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     t = r.table(data, "inlet", "inlet")
     r.check_known(t, "inlet", _INLET_KEYS)
     kind = r.string(t, "type", "inlet.type")
-    if kind not in INLET_TYPES:
-        r.fail("inlet.type", kind, "must be one of " + ", ".join(f'"{k}"' for k in INLET_TYPES))
+    from engine_air.inlets.registry import INLET_TYPES as known_types  # the registry is authoritative
+
+    if kind not in known_types:
+        r.fail("inlet.type", kind, "must be one of " + ", ".join(f'"{k}"' for k in known_types))
 
     def area(name: str) -> float:
         return r.number(t, name, f"inlet.{name}", 0.0, MAX_AREA_M2, unit="m^2")
@@ -329,7 +336,7 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     suction = r.number(t, "lip_suction_factor", "inlet.lip_suction_factor", 0.0, 1.0, lo_open=False, default=0.0)
     ramps: tuple[float, ...] = ()
     lip_mach = None
-    if kind == "external-ramp":
+    if kind in _RAMP_TYPES:
         ramps = r.number_list(t, "ramp_angles_deg", "inlet.ramp_angles_deg", 1, MAX_RAMPS, 0.0, MAX_RAMP_DEG,
                               unit="deg")
         if sum(ramps) > MAX_TOTAL_RAMP_DEG:
@@ -339,7 +346,13 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     else:
         for name in _RAMP_KEYS:
             if name in t:
-                r.warn(f"inlet.{name}", f'ignored: it applies to type = "external-ramp" only, this inlet is "{kind}"')
+                r.warn(f"inlet.{name}", f'ignored: it applies to ramp inlets only, this inlet is "{kind}"')
+    eta_int = 1.0
+    if kind == "mixed-compression":
+        eta_int = r.number(t, "internal_recovery_factor", "inlet.internal_recovery_factor", 0.0, 1.0, default=1.0)
+    elif "internal_recovery_factor" in t:
+        r.warn("inlet.internal_recovery_factor", f'ignored: it applies to type = "mixed-compression" only, '
+               f'this inlet is "{kind}"')
     airflow = {key: r.number(t, key, f"inlet.{key}", lo, hi, lo_open=lo_o, hi_open=hi_o, default=d)
                for key, lo, hi, lo_o, hi_o, d in _AIRFLOW_NUMBERS}
     if airflow["auxiliary_inlet_area_m2"] > 0.0 and airflow["auxiliary_door_mach_max"] is None:
@@ -348,7 +361,7 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     schedule = _read_schedule(r, t, kind, capture, ramps)
     return Inlet(type=kind, capture_area_m2=capture, throat_area_m2=throat, face_area_m2=face,
                  duct_loss_coefficient=duct_k, lip_suction_factor=suction, ramp_angles_deg=ramps,
-                 shock_on_lip_mach=lip_mach, schedule=schedule, **airflow)
+                 shock_on_lip_mach=lip_mach, internal_recovery_factor=eta_int, schedule=schedule, **airflow)
 
 
 def _read_schedule(r: _Reader, inlet_table: dict, kind: str, capture: float, ramps: tuple[float, ...]):
@@ -374,7 +387,7 @@ def _read_schedule(r: _Reader, inlet_table: dict, kind: str, capture: float, ram
     throat = same_length("throat_area_m2", r.number_list(t, "throat_area_m2", f"{kp}.throat_area_m2", 1, None,
                                                          0.0, capture, unit="m^2, at most capture_area_m2",
                                                          required=False))
-    ramp_kind = kind == "external-ramp"
+    ramp_kind = kind in _RAMP_TYPES
     lip = None
     rows = None
     if ramp_kind:
@@ -667,10 +680,12 @@ def project_to_dict(project: Project) -> dict:
         "duct_loss_coefficient": inl.duct_loss_coefficient,
         "lip_suction_factor": inl.lip_suction_factor,
     }
-    if inl.type == "external-ramp":
+    if inl.type in _RAMP_TYPES:
         inlet["ramp_angles_deg"] = list(inl.ramp_angles_deg)
         if inl.shock_on_lip_mach is not None:
             inlet["shock_on_lip_mach"] = inl.shock_on_lip_mach
+    if inl.type == "mixed-compression":
+        inlet["internal_recovery_factor"] = inl.internal_recovery_factor
     for key, _lo, _hi, _a, _b, default in _AIRFLOW_NUMBERS:
         if getattr(inl, key) != default:
             inlet[key] = getattr(inl, key)
@@ -739,12 +754,11 @@ def dumps_project(project: Project) -> str:
         out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items())
         out.append("")
 
+    schedule = d["inlet"].pop("schedule", None)
     for name in ("project", "limits", "inlet"):
-        body = dict(d[name])
-        schedule = body.pop("schedule", None)
-        table(f"[{name}]", body)
-        if schedule is not None:
-            table(f"[{name}.schedule]", schedule)
+        table(f"[{name}]", d[name])
+    if schedule is not None:
+        table("[inlet.schedule]", schedule)
     for item in d["engine"]["rating"]:
         table("[[engine.rating]]", item)
     table("[envelope]", d["envelope"])
