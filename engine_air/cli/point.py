@@ -4,6 +4,9 @@ Exit codes: 0 every limit judged at the point holds, 1 some limit fails, 2 the
 input is unusable or the point lies outside the atmosphere model (nothing can be
 computed), 3 the point is *not judged*: it lies outside the envelope polygon (or
 no limit applies there); it is still computed and written, with ``holds: null``.
+A point inside the envelope but outside its case's region (``mach_range``,
+``altitude_range_m``) is not judged either, and exits 0: the case does not apply
+there.
 """
 
 from __future__ import annotations
@@ -88,6 +91,9 @@ def run(args) -> int:
     if "outside-atmosphere" in record["flags"]:
         err(f"engine-air: no limit can be judged at {where}: {F.DESCRIPTIONS['outside-atmosphere']}")
         return EXIT_UNUSABLE
+    if record["holds"] is None and "outside-case-region" in record["flags"] and \
+            "outside-envelope" not in record["flags"]:
+        return EXIT_HOLDS  # computed, not judged: the case does not apply here (method section 14)
     if record["holds"] is None:
         reasons = [F.DESCRIPTIONS[n] for n in record["flags"] if n == "outside-envelope"] or \
             ["no limit applies at this point"]

@@ -15,7 +15,9 @@ def add_parser(sub) -> None:
     z.add_argument("project")
     z.add_argument("--variable", required=True,
                    help="capture_area_m2, throat_area_m2, face_area_m2, duct_loss_coefficient, "
-                        "ramp_angles_deg[k] (k from 1), shock_on_lip_mach")
+                        "ramp_angles_deg[k] (k from 1), shock_on_lip_mach, bleed_fraction, bypass_area_m2, "
+                        "auxiliary_inlet_area_m2, schedule.KEY[i] (row i from 1; KEY throat_area_m2, "
+                        "shock_on_lip_mach, bleed_fraction), schedule.ramp_angles_deg[i][k]")
     z.add_argument("--lower", type=float, help="lower end of the search range (the variable's SI unit)")
     z.add_argument("--upper", type=float, help="upper end of the search range")
     z.add_argument("--scan", type=int, default=25, help="values scanned before refining (3 to 201; default 25)")

@@ -37,8 +37,9 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
     "freestream" nested under ``"freestream"``), then ``regime``, ``flags``,
     ``flag_descriptions``, ``limiting``, ``checks``, ``judged`` and ``holds``.
     ``judged`` is false where no limit is judged: outside the envelope polygon
-    (flag ``outside-envelope``: the point is computed but never judged) or where
-    no check applies (e.g. outside the atmosphere model). ``holds`` and
+    (flag ``outside-envelope``: the point is computed but never judged), outside
+    the case's region (``outside-case-region``) or where no check applies (e.g.
+    outside the atmosphere model). ``holds`` and
     ``worst_relative_margin`` are null where the point is not judged (the flags
     ``outside-envelope`` / ``outside-atmosphere`` say why); else whether every
     judged check holds, and the least relative margin over them.
@@ -72,12 +73,14 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
             record[key] = value
         if key == "altitude_m":
             record["case"] = case_name
-    outside = bool(bits & F.OUTSIDE_ENVELOPE)
+    outside = bool(bits & (F.OUTSIDE_ENVELOPE | F.OUTSIDE_CASE_REGION))
     judged = (not outside) and any(c["holds"] is not None for c in checks)
     if not judged:
         record["worst_relative_margin"] = None  # nothing is judged here; the flags say why
     record.update({
         "regime": REGIMES[int(_at(points.regime, index))],
+        # mixed compression only (method §11); null for the other types (self_start_contraction likewise)
+        "started": None if points.started is None else bool(_at(points.started, index)),
         "flags": names,
         "flag_descriptions": {n: F.DESCRIPTIONS[n] for n in names},
         "limiting": points.checks[limiting].name if limiting >= 0 else None,

@@ -64,8 +64,12 @@ class Quantity:
         return self.us_unit if units == "us" and self.us_unit else self.unit
 
     def values(self, points) -> np.ndarray:
-        """The quantity's array from an ``OperatingPoints``."""
-        return np.asarray(points.value(self.key), dtype=float)
+        """The quantity's array from an ``OperatingPoints`` (NaN where the points do not carry it at all, e.g. a
+        mixed-compression quantity of another inlet type)."""
+        value = getattr(points, self.key)
+        if value is None:
+            return np.full(np.shape(points.mach), np.nan)
+        return np.asarray(value, dtype=float)
 
 
 def _q(key, label, unit, description, kind="level", us=("", 1.0), judged_by=None, group="", table=True,
@@ -117,8 +121,33 @@ _ALL = (
     _q("speed_of_sound_m_s", "Speed of sound a0", "m/s", "Free-stream speed of sound", us=_MS, group="freestream"),
     _q("additive_drag_n", "Additive drag", "N", "Pre-entry (additive) drag force", us=_N),
     _q("recovery_minus_reference", "Recovery minus MIL-E-5008B", "",
-       "Recovery less the MIL-E-5008B reference recovery at the flight Mach number", kind="margin", table=False,
+       "Recovery of the shock system (p_t2/p_t0 over the duct's own loss) less the MIL-E-5008B reference, "
+       "M0 > 1 only (what the reference-recovery check compares)", kind="margin", judged_by="recovery", table=False,
        json=False),
+    # airflow management (method section 12); fractions are of the captured flow
+    _q("captured_flow_kg_s", "Captured flow", "kg/s", "Mass flow through the capture plane (what MFR counts)", us=_KGS),
+    _q("bleed_fraction", "Bleed fraction", "", "Bleed flow over the captured flow"),
+    _q("bleed_flow_kg_s", "Bleed flow", "kg/s", "Boundary-layer bleed mass flow", us=_KGS),
+    _q("bypass_fraction", "Bypass fraction", "", "Bypass-door flow over the captured flow"),
+    _q("bypass_flow_kg_s", "Bypass flow", "kg/s", "Mass flow through the bypass doors", us=_KGS),
+    _q("auxiliary_flow_kg_s", "Auxiliary-door flow", "kg/s",
+       "Mass flow through the auxiliary (take-off) doors, not through the capture plane", us=_KGS),
+    _q("bypass_shortfall_kg_s", "Bypass shortfall", "kg/s",
+       "Critical capture that engine, bleed and doors do not take (M0 > 1)", us=_KGS),
+    _q("tip_speed_m_s", "Fan tip speed", "m/s", "Physical fan tip speed used for the relative tip Mach", us=_MS),
+    # the installation ledger (method section 13)
+    _q("ram_drag_n", "Ram drag", "N", "Momentum of the captured stream tube, W V0", us=_N),
+    _q("spillage_drag_n", "Spillage drag", "N", "Additive drag less lip suction", us=_N),
+    _q("bleed_drag_n", "Bleed drag", "N", "Drag of the bleed flow", us=_N),
+    _q("bypass_drag_n", "Bypass drag", "N", "Drag of the bypass flow", us=_N),
+    _q("net_thrust_n", "Net thrust", "N", "Engine net thrust from the rating's table", us=_N),
+    _q("installed_thrust_n", "Installed thrust", "N", "Net thrust less the installation losses", us=_N),
+    _q("installation_loss_fraction", "Installation loss fraction", "",
+       "Installation losses over the net thrust", judged_by="installation-loss"),
+    _q("thrust_reference_recovery", "Thrust reference recovery", "",
+       "Recovery the engine's thrust table assumes"),
+    _q("self_start_contraction", "Self-start contraction", "",
+       "Kantrowitz limit on A_th / A_c (mixed compression only)"),
     _q("worst_relative_margin", "Least relative margin (all limits)", "",
        "Least relative margin (margin over the limit's magnitude) over every check judged at the point; a failing "
        "check ranks first. Not defined (NaN / null) where nothing is judged: outside the atmosphere model "

@@ -245,7 +245,10 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
         cols["regime"] = coded_text(np.asarray(pts.regime), REGIMES)
         cols["limiting"] = coded_text(np.asarray(limiting), [c.name for c in pts.checks])
         cols["holds"] = (~fails).astype(np.int8)
-        cols["judged"] = (inside & (np.asarray(limiting).ravel() >= 0)).astype(np.int8)
+        judged = inside & (np.asarray(limiting).ravel() >= 0)
+        if hasattr(pts, "judged"):  # inside the case's region too
+            judged &= np.broadcast_to(pts.judged, result.inside.shape).ravel()
+        cols["judged"] = judged.astype(np.int8)
         cols["flags"] = flag_text(pts.flags)
         parts.append(to_arrow({name: cols[name] for name in order}))
     if not parts:
