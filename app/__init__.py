@@ -6,7 +6,3 @@ nothing here changes ``engine_air``.
 
 ORGANISATION = "EngineAirTools"
 APPLICATION = "Engine Air Desk"
-
-from . import binding_guard as _binding_guard  # noqa: E402
-
-_binding_guard.apply()

@@ -3,8 +3,8 @@
 Self-contained dialogs over ``engine_air.studies.sizing``, ``engine_air.studies.compare``,
 ``engine_air.studies.sweep`` and ``engine_air.outputs.review_pack``; the main window opens them
 through ``add_design_menu(main_window, get_project)``, which adds a "Design"
-menu. Every computation runs on a ``QThread`` worker with a progress bar and a
-Cancel button; results come back to the GUI thread by queued signals. Values
+menu. Every computation runs on the program's worker (``app.worker.Worker``) with a progress
+bar and a Cancel button; results come back to the GUI thread by queued signals. Values
 are in SI units, as in the analysis package.
 
 - ``SizingDialog(project)``: choose a design variable, the search bounds and an
@@ -23,13 +23,11 @@ from __future__ import annotations
 
 import math
 import os
-import threading
-import traceback
 from typing import Callable
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QObject, QRectF, Qt, QThread, QUrl, Signal, Slot
+from PySide6.QtCore import QRectF, Qt, QUrl, Slot
 from PySide6.QtGui import QAction, QColor, QDesktopServices
 from PySide6.QtWidgets import (
     QAbstractItemView,
@@ -75,6 +73,8 @@ from engine_air.studies.sizing import (
     variable_unit,
 )
 from engine_air.studies.sweep import MAX_VALUES_PER_VARIABLE, MAX_VARIABLES, sweep
+
+from .worker import Worker
 
 # -- shared pieces -------------------------------------------------------------------
 
@@ -131,43 +131,21 @@ def _spin(lo: float, hi: float, value: float, decimals: int = 6, step: float | N
     return s
 
 
-class _Job(QObject):
-    """Runs ``fn(progress, cancelled)`` on a worker thread and reports back by signals."""
-
-    progress = Signal(float)
-    done = Signal(object)
-    failed = Signal(str)
-    cancelled = Signal()
-
-    def __init__(self, fn: Callable) -> None:
-        super().__init__()
-        self._fn = fn
-        self.stop = threading.Event()
-
-    @Slot()
-    def run(self) -> None:
-        try:
-            result = self._fn(self.progress.emit, self.stop.is_set)
-        except Cancelled:
-            self.cancelled.emit()
-        except ProjectError as exc:
-            self.failed.emit(str(exc))
-        except Exception as exc:  # noqa: BLE001 - shown to the user; never kills the program
-            traceback.print_exc()
-            text = " ".join(str(exc).split())
-            self.failed.emit(f"{type(exc).__name__}: {text}" if text else type(exc).__name__)
-        else:
-            self.done.emit(result)
-
-
 class _TaskDialog(QDialog):
-    """A dialog with one background computation at a time: Run, Cancel, Close, progress and status."""
+    """A dialog with one background computation at a time: Run, Cancel, Close, progress and status.
+
+    The computation runs on the program's one worker pattern (``app.worker.Worker``): a newer Run
+    supersedes an older one, and an older one's late result is dropped.
+    """
 
     def __init__(self, title: str, parent=None) -> None:
         super().__init__(parent)
         self.setWindowTitle(title)
-        self._thread: QThread | None = None
-        self._job: _Job | None = None
+        self.worker = Worker(self, threads=1, supersede=True)
+        self.worker.progress.connect(self._on_progress)
+        self.worker.finished.connect(self._on_done)
+        self.worker.failed.connect(self._on_failed)
+        self.worker.cancelled.connect(self._on_cancelled)
         self.result = None
         self.last_error = ""
         self.run_button = QPushButton("Run")
@@ -204,7 +182,7 @@ class _TaskDialog(QDialog):
     # running -------------------------------------------------------------------
     @property
     def running(self) -> bool:
-        return self._thread is not None
+        return self.worker.busy
 
     @Slot()
     def start(self) -> None:
@@ -222,72 +200,48 @@ class _TaskDialog(QDialog):
         self.status.setText("Running…")
         self.run_button.setEnabled(False)
         self.cancel_button.setEnabled(True)
-        thread = QThread(self)
-        job = _Job(fn)
-        job.moveToThread(thread)
-        thread.started.connect(job.run)
-        job.progress.connect(self._on_progress)
-        job.done.connect(self._on_done)
-        job.failed.connect(self._on_failed)
-        job.cancelled.connect(self._on_cancelled)
-        job.done.connect(thread.quit)
-        job.failed.connect(thread.quit)
-        job.cancelled.connect(thread.quit)
-        thread.finished.connect(self._on_finished)
-        self._thread, self._job = thread, job
-        thread.start()
+        self.worker.submit(fn)
 
     @Slot()
     def cancel(self) -> None:
-        if self._job is not None:
-            self._job.stop.set()
+        if self.running:
+            self.worker.cancel()
             self.status.setText("Cancelling…")
 
     def wait(self, ms: int = 30000) -> None:
         """Block until the computation has ended (for closing and tests)."""
-        if self._thread is not None:
-            self._thread.wait(ms)
+        self.worker.wait(ms)
+
+    def _ended(self) -> None:
+        self.run_button.setEnabled(True)
+        self.cancel_button.setEnabled(False)
 
     @Slot(float)
     def _on_progress(self, fraction: float) -> None:
         self.progress_bar.setValue(int(round(1000 * max(0.0, min(1.0, fraction)))))
 
-    @Slot(object)
-    def _on_done(self, result) -> None:
+    def _on_done(self, _gen: int, result) -> None:
+        self._ended()
         self.result = result
         self.progress_bar.setValue(1000)
         self.status.setText("Done.")
         self.show_result(result)
 
-    @Slot(str)
-    def _on_failed(self, message: str) -> None:
+    def _on_failed(self, _gen: int, message: str) -> None:
+        self._ended()
         self._report_error(message)
 
     def _report_error(self, message: str) -> None:
         self.last_error = message
         self.status.setText(f"<span style='color:#963e00'>Cannot compute: {message}</span>")
 
-    @Slot()
-    def _on_cancelled(self) -> None:
+    def _on_cancelled(self, _gen: int) -> None:
+        self._ended()
         self.status.setText("Cancelled.")
         self.progress_bar.setValue(0)
 
-    @Slot()
-    def _on_finished(self) -> None:
-        if self._job is not None:
-            self._job.deleteLater()
-        if self._thread is not None:
-            self._thread.deleteLater()
-        self._thread, self._job = None, None
-        self.run_button.setEnabled(True)
-        self.cancel_button.setEnabled(False)
-
     def closeEvent(self, event) -> None:  # noqa: N802 - Qt name
-        if self._job is not None:
-            self._job.stop.set()
-        if self._thread is not None:
-            self._thread.quit()
-            self._thread.wait(30000)
+        self.worker.shutdown(30000)
         super().closeEvent(event)
 
     def reject(self) -> None:

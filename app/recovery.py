@@ -21,7 +21,6 @@ ok, message)`` on the GUI thread; a failure becomes a note in the status bar, ne
 
 from __future__ import annotations
 
-import concurrent.futures
 import datetime as _dt
 import json
 import logging
@@ -36,6 +35,8 @@ from PySide6.QtWidgets import QMessageBox
 
 from engine_air.project.errors import ProjectError, ProjectSaveError
 from engine_air.project.toml_file import load_project, save_project, write_bytes_atomic
+
+from .worker import Worker
 
 log = logging.getLogger(__name__)
 
@@ -255,8 +256,10 @@ def find_recovered(folder: str | Path | None = None, exclude: set[str] | frozens
 class RecoveryStore(QObject):
     """The running window's recovery slot; every file operation runs in order on one background thread.
 
-    ``write(project, original_path)`` and ``remove()`` return at once. ``reported(action, ok, message)``
-    (action "write" or "remove") arrives on the GUI thread when each has been done.
+    The thread is the program's one worker pattern (``app.worker.Worker``) in its ordered mode: every
+    operation runs to its end, one after another, and each outcome is reported. ``write(project,
+    original_path)`` and ``remove()`` return at once; ``reported(action, ok, message)`` (action "write"
+    or "remove") arrives on the GUI thread when each has been done.
     """
 
     reported = Signal(str, bool, str)
@@ -265,8 +268,10 @@ class RecoveryStore(QObject):
         super().__init__(parent)
         self.folder = Path(folder) if folder is not None else recovery_dir()
         self._slot = Slot(self.folder, _new_key())
-        self._executor = concurrent.futures.ThreadPoolExecutor(max_workers=1,
-                                                               thread_name_prefix="engine-air-autosave")
+        self._worker = Worker(self, threads=1, supersede=False, describe_error=reason_of)
+        self._worker.finished.connect(lambda gen, _r: self._report(gen, True, ""))
+        self._worker.failed.connect(lambda gen, message: self._report(gen, False, message))
+        self._actions: dict[int, str] = {}
         self._has_files = False  # a write was asked for (or a slot adopted) and not removed since
         self._closed = False
 
@@ -290,28 +295,19 @@ class RecoveryStore(QObject):
     def closed(self) -> bool:
         return self._closed
 
-    def _emit(self, action: str, ok: bool, message: str) -> None:
-        try:
+    def _report(self, gen: int, ok: bool, message: str) -> None:  # GUI thread
+        action = self._actions.pop(gen, "")
+        if not ok:
+            log.debug("recovery %s failed: %s", action, message)  # the window logs it once and shows it
+        if action in ("write", "remove"):
             self.reported.emit(action, ok, message)
-        except RuntimeError:  # the window is gone already
-            pass
 
-    def _run(self, action: str, job, *args) -> None:  # background thread
-        try:
-            job(*args)
-        except Exception as exc:  # noqa: BLE001 - a failed autosave is a note, never an error
-            log.debug("recovery %s failed: %s", action, exc)  # the window logs it once and shows it
-            self._emit(action, False, reason_of(exc))
-        else:
-            self._emit(action, True, "")
-
-    def _submit(self, action: str, job, *args):
+    def _submit(self, action: str, job, *args) -> int | None:
         if self._closed:
             return None
-        try:
-            return self._executor.submit(self._run, action, job, *args)
-        except RuntimeError:  # interpreter shutting down
-            return None
+        gen = self._worker.submit(lambda _progress, _cancelled: job(*args))
+        self._actions[gen] = action
+        return gen
 
     def write(self, project, original_path=None):
         """Autosave ``project`` (frozen, so safe to hand to the thread) into this window's slot."""
@@ -340,14 +336,7 @@ class RecoveryStore(QObject):
         """Block until every operation asked for so far is done (tests, shutdown)."""
         if self._closed:
             return True
-        future = self._submit("wait", lambda: None)
-        if future is None:
-            return True
-        try:
-            future.result(timeout)
-        except concurrent.futures.TimeoutError:
-            return False
-        return True
+        return self._worker.wait(int(timeout * 1000))
 
     def close(self, remove: bool = True, timeout: float = 10.0) -> bool:
         """End the session: remove the files (clean close), let go of the lock, stop the thread."""
@@ -358,7 +347,6 @@ class RecoveryStore(QObject):
         self._submit("release", self._slot.release)
         done = self.wait(timeout)
         self._closed = True
-        self._executor.shutdown(wait=False)
         return done
 
 
