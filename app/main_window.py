@@ -19,6 +19,8 @@ from __future__ import annotations
 import html
 import logging
 import math
+import os
+import stat
 from pathlib import Path
 
 from PySide6.QtCore import QSettings, Qt, QTime, QTimer
@@ -57,6 +59,16 @@ log = logging.getLogger(__name__)
 MAX_RECENT = 8
 BUSY_DELAY_MS = 120
 WORST_LABEL = "Worst of all cases"
+
+
+def is_read_only(path: Path) -> bool:
+    """An existing file this user may not write, or one whose mode gives nobody write permission
+    (0444: protected on purpose, even from an administrator who could write it)."""
+    try:
+        mode = path.stat().st_mode
+    except OSError:
+        return False
+    return not os.access(path, os.W_OK) or not mode & (stat.S_IWUSR | stat.S_IWGRP | stat.S_IWOTH)
 
 
 class MainWindow(QMainWindow):
@@ -544,8 +556,34 @@ class MainWindow(QMainWindow):
             path += ".toml"
         return self.save_to(path)
 
+    def _allow_read_only_target(self, path) -> bool:
+        """True when ``path`` may be written: it is new or writable, or it is read-only and the user agrees
+        to replace it (it is then made writable for its owner). A refusal leaves the file and the edits as
+        they are."""
+        target = Path(path)
+        if not is_read_only(target):
+            return True
+        answer = QMessageBox.question(
+            self, "Replace a read-only file?",
+            f"{target} is read-only (someone protected it from changes).\n\n"
+            "Replace it with this project all the same?",
+            QMessageBox.Yes | QMessageBox.No, QMessageBox.No)
+        if answer != QMessageBox.Yes:
+            self.statusBar().showMessage(f"Not saved: {target.name} is read-only; your edits are kept.", 10000)
+            return False
+        try:
+            os.chmod(target, stat.S_IMODE(target.stat().st_mode) | stat.S_IWUSR)
+        except OSError as exc:
+            QMessageBox.critical(self, "Could not save",
+                                 f"{target} cannot be made writable: {reason_of(exc)}\n\n"
+                                 "Your edits are kept in the window; try another folder or name.")
+            return False
+        return True
+
     def save_to(self, path) -> bool:
         self.editors.flush()
+        if not self._allow_read_only_target(path):
+            return False
         try:
             saved = self.document.save(path)
         except (ProjectSaveError, OSError) as exc:
