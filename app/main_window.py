@@ -59,6 +59,7 @@ log = logging.getLogger(__name__)
 MAX_RECENT = 8
 BUSY_DELAY_MS = 120
 WORST_LABEL = "Worst of all cases"
+MAP_MIN_SHARE = 0.45  # the map keeps at least this share of the window's width when the point panel widens
 
 
 def is_read_only(path: Path) -> bool:
@@ -88,6 +89,7 @@ class MainWindow(QMainWindow):
         self._shutdown = False
         self.verdict_state = "busy"
         self._progress = 0.0
+        self._verdict_text = ""  # the last result's banner text (its height is kept while computing)
         self._busy_timer = QTimer(self)
         self._busy_timer.setSingleShot(True)
         self._busy_timer.setInterval(BUSY_DELAY_MS)
@@ -116,6 +118,7 @@ class MainWindow(QMainWindow):
         self.runner.finished.connect(self._on_finished)
         self.runner.failed.connect(self._on_failed)
         self.map.pointSelected.connect(self._on_point_selected)
+        self.detail.neededWidthChanged.connect(self._fit_detail_dock)
         self.findings.findingActivated.connect(self.go_to_finding)
         self.editors.projectEdited.connect(lambda p: self.document.edit(p, validated=True))
         self.document.stateChanged.connect(self._sync_recovery)
@@ -262,17 +265,32 @@ class MainWindow(QMainWindow):
         self.redo_action.setEnabled(d.can_redo())
 
     def _fit_verdict_height(self) -> None:
-        """Two lines of banner text, fixed, so a change of verdict never resizes (and repaints) the map."""
+        """Room for two lines of banner text, or more when the last verdict wraps to more at this width.
+
+        The height follows the result's verdict only (not "Computing…"), so an edit never resizes (and
+        repaints) the map twice."""
         big = 28 if self.presentation else 16
         small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
         pad = 10 if self.presentation else 6
-        self.verdict.setFixedHeight(int(1.45 * (big + small) * 96 / 72) + 2 * pad + 4)
+        height = int(1.45 * (big + small) * 96 / 72) + 2 * pad + 4
+        if self._verdict_text and self.verdict.width() > 0:
+            shown = self.verdict.text()
+            if shown != self._verdict_text:
+                self.verdict.setText(self._verdict_text)
+            height = max(height, self.verdict.heightForWidth(self.verdict.width()))
+            if shown != self._verdict_text:
+                self.verdict.setText(shown)
+        if self.verdict.height() != height or self.verdict.minimumHeight() != height:
+            self.verdict.setFixedHeight(height)
 
     def _set_verdict(self, state: str, text: str) -> None:
         colour = {"holds": style.HOLDS_BG, "fails": style.FAILS_BG, "busy": style.BUSY_BG,
                   "stale": style.STALE_BG}[state]
         self.verdict_state = state
         self.verdict.setText(text)
+        if state != "busy":
+            self._verdict_text = text
+            self._fit_verdict_height()
         css = f"background: {colour};"
         if self.verdict.styleSheet() != css:  # restyling costs a few ms: only on a change of colour
             self.verdict.setStyleSheet(css)
@@ -483,7 +501,22 @@ class MainWindow(QMainWindow):
         self.detail.refresh()
         if self.result is not None and self.verdict_state in ("holds", "fails"):
             self._set_verdict(*self._verdict_for(self.result))
-        self.resizeDocks([self.detail_dock], [600 if on else 560], Qt.Horizontal)
+        self.resizeDocks([self.detail_dock], [max(600, int(0.38 * self.width())) if on else 560], Qt.Horizontal)
+        self._fit_detail_dock()
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        self._fit_verdict_height()
+        QTimer.singleShot(0, self._fit_detail_dock)
+
+    def _fit_detail_dock(self, *_args) -> None:
+        """The point's panel as wide as its tables (no sideways scrolling), leaving the map at least
+        ``MAP_MIN_SHARE`` of the window."""
+        if not self.detail_dock.isVisible() or self.detail_dock.isFloating():
+            return
+        need = min(self.detail.needed_width(), int(self.width() * (1.0 - MAP_MIN_SHARE)))
+        if self.detail_dock.width() < need:
+            self.resizeDocks([self.detail_dock], [need], Qt.Horizontal)
 
     def show_about(self) -> None:
         QMessageBox.about(self, f"About {APPLICATION}", about_html())

@@ -354,6 +354,60 @@ def test_exports(make_window, tmp_path):
     assert "Verdict" in text and "Preliminary-design" in text
 
 
+@pytest.mark.parametrize("name", ["undersized_business_jet", "supersonic_two_ramp"])
+def test_presentation_mode_is_readable_without_clipping_at_common_screen_sizes(make_window, qtbot, name):
+    """Issue 9: at 1366 x 768, 1600 x 1000 and 1920 x 1080 in presentation mode no label is elided or cut, no
+    table column lies outside its view, nothing needs sideways scrolling, and the map's title, colour bar
+    and legend lie inside the map. Each size is grabbed to /tmp/appshape_<sample>_<w>x<h>.png."""
+    from PySide6.QtWidgets import QApplication
+
+    from app.main_window import apply_base_font
+    from gui_support import layout_problems, map_problems
+
+    app = QApplication.instance()
+    font = app.font()
+    apply_base_font(app)
+    try:
+        w = make_window(sample(name))
+        w.set_presentation(True)
+        assert w.detail.record() is not None  # a point is shown: its tables are filled
+        for width, height in ((1366, 768), (1600, 1000), (1920, 1080)):
+            w.resize(width, height)
+            qtbot.waitUntil(lambda: w.width() == width and w.height() == height, timeout=5000)
+            qtbot.wait(150)  # the deferred fits (panel widths, wrapped rows, dock width) run
+            image = w.grab()
+            assert image.save(f"/tmp/appshape_{name}_{width}x{height}.png")
+            problems = layout_problems(w) + map_problems(w)
+            assert problems == [], f"{width} x {height}: " + "; ".join(problems)
+            assert w.verdict.height() >= w.verdict.heightForWidth(w.verdict.width())  # the banner's lines
+    finally:
+        app.setFont(font)
+
+
+def test_layout_check_sees_an_elided_label_and_a_cut_column(qtbot):
+    """The check above is not blind: a label too narrow for its text and a column past the view's edge."""
+    from PySide6.QtWidgets import QLabel, QTableWidget, QVBoxLayout, QWidget
+
+    from gui_support import layout_problems
+
+    box = QWidget()
+    lay = QVBoxLayout(box)
+    label = QLabel("a rule text far too long for the room it was given")
+    label.setFixedWidth(60)
+    table = QTableWidget(1, 3)
+    table.setFixedWidth(150)
+    for c in range(3):
+        table.setColumnWidth(c, 90)
+    lay.addWidget(label)
+    lay.addWidget(table)
+    qtbot.addWidget(box)
+    box.show()
+    qtbot.waitExposed(box)
+    problems = layout_problems(box)
+    assert any(p.startswith("label") for p in problems)
+    assert any("outside the viewport" in p for p in problems)
+
+
 def test_presentation_mode_and_about(make_window, monkeypatch):
     w = make_window(sample("supersonic_two_ramp"))
     w.set_presentation(True)
