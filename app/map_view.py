@@ -367,10 +367,16 @@ class EnvelopeMap(QWidget):
         self._update_legend_text()
 
     def _update_legend_text(self) -> None:
-        size = f"{11 * self._scale:.0f}pt"
-        for label, text in zip(self._legend_labels, self._legend_texts):
-            label.setText(text, size=size, color="k")
+        self._legend_shown = None
         self._fit_legend()
+
+    def _set_legend_text(self, pt: float) -> None:
+        shown = (tuple(self._legend_texts), round(pt, 1))
+        if shown == getattr(self, "_legend_shown", None):
+            return
+        self._legend_shown = shown
+        for label, text in zip(self._legend_labels, self._legend_texts):
+            label.setText(text, size=f"{pt:.0f}pt", color="k")
 
     def _apply_style(self) -> None:
         s = self._scale
@@ -456,21 +462,31 @@ class EnvelopeMap(QWidget):
         """Lay the scene out again at the canvas's size: a resize that came while the title or legend was
         still wider left the scene at its old, larger minimum (and cut off on the right)."""
         self._canvas_fit_pending = False
-        self.canvas.ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
+        ci = self.canvas.ci
+        ci.layout.invalidate()
+        ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
+        ci.layout.activate()
 
     def _fit_legend(self) -> None:
-        """As many legend columns as the style asks (4, or 2 in presentation) and the width allows."""
+        """As many legend columns as the style asks (4, or 2 in presentation) and the width allows; in a
+        narrow window the legend's type first shrinks (to 75 %), then it drops columns."""
         if not getattr(self, "_legend_labels", None):
             return
         room = self.canvas.width() - 30
-        n = 2 if self._scale > 1.2 else 4
-        while True:
+        full = 11 * self._scale
+        wanted = 2 if self._scale > 1.2 else 4
+        tries = [(wanted, full), (wanted, 0.85 * full), (wanted, 0.75 * full)]
+        tries += [(n, 0.75 * full) for n in range(wanted - 1, 0, -1)]
+        before = (self.legend.columnCount, getattr(self, "_legend_shown", None))
+        for n, pt in tries:
+            self._set_legend_text(pt)
             if self.legend.columnCount != n:
                 self.legend.setColumnCount(n)
-                self._schedule_canvas_fit()
-            if n == 1 or self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:
-                return
-            n -= 1
+            self.legend.layout.invalidate()
+            if self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:
+                break
+        if (self.legend.columnCount, self._legend_shown) != before:
+            self._schedule_canvas_fit()
 
     def _fit_title(self) -> None:
         """The title on one line when it fits beside the colour bar, else on two (quantity / case), so a
