@@ -246,9 +246,9 @@ class MainWindow(QMainWindow):
         self._action(h, "&About", self.show_about)
 
     def _add_design_menu(self):
-        """The "Design" menu (sizing, comparison, sweep, review pack) from ``app.design_dialogs``, if present."""
+        """The "Design" menu (sizing, comparison, sweep, review pack) from ``app.dialogs``, if present."""
         try:
-            from .design_dialogs import add_design_menu
+            from .dialogs import add_design_menu
         except ImportError:
             return None
         try:
