@@ -288,7 +288,7 @@ def answer_with(monkeypatch, *choices):
         asked.append((entry, error, index, count))
         return queue.pop(0) if queue else recovery.LATER
 
-    monkeypatch.setattr(recovery, "ask_recovery", ask)
+    monkeypatch.setattr(recovery.offer, "ask_recovery", ask)
     return asked
 
 
