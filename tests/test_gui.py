@@ -480,3 +480,85 @@ def test_grid_edit_keeps_the_selected_condition(make_window, qtbot):
     assert abs(w.result.mach[j2] - cond[0]) <= (w.result.mach[1] - w.result.mach[0]) / 2 + 1e-12
     assert abs(w.result.altitude_m[i2] - cond[1]) <= (w.result.altitude_m[1] - w.result.altitude_m[0]) / 2 + 1e-9
     assert w.detail.index == (i2, j2)
+
+
+# -- the one worker pattern and the one debounce (app/worker.py) -------------------------------------------
+
+def test_worker_drops_stale_results_and_reports_progress_of_the_newest(qtbot):
+    """A newer request cancels the older one; whatever the older still delivers is dropped."""
+    import threading
+
+    from app.worker import Worker
+
+    worker = Worker(threads=2, supersede=True)
+    release = threading.Event()
+    seen, progress, failed = [], [], []
+    worker.finished.connect(lambda gen, result: seen.append((gen, result)))
+    worker.progress.connect(progress.append)
+    worker.failed.connect(lambda gen, message: failed.append(message))
+
+    def stubborn(report, cancelled):  # ignores its cancel flag: finishes late on purpose
+        release.wait(5)
+        return "old"
+
+    def quick(report, cancelled):
+        report(0.5)
+        return "new"
+
+    old = worker.submit(stubborn)
+    new = worker.submit(quick)
+    qtbot.waitUntil(lambda: bool(seen), timeout=WAIT_MS)
+    release.set()
+    qtbot.waitUntil(lambda: old in worker.dropped, timeout=WAIT_MS)
+    assert seen == [(new, "new")] and progress == [0.5] and failed == []
+    assert worker.shown_generation == new and not worker.busy
+    # an error is one line, and the worker keeps working after it
+    worker.submit(lambda report, cancelled: (_ for _ in ()).throw(ValueError("bad\nvalue")))
+    qtbot.waitUntil(lambda: bool(failed), timeout=WAIT_MS)
+    assert failed == ["ValueError: bad value"]
+    last = worker.submit(lambda report, cancelled: 42)
+    qtbot.waitUntil(lambda: seen[-1] == (last, 42), timeout=WAIT_MS)
+    worker.shutdown()
+
+
+def test_ordered_worker_runs_every_request_in_turn(qtbot):
+    """Autosave's mode: nothing is superseded or dropped; requests run one after another as asked."""
+    import time as _time
+
+    from app.worker import Worker
+
+    worker = Worker(threads=1, supersede=False)
+    order, done = [], []
+    worker.finished.connect(lambda gen, result: done.append(result))
+
+    def job(k):
+        def run(report, cancelled):
+            _time.sleep(0.01 * (5 - k))  # earlier jobs take longer: order must still hold
+            order.append(k)
+            return k
+        return run
+
+    for k in range(5):
+        worker.submit(job(k))
+    assert worker.wait(10000)
+    qtbot.waitUntil(lambda: len(done) == 5, timeout=WAIT_MS)
+    assert order == list(range(5)) and done == list(range(5)) and list(worker.dropped) == []
+
+
+def test_debouncer_makes_one_call_per_burst(qtbot):
+    from app.worker import Debouncer
+
+    calls = []
+    d = Debouncer(40, lambda: calls.append(1))
+    for _ in range(5):
+        d.trigger()
+    assert d.pending and calls == []
+    qtbot.waitUntil(lambda: calls == [1], timeout=2000)
+    assert not d.pending
+    d.trigger()
+    d.flush()  # at once, and not again when the interval would have ended
+    assert calls == [1, 1]
+    d.trigger()
+    d.cancel()
+    qtbot.wait(100)
+    assert calls == [1, 1] and d.flush() is None
