@@ -466,6 +466,7 @@ class EnvelopeMap(QWidget):
         ci.layout.invalidate()
         ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
         ci.layout.activate()
+        self.canvas.viewport().update()
 
     def _fit_legend(self) -> None:
         """As many legend columns as the style asks (4, or 2 in presentation) and the width allows; in a
@@ -477,15 +478,17 @@ class EnvelopeMap(QWidget):
         wanted = 2 if self._scale > 1.2 else 4
         tries = [(wanted, full), (wanted, 0.85 * full), (wanted, 0.75 * full)]
         tries += [(n, 0.75 * full) for n in range(wanted - 1, 0, -1)]
-        before = (self.legend.columnCount, getattr(self, "_legend_shown", None))
+        before = getattr(self, "_legend_shown", None)
+        moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
         for n, pt in tries:
             self._set_legend_text(pt)
             if self.legend.columnCount != n:
                 self.legend.setColumnCount(n)
+                moved = True
             self.legend.layout.invalidate()
             if self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:
                 break
-        if (self.legend.columnCount, self._legend_shown) != before:
+        if moved or self._legend_shown != before:
             self._schedule_canvas_fit()
 
     def _fit_title(self) -> None:
