@@ -355,10 +355,10 @@ def test_exports(make_window, tmp_path):
 
 
 @pytest.mark.parametrize("name", ["undersized_business_jet", "supersonic_two_ramp"])
-def test_presentation_mode_is_readable_without_clipping_at_common_screen_sizes(make_window, qtbot, name):
+def test_presentation_mode_is_readable_without_clipping_at_common_screen_sizes(make_window, qtbot, tmp_path, name):
     """Issue 9: at 1366 x 768, 1600 x 1000 and 1920 x 1080 in presentation mode no label is elided or cut, no
     table column lies outside its view, nothing needs sideways scrolling, and the map's title, colour bar
-    and legend lie inside the map. Each size is grabbed to /tmp/appshape_<sample>_<w>x<h>.png."""
+    and legend lie inside the map. Each size is grabbed to <tmp_path>/<sample>_<w>x<h>.png (to look at)."""
     from PySide6.QtWidgets import QApplication
 
     from app.main_window import apply_base_font
@@ -376,7 +376,7 @@ def test_presentation_mode_is_readable_without_clipping_at_common_screen_sizes(m
             qtbot.waitUntil(lambda: w.width() == width and w.height() == height, timeout=5000)
             qtbot.wait(150)  # the deferred fits (panel widths, wrapped rows, dock width) run
             image = w.grab()
-            assert image.save(f"/tmp/appshape_{name}_{width}x{height}.png")
+            assert image.save(str(tmp_path / f"{name}_{width}x{height}.png"))
             problems = layout_problems(w) + map_problems(w)
             assert problems == [], f"{width} x {height}: " + "; ".join(problems)
             assert w.verdict.height() >= w.verdict.heightForWidth(w.verdict.width())  # the banner's lines
