@@ -29,7 +29,6 @@ from engine_air.outputs.quantities import QUANTITIES
 
 from . import analysis
 from .colour_maps import colour_map_for, levels_for
-from .contours import iso_segments, join_segments
 from .units import Units, dimension_of_si_unit, group_digits
 
 OUTSIDE_GREY = "#bdbdbd"
@@ -41,6 +40,29 @@ def _no_si_prefix(axis) -> None:
     if hasattr(axis, "setSIPrefixEnableRanges"):
         axis.setSIPrefixEnableRanges(())
     axis.enableAutoSIPrefix(False)
+
+
+def iso_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float):
+    """The ``level`` line of ``field`` (rows along ``y``) in data coordinates, by pyqtgraph's isocurve.
+
+    Returns ``(xs, ys)``: polylines separated by NaN (for ``PlotDataItem(connect='finite')``). An edge
+    with a NaN end gives a NaN point, so the line stops at the envelope instead of following the NaN fill.
+    """
+    f = np.asarray(field, dtype=float)
+    if f.ndim != 2 or min(f.shape) < 2:
+        return np.empty(0), np.empty(0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        lines = pg.functions.isocurve(f, level, connected=True)
+    xs, ys = [], []
+    for line in lines:
+        pts = np.asarray(line, dtype=float).reshape(-1, 2) - 0.5  # pixel centres -> (row, column) indices
+        ys.append(np.interp(pts[:, 0], np.arange(len(y)), y))
+        xs.append(np.interp(pts[:, 1], np.arange(len(x)), x))
+        xs.append([np.nan])
+        ys.append([np.nan])
+    if not xs:
+        return np.empty(0), np.empty(0)
+    return np.concatenate(xs), np.concatenate(ys)
 
 
 def quantity_dimension(key: str) -> str:
@@ -304,8 +326,8 @@ class EnvelopeMap(QWidget):
 
     def _draw_zero_line(self, result, case, key, kind, values) -> None:
         field = values if kind == "margin" else analysis.limiting_field(result, case)
-        xs, ys = join_segments(*iso_segments(self._x, self._y, field, 0.0))
-        self._zero_found = xs.size > 0
+        xs, ys = iso_line(self._x, self._y, field, 0.0)
+        self._zero_found = int(np.isfinite(xs).sum()) >= 2
         self.zero_halo.setData(xs, ys)
         self.zero_line.setData(xs, ys)
         self.zero_halo.setPen(self._pen("w", 6.0))
@@ -313,8 +335,8 @@ class EnvelopeMap(QWidget):
 
     def _draw_ram_line(self, result, case) -> None:
         ratio = np.asarray(result.quantity(case, "face_static_to_ambient"), dtype=float)
-        xs, ys = join_segments(*iso_segments(self._x, self._y, ratio, 1.0))
-        self._ram_found = xs.size > 0
+        xs, ys = iso_line(self._x, self._y, ratio, 1.0)
+        self._ram_found = int(np.isfinite(xs).sum()) >= 2
         self.ram_halo.setData(xs, ys)
         self.ram_line.setData(xs, ys)
         self.ram_halo.setPen(self._pen("w", 5.5))

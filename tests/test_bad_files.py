@@ -573,17 +573,15 @@ def test_dotted_key_part_limit(make, tmp_path):
     assert f"more than {pf.MAX_KEY_PARTS} parts" in err.allowed
 
 
-def test_worst_file_of_dotted_keys_loads_in_bounded_time(tmp_path):
-    # 1 MiB of 64-part keys (the most allowed) parses in about a second (tomllib, 2 cores); 100 000 parts
-    # in one key, before the limit, took more than 4 GB of memory.
+def test_worst_file_of_dotted_keys_loads(tmp_path):
+    # 1 MiB of 64-part keys (the most allowed) loads (its time, about a second, is printed by
+    # bench/bench_loading.py, not asserted here); 100 000 parts in one key, before the limit, took more than
+    # 4 GB of memory.
     key = ".".join(["d"] * (pf.MAX_KEY_PARTS - 1))
     lines = [f"{key}.k{i} = 1" for i in range((pf.MAX_FILE_BYTES - 4096) // (2 * pf.MAX_KEY_PARTS + 12))]
     path = write_text(tmp_path, "\n".join(lines) + "\n" + PITOT.read_text(encoding="utf-8"))
     assert os.path.getsize(path) <= pf.MAX_FILE_BYTES
-    import time
-    t0 = time.perf_counter()
     project = pf.load_project(path)
-    assert time.perf_counter() - t0 < 10.0
     assert project.warnings == (f"{path}: d: unknown key, ignored",)
 
 

@@ -24,6 +24,8 @@ FLAG_BITS: dict[str, int] = {
     "outside-atmosphere": 1 << 9,
     "additive-drag-not-modelled": 1 << 10,
     "no-tip-speed": 1 << 11,
+    "unstarted": 1 << 20,
+    "unstart-risk": 1 << 21,
 }
 
 OUTSIDE_ENVELOPE = FLAG_BITS["outside-envelope"]
@@ -38,6 +40,8 @@ LOW_SPEED = FLAG_BITS["low-speed"]
 OUTSIDE_ATMOSPHERE = FLAG_BITS["outside-atmosphere"]
 ADDITIVE_DRAG_NOT_MODELLED = FLAG_BITS["additive-drag-not-modelled"]
 NO_TIP_SPEED = FLAG_BITS["no-tip-speed"]
+UNSTARTED = FLAG_BITS["unstarted"]
+UNSTART_RISK = FLAG_BITS["unstart-risk"]
 
 DESCRIPTIONS: dict[str, str] = {
     "ok": "No flag: every modelled quantity is defined and no special regime applies.",
@@ -62,6 +66,11 @@ DESCRIPTIONS: dict[str, str] = {
     "additive-drag-not-modelled": "Supersonic ramp inlet: the ramp surface force is not in the stream-tube balance, "
     "so additive drag is not computed.",
     "no-tip-speed": "The rating gives no fan tip speed: blade relative tip Mach is not computed.",
+    "unstarted": "Mixed-compression inlet not started: accelerating from Mach 1 it has not yet swallowed its "
+    "starting shock (throat too small for the Kantrowitz self-start limit) or it cannot run started here; a "
+    "normal shock stands ahead of the cowl, recovery is low and the excess air spills.",
+    "unstart-risk": "Mixed-compression inlet started, but the engine takes less air than the inlet captures: "
+    "without bleed or bypass to take the excess the terminal shock would be expelled and the inlet unstart.",
 }
 
 

@@ -41,6 +41,7 @@ from engine_air.physics.isentropic import (
 )
 from engine_air.inlets.base import CaptureState
 from engine_air.inlets.registry import inlet_type
+from engine_air.inlets.schedule import scheduled
 from engine_air.envelope.checks import Check, build_checks, limiting_index
 from engine_air.project.model import Case, Project
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
@@ -94,6 +95,8 @@ class OperatingPoints:
     limiting: np.ndarray | None = None  # int index into checks, -1 where nothing is judged
     ramp_wave_angle_rad: np.ndarray | None = None  # (n_ramps, ...)
     ramp_downstream_mach: np.ndarray | None = None
+    started: np.ndarray | None = None  # bool, mixed compression only (method §11)
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
 
     @property
     def face_mach_margin(self) -> np.ndarray:
@@ -101,7 +104,11 @@ class OperatingPoints:
 
     @property
     def recovery_minus_reference(self) -> np.ndarray:
-        return self.recovery - self.reference_recovery
+        """What the MIL-E-5008B recovery check compares: the recovery of the shock system and its regime
+        corrections (pi / pi_duct) less the reference, in supersonic flight only; NaN (not judged) at M0 <= 1."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            shock_recovery = self.recovery / self.duct_recovery
+        return np.where(self.mach > 1.0, shock_recovery - self.reference_recovery, np.nan)
 
     def check(self, name: str) -> Check:
         for c in self.checks:
@@ -205,15 +212,25 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         pi = pi * scale
         w = w * scale
         bits |= np.where(supercritical, F.SUPERCRITICAL, 0)
+        # mixed compression (method §11): unstarted, or started with the demand below the capture
+        started = None if shocks.started is None else supersonic & shocks.started
+        if started is not None:
+            bits |= np.where(supersonic & ~started, F.UNSTARTED, 0)
+            bits |= np.where(started & (ratio < 1.0 - CRITICAL_BAND), F.UNSTART_RISK, 0)
 
         # throat
-        throat_ratio = w * np.sqrt(tt0) / (inlet.throat_area_m2 * pi_ext * pt0_inlet) / mfp_star
+        throat_area = scheduled(inlet, "throat_area_m2", m0)
+        throat_ratio = w * np.sqrt(tt0) / (throat_area * pi_ext * pt0_inlet) / mfp_star
         throat_choked = throat_ratio >= 1.0
+        if started is not None:  # started: the throat is supersonic, the terminal shock just behind it
+            throat_choked = throat_choked & ~started
         bits |= np.where(throat_choked, F.THROAT_CHOKED, 0)
         choke_scale = np.where(throat_choked, 1.0 / throat_ratio, 1.0)
         pi = pi * choke_scale
         w = w * choke_scale
         m_th = np.where(throat_choked, 1.0, mach_from_flow_ratio(np.minimum(throat_ratio, 1.0)))
+        if started is not None:
+            m_th = np.where(started, shocks.terminal_upstream_mach, m_th)
 
         regime = np.where(
             supersonic,
@@ -221,7 +238,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
             SUBSONIC,
         )
         mfr = np.where(low, np.nan, w / capture_flow)
-        throat_choke_flow = inlet.throat_area_m2 * pi_ext * pt0_inlet * mfp_star / np.sqrt(tt0)
+        throat_choke_flow = throat_area * pi_ext * pt0_inlet * mfp_star / np.sqrt(tt0)
         mfr_max = np.where(supersonic, mfr_max_geom, np.where(low, np.nan, throat_choke_flow / capture_flow))
         stable_fraction = project.limits.stable_flow_fraction
         if stable_fraction is not None:
@@ -305,6 +322,8 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         flags=bits,
         ramp_wave_angle_rad=_per_ramp(shocks.ramp_wave_angle_rad, shape),
         ramp_downstream_mach=_per_ramp(shocks.ramp_downstream_mach, shape),
+        started=None if started is None else full(started),
+        self_start_contraction=None if shocks.self_start_contraction is None else full(shocks.self_start_contraction),
     )
     points.checks = build_checks(project.limits, points)
     points.limiting = limiting_index(points.checks, points.flags)

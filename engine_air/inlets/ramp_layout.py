@@ -48,7 +48,32 @@ def _cross(ax, ay, bx, by):
 
 
 def ramp_design_problems(ramp_angles_deg, design_mach) -> list[str]:
-    """Why the ramps cannot be laid out shock-on-lip at ``design_mach`` (empty when they can)."""
+    """Why the ramps cannot be laid out shock-on-lip at ``design_mach`` (empty when they can).
+
+    Each ramp's shock must stay attached at its local Mach number, theta_k <= theta_max(M_k)
+    [NACA Report 1135, eq. 168], and the flow behind the last ramp must stay supersonic.
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+
+    Returns
+    -------
+    list of str
+        One plain-words reason per problem found (empty: the layout exists).
+
+    Examples
+    --------
+    A 20 deg ramp at M = 1.5 is past the maximum deflection (about 12 deg, NACA Report 1135, Chart 2):
+
+    >>> ramp_design_problems([20.0], 1.5)
+    ['ramp 1 turns 20 deg but at its local Mach 1.500 a shock stays attached only up to 12.11 deg']
+    >>> ramp_design_problems([8.0, 7.0], 2.0)
+    []
+    """
     problems = []
     m = np.asarray(float(design_mach))
     for k, angle in enumerate(ramp_angles_deg):
@@ -70,9 +95,38 @@ def ramp_design_problems(ramp_angles_deg, design_mach) -> list[str]:
 
 
 def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
-    """Corner and lip positions for shock-on-lip at ``design_mach`` (H = 1).
+    """Corner and lip positions for shock-on-lip at ``design_mach``, in units of the capture height H.
 
-    Raises ValueError when a ramp shock is detached at the design Mach number.
+    The first ramp's shock (wave angle beta_1 at M_d) meets the lip at height 1:
+    x_L = cot(beta_1); each later corner C_k lies on the previous ramp, where the shock
+    at absolute angle theta_k + beta_{k+1} passes through the lip (module text).
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+
+    Returns
+    -------
+    RampGeometry
+        ``lip`` (x, y), ``corners`` (one row per ramp, the first at the origin) and
+        ``flow_angle_rad`` (flow direction ahead of and behind each ramp, rad).
+
+    Raises
+    ------
+    ValueError
+        When a ramp shock is detached at the design Mach number.
+
+    Examples
+    --------
+    One 10 deg ramp at M_d = 2: beta_1 = 39.31 deg (NACA Report 1135, Chart 2, about 39.3 deg),
+    so the lip stands cot(39.31 deg) = 1.22 capture heights behind the leading edge.
+
+    >>> g = ramp_design_geometry([10.0], 2.0)
+    >>> print(f"{g.lip[0]:.2f} {g.lip[1]:.2f}")
+    1.22 1.00
     """
     problems = ramp_design_problems(ramp_angles_deg, design_mach)
     if problems:
@@ -99,7 +153,40 @@ def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
 
 def ramp_shock_system(ramp_angles_deg, design_mach, flight_mach) -> ShockSystem:
     """Ramp shocks, terminal normal shock and maximum capture at flight Mach ``flight_mach`` (array)
-    for ramps laid out shock-on-lip at ``design_mach``."""
+    for ramps laid out shock-on-lip at ``design_mach``.
+
+    pi_ext = prod_k (p_t2/p_t1)_oblique,k x (p_t2/p_t1)_normal(M_last) [NACA Report 1135,
+    eqs. 99, 132, 138]; a detached ramp ends the oblique sequence (one normal shock at its
+    local Mach). MFR_max = y_0 / H from the dividing streamline traced back from the lip,
+    1 at and above M_d (module text).
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless), any shape.
+
+    Returns
+    -------
+    ShockSystem
+        External recovery pi_ext, terminal-shock Mach numbers, MFR_max (NaN in subsonic
+        flight), detached / inside-cowl masks and the per-ramp wave angles (rad), Mach
+        numbers and pressure ratios (first axis: ramp).
+
+    Examples
+    --------
+    One 10 deg ramp, M_d = 2, at M0 = 2: the oblique shock (p_t2/p_t1 = 0.9846, M2 = 1.6405)
+    and a normal shock at 1.6405 (0.8797, NACA Report 1135, Table II, interpolated) give 0.8662; at M0 = 1.8
+    the steeper shock spills: MFR_max = 0.9595 (closed-form lip streamline, checked in the tests).
+
+    >>> import numpy as np
+    >>> s = ramp_shock_system([10.0], 2.0, np.array([2.0, 1.8]))
+    >>> print(f"{s.external_recovery[0]:.4f} {s.max_mass_flow_ratio[0]:.4f} {s.max_mass_flow_ratio[1]:.4f}")
+    0.8662 1.0000 0.9595
+    """
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
     geometry = ramp_design_geometry(ramp_angles_deg, design_mach)

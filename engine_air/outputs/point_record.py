@@ -81,6 +81,10 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
         "face_static_to_ambient": g("face_static_to_ambient"),
         "relative_tip_mach": g("relative_tip_mach"),
         "regime": REGIMES[int(_at(points.regime, index))],
+        # mixed compression only (method §11); null for the other types
+        "started": None if points.started is None else bool(_at(points.started, index)),
+        "self_start_contraction": None if points.self_start_contraction is None
+        else _num(_at(points.self_start_contraction, index)),
         "flags": names,
         "flag_descriptions": {n: F.DESCRIPTIONS[n] for n in names},
         "limiting": points.checks[limiting].name if limiting >= 0 else None,

@@ -26,7 +26,6 @@ import tomli_w
 from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
 from engine_air.project.errors import ProjectError, ProjectSaveError
 from engine_air.project.model import (
-    INLET_TYPES,
     REFERENCE_RECOVERY_NAME,
     Case,
     Envelope,
@@ -35,6 +34,7 @@ from engine_air.project.model import (
     Limits,
     Project,
     Rating,
+    Schedule,
 )
 
 MAX_FILE_BYTES = 1_048_576
@@ -65,10 +65,13 @@ MAX_TOTAL_RAMP_DEG = 40.0
 _TOP_KEYS = ("project", "limits", "inlet", "engine", "envelope", "grid", "case")
 _PROJECT_KEYS = ("format", "title", "notes")
 _LIMIT_KEYS = ("face_mach_max", "throat_mach_max", "recovery_min", "stable_flow_fraction",
-               "relative_tip_mach_max", "spillage_fraction_max")
+               "relative_tip_mach_max", "spillage_fraction_max", "started_required")
 _INLET_KEYS = ("type", "capture_area_m2", "throat_area_m2", "face_area_m2", "duct_loss_coefficient",
-               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach")
+               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "internal_recovery_factor",
+               "schedule")
 _RAMP_KEYS = ("ramp_angles_deg", "shock_on_lip_mach")
+_RAMP_TYPES = ("external-ramp", "mixed-compression")
+_SCHEDULE_KEYS = ("mach", "throat_area_m2")
 _RATING_KEYS = ("name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s")
 _ENVELOPE_KEYS = ("mach", "altitude_m")
 _GRID_KEYS = ("mach_points", "altitude_points")
@@ -274,6 +277,9 @@ def _read_limits(r: _Reader, data: dict) -> Limits:
                    f"not {_kind(recovery)}")
         else:
             recovery = r.check_number(recovery, "limits.recovery_min", "recovery_min", 0.0, 1.0)
+    started_required = t.get("started_required", None)
+    if started_required is not None and not isinstance(started_required, bool):
+        r.fail("limits.started_required", started_required, f"must be true or false, not {_kind(started_required)}")
     return Limits(
         face_mach_max=r.number(t, "face_mach_max", "limits.face_mach_max", 0.0, 1.0, hi_open=True),
         throat_mach_max=r.number(t, "throat_mach_max", "limits.throat_mach_max", 0.0, 1.0, default=None),
@@ -284,6 +290,7 @@ def _read_limits(r: _Reader, data: dict) -> Limits:
                                        hi_open=True, default=None),
         spillage_fraction_max=r.number(t, "spillage_fraction_max", "limits.spillage_fraction_max", 0.0, 1.0,
                                        lo_open=False, hi_open=True, default=None),
+        started_required=started_required,
     )
 
 
@@ -291,8 +298,10 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     t = r.table(data, "inlet", "inlet")
     r.check_known(t, "inlet", _INLET_KEYS)
     kind = r.string(t, "type", "inlet.type")
-    if kind not in INLET_TYPES:
-        r.fail("inlet.type", kind, "must be one of " + ", ".join(f'"{k}"' for k in INLET_TYPES))
+    from engine_air.inlets.registry import INLET_TYPES as known_types  # the registry is authoritative
+
+    if kind not in known_types:
+        r.fail("inlet.type", kind, "must be one of " + ", ".join(f'"{k}"' for k in known_types))
 
     def area(name: str) -> float:
         return r.number(t, name, f"inlet.{name}", 0.0, MAX_AREA_M2, unit="m^2")
@@ -306,7 +315,7 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     suction = r.number(t, "lip_suction_factor", "inlet.lip_suction_factor", 0.0, 1.0, lo_open=False, default=0.0)
     ramps: tuple[float, ...] = ()
     lip_mach = None
-    if kind == "external-ramp":
+    if kind in _RAMP_TYPES:
         ramps = r.number_list(t, "ramp_angles_deg", "inlet.ramp_angles_deg", 1, MAX_RAMPS, 0.0, MAX_RAMP_DEG,
                               unit="deg")
         if sum(ramps) > MAX_TOTAL_RAMP_DEG:
@@ -316,10 +325,37 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     else:
         for name in _RAMP_KEYS:
             if name in t:
-                r.warn(f"inlet.{name}", f'ignored: it applies to type = "external-ramp" only, this inlet is "{kind}"')
+                r.warn(f"inlet.{name}", f'ignored: it applies to ramp inlets only, this inlet is "{kind}"')
+    eta_int = 1.0
+    if kind == "mixed-compression":
+        eta_int = r.number(t, "internal_recovery_factor", "inlet.internal_recovery_factor", 0.0, 1.0, default=1.0)
+    elif "internal_recovery_factor" in t:
+        r.warn("inlet.internal_recovery_factor", f'ignored: it applies to type = "mixed-compression" only, '
+               f'this inlet is "{kind}"')
+    schedule = _read_schedule(r, t, capture)
     return Inlet(type=kind, capture_area_m2=capture, throat_area_m2=throat, face_area_m2=face,
                  duct_loss_coefficient=duct_k, lip_suction_factor=suction, ramp_angles_deg=ramps,
-                 shock_on_lip_mach=lip_mach)
+                 shock_on_lip_mach=lip_mach, internal_recovery_factor=eta_int, schedule=schedule)
+
+
+def _read_schedule(r: _Reader, inlet_table: dict, capture: float) -> Schedule | None:
+    """``[inlet.schedule]``: ``mach`` (increasing) and ``throat_area_m2`` (one per Mach, each at most the
+    capture area), linear in M0 with the ends held (method §12)."""
+    t = r.table(inlet_table, "schedule", "inlet.schedule", required=False)
+    if t is None:
+        return None
+    r.check_known(t, "inlet.schedule", _SCHEDULE_KEYS)
+    mach = r.number_list(t, "mach", "inlet.schedule.mach", 1, 100, 0.0, 10.0, lo_open=False)
+    if any(b <= a for a, b in zip(mach, mach[1:])):
+        r.fail("inlet.schedule.mach", list(t["mach"]), "must increase strictly from entry to entry")
+    throat = r.number_list(t, "throat_area_m2", "inlet.schedule.throat_area_m2", len(mach), len(mach), 0.0,
+                           MAX_AREA_M2, unit="m^2", required=False)
+    if throat is not None:
+        for i, a in enumerate(throat):
+            if a > capture:
+                r.fail(f"inlet.schedule.throat_area_m2[{i}]", t["throat_area_m2"][i],
+                       f"must not exceed capture_area_m2 = {_g(capture)} m^2")
+    return Schedule(mach=mach, throat_area_m2=throat)
 
 
 def _read_ratings(r: _Reader, data: dict) -> tuple[Rating, ...]:
@@ -528,10 +564,16 @@ def project_to_dict(project: Project) -> dict:
         "duct_loss_coefficient": inl.duct_loss_coefficient,
         "lip_suction_factor": inl.lip_suction_factor,
     }
-    if inl.type == "external-ramp":
+    if inl.type in _RAMP_TYPES:
         inlet["ramp_angles_deg"] = list(inl.ramp_angles_deg)
         if inl.shock_on_lip_mach is not None:
             inlet["shock_on_lip_mach"] = inl.shock_on_lip_mach
+    if inl.type == "mixed-compression":
+        inlet["internal_recovery_factor"] = inl.internal_recovery_factor
+    if inl.schedule is not None:
+        inlet["schedule"] = {"mach": list(inl.schedule.mach)}
+        if inl.schedule.throat_area_m2 is not None:
+            inlet["schedule"]["throat_area_m2"] = list(inl.schedule.throat_area_m2)
     ratings = []
     for x in project.ratings:
         item: dict = {"name": x.name, "theta": list(x.theta), "corrected_flow_kg_s": list(x.corrected_flow_kg_s)}
@@ -574,8 +616,11 @@ def dumps_project(project: Project) -> str:
         out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items())
         out.append("")
 
+    schedule = d["inlet"].pop("schedule", None)
     for name in ("project", "limits", "inlet"):
         table(f"[{name}]", d[name])
+    if schedule is not None:
+        table("[inlet.schedule]", schedule)
     for item in d["engine"]["rating"]:
         table("[[engine.rating]]", item)
     table("[envelope]", d["envelope"])

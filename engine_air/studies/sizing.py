@@ -46,8 +46,22 @@ of 0.4. The face Mach follows from the corrected flow per unit face area alone
 (method section 3): MFP(0.4) p_ref / sqrt(T_ref) = 151.708920543 kg/(s m^2), so the
 smallest face area is A_2 = 100 / 151.708920543 = 0.65916 m^2::
 
+    >>> from engine_air.project.toml_file import project_from_dict
+    >>> project = project_from_dict({
+    ...     "project": {"format": 1, "title": "worked example"},
+    ...     "limits": {"face_mach_max": 0.4},
+    ...     "inlet": {"type": "pitot", "capture_area_m2": 5.0, "throat_area_m2": 4.5,
+    ...               "face_area_m2": 1.0, "duct_loss_coefficient": 0.0},
+    ...     "engine": {"rating": [{"name": "max", "theta": [0.8, 1.2],
+    ...                            "corrected_flow_kg_s": [100.0, 100.0]}]},
+    ...     "envelope": {"mach": [0.2, 0.8, 0.8, 0.2],
+    ...                  "altitude_m": [0.0, 0.0, 10000.0, 10000.0]},
+    ...     "grid": {"mach_points": 9, "altitude_points": 7},
+    ...     "case": [{"name": "std", "rating": "max"}]})
     >>> r = feasible_range(project, "face_area_m2", 0.3, 1.5)
-    >>> r.intervals[0].lower.value      # 0.65916 m^2, bounded by "Face Mach number"
+    >>> low = r.intervals[0].lower
+    >>> print(f"{low.value:.5f} m^2, bounded by {low.check}")
+    0.65916 m^2, bounded by face-mach
 """
 
 from __future__ import annotations
