@@ -14,12 +14,14 @@ line; a click selects the nearest grid point (``pointSelected(i, j)``).
 
 from __future__ import annotations
 
+import html
+
 import math
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QFont
+from PySide6.QtCore import QPointF, QRectF, Qt, QTimer, Signal
+from PySide6.QtGui import QFont, QFontMetrics
 from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 
 from engine_air.envelope.evaluate import WORST
@@ -142,6 +144,7 @@ class EnvelopeMap(QWidget):
 
         self.readout = QLabel("Hover over the map for Mach, altitude and value; click to select a point.")
         self.readout.setObjectName("mapReadout")
+        self.readout.setWordWrap(True)
         self.readout.setTextInteractionFlags(Qt.TextSelectableByMouse)
         self.state_label = QLabel(self.canvas)
         self.state_label.setObjectName("mapState")
@@ -215,7 +218,8 @@ class EnvelopeMap(QWidget):
         self.plot.setLabel("bottom", "Flight Mach number M0")
         self.plot.setLabel("left", units.with_unit("Pressure altitude", "altitude"))
         case_text = "worst of all cases" if case == WORST else f"case “{case}”"
-        self.plot.setTitle(f"{q.label} — {case_text}")
+        self._title_parts = (q.label, case_text)
+        self._fit_title()
 
         self._draw_outline(result.project)
         self._draw_zero_line(result, case, key, q.kind, values)
@@ -386,9 +390,16 @@ class EnvelopeMap(QWidget):
         self._update_legend_text()
 
     def _update_legend_text(self) -> None:
-        size = f"{11 * self._scale:.0f}pt"
+        self._legend_shown = None
+        self._fit_legend()
+
+    def _set_legend_text(self, pt: float) -> None:
+        shown = (tuple(self._legend_texts), round(pt, 1))
+        if shown == getattr(self, "_legend_shown", None):
+            return
+        self._legend_shown = shown
         for label, text in zip(self._legend_labels, self._legend_texts):
-            label.setText(text, size=size, color="k")
+            label.setText(text, size=f"{pt:.0f}pt", color="k")
 
     def _apply_style(self) -> None:
         s = self._scale
@@ -414,12 +425,16 @@ class EnvelopeMap(QWidget):
         self.colour_bar.layout.setColumnFixedWidth(1, int(24 * s))
         self.colour_bar.setMinimumWidth(bar_width)
         self.colour_bar.setMaximumWidth(bar_width)
-        self.legend.setColumnCount(2 if s > 1.2 else 4)
+        self.legend.setColumnCount(2 if s > 1.2 else 4)  # fewer when the map is narrow (``_fit_legend``)
         self.plot.titleLabel.opts["size"] = f"{15 * s:.0f}pt"
         self.plot.titleLabel.opts["color"] = "#000"
         if hasattr(self, "_legend_labels"):
             self._update_legend_text()
         self.readout.setStyleSheet(f"font-size: {12 * s:.0f}pt; padding: 4px; color: black; background: #f2f2f2;")
+        # the readout wraps instead of widening the window; two lines reserved, so hovering never resizes the map
+        font = QFont(self.readout.font())
+        font.setPointSizeF(12 * s)
+        self.readout.setMinimumHeight(2 * QFontMetrics(font).lineSpacing() + 8 + 2)
 
     def _set_state(self, state: str, text: str = "") -> None:
         changed = state != getattr(self, "_state", None) or self._styled_scale != self._scale
@@ -457,6 +472,70 @@ class EnvelopeMap(QWidget):
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().resizeEvent(event)
         self._place_overlays()
+        self._fit_title()
+        self._fit_legend()
+        self._schedule_canvas_fit()
+
+    def _schedule_canvas_fit(self) -> None:
+        if not getattr(self, "_canvas_fit_pending", False):
+            self._canvas_fit_pending = True
+            QTimer.singleShot(0, self._fit_canvas)
+
+    def _fit_canvas(self) -> None:
+        """Lay the scene out again at the canvas's size: a resize that came while the title or legend was
+        still wider left the scene at its old, larger minimum (and cut off on the right)."""
+        self._canvas_fit_pending = False
+        ci = self.canvas.ci
+        ci.layout.invalidate()
+        ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
+        ci.layout.activate()
+        self.canvas.viewport().update()
+
+    def _fit_legend(self) -> None:
+        """As many legend columns as the style asks (4, or 2 in presentation) and the width allows; in a
+        narrow window the legend's type first shrinks (to 75 %), then it drops columns."""
+        if not getattr(self, "_legend_labels", None):
+            return
+        room = self.canvas.width() - 30
+        full = 11 * self._scale
+        wanted = 2 if self._scale > 1.2 else 4
+        tries = [(wanted, full), (wanted, 0.85 * full), (wanted, 0.75 * full)]
+        tries += [(n, 0.75 * full) for n in range(wanted - 1, 0, -1)]
+        before = getattr(self, "_legend_shown", None)
+        moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
+        for n, pt in tries:
+            self._set_legend_text(pt)
+            if self.legend.columnCount != n:
+                self.legend.setColumnCount(n)
+                moved = True
+            self.legend.layout.invalidate()
+            if self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:
+                break
+        if moved or self._legend_shown != before:
+            self._schedule_canvas_fit()
+
+    def _fit_title(self) -> None:
+        """The title on one line when it fits beside the colour bar, else on two (quantity / case), so a
+        narrow window never widens the map beyond its place; the title row is as high as its lines."""
+        parts = getattr(self, "_title_parts", None)
+        if parts is None:
+            return
+        font = QFont()
+        font.setPointSizeF(15 * self._scale)
+        fm = QFontMetrics(font)
+        one = f"{parts[0]} — {parts[1]}"
+        room = (self.canvas.width() - self.colour_bar.maximumWidth()
+                - self.plot.getAxis("left").width() - 40)
+        lines = [one] if fm.horizontalAdvance(one) <= room else list(parts)
+        text = "<br>".join(html.escape(line) for line in lines)
+        if (text, self._scale) == getattr(self, "_title_shown", None):
+            return
+        self._title_shown = (text, self._scale)
+        self.plot.setTitle(text)
+        height = len(lines) * fm.lineSpacing() + 12
+        self.plot.titleLabel.setMaximumHeight(height)
+        self.plot.layout.setRowFixedHeight(0, height)
+        self._schedule_canvas_fit()
 
     # -- mouse -----------------------------------------------------------------
     def _grid_index_at_scene(self, scene_pos) -> tuple[int, int] | None:
