@@ -48,3 +48,14 @@ def test_findings_text_has_a_mechanism_per_row():
     mech = [line.split("; mechanism: ")[1] for line in text.splitlines() if "; mechanism: " in line]
     judged = [s for s in result.summary if s.worst_case]
     assert len(mech) == len(result.summary) and len(set(mech)) >= len(judged)
+
+
+def test_findings_rows_carry_their_own_mechanism_as_tooltip(qtbot):
+    from app.findings import FindingsList, mechanisms
+
+    result = evaluate_project(_coarse(SAMPLES / "undersized_business_jet.toml"))
+    view = FindingsList()
+    qtbot.addWidget(view)
+    view.set_summary(result.summary, Units(), mechanisms(result))
+    tips = [view.topLevelItem(k).toolTip(1) for k in range(view.topLevelItemCount())]
+    assert len(tips) == len(result.summary) and all(tips) and len(set(tips)) == len(tips)
