@@ -20,15 +20,13 @@ from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT
 
 EPILOG = ("exit codes: 0 every limit holds at the point; 1 some limit fails; 2 unusable input, or a point outside the "
           "atmosphere model; 3 not judged: the point lies outside the envelope polygon (it is computed and written "
-          "with \"holds\": null and \"judged\": false). Altitude: --altitude-m (geopotential pressure altitude, m), "
+          "with \"holds\": null and \"judged\": false); a point inside the envelope but outside its case's region is not "
+          "judged either and exits 0. Altitude: --altitude-m (geopotential pressure altitude, m), "
           "--altitude-ft (ft) or --fl (flight level, hundreds of feet: FL350 = 35 000 ft).")
 
 
 def add_parser(sub) -> None:
-    import argparse
-
-    q = sub.add_parser("point", help="one flight condition, station by station", epilog=EPILOG,
-                       formatter_class=argparse.RawDescriptionHelpFormatter)
+    q = sub.add_parser("point", help="one flight condition, station by station", epilog=EPILOG)
     q.add_argument("project")
     q.add_argument("--mach", type=float, required=True)
     alt = q.add_mutually_exclusive_group(required=True)
@@ -38,8 +36,8 @@ def add_parser(sub) -> None:
     q.add_argument("--case", help="case name; default the first case")
     q.add_argument("--json", action="store_true", help="write JSON (the default and only format)")
     q.add_argument("--units", choices=("si", "us"), default="si",
-                   help="us: the JSON keeps its SI keys and adds \"units\": \"us\", a \"us\" block of every "
-                        "dimensional value in US customary units and their names in \"us_units\"")
+                   help="us: the JSON keeps its SI keys and values and adds \"units\": \"us\" and a \"us\" block: "
+                        "every dimensional value in US customary units, as {\"value\": ..., \"unit\": ...}")
     q.set_defaults(handler=run)
 
 
