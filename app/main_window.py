@@ -46,8 +46,10 @@ from .detail_panel import DetailPanel
 from .document import ProjectDocument
 from .editors import ProjectEditors
 from .findings import FindingsList, mechanisms
+from .inlet_sketch_view import InletSketchView
 from .map_view import EnvelopeMap
 from .recovery import AUTOSAVE_MS, RecoveryStore
+from .section_plots_view import SectionPlots
 from .template import new_project
 from .units import SI, SYSTEM_LABELS, US, Units
 from .window.autosave import AutosaveActions
@@ -60,6 +62,15 @@ log = logging.getLogger(__name__)
 BUSY_DELAY_MS = 120
 WORST_LABEL = "Worst of all cases"
 MAP_MIN_SHARE = 0.45  # the map keeps at least this share of the window's width when the point panel widens
+LEAST_MARGIN = "worst_relative_margin"
+
+
+def default_quantity(result) -> str:
+    """The map's quantity before the user picks one: the least margin over all limits when some limit fails
+    (it shows where and which), else the face Mach margin."""
+    if result is not None and result.summary and not result.holds:
+        return LEAST_MARGIN
+    return DEFAULT_QUANTITY
 
 
 class MainWindow(FileActions, AutosaveActions, QMainWindow):
@@ -77,6 +88,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.units = Units(SI)
         self.presentation = False
         self._pending_selection = "worst"  # what to select when the next result arrives
+        self.quantity_picked = False  # the user chose the map's quantity (else it follows ``default_quantity``)
         self._last_error = ""
         self._shutdown = False
         self._progress = 0.0
@@ -100,6 +112,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.autosave_label.setObjectName("autosaveNote")
         self.statusBar().addPermanentWidget(self.autosave_label)
         self.resize(1600, 1000)
+        self._size_point_docks()
 
         self.document.changed.connect(self._on_project_changed)
         self.document.stateChanged.connect(self._update_title)
@@ -154,6 +167,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.addToolBar(Qt.TopToolBarArea, bar)
         self.toolbar = bar
         self.quantity_combo.currentIndexChanged.connect(lambda _i: self._redraw())
+        self.quantity_combo.activated.connect(lambda _i: setattr(self, "quantity_picked", True))
         self.case_combo.currentIndexChanged.connect(lambda _i: self._on_case_changed())
         self.units_combo.currentIndexChanged.connect(lambda _i: self.set_units(self.units_combo.currentData()))
 
@@ -163,6 +177,20 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.detail_dock.setObjectName("detailDock")
         self.detail_dock.setWidget(self.detail)
         self.addDockWidget(Qt.RightDockWidgetArea, self.detail_dock)
+        # the inlet at the selected point, below its detail
+        self.sketch = InletSketchView()
+        self.sketch.setMinimumHeight(150)
+        self.sketch_dock = QDockWidget("Inlet at the selected point", self)
+        self.sketch_dock.setObjectName("sketchDock")
+        self.sketch_dock.setWidget(self.sketch)
+        self.addDockWidget(Qt.RightDockWidgetArea, self.sketch_dock, Qt.Vertical)
+        # cuts through the map at the selected point, below the inlet
+        self.sections = SectionPlots()
+        self.sections.setMinimumHeight(150)
+        self.sections_dock = QDockWidget("Sections through the selected point", self)
+        self.sections_dock.setObjectName("sectionsDock")
+        self.sections_dock.setWidget(self.sections)
+        self.addDockWidget(Qt.RightDockWidgetArea, self.sections_dock, Qt.Vertical)
         self.editors = ProjectEditors()
         self.editor_dock = QDockWidget("Edit project", self)
         self.editor_dock.setObjectName("editorDock")
@@ -177,6 +205,13 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.addDockWidget(Qt.BottomDockWidgetArea, self.findings_dock)
         self.resizeDocks([self.detail_dock], [560], Qt.Horizontal)
         self.resizeDocks([self.findings_dock], [190], Qt.Vertical)
+        self._size_point_docks()
+
+    def _size_point_docks(self) -> None:
+        """The right column: the point's detail on top, the inlet and the sections below it."""
+        h = max(600, self.height())
+        self.resizeDocks([self.detail_dock, self.sketch_dock, self.sections_dock],
+                         [int(0.46 * h), int(0.24 * h), int(0.26 * h)], Qt.Vertical)
 
     def _action(self, menu, text, slot, shortcut=None, checkable=False) -> QAction:
         a = QAction(text, self)
@@ -201,6 +236,8 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         ex = f.addMenu("&Export")
         self._action(ex, "Map as &PNG (review resolution)…", lambda: self._export_dialog("png"))
         self._action(ex, "Map as &SVG…", lambda: self._export_dialog("svg"))
+        self._action(ex, "Sections as P&NG…", lambda: self._export_dialog("sections-png"))
+        self._action(ex, "Sections as S&VG…", lambda: self._export_dialog("sections-svg"))
         self._action(ex, "Grid as &CSV (every point, every case)…", lambda: self._export_dialog("csv"))
         self._action(ex, "&Findings as text…", lambda: self._export_dialog("txt"))
         f.addSeparator()
@@ -224,7 +261,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self.unit_actions[system] = a
         self.unit_actions[SI].setChecked(True)
         v.addSeparator()
-        for dock in (self.detail_dock, self.editor_dock, self.findings_dock):
+        for dock in (self.detail_dock, self.sketch_dock, self.editor_dock, self.findings_dock, self.sections_dock):
             v.addAction(dock.toggleViewAction())
 
         self.design_menu = self._add_design_menu()
@@ -287,7 +324,11 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.result_generation = gen
         self._last_error = ""
         self._fill_case_combo(result)
-        self._redraw()
+        if self._pending_selection == "worst":  # a newly opened project: its default quantity again
+            self.quantity_picked = False
+        if not self.quantity_picked:
+            self._set_quantity_quietly(default_quantity(result))
+        self._redraw(sections=False)  # the panels (sections, sketch) follow with the selection
         self.map.set_current()
         self.verdict.show_result(result)
         # The side panels follow in the next turn of the event loop, so that the map's repaint is
@@ -350,14 +391,26 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self.case_combo.setCurrentIndex(k)
 
     def set_quantity(self, key: str) -> None:
+        """Show ``key`` on the map (as if the user picked it: results that follow keep it)."""
         k = self.quantity_combo.findData(key)
         if k >= 0:
+            self.quantity_picked = True
             self.quantity_combo.setCurrentIndex(k)
 
-    def _redraw(self) -> None:
+    def _set_quantity_quietly(self, key: str) -> None:
+        k = self.quantity_combo.findData(key)
+        if k >= 0 and k != self.quantity_combo.currentIndex():
+            self.quantity_combo.blockSignals(True)
+            self.quantity_combo.setCurrentIndex(k)
+            self.quantity_combo.blockSignals(False)
+
+    def _redraw(self, sections: bool = True) -> None:
         if self.result is None:
             return
         self.map.show_result(self.result, self.current_case(), self.current_quantity(), self.units)
+        sel = self.map.selected()
+        if sections and sel is not None:
+            self._show_sections(*sel)
 
     def _on_case_changed(self) -> None:
         self._redraw()
@@ -384,6 +437,21 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             return
         case = analysis.case_at(self.result, self.current_case(), (i, j))
         self.detail.show_point(self.result, case, (i, j))
+        self.sketch.show_point(self.result.project, self.result.case_map(case).points, (i, j))
+        self.sketch.setTitle(f"Inlet at M0 = {float(self.result.mach[j]):.2f}, "
+                             f"{self.units.to_display('altitude', float(self.result.altitude_m[i])):,.0f} "
+                             f"{self.units.label('altitude')} (case “{case}”)")
+        self._show_sections(i, j)
+
+    def _show_sections(self, i: int, j: int) -> None:
+        if self.result is None:
+            return
+        try:
+            self.sections.show_sections(self.result, self.current_case(), self.current_quantity(), i, j, self.units)
+        except Exception as exc:  # noqa: BLE001 - a cut that cannot be drawn must not stop the window
+            log.exception("sections could not be drawn")
+            self.sections.clear_sections()
+            self.statusBar().showMessage(f"Sections not drawn: {exc}", 10000)
 
     def _restore_selection(self) -> None:
         r = self.result
@@ -441,6 +509,8 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self.findings_dock.hide()
             self.detail_dock.show()
             self.detail_dock.raise_()
+            self.sketch_dock.show()
+            self.sections_dock.show()
         else:
             for dock, was_visible in getattr(self, "_docks_before", {}).items():
                 dock.setVisible(was_visible)
@@ -450,6 +520,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         if self.result is not None and self.verdict.state in ("holds", "fails"):
             self.verdict.show_result(self.result)
         self.resizeDocks([self.detail_dock], [max(600, int(0.38 * self.width())) if on else 560], Qt.Horizontal)
+        self._size_point_docks()
         self._fit_detail_dock()
 
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override

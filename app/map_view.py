@@ -8,6 +8,15 @@ ram-recovery speed), an 'x' on failing grid points (thinned to a regular
 pattern when dense) and the selected point. A legend below the plot names
 every line and marker; a colour bar gives the quantity, its unit and scale.
 
+Inside the envelope, a point where a margin map's quantity is not judged (its
+check does not apply there, the value is not defined, or the point lies outside
+its case's region) is drawn in a darker neutral grey, distinct from the light
+grey outside the envelope. The least-margin map (``worst_relative_margin``) is
+drawn from ``engine_air.envelope.ranking.limiting_map``; its legend names the
+checks that limit somewhere. For a mixed-compression inlet the unstarted points
+are hatched and outlined, and the self-start and unstart Mach numbers are
+vertical lines with the hysteresis band between them shaded.
+
 Hovering shows Mach, altitude, value and the limiting check in the readout
 line; a click selects the nearest grid point (``pointSelected(i, j)``).
 """
@@ -15,7 +24,6 @@ line; a click selects the nearest grid point (``pointSelected(i, j)``).
 from __future__ import annotations
 
 import html
-
 import math
 
 import numpy as np
@@ -24,16 +32,34 @@ from PySide6.QtCore import QPointF, QRectF, Qt, QTimer, Signal
 from PySide6.QtGui import QFont, QFontMetrics
 from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 
+from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import WORST
-from engine_air.envelope.ranking import nearest_index
+from engine_air.envelope.ranking import limiting_map, nearest_index
 from engine_air.outputs.quantities import QUANTITIES
+from engine_air.outputs.sections import judged_map
 
 from . import analysis
-from .colour_maps import colour_map_for, levels_for
+from .colour_maps import NOT_JUDGED_GREY, colour_map_for, levels_for
+from .colour_maps import OUTSIDE_GREY as _OUTSIDE_RGB
 from .units import Units, dimension_of_si_unit, group_digits
 
-OUTSIDE_GREY = "#bdbdbd"
+OUTSIDE_GREY = "#%02x%02x%02x" % tuple(_OUTSIDE_RGB[:3])
+LEAST_MARGIN = "worst_relative_margin"
+UNSTARTED_COLOUR = (120, 0, 120)  # the unstarted region's hatch and outline (dark magenta)
 MAX_MARKER_AXIS = 40  # failing-point markers: at most about this many along either axis
+
+
+def _hatch_symbol():
+    """A slanted stroke (a hatch mark) as a scatter symbol."""
+    from PySide6.QtGui import QPainterPath
+
+    path = QPainterPath()
+    path.moveTo(-0.5, 0.5)
+    path.lineTo(0.5, -0.5)
+    return path
+
+
+_HATCH = _hatch_symbol()
 
 
 def _no_si_prefix(axis) -> None:
@@ -120,6 +146,30 @@ class EnvelopeMap(QWidget):
         self.image = pg.ImageItem(axisOrder="row-major")
         self.image.setZValue(-10)
         self.plot.addItem(self.image)
+        # not-judged points inside the envelope: an opaque neutral grey over the quantity's colours
+        self.not_judged_image = pg.ImageItem(axisOrder="row-major")
+        self.not_judged_image.setZValue(-9)
+        self.plot.addItem(self.not_judged_image)
+        self.not_judged_count = 0
+        # mixed compression: hysteresis band, self-start and unstart lines, unstarted hatch and outline
+        self.hysteresis_band = pg.LinearRegionItem(values=(0, 0), orientation="vertical", movable=False,
+                                                   brush=pg.mkBrush(255, 200, 0, 70), pen=pg.mkPen(None))
+        self.hysteresis_band.setZValue(-8)
+        self.plot.addItem(self.hysteresis_band)
+        self.self_start_line = pg.InfiniteLine(angle=90, movable=False)
+        self.unstart_line = pg.InfiniteLine(angle=90, movable=False)
+        self.unstarted_outline = pg.PlotDataItem(connect="finite")
+        self.unstarted_hatch = pg.ScatterPlotItem()
+        for z, item in enumerate((self.self_start_line, self.unstart_line, self.unstarted_outline,
+                                  self.unstarted_hatch)):
+            item.setZValue(0.5 + 0.01 * z)
+            self.plot.addItem(item)
+        self.starting_machs = (None, None)
+        self.unstarted_count = 0
+        self.limiting_labels: list[str] = []  # checks that limit somewhere (least-margin map)
+        self._limiting_index = None
+        self._limiting_names: list[str] = []
+        self._judged = None
         self.colour_bar = pg.ColorBarItem(values=(0.0, 1.0), colorMap=colour_map_for("level"), interactive=False,
                                           width=24, colorMapMenu=False, pen="k")
         self.colour_bar.setImageItem(self.image)
@@ -201,7 +251,14 @@ class EnvelopeMap(QWidget):
             return
         q = QUANTITIES[key]
         dim = quantity_dimension(key)
-        values = np.asarray(result.quantity(case, key), dtype=float)
+        self._limiting_index, self._limiting_names, self.limiting_labels = None, [], []
+        if key == LEAST_MARGIN:
+            values, index, _names, labels = limiting_map(result, case)
+            self._limiting_index, self._limiting_names = index, labels
+            used = sorted(set(int(k) for k in np.unique(index) if k >= 0))
+            self.limiting_labels = [labels[k] for k in used]
+        else:
+            values = np.asarray(result.quantity(case, key), dtype=float)
         if dim != "none":
             values = units.to_display(dim, values)
         self._values = values
@@ -221,7 +278,9 @@ class EnvelopeMap(QWidget):
         self._title_parts = (q.label, case_text)
         self._fit_title()
 
+        self._draw_not_judged(result, case, key, q.kind, values)
         self._draw_outline(result.project)
+        self._draw_starting(result, case)
         self._draw_zero_line(result, case, key, q.kind, values)
         self._draw_ram_line(result, case)
         self._draw_fail_marks(result, case)
@@ -298,10 +357,24 @@ class EnvelopeMap(QWidget):
         if not bool(r.inside[i, j]):
             parts.append("outside the envelope")
             return "   ·   ".join(parts)
-        parts.append(f"{q.label} {format_value(float(value))}{(' ' + unit) if unit else ''}")
+        judged = self._judged is None or bool(self._judged[i, j])
+        shown = format_value(float(value)) if judged or not math.isfinite(float(value)) else \
+            f"{format_value(float(value))} (not judged here)"
+        parts.append(f"{q.label} {shown}{(' ' + unit) if unit else ''}")
         case = analysis.case_at(r, self._case, (i, j))
-        lim = analysis.limiting_at(r.case_map(case).points, (i, j))
-        if lim is not None:
+        points = r.case_map(case).points
+        bits = int(np.asarray(points.flags)[i, j])
+        if bits & F.OUTSIDE_CASE_REGION:
+            parts.append("outside the case's region: not judged")
+        if points.started is not None and float(points.mach[i, j]) > 1.0:
+            parts.append("started" if bool(np.asarray(points.started)[i, j]) else "UNSTARTED")
+        lim = analysis.limiting_at(points, (i, j))
+        if self._limiting_index is not None:
+            k = int(self._limiting_index[i, j])
+            lim = None if k < 0 else (self._limiting_names[k], bool(np.asarray(points.checks[k].fails)[i, j]))
+        if lim is None:
+            parts.append("no limit judged here")
+        else:
             label, fails = lim
             parts.append(f"limiting: {label} ({'FAILS' if fails else 'holds'})")
         if self._case == WORST:
@@ -317,6 +390,82 @@ class EnvelopeMap(QWidget):
 
     def _pen(self, colour, width, style=Qt.SolidLine):
         return pg.mkPen(colour, width=width * self._scale, style=style, cap=Qt.FlatCap)
+
+    def _draw_not_judged(self, result, case, key, kind, values) -> None:
+        """Grey over the points inside the envelope where the quantity is not judged: for a margin, where its
+        check does not apply or the margin is not defined; for any quantity, where it is not defined or the
+        point lies outside its case's region (``outside-case-region``)."""
+        inside = np.asarray(result.inside, dtype=bool)
+        with np.errstate(invalid="ignore"):
+            finite = np.isfinite(values)
+        if kind == "margin" and key != LEAST_MARGIN:
+            judged = judged_map(result, case, key)
+        else:
+            judged = inside & finite
+        cases = result.cases if case == WORST else [result.case_map(case)]
+        if cases:
+            out_region = np.ones(inside.shape, bool)
+            for c in cases:  # for the worst of all cases: grey only where no case is judged
+                out_region &= (np.asarray(c.points.flags).astype(np.int64) & F.OUTSIDE_CASE_REGION) != 0
+            judged = judged & ~out_region
+        grey = inside & ~judged
+        self._judged = judged | ~inside
+        self.not_judged_count = int(grey.sum())
+        rgba = np.zeros(grey.shape + (4,), dtype=np.ubyte)
+        rgba[grey, :3] = NOT_JUDGED_GREY[:3]
+        rgba[grey, 3] = 255
+        self.not_judged_image.setImage(rgba, autoLevels=False)
+        self.not_judged_image.setRect(self._image_rect())
+
+    def not_judged_mask(self) -> np.ndarray | None:
+        """(ny, nx) bool: drawn in the not-judged grey (inside the envelope, not judged)."""
+        if self._judged is None or self._result is None:
+            return None
+        return ~self._judged & np.asarray(self._result.inside, bool)
+
+    def _draw_starting(self, result, case) -> None:
+        """Mixed compression: unstarted points hatched and outlined; self-start and unstart Mach lines."""
+        cases = result.cases if case == WORST else [result.case_map(case)]
+        flags = [np.asarray(c.points.flags).astype(np.int64) for c in cases]
+        mixed = any(c.points.started is not None for c in cases)
+        unstarted = np.zeros(result.inside.shape, bool)
+        for f in flags:
+            unstarted |= (f & F.UNSTARTED) != 0
+        unstarted &= np.asarray(result.inside, bool)
+        self.unstarted_count = int(unstarted.sum())
+        # outline of the unstarted region
+        xs, ys = iso_line(self._x, self._y, np.where(result.inside, unstarted.astype(float), np.nan), 0.5)
+        self.unstarted_outline.setData(xs, ys)
+        self.unstarted_outline.setPen(self._pen(UNSTARTED_COLOUR, 2.4))
+        # hatch: a slanted stroke on a regular subset of the unstarted points
+        ny, nx = unstarted.shape
+        stride = max(1, math.ceil(max(nx, ny) / (MAX_MARKER_AXIS * 1.5)))
+        pattern = np.zeros_like(unstarted)
+        pattern[::stride, (stride // 2)::stride] = True
+        ii, jj = np.nonzero(unstarted & pattern)
+        self.unstarted_hatch.setData(self._x[jj], self._y[ii], symbol=_HATCH, size=11 * self._scale,
+                                     pen=pg.mkPen(UNSTARTED_COLOUR, width=1.6 * self._scale), brush=None)
+        # self-start and unstart Mach numbers (the same on every altitude row)
+        start = unstart = None
+        if mixed:
+            try:
+                from engine_air.inlets.mixed_compression import starting_machs
+
+                start, unstart = starting_machs(result.project.inlet)
+            except Exception:  # noqa: BLE001 - a missing line must never stop the map from drawing
+                start = unstart = None
+        self.starting_machs = (start, unstart)
+        pen_start = self._pen(UNSTARTED_COLOUR, 2.4, Qt.DashLine)
+        pen_unstart = self._pen((180, 110, 0), 2.4, Qt.DashDotLine)
+        for line, at, pen in ((self.self_start_line, start, pen_start), (self.unstart_line, unstart, pen_unstart)):
+            line.setPen(pen)
+            line.setVisible(at is not None)
+            if at is not None:
+                line.setValue(float(at))
+        band = start is not None and unstart is not None and start > unstart
+        self.hysteresis_band.setVisible(band)
+        if band:
+            self.hysteresis_band.setRegion((float(unstart), float(start)))
 
     def _draw_outline(self, project) -> None:
         env = project.envelope
@@ -383,11 +532,81 @@ class EnvelopeMap(QWidget):
 
     def _rebuild_legend(self, margin_shown: bool) -> None:
         none = " (none here)"
-        self._legend_texts[1] = (f"{QUANTITIES[self._key].label} = 0" if margin_shown
+        zero = "least margin = 0" if self._key == LEAST_MARGIN else f"{QUANTITIES[self._key].label} = 0"
+        self._legend_texts[1] = (zero if margin_shown
                                  else "limit boundary (least margin = 0)") + ("" if self._zero_found else none)
         self._legend_texts[2] = "face static = ambient (p2/p0 = 1)" + ("" if self._ram_found else none)
         self._legend_texts[3] = "a limit fails here" + ("" if self.fail_mark_count else " (nowhere)")
+        self._sync_optional_legend(self._optional_legend(margin_shown))
         self._update_legend_text()
+
+    def _optional_legend(self, margin_shown: bool) -> list[tuple[str, str]]:
+        """(entry, text) of the legend entries this map needs beyond the fixed five."""
+        out = []
+        if self.not_judged_count:  # the two greys side by side, so that neither is mistaken for the other
+            out.append(("not-judged", "not judged here"))
+            out.append(("outside", "outside the envelope"))
+        if self._key == LEAST_MARGIN:
+            labels = [html.escape(x) for x in self.limiting_labels] or ["nothing judged"]
+            lines, line = [], "limiting:"
+            for k, label in enumerate(labels):  # wrapped at about 30 characters, so two columns still fit
+                piece = label + (" /" if k < len(labels) - 1 else "")
+                if len(line) + len(piece) > 30 and line != "limiting:":
+                    lines.append(line)
+                    line = piece
+                else:
+                    line = f"{line} {piece}"
+            out.append(("limiting", "<br>".join(lines + [line])))
+        start, unstart = self.starting_machs
+        if self.unstarted_count or start is not None:
+            out.append(("unstarted", "unstarted (hatched)" + ("" if self.unstarted_count else " (nowhere)")))
+        if start is not None:
+            if unstart is not None and unstart < start:
+                out.append(("self-start", f"self-start M0 {start:.3f}"))
+                out.append(("unstart", f"unstart M0 {unstart:.3f}"))
+                out.append(("band", "hysteresis: started only if reached from above"))
+            else:
+                out.append(("self-start", f"self-start = unstart M0 {start:.3f}"))
+        return out
+
+    def _legend_sample(self, entry: str):
+        samples = getattr(self, "_legend_samples", None)
+        if samples is None:
+            samples = self._legend_samples = {}
+        if entry not in samples:
+            if entry in ("outside", "not-judged", "band"):
+                colour = {"outside": OUTSIDE_GREY, "not-judged": pg.mkColor(*NOT_JUDGED_GREY[:3]),
+                          "band": pg.mkColor(255, 200, 0, 110)}[entry]
+                item = pg.ScatterPlotItem(symbol="s", size=14, pen=pg.mkPen("#555555", width=0.8),
+                                          brush=pg.mkBrush(colour))
+            elif entry == "unstarted":
+                item = pg.ScatterPlotItem(symbol=_HATCH, size=12, pen=pg.mkPen(UNSTARTED_COLOUR, width=1.8),
+                                          brush=None)
+            elif entry == "self-start":
+                item = pg.PlotDataItem(pen=pg.mkPen(UNSTARTED_COLOUR, width=2.4, style=Qt.DashLine))
+            elif entry == "unstart":
+                item = pg.PlotDataItem(pen=pg.mkPen((180, 110, 0), width=2.4, style=Qt.DashDotLine))
+            else:  # a text entry
+                item = pg.PlotDataItem(pen=None)
+            samples[entry] = item
+        return samples[entry]
+
+    def _sync_optional_legend(self, wanted: list[tuple[str, str]]) -> None:
+        """Add or remove the optional entries (only when the set changes); texts are updated in place."""
+        keys = [k for k, _t in wanted]
+        if keys != getattr(self, "_optional_keys", []):
+            for k in getattr(self, "_optional_keys", []):
+                self.legend.removeItem(self._legend_sample(k))
+            for k, text in wanted:
+                self.legend.addItem(self._legend_sample(k), text)
+            self._optional_keys = keys
+            n = self.legend.columnCount
+            self.legend.columnCount = -1
+            self.legend.setColumnCount(n)  # lays every entry out again
+            self._legend_labels = [label for _sample, label in self.legend.items]
+            self._legend_shown = None
+        self._legend_texts = self._legend_texts[:5] + [t for _k, t in wanted]
+        self.legend_entries = list(self._legend_texts)
 
     def _update_legend_text(self) -> None:
         self._legend_shown = None

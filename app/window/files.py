@@ -180,20 +180,23 @@ class FileActions:
             return
         stem = Path(self.document.display_name).stem
         filters = {"png": "PNG image (*.png)", "svg": "SVG drawing (*.svg)", "csv": "CSV table (*.csv)",
-                   "txt": "Text (*.txt)"}
+                   "txt": "Text (*.txt)", "sections-png": "PNG image (*.png)", "sections-svg": "SVG drawing (*.svg)"}
         suggested = {"png": f"{stem}_map.png", "svg": f"{stem}_map.svg", "csv": f"{stem}_grid.csv",
-                     "txt": f"{stem}_findings.txt"}[kind]
+                     "txt": f"{stem}_findings.txt", "sections-png": f"{stem}_sections.png",
+                     "sections-svg": f"{stem}_sections.svg"}[kind]
         folder = self.document.path.parent if self.document.path else Path.cwd()
         path, _ = QFileDialog.getSaveFileName(self, "Export", str(folder / suggested), filters[kind])
         if path:
             self.export(kind, path)
 
     def export(self, kind: str, path) -> bool:
-        """Write ``kind`` ("png", "svg", "csv", "txt") to ``path``; a failure is reported, never raised."""
+        """Write ``kind`` ("png", "svg", "csv", "txt", "sections-png", "sections-svg") to ``path``; a failure is reported, never raised."""
         writers = {
             "png": lambda: exports.write_map_png(self.map, path),
             "svg": lambda: exports.write_map_svg(self.map, path),
             "csv": lambda: exports.write_grid_csv(self.result, path),
+            "sections-png": lambda: self.sections.export(str(path)),
+            "sections-svg": lambda: self.sections.export(str(path)),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
                                                        self.document.display_name),
         }

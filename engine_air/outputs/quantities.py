@@ -153,6 +153,9 @@ _ALL = (
        "check ranks first. Not defined (NaN / null) where nothing is judged: outside the atmosphere model "
        "(flag outside-atmosphere) or outside the envelope (flag outside-envelope) on a map",
        kind="margin", judged_by="*"),
+    _q("started", "Started (mixed compression)", "",
+       "1 where a mixed-compression inlet runs started, 0 where it is unstarted or the flight is subsonic "
+       "(not defined for the other inlet types)", table=False, json=False),
 )
 
 REGISTRY: dict[str, Quantity] = {q.key: q for q in _ALL}
@@ -172,6 +175,9 @@ MAP_KEYS: tuple[str, ...] = (
     "face_mach_margin", "worst_relative_margin", "face_mach", "recovery", "recovery_minus_reference",
     "spillage_fraction", "mass_flow_ratio", "throat_mach", "additive_drag_coefficient", "face_static_to_ambient",
     "relative_tip_mach",
+    # mixed compression (method §11) and the installation ledger (method §13)
+    "started", "self_start_contraction", "ram_drag_n", "additive_drag_n", "spillage_drag_n", "bleed_drag_n",
+    "bypass_drag_n", "net_thrust_n", "installed_thrust_n", "installation_loss_fraction",
 )
 """The quantities a map can be coloured by, in the order offered."""
 
