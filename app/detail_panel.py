@@ -167,6 +167,8 @@ class DetailPanel(QScrollArea):
         self._record = None
         self._stations_si: list[dict] = []
         self._shocks: list[dict] = []
+        self._ledger: dict | None = None
+        self._ledger_rows: list[dict] = []
         self._index = None
         self._case = None
         self._fitted: dict = {}
@@ -188,11 +190,19 @@ class DetailPanel(QScrollArea):
         self.flow = _table(["Quantity", "Value", "Unit"])
         self.shocks = _table(["Shock", "M\nahead", "M\nbehind", "Wave\nangle (°)", "p_t\nratio"])
         self.checks = _table(["Limit: rule", "Value", "Margin", "Status"])
+        self.ledger = _table(["Ledger item", "Value", "Unit"])
+        self.ledger.setObjectName("ledgerTable")
+        self.ledger_note = QLabel("")
+        self.ledger_note.setObjectName("ledgerNote")
+        self.ledger_note.setWordWrap(True)
+        self.started_label = QLabel("")
+        self.started_label.setObjectName("startedState")
+        self.started_label.setWordWrap(True)
         self.checks.setWordWrap(True)
         self.checks.horizontalHeader().setSectionResizeMode(0, QHeaderView.Stretch)
         self.checks.horizontalHeader().setStretchLastSection(False)
         # the rule texts wrap: their rows follow the column's width; no table is narrower than its columns
-        for t in (self.checks, self.stations, self.flow, self.shocks):
+        for t in (self.checks, self.stations, self.flow, self.shocks, self.ledger):
             t.horizontalHeader().sectionResized.connect(self._schedule_refit)
         self.flags_label = QLabel("")
         self.flags_label.setWordWrap(True)
@@ -215,8 +225,12 @@ class DetailPanel(QScrollArea):
         lay.addWidget(self.stations)
         lay.addWidget(heading("Flow, recovery and capture"))
         lay.addWidget(self.flow)
+        lay.addWidget(heading("Installation ledger"))
+        lay.addWidget(self.ledger_note)
+        lay.addWidget(self.ledger)
         lay.addWidget(heading("Shock system"))
         lay.addWidget(self.regime_label)
+        lay.addWidget(self.started_label)
         lay.addWidget(self.shocks)
         lay.addWidget(heading("Flags"))
         lay.addWidget(self.flags_label)
@@ -251,6 +265,11 @@ class DetailPanel(QScrollArea):
 
     def shock_rows(self) -> list[dict]:
         return [dict(s) for s in self._shocks]
+
+    def ledger_rows(self) -> list[dict]:
+        """The ledger's rows as shown: dicts with key, label, value (SI, N or –) and sign (+1, -1; 0 for the
+        installed thrust, the sum of the others with their signs)."""
+        return [dict(r) for r in self._ledger_rows]
 
     @property
     def index(self):
@@ -290,7 +309,7 @@ class DetailPanel(QScrollArea):
 
     def _refit_layout(self) -> None:
         self._refit_pending = False
-        for t in (self.checks, self.stations, self.flow, self.shocks):
+        for t in (self.checks, self.stations, self.flow, self.shocks, self.ledger):
             _fit_width(t, 0 if t is self.checks else None)
         if self.checks.rowCount():
             self.checks.resizeRowsToContents()
@@ -319,8 +338,11 @@ class DetailPanel(QScrollArea):
         self._shocks = []
         self._index = None
         self._case = None
-        for t in (self.stations, self.flow, self.shocks, self.checks):
+        for t in (self.stations, self.flow, self.shocks, self.checks, self.ledger):
             t.setRowCount(0)
+        self._ledger, self._ledger_rows = None, []
+        self.ledger_note.setText("")
+        self.started_label.setText("")
         self._fitted.clear()
         self.header.setText("No point selected. Click the map to select a flight condition.")
         self.flags_label.setText("")
@@ -334,11 +356,18 @@ class DetailPanel(QScrollArea):
         self._record = report.point_record(points, self._index, case_name)
         self._stations_si = report.station_table(result.project, points, self._index)
         self._shocks = report.shock_table(result.project, points, self._index)
+        self._ledger = report.ledger_table(result.project, points, self._index, case_name)
+        self._contraction = None
+        if self._record.get("started") is not None:  # the throat's contraction A_th/A_c at this Mach number
+            from engine_air.inlets.schedule import inlet_at
+
+            inlet = inlet_at(result.project.inlet, float(self._record["mach"]))
+            self._contraction = inlet.throat_area_m2 / inlet.capture_area_m2
         self._inside = bool(result.inside[self._index])
         self._fill()
 
     def _fill(self) -> None:
-        tables = (self.checks, self.stations, self.flow, self.shocks)
+        tables = (self.checks, self.stations, self.flow, self.shocks, self.ledger)
         # Item changes with the models' signals blocked, then one repaint per table: a refill
         # otherwise sends hundreds of dataChanged signals through the views.
         for t in tables:
@@ -376,6 +405,7 @@ class DetailPanel(QScrollArea):
         self._fill_stations()
         self._fill_flow(rec)
         self._fill_shocks(rec)
+        self._fill_ledger()
         names = rec["flags"]
         self.flags_label.setText("<br>".join(
             f"<b>{html.escape(n)}</b>: {html.escape(F.DESCRIPTIONS.get(n, ''))}" for n in names))
@@ -423,7 +453,61 @@ class DetailPanel(QScrollArea):
             _set_num(t, r, 1, disp, si)
             _set_text(t, r, 2, u.label(dim) if dim != "none" else "–")
 
+    def _fill_ledger(self) -> None:
+        """Drags, then net thrust less each loss down to the installed thrust (the rows add up visibly)."""
+        u, t, led = self._units, self.ledger, self._ledger
+        if led is None:
+            return
+        rows: list[dict] = []
+        for d in led["drags"]:
+            rows.append({"key": d["key"], "label": d["label"], "value": d["value"], "sign": None})
+        if led["has_thrust"]:
+            for r in led["rows"]:
+                sign = {1: "+ ", -1: "− ", 0: "= "}[r["sign"]]
+                rows.append({"key": r["key"], "label": sign + r["label"], "value": r["value"], "sign": r["sign"]})
+            loss = led["installation_loss_fraction"]
+            self.ledger_note.setText("Drags of the captured and spilled flow, then the thrust bookkeeping: "
+                                     "net thrust less each loss gives the installed thrust"
+                                     + ("" if loss is None else f" (installation loss {100 * loss:.2f} %)") + ".")
+        else:
+            rows.append({"key": "net_thrust_n", "label": "Net / installed thrust: no thrust data", "value": None,
+                         "sign": None})
+            self.ledger_note.setText("No thrust data for this case's rating (flag no-thrust-data): the drags are "
+                                     "shown, the installed thrust is not.")
+        self._ledger_rows = rows
+        _set_rows(t, len(rows))
+        for r, row in enumerate(rows):
+            si = row["value"]
+            disp = u.to_display("force", si) if si is not None else None
+            _set_text(t, r, 0, row["label"])
+            if si is None and row["key"] == "net_thrust_n":
+                _set_text(t, r, 1, "no thrust data")
+            else:
+                item = _set_num(t, r, 1, disp, si)
+                f = item.font()
+                f.setBold(row["sign"] == 0)
+                item.setFont(f)
+            _set_text(t, r, 2, u.label("force"))
+
     def _fill_shocks(self, rec) -> None:
+        started = rec.get("started")
+        if started is None:
+            self.started_label.setText("")
+            self.started_label.hide()
+        else:
+            ssc = rec.get("self_start_contraction")
+            contraction = getattr(self, "_contraction", None)
+            text = ("<b>Started</b>: the supersonic compression continues inside the cowl to the throat."
+                    if started else
+                    "<b>UNSTARTED</b>: a normal shock stands ahead of the cowl.") if rec["mach"] > 1.0 else \
+                "Subsonic flight: a mixed-compression inlet is not started."
+            if ssc is not None:
+                text += f"<br>Self-start contraction (Kantrowitz) A_th/A_c = {ssc:.4f}"
+            if contraction is not None:
+                text += f"; this throat {contraction:.4f}"
+            self.started_label.setTextFormat(Qt.RichText)
+            self.started_label.setText(text)
+            self.started_label.show()
         t = self.shocks
         rows = self._shocks
         if rec["mach"] is not None and rec["mach"] <= 1.0:

@@ -65,8 +65,13 @@ def write_map_png(map_view, path: str | Path, scale: float = 2.0) -> None:
 
 def write_map_svg(map_view, path: str | Path) -> None:
     """Vector drawing of the map; pyqtgraph's SVG exporter first, Qt's SVG generator if that fails."""
+    write_graphics_svg(map_view.canvas, path, "Envelope map")
+
+
+def write_graphics_svg(view, path: str | Path, title: str = "") -> None:
+    """Vector drawing of a pyqtgraph ``GraphicsLayoutWidget``; Qt's SVG generator when pyqtgraph's fails."""
     try:
-        pgx.SVGExporter(map_view.canvas.ci).export(str(path))
+        pgx.SVGExporter(view.ci).export(str(path))
         return
     except Exception:  # noqa: BLE001 - some binding versions emit path data the exporter cannot parse
         pass
@@ -74,13 +79,12 @@ def write_map_svg(map_view, path: str | Path) -> None:
     from PySide6.QtGui import QPainter
     from PySide6.QtSvg import QSvgGenerator
 
-    view = map_view.canvas
     rect = view.sceneRect() if not view.sceneRect().isEmpty() else QRectF(view.rect())
     gen = QSvgGenerator()
     gen.setFileName(str(path))
     gen.setSize(QSize(int(rect.width()), int(rect.height())))
     gen.setViewBox(QRectF(0, 0, rect.width(), rect.height()))
-    gen.setTitle("Envelope map")
+    gen.setTitle(title)
     painter = QPainter()
     if not painter.begin(gen):
         raise OSError(f"cannot write {path}")

@@ -45,7 +45,9 @@ from .units import Units, dimension_of_si_unit, group_digits
 
 OUTSIDE_GREY = "#%02x%02x%02x" % tuple(_OUTSIDE_RGB[:3])
 LEAST_MARGIN = "worst_relative_margin"
-UNSTARTED_COLOUR = (120, 0, 120)  # the unstarted region's hatch and outline (dark magenta)
+UNSTARTED_COLOUR = (200, 0, 200)  # the unstarted region's hatch and outline (magenta: seen on both arms)
+START_COLOUR = (0, 130, 130)  # the self-start Mach line (teal)
+UNSTART_COLOUR = (180, 110, 0)  # the unstart Mach line
 MAX_MARKER_AXIS = 40  # failing-point markers: at most about this many along either axis
 
 
@@ -439,12 +441,12 @@ class EnvelopeMap(QWidget):
         self.unstarted_outline.setPen(self._pen(UNSTARTED_COLOUR, 2.4))
         # hatch: a slanted stroke on a regular subset of the unstarted points
         ny, nx = unstarted.shape
-        stride = max(1, math.ceil(max(nx, ny) / (MAX_MARKER_AXIS * 1.5)))
+        stride = max(1, math.ceil(max(nx, ny) / MAX_MARKER_AXIS))
         pattern = np.zeros_like(unstarted)
         pattern[::stride, (stride // 2)::stride] = True
         ii, jj = np.nonzero(unstarted & pattern)
-        self.unstarted_hatch.setData(self._x[jj], self._y[ii], symbol=_HATCH, size=11 * self._scale,
-                                     pen=pg.mkPen(UNSTARTED_COLOUR, width=1.6 * self._scale), brush=None)
+        self.unstarted_hatch.setData(self._x[jj], self._y[ii], symbol=_HATCH, size=12 * self._scale,
+                                     pen=pg.mkPen(UNSTARTED_COLOUR, width=2.2 * self._scale), brush=None)
         # self-start and unstart Mach numbers (the same on every altitude row)
         start = unstart = None
         if mixed:
@@ -455,8 +457,8 @@ class EnvelopeMap(QWidget):
             except Exception:  # noqa: BLE001 - a missing line must never stop the map from drawing
                 start = unstart = None
         self.starting_machs = (start, unstart)
-        pen_start = self._pen(UNSTARTED_COLOUR, 2.4, Qt.DashLine)
-        pen_unstart = self._pen((180, 110, 0), 2.4, Qt.DashDotLine)
+        pen_start = self._pen(START_COLOUR, 3.0, Qt.DashLine)
+        pen_unstart = self._pen(UNSTART_COLOUR, 3.0, Qt.DashDotLine)
         for line, at, pen in ((self.self_start_line, start, pen_start), (self.unstart_line, unstart, pen_unstart)):
             line.setPen(pen)
             line.setVisible(at is not None)
@@ -548,15 +550,10 @@ class EnvelopeMap(QWidget):
             out.append(("outside", "outside the envelope"))
         if self._key == LEAST_MARGIN:
             labels = [html.escape(x) for x in self.limiting_labels] or ["nothing judged"]
-            lines, line = [], "limiting:"
-            for k, label in enumerate(labels):  # wrapped at about 30 characters, so two columns still fit
-                piece = label + (" /" if k < len(labels) - 1 else "")
-                if len(line) + len(piece) > 30 and line != "limiting:":
-                    lines.append(line)
-                    line = piece
-                else:
-                    line = f"{line} {piece}"
-            out.append(("limiting", "<br>".join(lines + [line])))
+            one = "limiting: " + " / ".join(labels)
+            # one check a line when they do not fit on one short line, so the legend keeps its columns
+            text = one if len(one) <= 26 else "limiting:<br>" + " /<br>".join(labels)
+            out.append(("limiting", text))
         start, unstart = self.starting_machs
         if self.unstarted_count or start is not None:
             out.append(("unstarted", "unstarted (hatched)" + ("" if self.unstarted_count else " (nowhere)")))
@@ -580,12 +577,12 @@ class EnvelopeMap(QWidget):
                 item = pg.ScatterPlotItem(symbol="s", size=14, pen=pg.mkPen("#555555", width=0.8),
                                           brush=pg.mkBrush(colour))
             elif entry == "unstarted":
-                item = pg.ScatterPlotItem(symbol=_HATCH, size=12, pen=pg.mkPen(UNSTARTED_COLOUR, width=1.8),
+                item = pg.ScatterPlotItem(symbol=_HATCH, size=12, pen=pg.mkPen(UNSTARTED_COLOUR, width=2.2),
                                           brush=None)
             elif entry == "self-start":
-                item = pg.PlotDataItem(pen=pg.mkPen(UNSTARTED_COLOUR, width=2.4, style=Qt.DashLine))
+                item = pg.PlotDataItem(pen=pg.mkPen(START_COLOUR, width=3.0, style=Qt.DashLine))
             elif entry == "unstart":
-                item = pg.PlotDataItem(pen=pg.mkPen((180, 110, 0), width=2.4, style=Qt.DashDotLine))
+                item = pg.PlotDataItem(pen=pg.mkPen(UNSTART_COLOUR, width=3.0, style=Qt.DashDotLine))
             else:  # a text entry
                 item = pg.PlotDataItem(pen=None)
             samples[entry] = item
@@ -745,7 +742,18 @@ class EnvelopeMap(QWidget):
         one = f"{parts[0]} — {parts[1]}"
         room = (self.canvas.width() - self.colour_bar.maximumWidth()
                 - self.plot.getAxis("left").width() - 40)
-        lines = [one] if fm.horizontalAdvance(one) <= room else list(parts)
+        lines = [one] if fm.horizontalAdvance(one) <= room else []
+        if not lines:  # one line per part, each part wrapped at its words when it is still too wide
+            for part in parts:
+                line = ""
+                for word in part.split(" "):
+                    trial = f"{line} {word}".strip()
+                    if line and fm.horizontalAdvance(trial) > room:
+                        lines.append(line)
+                        line = word
+                    else:
+                        line = trial
+                lines.append(line)
         text = "<br>".join(html.escape(line) for line in lines)
         if (text, self._scale) == getattr(self, "_title_shown", None):
             return

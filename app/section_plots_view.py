@@ -63,8 +63,10 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         names = [c.name for c in result.cases] if case == WORST else [case]
         altitude = float(result.altitude_m[i])
         mach = float(result.mach[j])
-        self.by_mach.setTitle(f"{q.label} against Mach at {altitude / af:,.0f} {units.label('altitude')}")
-        self.by_altitude.setTitle(f"{q.label} against altitude at Mach {mach:.3f}")
+        # short titles (the quantity is on the axes), so the two plots fit side by side in a narrow panel
+        self.by_mach.setTitle(f"along Mach at {altitude / af:,.0f} {units.label('altitude')}", color="#000",
+                              size="9pt")
+        self.by_altitude.setTitle(f"along altitude at M0 {mach:.3f}", color="#000", size="9pt")
         self.by_mach.setLabel("bottom", "flight Mach number M0")
         self.by_mach.setLabel("left", ylabel)
         self.by_altitude.setLabel("left", units.with_unit("pressure altitude", "altitude"))
@@ -101,8 +103,10 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         self.by_altitude.addItem(pg.InfiniteLine(pos=altitude / af, angle=0, pen=sel))
 
     def export(self, path: str) -> None:
-        """Write both plots to ``path`` (PNG, or SVG by the file's ending)."""
-        item = self.ci
-        exporter = (pg.exporters.SVGExporter(item) if str(path).lower().endswith(".svg")
-                    else pg.exporters.ImageExporter(item))
-        exporter.export(str(path))
+        """Write both plots to ``path`` (PNG, or SVG by the file's ending), as the map is written."""
+        from .exports import write_graphics_svg
+
+        if str(path).lower().endswith(".svg"):
+            write_graphics_svg(self, path, "Sections")
+            return
+        pg.exporters.ImageExporter(self.ci).export(str(path))

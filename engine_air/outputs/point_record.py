@@ -135,11 +135,23 @@ def station_table(project: Project, points: OperatingPoints, index) -> list[dict
 
 
 def shock_table(project: Project, points: OperatingPoints, index) -> list[dict]:
-    """The external shocks at one point: kind, Mach ahead and behind, wave angle (deg), total-pressure ratio."""
+    """The shocks at one point: kind, Mach ahead and behind, wave angle (deg), total-pressure ratio.
+
+    Ramp (or cone) shocks first, then for a mixed-compression inlet the cowl shock and the terminal normal shock
+    at the throat Mach when started (method §11), or the normal shock ahead of the cowl when unstarted; for the
+    other types the terminal normal shock at the Mach behind the last oblique (or conical) shock. A cone shock's
+    total-pressure ratio is the normal-shock one at its normal Mach number M sin(beta) [NACA Report 1135,
+    eqs. 99 and 142: the same relation as for a plane oblique shock].
+    """
     m0 = float(_at(points.mach, index))
     rows = []
     if m0 <= 1.0:
         return rows
+    from engine_air.inlets.schedule import inlet_at
+
+    inlet = inlet_at(project.inlet, m0)
+    ramp_angles = tuple(getattr(inlet, "ramp_angles_deg", ()) or ())
+    cones = inlet.type == "axisymmetric-spike"
     m = m0
     n = 0 if points.ramp_wave_angle_rad is None else points.ramp_wave_angle_rad.shape[0]
     for k in range(n):
@@ -147,12 +159,83 @@ def shock_table(project: Project, points: OperatingPoints, index) -> list[dict]:
         if not math.isfinite(beta):
             break
         m_after = float(points.ramp_downstream_mach[k][index])
-        s = oblique_shock(m, math.radians(project.inlet.ramp_angles_deg[k]))
-        rows.append({"kind": f"ramp {k + 1} oblique", "mach_ahead": m, "mach_behind": m_after,
-                     "wave_angle_deg": math.degrees(beta), "total_pressure_ratio": float(s.total_pressure_ratio)})
+        if not cones and k < len(ramp_angles):
+            pt = float(oblique_shock(m, math.radians(ramp_angles[k])).total_pressure_ratio)
+        else:
+            pt = float(normal_shock(m * math.sin(beta)).total_pressure_ratio)
+        rows.append({"kind": f"{'cone' if cones else 'ramp'} {k + 1} {'conical' if cones else 'oblique'}",
+                     "mach_ahead": m, "mach_behind": m_after, "wave_angle_deg": math.degrees(beta),
+                     "total_pressure_ratio": pt})
         m = m_after
+    if inlet.type == "mixed-compression" and points.started is not None and rows:
+        from engine_air.inlets.mixed_compression import mixed_state
+
+        state = mixed_state(project.inlet, np.array([m0]))
+        if bool(_at(points.started, index)) and bool(state.can_run[0]):
+            cowl = state.cowl
+            m_cowl = float(np.asarray(cowl.downstream_mach)[0])
+            rows.append({"kind": "cowl oblique", "mach_ahead": m, "mach_behind": m_cowl,
+                         "wave_angle_deg": math.degrees(float(np.asarray(cowl.wave_angle_rad)[0])),
+                         "total_pressure_ratio": float(np.asarray(cowl.total_pressure_ratio)[0])})
+            m_th = float(state.throat_mach[0])
+            ns = normal_shock(m_th)
+            rows.append({"kind": "terminal normal at the throat", "mach_ahead": m_th,
+                         "mach_behind": float(ns.downstream_mach), "wave_angle_deg": 90.0,
+                         "total_pressure_ratio": float(ns.total_pressure_ratio)})
+            return rows
+        if m > 1.0:  # unstarted: the normal shock stands ahead of the cowl
+            ns = normal_shock(m)
+            rows.append({"kind": "normal ahead of the cowl (unstarted)", "mach_ahead": m,
+                         "mach_behind": float(ns.downstream_mach), "wave_angle_deg": 90.0,
+                         "total_pressure_ratio": float(ns.total_pressure_ratio)})
+        return rows
     if m > 1.0:
         ns = normal_shock(m)
         rows.append({"kind": "terminal normal", "mach_ahead": m, "mach_behind": float(ns.downstream_mach),
                      "wave_angle_deg": 90.0, "total_pressure_ratio": float(ns.total_pressure_ratio)})
     return rows
+
+
+def ledger_table(project: Project, points: OperatingPoints, index, case_name: str) -> dict:
+    """The installation ledger at one point (method §13), as rows that add up to the installed thrust.
+
+    Returns ``{"drags": [...], "rows": [...], "has_thrust": bool}``. ``drags`` are the drag items in N (ram,
+    pre-entry, spillage, bleed, bypass; the ram drag is inside the net thrust and the pre-entry drag is carried
+    by the spillage drag, so both are shown, not subtracted again). ``rows`` are (key, label, value in N, sign)
+    of the sum F_inst = F_n - dF_recovery - D_spill - D_bleed - D_bypass, where
+    dF_recovery = F_n X (1 - pi/pi_ref) (``engine_air.flow.ledger``); ``sign`` is +1 or -1 as the item enters the
+    sum; the last row is the installed thrust. Without thrust data ``rows`` is empty and ``has_thrust`` False.
+    """
+    at = lambda name: _num(_at(getattr(points, name), index))  # noqa: E731
+    drags = [
+        {"key": "ram_drag_n", "label": "Ram drag W V0 (inside the net thrust)", "value": at("ram_drag_n")},
+        {"key": "additive_drag_n", "label": "Pre-entry (additive) drag", "value": at("additive_drag_n")},
+        {"key": "spillage_drag_n", "label": "Spillage drag (pre-entry less lip suction)",
+         "value": at("spillage_drag_n")},
+        {"key": "bleed_drag_n", "label": "Bleed drag", "value": at("bleed_drag_n")},
+        {"key": "bypass_drag_n", "label": "Bypass drag", "value": at("bypass_drag_n")},
+    ]
+    f_n, f_inst = at("net_thrust_n"), at("installed_thrust_n")
+    has_thrust = f_n is not None and f_inst is not None
+    rows = []
+    if has_thrust:
+        case = next((c for c in project.cases if c.name == case_name), None)
+        rating = project.rating(case.rating) if case is not None else None
+        exchange = getattr(rating, "recovery_thrust_exchange", None)
+        pi, ref = at("recovery"), at("thrust_reference_recovery")
+        if exchange is not None and pi is not None and ref:
+            d_rec = f_n * float(exchange) * (1.0 - pi / ref)
+        else:
+            d_rec = None
+        spill, bleed, bypass = (at(k) or 0.0 for k in ("spillage_drag_n", "bleed_drag_n", "bypass_drag_n"))
+        rows = [
+            {"key": "net_thrust_n", "label": "Net thrust F_n (engine table)", "value": f_n, "sign": 1},
+            {"key": "recovery_thrust_loss_n", "label": "Recovery below the table's: F_n X (1 - pi/pi_ref)",
+             "value": d_rec, "sign": -1},
+            {"key": "spillage_drag_n", "label": "Spillage drag", "value": spill, "sign": -1},
+            {"key": "bleed_drag_n", "label": "Bleed drag", "value": bleed, "sign": -1},
+            {"key": "bypass_drag_n", "label": "Bypass drag", "value": bypass, "sign": -1},
+            {"key": "installed_thrust_n", "label": "Installed thrust F_inst", "value": f_inst, "sign": 0},
+        ]
+    return {"drags": drags, "rows": rows, "has_thrust": has_thrust,
+            "installation_loss_fraction": at("installation_loss_fraction")}
