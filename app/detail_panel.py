@@ -466,9 +466,12 @@ class DetailPanel(QScrollArea):
                 sign = {1: "+ ", -1: "− ", 0: "= "}[r["sign"]]
                 rows.append({"key": r["key"], "label": sign + r["label"], "value": r["value"], "sign": r["sign"]})
             loss = led["installation_loss_fraction"]
+            undefined = any(r["value"] is None for r in led["rows"])
             self.ledger_note.setText("Drags of the captured and spilled flow, then the thrust bookkeeping: "
                                      "net thrust less each loss gives the installed thrust"
-                                     + ("" if loss is None else f" (installation loss {100 * loss:.2f} %)") + ".")
+                                     + ("" if loss is None else f" (installation loss {100 * loss:.2f} %)") + "."
+                                     + (" A value shown as — is not defined here (see the flags)."
+                                        if undefined else ""))
         else:
             rows.append({"key": "net_thrust_n", "label": "Net / installed thrust: no thrust data", "value": None,
                          "sign": None})

@@ -167,7 +167,7 @@ def shock_table(project: Project, points: OperatingPoints, index) -> list[dict]:
                      "mach_ahead": m, "mach_behind": m_after, "wave_angle_deg": math.degrees(beta),
                      "total_pressure_ratio": pt})
         m = m_after
-    if inlet.type == "mixed-compression" and points.started is not None and rows:
+    if inlet.type == "mixed-compression" and points.started is not None:
         from engine_air.inlets.mixed_compression import mixed_state
 
         state = mixed_state(project.inlet, np.array([m0]))
@@ -204,7 +204,8 @@ def ledger_table(project: Project, points: OperatingPoints, index, case_name: st
     by the spillage drag, so both are shown, not subtracted again). ``rows`` are (key, label, value in N, sign)
     of the sum F_inst = F_n - dF_recovery - D_spill - D_bleed - D_bypass, where
     dF_recovery = F_n X (1 - pi/pi_ref) (``engine_air.flow.ledger``); ``sign`` is +1 or -1 as the item enters the
-    sum; the last row is the installed thrust. Without thrust data ``rows`` is empty and ``has_thrust`` False.
+    sum; the last row is the installed thrust. Without thrust data ``rows`` is empty and ``has_thrust`` False; a value
+    is None (null) where it is not defined (the point's flags say why).
     """
     at = lambda name: _num(_at(getattr(points, name), index))  # noqa: E731
     drags = [
@@ -216,7 +217,7 @@ def ledger_table(project: Project, points: OperatingPoints, index, case_name: st
         {"key": "bypass_drag_n", "label": "Bypass drag", "value": at("bypass_drag_n")},
     ]
     f_n, f_inst = at("net_thrust_n"), at("installed_thrust_n")
-    has_thrust = f_n is not None and f_inst is not None
+    has_thrust = f_n is not None  # the installed thrust may still be null (a drag not defined: the flags say why)
     rows = []
     if has_thrust:
         case = next((c for c in project.cases if c.name == case_name), None)
@@ -227,7 +228,7 @@ def ledger_table(project: Project, points: OperatingPoints, index, case_name: st
             d_rec = f_n * float(exchange) * (1.0 - pi / ref)
         else:
             d_rec = None
-        spill, bleed, bypass = (at(k) or 0.0 for k in ("spillage_drag_n", "bleed_drag_n", "bypass_drag_n"))
+        spill, bleed, bypass = (at(k) for k in ("spillage_drag_n", "bleed_drag_n", "bypass_drag_n"))
         rows = [
             {"key": "net_thrust_n", "label": "Net thrust F_n (engine table)", "value": f_n, "sign": 1},
             {"key": "recovery_thrust_loss_n", "label": "Recovery below the table's: F_n X (1 - pi/pi_ref)",
