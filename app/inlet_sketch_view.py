@@ -40,7 +40,8 @@ class InletSketchView(pg.PlotWidget):
         self.setLabel("bottom", "x", units="m")
         self.setLabel("left", "y", units="m")
         self.setTitle("Inlet at the selected point")
-        self.legend = self.addLegend(offset=(-5, 5), labelTextSize="8pt", brush=pg.mkBrush(255, 255, 255, 220))
+        self.legend = self.addLegend(offset=(-5, 5), labelTextSize="8pt", brush=pg.mkBrush(255, 255, 255, 220),
+                                     colCount=3)
         self.sketch: InletSketch | None = None
         self.curves: dict[str, pg.PlotDataItem] = {}
 
@@ -73,13 +74,13 @@ class InletSketchView(pg.PlotWidget):
         mach = float(np.asarray(points.mach)[index])
         self.setTitle(f"Inlet at M0 = {mach:.2f}")
         self.setToolTip(sketch.notes[0])
-        self.getPlotItem().setLabel("bottom", f"x ({sketch.notes[0]})", units="m")
+        self.getPlotItem().setLabel("bottom", "x (duct length not to scale)", units="m")
         xs = np.concatenate([line.x_m for line in sketch.lines])
         ys = np.concatenate([line.y_m for line in sketch.lines])
         span = max(float(np.ptp(ys)), 1e-9)
         # head room above the cowl for the legend
         self.setRange(xRange=(float(xs.min()), float(xs.max())),
-                      yRange=(float(ys.min()) - 0.05 * span, float(ys.max()) + 0.9 * span), padding=0.02)
+                      yRange=(float(ys.min()) - 0.05 * span, float(ys.max()) + 1.3 * span), padding=0.02)
 
     def drawn_angle_deg(self, label: str) -> float:
         """Angle from the free-stream direction of the straight line drawn as ``label`` (for tests)."""

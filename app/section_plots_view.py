@@ -95,9 +95,9 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         if limit is not None:
             lpen = pg.mkPen((0, 0, 0), width=1.5, style=Qt.DashLine)
             self.by_mach.addItem(pg.InfiniteLine(pos=limit / qf, angle=0, pen=lpen, label="limit",
-                                                 labelOpts={"position": 0.05, "color": (0, 0, 0)}))
+                                                 labelOpts={"position": 0.12, "color": (0, 0, 0)}))
             self.by_altitude.addItem(pg.InfiniteLine(pos=limit / qf, angle=90, pen=lpen, label="limit",
-                                                     labelOpts={"position": 0.95, "color": (0, 0, 0)}))
+                                                     labelOpts={"position": 0.8, "color": (0, 0, 0)}))
         sel = pg.mkPen((90, 90, 90), width=1, style=Qt.DotLine)
         self.by_mach.addItem(pg.InfiniteLine(pos=mach, angle=90, pen=sel))
         self.by_altitude.addItem(pg.InfiniteLine(pos=altitude / af, angle=0, pen=sel))

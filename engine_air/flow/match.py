@@ -157,8 +157,12 @@ class OperatingPoints:
         raise KeyError(name)
 
     def value(self, key: str) -> np.ndarray:
-        """A quantity by its key (attribute name)."""
-        return np.asarray(getattr(self, key))
+        """A quantity by its key (attribute name); NaN everywhere for one this inlet type does not carry (e.g.
+        ``started`` of a pitot inlet)."""
+        value = getattr(self, key)
+        if value is None:
+            return np.full(np.shape(self.mach), np.nan)
+        return np.asarray(value)
 
 
 def _per_ramp(values: np.ndarray, shape: tuple[int, ...]) -> np.ndarray:
