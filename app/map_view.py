@@ -254,13 +254,12 @@ class EnvelopeMap(QWidget):
         q = QUANTITIES[key]
         dim = quantity_dimension(key)
         self._limiting_index, self._limiting_names, self.limiting_labels = None, [], []
-        if key == LEAST_MARGIN:
-            values, index, _names, labels = limiting_map(result, case)
+        values = np.asarray(result.quantity(case, key), dtype=float)  # the map is the analysis's own array
+        if key == LEAST_MARGIN:  # which check limits at each point (hover, legend)
+            _margin, index, _names, labels = limiting_map(result, case)
             self._limiting_index, self._limiting_names = index, labels
             used = sorted(set(int(k) for k in np.unique(index) if k >= 0))
             self.limiting_labels = [labels[k] for k in used]
-        else:
-            values = np.asarray(result.quantity(case, key), dtype=float)
         if dim != "none":
             values = units.to_display(dim, values)
         self._values = values

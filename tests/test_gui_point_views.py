@@ -121,7 +121,8 @@ def test_least_margin_is_the_default_when_a_limit_fails_and_names_the_limiting_c
     assert not w.result.holds
     assert w.current_quantity() == "worst_relative_margin"
     margin, index, _names, labels = limiting_map(w.result, WORST)
-    np.testing.assert_array_equal(w.map.values(), margin)
+    np.testing.assert_array_equal(w.map.values(), w.result.quantity(WORST, "worst_relative_margin"))
+    np.testing.assert_allclose(w.map.values(), margin, rtol=1e-12, atol=1e-15)
     used = sorted({labels[k] for k in np.unique(index) if k >= 0})
     assert used and all(label in " ".join(w.map.legend_entries).replace("<br>", " ") for label in used)
     ii, jj = np.nonzero(index >= 0)
