@@ -1,0 +1,314 @@
+"""Supersonic flow past a circular cone at zero incidence: the Taylor-Maccoll conical flow (weak solution).
+
+Behind the attached conical shock of wave angle beta the flow is isentropic and depends only on the ray
+angle omega from the cone axis (spherical coordinates about the tip). With the velocity made dimensionless
+by the limiting speed V_max = sqrt(2 c_p T_t) (V' = V/V_max, components V_r along the ray and V_w normal
+to it, V_w < 0 towards the axis) the Taylor-Maccoll equation [1; 2, eq. 10.15] is
+
+    dV_r/dw = V_w
+    dV_w/dw = [V_w^2 V_r - (g-1)/2 (1 - V_r^2 - V_w^2)(2 V_r + V_w cot w)] / [(g-1)/2 (1 - V_r^2 - V_w^2) - V_w^2]
+
+Here it is integrated outwards from the cone surface (w = theta_c, V_w = 0, V_r = V_c' from the surface
+Mach number) with scipy ``solve_ivp`` until the shock condition holds: the free stream of speed
+V0' = V_r/cos(w) (tangential component continuous) and the flow behind satisfy Prandtl's oblique-shock
+relation V_n1 V_n2 = a*^2 - (g-1)/(g+1) V_t^2 [4, eq. 137], in V_max units
+
+    f(w) = -V_w V_r tan(w) - (g-1)/(g+1) (1 - V_r^2) = 0   at w = beta,
+
+so that each surface Mach number gives one (M0, beta) exactly. For one cone the family over the surface
+Mach number is tabulated once (``_family``): the flight Mach number falls to a minimum (the detachment Mach
+number of the cone: below it no attached shock exists) and rises again; the weak branch is the one with the
+higher surface Mach number. A flight Mach column is then solved by secant steps on the surface Mach number
+started from the table (one or two integrations), and its dense solution is kept.
+
+Local Mach: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2). Total pressure behind the shock: the normal-shock ratio
+at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), rho/rho0 likewise with 1/(g-1).
+
+Cost: every public function works on one flight Mach number and is cached (``functools.lru_cache``) on
+(M0, angle) rounded to 1e-9; the vectorised front end ``cone_flow`` solves the unique Mach numbers of an
+array once and maps back, never per point.
+
+Worked example (checked in the tests against NACA Report 1135's cone charts, NASA SP-3004's tables and
+``pygasflow``): a 20 deg cone at M0 = 2 has beta = 37.80 deg and a surface Mach number of 1.568.
+
+>>> s = cone_solution(2.0, 20.0)
+>>> round(s.wave_angle_deg, 2), round(s.surface_mach, 3)
+(37.8, 1.568)
+
+[1] Taylor, G. I., Maccoll, J. W., "The air pressure on a cone moving at high speeds", Proc. R. Soc. A 139 (1933).
+[2] Anderson, J. D., Modern Compressible Flow, 3rd ed. (2003), section 10.4.
+[3] Sims, J. L., Tables for supersonic flow around right circular cones at zero angle of attack, NASA SP-3004 (1964).
+[4] NACA Report 1135, Equations, Tables, and Charts for Compressible Flow (1953); charts 5-6 are for cones.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+from scipy.integrate import cumulative_trapezoid, solve_ivp
+from scipy.interpolate import PchipInterpolator
+from scipy.optimize import minimize_scalar
+
+from engine_air.physics.constants import GAMMA
+
+_G1 = 0.5 * (GAMMA - 1.0)
+_K = (GAMMA - 1.0) / (GAMMA + 1.0)
+_RTOL = 1e-9
+_ATOL = 1e-13
+_ROUND = 9  # decimals of the cache keys (Mach number, degrees)
+_MACH_TOL = 1e-8  # relative: a column's flight Mach number is matched to this (beta then to ~1e-8 rad)
+
+
+def _speed_from_mach(m: float) -> float:
+    """V/V_max from Mach number: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2)."""
+    x = _G1 * m * m
+    return math.sqrt(x / (1.0 + x))
+
+
+def _mach_from_speed(v):
+    """Mach number from V/V_max (the inverse of ``_speed_from_mach``), arrays."""
+    v2 = np.asarray(v) ** 2
+    return np.sqrt(v2 / (_G1 * (1.0 - v2)))
+
+
+def _rhs(w, y):
+    vr, vw = y
+    a = _G1 * (1.0 - vr * vr - vw * vw)
+    return [vw, (vw * vw * vr - a * (2.0 * vr + vw / math.tan(w))) / (a - vw * vw)]
+
+
+def _shock_condition(w, y):
+    return -y[1] * y[0] * math.tan(w) - _K * (1.0 - y[0] * y[0])
+
+
+_shock_condition.terminal = True
+_shock_condition.direction = 1.0
+
+
+def _normal_shock_pt(mn1: float) -> float:
+    """Normal-shock total-pressure ratio at normal Mach ``mn1`` [4, eq. 99]."""
+    m2 = mn1 * mn1
+    return ((GAMMA + 1.0) * m2 / ((GAMMA - 1.0) * m2 + 2.0)) ** (GAMMA / (GAMMA - 1.0)) * (
+        (GAMMA + 1.0) / (2.0 * GAMMA * m2 - (GAMMA - 1.0))) ** (1.0 / (GAMMA - 1.0))
+
+
+def _outward(theta_c: float, surface_mach: float, dense: bool = False):
+    """Integrate from the cone surface outwards to the shock. Returns (M0, beta, solution) or None when the
+    surface Mach number belongs to no free stream (past the hypersonic limit, or no shock before 90 deg)."""
+    sol = solve_ivp(_rhs, (theta_c, 0.5 * math.pi - 1e-9), [_speed_from_mach(surface_mach), 0.0],
+                    events=_shock_condition, rtol=_RTOL, atol=_ATOL, dense_output=dense)
+    if not sol.t_events[0].size:
+        return None
+    beta = float(sol.t_events[0][0])
+    vr = float(sol.y_events[0][0][0])
+    v0 = vr / math.cos(beta)
+    if not v0 < 1.0:
+        return None
+    return float(_mach_from_speed(v0)), beta, sol
+
+
+@dataclass(frozen=True)
+class _Family:
+    detachment_mach: float
+    detachment_surface_mach: float
+    weak: PchipInterpolator  # surface Mach against sqrt(M0 - M_det) on the weak branch
+    top_mach: float  # largest tabulated flight Mach number
+
+
+@lru_cache(maxsize=64)
+def _family(cone_deg: float) -> _Family:
+    """Tabulate (M0, surface Mach) over the surface Mach number for one cone; find the detachment point."""
+    th = math.radians(cone_deg)
+    mcs, m0s = [], []
+    for mc in np.concatenate([np.linspace(0.3, 1.0, 15, endpoint=False), np.geomspace(1.0, 40.0, 90)]):
+        r = _outward(th, float(mc))
+        if r is None:
+            if mcs:
+                break
+            continue
+        mcs.append(float(mc))
+        m0s.append(r[0])
+        if r[0] > 8.0 and mc > 1.0:  # far enough up the weak branch
+            break
+    mcs, m0s = np.array(mcs), np.array(m0s)
+    k = int(np.argmin(m0s))
+    lo, hi = mcs[max(k - 1, 0)], mcs[min(k + 1, mcs.size - 1)]
+    res = minimize_scalar(lambda mc: _outward(th, mc)[0], bounds=(lo, hi), method="bounded",
+                          options={"xatol": 1e-9})
+    m_det, mc_det = float(res.fun), float(res.x)
+    keep = mcs > mc_det
+    x = np.concatenate([[0.0], np.sqrt(np.maximum(m0s[keep] - m_det, 0.0))])
+    y = np.concatenate([[mc_det], mcs[keep]])
+    return _Family(m_det, mc_det, PchipInterpolator(x, y), float(m0s[keep][-1]))
+
+
+def detachment_mach(cone_half_angle_deg: float) -> float:
+    """Lowest flight Mach number at which a cone of half-angle ``cone_half_angle_deg`` (deg) carries an
+    attached shock (the minimum of M0 over the Taylor-Maccoll family [1, 3]). Example: about 1.21 for a
+    20 deg cone (NACA Report 1135 [4], chart 5, at chart precision)."""
+    return _family(round(float(cone_half_angle_deg), _ROUND)).detachment_mach
+
+
+@dataclass(frozen=True)
+class ConicalRay:
+    """The conical flow on rays: Mach number, velocity components over V0 (radial V_r and normal V_w,
+    V_w < 0 towards the axis), density rho/rho0 and pressure p/p0."""
+
+    mach: np.ndarray
+    radial_velocity_ratio: np.ndarray
+    normal_velocity_ratio: np.ndarray
+    density_ratio: np.ndarray
+    pressure_ratio: np.ndarray
+
+
+@dataclass(frozen=True)
+class ConeSolution:
+    """The attached conical flow about one cone at one flight Mach number (weak solution)."""
+
+    flight_mach: float
+    cone_half_angle_deg: float
+    wave_angle_deg: float
+    surface_mach: float
+    shock_total_pressure_ratio: float  # p_t behind / p_t0 (normal shock at M0 sin beta)
+    surface_pressure_ratio: float  # p_c / p0
+    _sol: object  # dense ODE solution over [theta_c, beta]
+    _v0: float  # V0 / V_max
+
+    def _state(self, w):
+        vr, vw = self._sol.sol(np.ravel(w))
+        return vr.reshape(np.shape(w)), vw.reshape(np.shape(w))
+
+    def ray(self, omega_deg) -> ConicalRay:
+        """Flow on rays ``omega_deg`` (deg, clipped to cone <= omega <= beta; array)."""
+        w = np.radians(np.clip(np.asarray(omega_deg, dtype=float), self.cone_half_angle_deg, self.wave_angle_deg))
+        vr, vw = self._state(w)
+        v2 = vr * vr + vw * vw
+        e = 1.0 / (GAMMA - 1.0)
+        x = (1.0 - v2) / (1.0 - self._v0 ** 2)
+        return ConicalRay(mach=_mach_from_speed(np.sqrt(v2)), radial_velocity_ratio=vr / self._v0,
+                          normal_velocity_ratio=vw / self._v0, density_ratio=self.shock_total_pressure_ratio * x ** e,
+                          pressure_ratio=self.shock_total_pressure_ratio * x ** (GAMMA * e))
+
+    def captured_flow_ratio(self, lip_ray_deg: float) -> float:
+        """Flow through the cone-shaped surface of half-angle omega_L from the tip to the lip circle, over the
+        free-stream flow through the lip circle (method section 9):
+        MFR = rho(w_L) |V_w(w_L)| / (rho0 V0 sin w_L); 1 for omega_L at or beyond the shock."""
+        if lip_ray_deg >= self.wave_angle_deg:
+            return 1.0
+        r = self.ray(lip_ray_deg)
+        return float(r.density_ratio * abs(r.normal_velocity_ratio) / math.sin(math.radians(lip_ray_deg)))
+
+    def stream_surface_pressure_integral(self, lip_ray_deg: float, n: int = 801) -> tuple[float, float]:
+        """Along the conical stream line that ends on the lip (ray omega_L), from the shock to the lip:
+        (I, s) with I = integral (p/p0 - 1) d(r^2/r_L^2) (r the radius from the axis) and s = (r_s/r_L)^2
+        at the shock crossing; (0, 1) when omega_L lies at or beyond the shock.
+
+        The stream line obeys dR/(R dw) = V_r/V_w (R the distance from the tip, r = R sin w); both integrals
+        by the trapezoidal rule on ``n`` rays of the dense solution (smooth integrands, error ~1e-7).
+        """
+        wl, wb = math.radians(lip_ray_deg), math.radians(self.wave_angle_deg)
+        if not wl < wb:
+            return 0.0, 1.0
+        w = np.linspace(wl, wb, n)
+        vr, vw = self._state(w)
+        ln_r = cumulative_trapezoid(vr / vw, w, initial=0.0)
+        s = (np.exp(ln_r) * np.sin(w) / math.sin(wl)) ** 2
+        v2 = vr * vr + vw * vw
+        p = self.shock_total_pressure_ratio * ((1.0 - v2) / (1.0 - self._v0 ** 2)) ** (GAMMA / (GAMMA - 1.0))
+        # from the shock (w = beta, s_shock) to the lip (w = w_L, s = 1)
+        integral = -float(np.trapezoid(p - 1.0, s))
+        return integral, float(s[-1])
+
+
+def _solve(m0: float, cone_deg: float):
+    """(surface Mach, beta, dense solution) for the weak conical shock at ``m0``; None where detached.
+
+    Newton steps on the surface Mach number: the first from the tabulated family and its slope, then secant
+    steps on the last two integrations, until the flight Mach number is matched to ``_MACH_TOL``.
+    """
+    fam = _family(cone_deg)
+    if m0 < fam.detachment_mach:
+        return None
+    th = math.radians(cone_deg)
+    x = min(math.sqrt(m0 - fam.detachment_mach), math.sqrt(fam.top_mach - fam.detachment_mach))
+    mc = float(fam.weak(x))
+    slope = float(fam.weak(x, 1)) / (2.0 * x) if x > 0.0 else 0.0  # d(surface Mach)/d(M0)
+    floor = fam.detachment_surface_mach
+    prev = None
+    r = None
+    for _ in range(40):
+        r = _outward(th, mc, dense=True)
+        if r is None:  # stepped past the hypersonic limit: halve the step
+            mc = 0.5 * (mc + (prev[0] if prev else floor))
+            continue
+        err = r[0] - m0
+        if abs(err) <= _MACH_TOL * m0:
+            break
+        if prev is not None and r[0] != prev[1]:
+            slope = (mc - prev[0]) / (r[0] - prev[1])
+        prev = (mc, r[0])
+        mc = max(mc - slope * err, 0.5 * (mc + floor))
+    return mc, r[1], r[2]
+
+
+@lru_cache(maxsize=16384)
+def _cone_solution_cached(m0: float, cone_deg: float) -> ConeSolution | None:
+    found = _solve(m0, cone_deg)
+    if found is None:
+        return None
+    mc, beta, sol = found
+    pt = _normal_shock_pt(m0 * math.sin(beta))
+    v0 = _speed_from_mach(m0)
+    vc = _speed_from_mach(mc)
+    pc = pt * ((1.0 - vc * vc) / (1.0 - v0 * v0)) ** (GAMMA / (GAMMA - 1.0))
+    return ConeSolution(m0, cone_deg, math.degrees(beta), mc, pt, pc, sol, v0)
+
+
+def cone_solution(flight_mach: float, cone_half_angle_deg: float) -> ConeSolution | None:
+    """The weak conical-shock solution for a cone of half-angle ``cone_half_angle_deg`` (deg) at flight Mach
+    ``flight_mach``, or ``None`` where M0 <= 1 or the shock is detached (M0 below ``detachment_mach``).
+
+    Cached on (M0, angle) rounded to 1e-9. Source: Taylor-Maccoll [1]. Example (NASA SP-3004 [3] and
+    NACA Report 1135 [4], chart precision): a 10 deg cone at M0 = 2 has beta of about 31.2 deg.
+    """
+    m0 = round(float(flight_mach), _ROUND)
+    cone = round(float(cone_half_angle_deg), _ROUND)
+    if not (m0 > 1.0 and cone > 0.0):
+        return None
+    return _cone_solution_cached(m0, cone)
+
+
+@dataclass(frozen=True)
+class ConeFlow:
+    """``cone_flow`` on an array of flight Mach numbers (NaN where subsonic or detached)."""
+
+    wave_angle_rad: np.ndarray
+    surface_mach: np.ndarray
+    total_pressure_ratio: np.ndarray  # across the conical shock
+    surface_pressure_ratio: np.ndarray  # p_c / p0
+    detached: np.ndarray  # bool: supersonic and the cone's shock is detached
+
+
+def cone_flow(flight_mach, cone_half_angle_deg: float) -> ConeFlow:
+    """Wave angle, surface Mach and pressure ratios for one cone at an array of flight Mach numbers.
+
+    The unique Mach numbers of the array are solved once each (``cone_solution``, cached) and mapped back.
+    """
+    m0 = np.asarray(flight_mach, dtype=float)
+    uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)
+    out = np.full((4, uniq.size), np.nan)
+    det = np.zeros(uniq.size, bool)
+    for i, m in enumerate(uniq):
+        if not m > 1.0:
+            continue
+        s = cone_solution(m, cone_half_angle_deg)
+        if s is None:
+            det[i] = True
+            continue
+        out[:, i] = (math.radians(s.wave_angle_deg), s.surface_mach, s.shock_total_pressure_ratio,
+                     s.surface_pressure_ratio)
+    inverse = inverse.reshape(m0.shape)
+    return ConeFlow(out[0][inverse], out[1][inverse], out[2][inverse], out[3][inverse], det[inverse])
