@@ -102,6 +102,8 @@ def build_checks(limits: Limits, points) -> list[Check]:
         with np.errstate(invalid="ignore", divide="ignore"):
             fraction = points.mass_flow_ratio / points.max_mass_flow_ratio
         subcritical = points.regime == 1
+        if getattr(points, "oblique_ahead_of_cowl", None) is not None:  # buzz needs an oblique shock (§10)
+            subcritical = subcritical & points.oblique_ahead_of_cowl
         checks.append(
             _check(
                 "stability", "Stable capture (buzz)", f"MFR/MFR_max >= {limits.stable_flow_fraction:g}",

@@ -5,6 +5,10 @@ One to three ramps turn the flow through weak oblique shocks laid out shock-on-l
 the shock system and the dividing-streamline trace for the maximum capture are in
 ``engine_air.inlets.ramp_layout``.
 
+Pre-entry drag in supersonic flight (method §13): ``ramp_layout.ramp_pre_entry_drag``, the pressure on the
+dividing stream line behind each ramp shock plus the momentum balance of the spillage behind the terminal
+shock; zero at MFR = 1.
+
 Example (one 10 deg ramp, M_d = 2, NACA Report 1135 oblique-shock relations): at M0 = 1.8 the wave angle
 is 44.06 deg and MFR_max = 0.9595.
 """
@@ -14,7 +18,7 @@ from __future__ import annotations
 import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
-from engine_air.inlets.ramp_layout import ramp_design_problems, ramp_shock_system
+from engine_air.inlets.ramp_layout import ramp_design_problems, ramp_pre_entry_drag, ramp_shock_system
 from engine_air.project.model import Inlet
 from engine_air.project.schema_field import REQUIRED, Field
 
@@ -57,7 +61,7 @@ class ExternalRampInlet:
         return ramp_shock_system(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, flight_mach)
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
-        return None  # the ramp surface force is not yet taken out of the stream-tube balance
+        return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:
         return ["shock_on_lip_mach"] + [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))]

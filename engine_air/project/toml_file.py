@@ -26,7 +26,6 @@ import tomli_w
 from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
 from engine_air.project.errors import ProjectError, ProjectSaveError
 from engine_air.project.model import (
-    INLET_TYPES,
     REFERENCE_RECOVERY_NAME,
     Case,
     Envelope,
@@ -67,8 +66,10 @@ _PROJECT_KEYS = ("format", "title", "notes")
 _LIMIT_KEYS = ("face_mach_max", "throat_mach_max", "recovery_min", "stable_flow_fraction",
                "relative_tip_mach_max", "spillage_fraction_max")
 _INLET_KEYS = ("type", "capture_area_m2", "throat_area_m2", "face_area_m2", "duct_loss_coefficient",
-               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach")
-_RAMP_KEYS = ("ramp_angles_deg", "shock_on_lip_mach")
+               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "cone_half_angles_deg")
+_RAMP_KEYS = ("ramp_angles_deg", "shock_on_lip_mach", "cone_half_angles_deg")
+MAX_CONES = 2
+MAX_CONE_DEG = 40.0
 _RATING_KEYS = ("name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s")
 _ENVELOPE_KEYS = ("mach", "altitude_m")
 _GRID_KEYS = ("mach_points", "altitude_points")
@@ -291,8 +292,10 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     t = r.table(data, "inlet", "inlet")
     r.check_known(t, "inlet", _INLET_KEYS)
     kind = r.string(t, "type", "inlet.type")
-    if kind not in INLET_TYPES:
-        r.fail("inlet.type", kind, "must be one of " + ", ".join(f'"{k}"' for k in INLET_TYPES))
+    from engine_air.inlets.registry import INLET_TYPES as known_types  # the registry is authoritative
+
+    if kind not in known_types:
+        r.fail("inlet.type", kind, "must be one of " + ", ".join(f'"{k}"' for k in known_types))
 
     def area(name: str) -> float:
         return r.number(t, name, f"inlet.{name}", 0.0, MAX_AREA_M2, unit="m^2")
@@ -305,6 +308,7 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
                       default=0.0)
     suction = r.number(t, "lip_suction_factor", "inlet.lip_suction_factor", 0.0, 1.0, lo_open=False, default=0.0)
     ramps: tuple[float, ...] = ()
+    cones: tuple[float, ...] = ()
     lip_mach = None
     if kind == "external-ramp":
         ramps = r.number_list(t, "ramp_angles_deg", "inlet.ramp_angles_deg", 1, MAX_RAMPS, 0.0, MAX_RAMP_DEG,
@@ -313,13 +317,22 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
             r.fail("inlet.ramp_angles_deg", list(t["ramp_angles_deg"]),
                    f"total deflection {_g(sum(ramps))} deg exceeds {_g(MAX_TOTAL_RAMP_DEG)} deg")
         lip_mach = r.number(t, "shock_on_lip_mach", "inlet.shock_on_lip_mach", 1.0, 5.0)
+        for name in ("cone_half_angles_deg",):
+            if name in t:
+                r.warn(f"inlet.{name}", f'ignored: it applies to type = "axisymmetric-spike" only, this inlet is "{kind}"')
+    elif kind == "axisymmetric-spike":
+        cones = r.number_list(t, "cone_half_angles_deg", "inlet.cone_half_angles_deg", 1, MAX_CONES, 0.0,
+                              MAX_CONE_DEG, unit="deg")
+        lip_mach = r.number(t, "shock_on_lip_mach", "inlet.shock_on_lip_mach", 1.0, 5.0)
+        if "ramp_angles_deg" in t:
+            r.warn("inlet.ramp_angles_deg", f'ignored: it applies to type = "external-ramp" only, this inlet is "{kind}"')
     else:
         for name in _RAMP_KEYS:
             if name in t:
                 r.warn(f"inlet.{name}", f'ignored: it applies to type = "external-ramp" only, this inlet is "{kind}"')
     return Inlet(type=kind, capture_area_m2=capture, throat_area_m2=throat, face_area_m2=face,
                  duct_loss_coefficient=duct_k, lip_suction_factor=suction, ramp_angles_deg=ramps,
-                 shock_on_lip_mach=lip_mach)
+                 shock_on_lip_mach=lip_mach, cone_half_angles_deg=cones)
 
 
 def _read_ratings(r: _Reader, data: dict) -> tuple[Rating, ...]:
@@ -530,6 +543,10 @@ def project_to_dict(project: Project) -> dict:
     }
     if inl.type == "external-ramp":
         inlet["ramp_angles_deg"] = list(inl.ramp_angles_deg)
+        if inl.shock_on_lip_mach is not None:
+            inlet["shock_on_lip_mach"] = inl.shock_on_lip_mach
+    if inl.type == "axisymmetric-spike":
+        inlet["cone_half_angles_deg"] = list(inl.cone_half_angles_deg)
         if inl.shock_on_lip_mach is not None:
             inlet["shock_on_lip_mach"] = inl.shock_on_lip_mach
     ratings = []
