@@ -108,7 +108,7 @@ def _column(m0: float, cones: tuple[float, ...], design_mach: float):
             mfr_det, integral_det = 1.0, 0.0
         mfr = float(detached_cone_capture_blend(m0, m_det, mfr_det, 1.0))
         integral = float(detached_cone_capture_blend(m0, m_det, integral_det, 0.0))
-        return 1.0, m0, 0.0, tuple(beta), tuple(mach), tuple(pts), tuple(ps), True, mfr, integral
+        return 1.0, np.nan, 0.0, tuple(beta), tuple(mach), tuple(pts), tuple(ps), True, mfr, integral
     beta[0] = math.radians(first.wave_angle_deg)
     mach[0] = first.surface_mach
     pts[0] = first.shock_total_pressure_ratio
@@ -162,7 +162,7 @@ class AxisymmetricSpikeInlet:
     def shock_system(self, inlet: Inlet, flight_mach) -> ShockSystem:
         m0, sc, per = self._columns(inlet, flight_mach)
         supersonic = m0 > 1.0
-        recovery, entry = sc[0], sc[1]
+        recovery, entry = sc[0], np.where(np.isnan(sc[1]), m0, sc[1])  # NaN: first cone detached, M0
         terminal = normal_shock(entry)
         design = float(inlet.shock_on_lip_mach)
         return ShockSystem(
@@ -181,7 +181,7 @@ class AxisymmetricSpikeInlet:
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
         m0, sc, _ = self._columns(inlet, state.flight_mach)
-        recovery, entry, angle, integral = sc[0], sc[1], sc[2], sc[5]
+        recovery, entry, angle, integral = sc[0], np.where(np.isnan(sc[1]), m0, sc[1]), sc[2], sc[5]
         spill = terminal_spill_drag(m0, entry, recovery, angle, state.mass_flow_ratio, shocks.max_mass_flow_ratio)
         return (integral + spill) * state.static_pressure_pa * state.capture_area_m2
 
