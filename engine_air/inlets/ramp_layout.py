@@ -233,7 +233,7 @@ def terminal_spill_drag(flight_mach, entry_mach, entry_total_pressure_ratio, ent
         A*/A_e behind it = (MFR/MFR_max) / ((A/A*)(M_n) pi_ns(M_n)), M1 its subsonic root
         D/(p0 A_c) = cos theta_n [p1/p0 (1 + g M1^2) A_e - p_n/p0 (1 + g M_n^2) A_n - (A_e - A_n)] / A_c
 
-    (the last term is int (p_n - p0) dA plus the §7 term -p_n (A_e - A_n)). Zero at MFR >= MFR_max.
+    (the last term is int (p_n - p0) dA plus the §7 term -p_n (A_e - A_n)). Zero at MFR >= MFR_max (to 1e-12).
     Sources: NACA Report 1135 (normal shock, isentropic relations); Seddon & Goldsmith, Intake Aerodynamics,
     2nd ed., ch. 3 (additive drag). Example: a pitot (M_n = M0, pi_n = 1, MFR_max = 1) gives the §7 balance.
     """
@@ -249,7 +249,7 @@ def terminal_spill_drag(flight_mach, entry_mach, entry_total_pressure_ratio, ent
         p1 = entry_total_pressure_ratio * ns.total_pressure_ratio * pressure_ratio(m1) / pressure_ratio(m0)
         d = np.cos(entry_flow_angle_rad) * (
             p1 * (1.0 + GAMMA * m1 * m1) * a_e - pn * (1.0 + GAMMA * mn * mn) * a_n - (a_e - a_n))
-        return np.where(ratio < 1.0, np.maximum(d, 0.0), 0.0)
+        return np.where(ratio < 1.0 - 1e-12, np.maximum(d, 0.0), 0.0)  # critical or beyond: no spillage
 
 
 def ramp_pre_entry_drag(ramp_angles_deg, design_mach, shocks: ShockSystem, state) -> np.ndarray:
