@@ -18,8 +18,9 @@ relation V_n1 V_n2 = a*^2 - (g-1)/(g+1) V_t^2 [4, eq. 137], in V_max units
 so that each surface Mach number gives one (M0, beta) exactly. For one cone the family over the surface
 Mach number is tabulated once (``_family``): the flight Mach number falls to a minimum (the detachment Mach
 number of the cone: below it no attached shock exists) and rises again; the weak branch is the one with the
-higher surface Mach number. A flight Mach column is then solved by secant steps on the surface Mach number
-started from the table (one or two integrations), and its dense solution is kept.
+higher surface Mach number. A flight Mach column is then solved by Newton/secant steps on the surface Mach
+number started from a cubic spline through the table (mostly one integration), until its flight Mach number
+is matched to 1e-6 relative (beta to about 1e-6 rad), and its dense solution is kept.
 
 Local Mach: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2). Total pressure behind the shock: the normal-shock ratio
 at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), rho/rho0 likewise with 1/(g-1).
@@ -49,7 +50,7 @@ from functools import lru_cache
 
 import numpy as np
 from scipy.integrate import cumulative_trapezoid, solve_ivp
-from scipy.interpolate import PchipInterpolator
+from scipy.interpolate import CubicSpline
 from scipy.optimize import minimize_scalar
 
 from engine_air.physics.constants import GAMMA
@@ -59,7 +60,7 @@ _K = (GAMMA - 1.0) / (GAMMA + 1.0)
 _RTOL = 1e-9
 _ATOL = 1e-13
 _ROUND = 9  # decimals of the cache keys (Mach number, degrees)
-_MACH_TOL = 1e-8  # relative: a column's flight Mach number is matched to this (beta then to ~1e-8 rad)
+_MACH_TOL = 1e-6  # relative: a column's flight Mach number is matched to this (beta then to ~1e-6 rad)
 
 
 def _speed_from_mach(m: float) -> float:
@@ -114,7 +115,7 @@ def _outward(theta_c: float, surface_mach: float, dense: bool = False):
 class _Family:
     detachment_mach: float
     detachment_surface_mach: float
-    weak: PchipInterpolator  # surface Mach against sqrt(M0 - M_det) on the weak branch
+    weak: CubicSpline  # surface Mach against sqrt(M0 - M_det) on the weak branch
     top_mach: float  # largest tabulated flight Mach number
 
 
@@ -123,7 +124,7 @@ def _family(cone_deg: float) -> _Family:
     """Tabulate (M0, surface Mach) over the surface Mach number for one cone; find the detachment point."""
     th = math.radians(cone_deg)
     mcs, m0s = [], []
-    for mc in np.concatenate([np.linspace(0.3, 1.0, 15, endpoint=False), np.geomspace(1.0, 40.0, 90)]):
+    for mc in np.concatenate([np.linspace(0.3, 1.0, 12, endpoint=False), np.geomspace(1.0, 40.0, 40)]):
         r = _outward(th, float(mc))
         if r is None:
             if mcs:
@@ -142,7 +143,7 @@ def _family(cone_deg: float) -> _Family:
     keep = mcs > mc_det
     x = np.concatenate([[0.0], np.sqrt(np.maximum(m0s[keep] - m_det, 0.0))])
     y = np.concatenate([[mc_det], mcs[keep]])
-    return _Family(m_det, mc_det, PchipInterpolator(x, y), float(m0s[keep][-1]))
+    return _Family(m_det, mc_det, CubicSpline(x, y), float(m0s[keep][-1]))
 
 
 def detachment_mach(cone_half_angle_deg: float) -> float:
