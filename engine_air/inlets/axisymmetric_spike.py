@@ -100,8 +100,8 @@ def _column(m0: float, cones: tuple[float, ...], design_mach: float):
     if first is None:
         # detached first cone: normal shock at M0; capture and drag carried from the detachment point
         m_det = detachment_mach(cones[0])
-        at_det = cone_solution(m_det * (1.0 + 1e-9), cones[0])
-        if m_det < design_mach:
+        at_det = cone_solution(m_det * (1.0 + 1e-7), cones[0])  # just attached
+        if at_det is not None and m_det < design_mach:
             mfr_det = at_det.captured_flow_ratio(lip_ray)
             integral_det = at_det.stream_surface_pressure_integral(lip_ray)[0]
         else:

@@ -329,7 +329,8 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     else:
         for name in _RAMP_KEYS:
             if name in t:
-                r.warn(f"inlet.{name}", f'ignored: it applies to type = "external-ramp" only, this inlet is "{kind}"')
+                owner = "axisymmetric-spike" if name == "cone_half_angles_deg" else "external-ramp"
+                r.warn(f"inlet.{name}", f'ignored: it applies to type = "{owner}" only, this inlet is "{kind}"')
     return Inlet(type=kind, capture_area_m2=capture, throat_area_m2=throat, face_area_m2=face,
                  duct_loss_coefficient=duct_k, lip_suction_factor=suction, ramp_angles_deg=ramps,
                  shock_on_lip_mach=lip_mach, cone_half_angles_deg=cones)
