@@ -94,3 +94,30 @@ def test_vectorised_front_end_maps_unique_machs():
     assert f.wave_angle_rad[0, 2] == f.wave_angle_rad[1, 0]
     assert math.degrees(f.wave_angle_rad[0, 1]) == pytest.approx(cone_solution(1.5, 12.0).wave_angle_deg)
     assert f.detached[1, 2]  # a 12 deg cone detaches below about M 1.1 (pygasflow test above)
+
+
+def test_stream_surface_integral_against_an_independent_stream_line():
+    """The dividing stream line from the lip ray back to the shock, integrated here with scipy's solve_ivp on
+    dR/dw = R V_r/V_w (spherical coordinates about the tip), reaches the shock at the radius of the captured
+    free-stream tube (mass balance: (r_s/r_L)^2 = MFR_max) and gives the same pressure integral
+    int (p/p0 - 1) d(r^2/r_L^2) (trapezoidal rule here on its own points)."""
+    from scipy.integrate import solve_ivp
+
+    w_lip = cone_solution(2.2, 15.0).wave_angle_deg
+    s = cone_solution(1.7, 15.0)
+    wl, wb = math.radians(w_lip), math.radians(s.wave_angle_deg)
+
+    def rhs(w, y):
+        r = s.ray(math.degrees(w))
+        return [y[0] * float(r.radial_velocity_ratio / r.normal_velocity_ratio)]
+
+    omega = np.linspace(wl, wb, 3001)
+    sol = solve_ivp(rhs, (wl, wb), [1.0], t_eval=omega, rtol=1e-11, atol=1e-13)
+    radius2 = (sol.y[0] * np.sin(omega) / math.sin(wl)) ** 2
+    p = s.ray(np.degrees(omega)).pressure_ratio
+    integral = -np.trapezoid(p - 1.0, radius2)
+    ours, s_shock = s.stream_surface_pressure_integral(w_lip)
+    assert s_shock == pytest.approx(radius2[-1], rel=1e-6)
+    assert s_shock == pytest.approx(s.captured_flow_ratio(w_lip), rel=1e-6)
+    assert ours == pytest.approx(integral, rel=1e-5)
+    assert ours > 0.0
