@@ -48,8 +48,8 @@ def clear_caches():
     from engine_air.inlets import axisymmetric_spike
     from engine_air.physics import conical
 
-    for fn in (conical._family, conical._cone_solution_cached, axisymmetric_spike._column):  # lru caches
-        fn.cache_clear()
+    conical.clear_cache()
+    axisymmetric_spike._column.cache_clear()
 
 
 def best_time(fn, repeats):

@@ -40,7 +40,7 @@ import numpy as np
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import SHOCK_ON_LIP_MACH
 from engine_air.inlets.ramp_layout import terminal_spill_drag
-from engine_air.physics.conical import cone_solution, detachment_mach
+from engine_air.physics.conical import cone_solution, detachment_mach, solve_columns
 from engine_air.physics.detached_shock import detached_cone_capture_blend
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.project.model import Inlet
@@ -148,6 +148,7 @@ class AxisymmetricSpikeInlet:
         n = len(cones)
         uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)
         inverse = inverse.reshape(m0.shape)
+        solve_columns(uniq[uniq > 1.0], cones[0])  # every new column of the first cone in one batch
         scalars = np.full((6, uniq.size), np.nan)  # recovery, entry Mach, angle, detached, MFR_max, integral
         per = np.full((4, n, uniq.size), np.nan)
         for i, m in enumerate(uniq):

@@ -49,7 +49,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy.integrate import cumulative_trapezoid, solve_ivp
+from scipy.integrate import cumulative_simpson, simpson, solve_ivp
 from scipy.interpolate import CubicSpline
 from scipy.optimize import minimize_scalar
 
@@ -117,14 +117,15 @@ class _Family:
     detachment_surface_mach: float
     weak: CubicSpline  # surface Mach against sqrt(M0 - M_det) on the weak branch
     top_mach: float  # largest tabulated flight Mach number
+    wave_angle: CubicSpline  # beta (rad) against sqrt(M0 - M_det) on the weak branch
 
 
 @lru_cache(maxsize=64)
 def _family(cone_deg: float) -> _Family:
     """Tabulate (M0, surface Mach) over the surface Mach number for one cone; find the detachment point."""
     th = math.radians(cone_deg)
-    mcs, m0s = [], []
-    for mc in np.concatenate([np.linspace(0.3, 1.0, 12, endpoint=False), np.geomspace(1.0, 40.0, 40)]):
+    mcs, m0s, betas = [], [], []
+    for mc in np.concatenate([np.linspace(0.3, 1.0, 8, endpoint=False), np.geomspace(1.0, 40.0, 28)]):
         r = _outward(th, float(mc))
         if r is None:
             if mcs:
@@ -132,18 +133,21 @@ def _family(cone_deg: float) -> _Family:
             continue
         mcs.append(float(mc))
         m0s.append(r[0])
+        betas.append(r[1])
         if r[0] > 8.0 and mc > 1.0:  # far enough up the weak branch
             break
     mcs, m0s = np.array(mcs), np.array(m0s)
     k = int(np.argmin(m0s))
     lo, hi = mcs[max(k - 1, 0)], mcs[min(k + 1, mcs.size - 1)]
     res = minimize_scalar(lambda mc: _outward(th, mc)[0], bounds=(lo, hi), method="bounded",
-                          options={"xatol": 1e-9})
+                          options={"xatol": 1e-6})  # M0 is flat there: M_det to ~1e-12
     m_det, mc_det = float(res.fun), float(res.x)
+    beta_det = _outward(th, mc_det)[1]
     keep = mcs > mc_det
     x = np.concatenate([[0.0], np.sqrt(np.maximum(m0s[keep] - m_det, 0.0))])
     y = np.concatenate([[mc_det], mcs[keep]])
-    return _Family(m_det, mc_det, CubicSpline(x, y), float(m0s[keep][-1]))
+    b = np.concatenate([[beta_det], np.array(betas)[keep]])
+    return _Family(m_det, mc_det, CubicSpline(x, y), float(m0s[keep][-1]), CubicSpline(x, b))
 
 
 def detachment_mach(cone_half_angle_deg: float) -> float:
@@ -175,11 +179,11 @@ class ConeSolution:
     surface_mach: float
     shock_total_pressure_ratio: float  # p_t behind / p_t0 (normal shock at M0 sin beta)
     surface_pressure_ratio: float  # p_c / p0
-    _sol: object  # dense ODE solution over [theta_c, beta]
+    _velocity: object  # w (rad, array) -> (V_r, V_w) over [theta_c, beta]: dense ODE solution or series
     _v0: float  # V0 / V_max
 
     def _state(self, w):
-        vr, vw = self._sol.sol(np.ravel(w))
+        vr, vw = self._velocity(np.ravel(w))
         return vr.reshape(np.shape(w)), vw.reshape(np.shape(w))
 
     def ray(self, omega_deg) -> ConicalRay:
@@ -202,25 +206,25 @@ class ConeSolution:
         r = self.ray(lip_ray_deg)
         return float(r.density_ratio * abs(r.normal_velocity_ratio) / math.sin(math.radians(lip_ray_deg)))
 
-    def stream_surface_pressure_integral(self, lip_ray_deg: float, n: int = 801) -> tuple[float, float]:
+    def stream_surface_pressure_integral(self, lip_ray_deg: float, n: int = 257) -> tuple[float, float]:
         """Along the conical stream line that ends on the lip (ray omega_L), from the shock to the lip:
         (I, s) with I = integral (p/p0 - 1) d(r^2/r_L^2) (r the radius from the axis) and s = (r_s/r_L)^2
         at the shock crossing; (0, 1) when omega_L lies at or beyond the shock.
 
         The stream line obeys dR/(R dw) = V_r/V_w (R the distance from the tip, r = R sin w); both integrals
-        by the trapezoidal rule on ``n`` rays of the dense solution (smooth integrands, error ~1e-7).
+        by Simpson's rule on ``n`` rays of the solution (smooth integrands, error below 1e-8).
         """
         wl, wb = math.radians(lip_ray_deg), math.radians(self.wave_angle_deg)
         if not wl < wb:
             return 0.0, 1.0
         w = np.linspace(wl, wb, n)
         vr, vw = self._state(w)
-        ln_r = cumulative_trapezoid(vr / vw, w, initial=0.0)
+        ln_r = cumulative_simpson(vr / vw, x=w, initial=0.0)
         s = (np.exp(ln_r) * np.sin(w) / math.sin(wl)) ** 2
         v2 = vr * vr + vw * vw
         p = self.shock_total_pressure_ratio * ((1.0 - v2) / (1.0 - self._v0 ** 2)) ** (GAMMA / (GAMMA - 1.0))
         # from the shock (w = beta, s_shock) to the lip (w = w_L, s = 1)
-        integral = -float(np.trapezoid(p - 1.0, s))
+        integral = -float(simpson(p - 1.0, x=s))
         return integral, float(s[-1])
 
 
@@ -261,11 +265,149 @@ def _cone_solution_cached(m0: float, cone_deg: float) -> ConeSolution | None:
     if found is None:
         return None
     mc, beta, sol = found
+    return _make_solution(m0, cone_deg, mc, beta, lambda w: tuple(sol.sol(w)))
+
+
+def _make_solution(m0, cone_deg, mc, beta, velocity) -> ConeSolution:
     pt = _normal_shock_pt(m0 * math.sin(beta))
     v0 = _speed_from_mach(m0)
     vc = _speed_from_mach(mc)
     pc = pt * ((1.0 - vc * vc) / (1.0 - v0 * v0)) ** (GAMMA / (GAMMA - 1.0))
-    return ConeSolution(m0, cone_deg, math.degrees(beta), mc, pt, pc, sol, v0)
+    return ConeSolution(m0, cone_deg, math.degrees(beta), mc, pt, pc, velocity, v0)
+
+
+_CHEB = 32  # Chebyshev series degree + 1 kept per column of a batch
+_BATCH_MARGIN = 0.004  # rad integrated beyond the estimated shock angle
+
+
+def _outward_batch(theta_c: float, surface_mach: np.ndarray, end: np.ndarray):
+    """Columns integrated together (one ``solve_ivp`` on 2n states): member i runs from the cone to the ray
+    end[i] (rad, just beyond its expected shock) on its own scale w_i = theta_c + s (end_i - theta_c),
+    s in [0, 1]. Returns (M0, beta, Chebyshev coefficients of V_r and V_w on [theta_c, beta], ok)."""
+    n = surface_mach.size
+    span = end - theta_c
+    y0 = np.concatenate([np.array([_speed_from_mach(m) for m in surface_mach]), np.zeros(n)])
+
+    def rhs(s_, y):
+        w = theta_c + s_ * span
+        vr, vw = y[:n], y[n:]
+        a = _G1 * (1.0 - vr * vr - vw * vw)
+        d = a - vw * vw
+        live = d > 1e-3 * a  # past a member's shock its continuation may reach a characteristic: hold it
+        dvw = np.where(live, (vw * vw * vr - a * (2.0 * vr + vw / np.tan(w))) / np.where(live, d, 1.0), 0.0)
+        return np.concatenate([np.where(live, vw, 0.0) * span, dvw * span])
+
+    with np.errstate(all="ignore"):
+        sol = solve_ivp(rhs, (0.0, 1.0), y0, rtol=_RTOL, atol=_ATOL, dense_output=True)
+        if not sol.success:
+            return None
+        grid = np.linspace(0.0, 1.0, 257)
+        y = sol.sol(grid)
+        w = theta_c + grid[None, :] * span[:, None]
+        vr, vw = y[:n], y[n:]
+        f = -vw * vr * np.tan(w) - _K * (1.0 - vr * vr)
+        pos = f > 0.0
+        ok = pos.any(axis=1) & ~pos[:, 0]
+        i1 = np.where(ok, np.argmax(pos, axis=1), 1)
+        i0 = i1 - 1
+        rows = np.arange(n)
+        f0, f1 = f[rows, i0], f[rows, i1]
+        sb = grid[i0] + (grid[i1] - grid[i0]) * f0 / (f0 - f1)
+        for _ in range(4):  # Newton on the dense solution: f(s) = 0
+            yb = sol.sol(sb)
+            vr_b, vw_b = yb[rows, rows], yb[n + rows, rows]
+            wb = theta_c + sb * span
+            a = _G1 * (1.0 - vr_b ** 2 - vw_b ** 2)
+            dvw = (vw_b * vw_b * vr_b - a * (2.0 * vr_b + vw_b / np.tan(wb))) / (a - vw_b * vw_b)
+            fb = -vw_b * vr_b * np.tan(wb) - _K * (1.0 - vr_b ** 2)
+            dfdw = -(dvw * vr_b + vw_b * vw_b) * np.tan(wb) - vw_b * vr_b / np.cos(wb) ** 2 + 2.0 * _K * vr_b * vw_b
+            sb = np.clip(sb - fb / (dfdw * span), 0.0, 1.0)
+        yb = sol.sol(sb)
+        vr_b = yb[rows, rows]
+        beta = theta_c + sb * span
+        v0 = vr_b / np.cos(beta)
+        ok &= np.isfinite(v0) & (v0 < 1.0) & (sb < 1.0)
+        m0 = np.where(ok, _mach_from_speed(np.where(ok, v0, 0.5)), np.nan)
+        # Chebyshev series of V_r, V_w on [theta_c, beta] per member
+        t = np.cos(np.pi * (np.arange(_CHEB) + 0.5) / _CHEB)
+        s_nodes = sb[:, None] * 0.5 * (t[None, :] + 1.0)
+        yn = sol.sol(s_nodes.ravel()).reshape(2 * n, n, _CHEB)
+        vr_n, vw_n = yn[rows, rows], yn[n + rows, rows]  # (n, _CHEB)
+        cheb = np.polynomial.chebyshev
+        c_r = cheb.chebfit(t, vr_n.T, _CHEB - 1).T
+        c_w = cheb.chebfit(t, vw_n.T, _CHEB - 1).T
+    return m0, beta, c_r, c_w, ok
+
+
+def _series(theta_c, beta, c_r, c_w):
+    cheb = np.polynomial.chebyshev
+
+    def velocity(w):
+        t = 2.0 * (np.asarray(w) - theta_c) / (beta - theta_c) - 1.0
+        return cheb.chebval(t, c_r), cheb.chebval(t, c_w)
+    return velocity
+
+
+def solve_columns(flight_mach, cone_half_angle_deg: float) -> None:
+    """Solve every not yet cached attached column of ``flight_mach`` (array) for one cone together: one
+    vectorised ``solve_ivp`` per Newton step on the surface Mach numbers (two or three in all), started from
+    the family table; the results fill the per-column cache of ``cone_solution``. Columns a batch does not
+    settle are left to ``cone_solution``'s own per-column solve."""
+    cone = round(float(cone_half_angle_deg), _ROUND)
+    if not cone > 0.0:
+        return
+    fam = _family(cone)
+    ms = np.unique(np.round(np.asarray(flight_mach, dtype=float).ravel(), _ROUND))
+    ms = ms[(ms > 1.0) & (ms >= fam.detachment_mach) & (ms <= fam.top_mach)]
+    cached = _BATCH_SOLUTIONS.setdefault(cone, {})
+    ms = np.array([m for m in ms if m not in cached])
+    if ms.size < 4:
+        return
+    th = math.radians(cone)
+    x = np.sqrt(np.maximum(ms - fam.detachment_mach, 0.0))
+    mc = fam.weak(x)
+    beta_est = fam.wave_angle(x)
+    slope = fam.weak(x, 1) / (2.0 * np.maximum(x, 1e-12))
+    todo = np.ones(ms.size, bool)
+    prev = None
+    for _ in range(4):
+        idx = np.nonzero(todo)[0]
+        res = _outward_batch(th, mc[idx], beta_est[idx] + _BATCH_MARGIN)
+        if res is None:
+            return
+        m0, beta, c_r, c_w, ok = res
+        err = m0 - ms[idx]
+        done = ok & (np.abs(err) <= _MACH_TOL * ms[idx])
+        for j in np.nonzero(done)[0]:
+            i = idx[j]
+            cached[float(ms[i])] = _make_solution(float(ms[i]), cone, float(mc[i]), float(beta[j]),
+                                                  _series(th, float(beta[j]), c_r[j], c_w[j]))
+        todo[idx[done]] = False
+        if not todo.any():
+            return
+        move = idx[~done & ok]
+        keep = ~done & ok
+        if prev is not None:
+            pm, pm0 = prev
+            d = m0[keep] - pm0[move]
+            good = np.isfinite(d) & (np.abs(d) > 0.0)
+            slope[move] = np.where(good, (mc[move] - pm[move]) / np.where(good, d, 1.0), slope[move])
+        prev_mc, prev_m0 = mc.copy(), np.full(ms.size, np.nan)
+        prev_m0[idx] = m0
+        prev = (prev_mc, prev_m0)
+        mc[move] = np.maximum(mc[move] - slope[move] * err[keep], 0.5 * (mc[move] + fam.detachment_surface_mach))
+        beta_est[move] = beta[keep]  # the last shock angle found
+        todo[idx[~ok]] = False  # left to the per-column solve
+
+
+_BATCH_SOLUTIONS: dict[float, dict[float, ConeSolution]] = {}
+
+
+def clear_cache() -> None:
+    """Empty every per-column and per-cone cache (for timing from cold)."""
+    _BATCH_SOLUTIONS.clear()
+    _family.cache_clear()
+    _cone_solution_cached.cache_clear()
 
 
 def cone_solution(flight_mach: float, cone_half_angle_deg: float) -> ConeSolution | None:
@@ -279,6 +421,9 @@ def cone_solution(flight_mach: float, cone_half_angle_deg: float) -> ConeSolutio
     cone = round(float(cone_half_angle_deg), _ROUND)
     if not (m0 > 1.0 and cone > 0.0):
         return None
+    batch = _BATCH_SOLUTIONS.get(cone)
+    if batch is not None and m0 in batch:
+        return batch[m0]
     return _cone_solution_cached(m0, cone)
 
 
@@ -300,6 +445,7 @@ def cone_flow(flight_mach, cone_half_angle_deg: float) -> ConeFlow:
     """
     m0 = np.asarray(flight_mach, dtype=float)
     uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)
+    solve_columns(uniq, cone_half_angle_deg)
     out = np.full((4, uniq.size), np.nan)
     det = np.zeros(uniq.size, bool)
     for i, m in enumerate(uniq):
