@@ -25,9 +25,12 @@ is matched to 1e-6 relative (beta to about 1e-6 rad), and its dense solution is 
 Local Mach: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2). Total pressure behind the shock: the normal-shock ratio
 at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), rho/rho0 likewise with 1/(g-1).
 
-Cost: every public function works on one flight Mach number and is cached (``functools.lru_cache``) on
-(M0, angle) rounded to 1e-9; the vectorised front end ``cone_flow`` solves the unique Mach numbers of an
-array once and maps back, never per point.
+Cost: never per point. ``cone_solution`` (one flight Mach number) is cached (``functools.lru_cache``) on
+(M0, angle) rounded to 1e-9. A map's Mach columns go through ``solve_columns`` first: every new column of a
+cone is solved in one vectorised ``solve_ivp`` per Newton step (each column on its own ray scale
+w = theta_c + s (w_end - theta_c), s in [0, 1], w_end just beyond the shock angle from the table), two or
+three in all, and kept as a Chebyshev series of V_r and V_w on [theta_c, beta] in the same per-column cache.
+The vectorised front end ``cone_flow`` solves the unique Mach numbers of an array once and maps back.
 
 Worked example (checked in the tests against NACA Report 1135's cone charts, NASA SP-3004's tables and
 ``pygasflow``): a 20 deg cone at M0 = 2 has beta = 37.80 deg and a surface Mach number of 1.568.
@@ -359,6 +362,8 @@ def solve_columns(flight_mach, cone_half_angle_deg: float) -> None:
     fam = _family(cone)
     ms = np.unique(np.round(np.asarray(flight_mach, dtype=float).ravel(), _ROUND))
     ms = ms[(ms > 1.0) & (ms >= fam.detachment_mach) & (ms <= fam.top_mach)]
+    if len(_BATCH_SOLUTIONS) >= 64 and cone not in _BATCH_SOLUTIONS:  # bounded like the lru caches
+        _BATCH_SOLUTIONS.clear()
     cached = _BATCH_SOLUTIONS.setdefault(cone, {})
     ms = np.array([m for m in ms if m not in cached])
     if ms.size < 4:
