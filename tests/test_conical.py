@@ -62,8 +62,9 @@ def test_shock_jump_on_the_shock_ray():
     s = cone_solution(2.5, 15.0)
     r = s.ray(s.wave_angle_deg)
     beta = math.radians(s.wave_angle_deg)
-    assert float(r.density_ratio * -r.normal_velocity_ratio) == pytest.approx(math.sin(beta), rel=1e-7)
-    assert float(r.radial_velocity_ratio) == pytest.approx(math.cos(beta), rel=1e-7)  # tangential continuous
+    # (a column is solved for a Mach number matched to 1e-6 relative: the jump holds to that order)
+    assert float(r.density_ratio * -r.normal_velocity_ratio) == pytest.approx(math.sin(beta), rel=2e-6)
+    assert float(r.radial_velocity_ratio) == pytest.approx(math.cos(beta), rel=2e-6)  # tangential continuous
     # cone surface: flow along the surface
     assert float(s.ray(15.0).normal_velocity_ratio) == pytest.approx(0.0, abs=1e-9)
 

@@ -128,7 +128,7 @@ def _family(cone_deg: float) -> _Family:
     """Tabulate (M0, surface Mach) over the surface Mach number for one cone; find the detachment point."""
     th = math.radians(cone_deg)
     mcs, m0s, betas = [], [], []
-    for mc in np.concatenate([np.linspace(0.3, 1.0, 8, endpoint=False), np.geomspace(1.0, 40.0, 28)]):
+    for mc in np.concatenate([np.linspace(0.3, 1.0, 6, endpoint=False), np.geomspace(1.0, 40.0, 12)]):
         r = _outward(th, float(mc))
         if r is None:
             if mcs:
@@ -137,7 +137,7 @@ def _family(cone_deg: float) -> _Family:
         mcs.append(float(mc))
         m0s.append(r[0])
         betas.append(r[1])
-        if r[0] > 8.0 and mc > 1.0:  # far enough up the weak branch
+        if r[0] > 6.2 and mc > 1.0:  # far enough up the weak branch (maps reach Mach 6)
             break
     mcs, m0s = np.array(mcs), np.array(m0s)
     k = int(np.argmin(m0s))
@@ -209,7 +209,7 @@ class ConeSolution:
         r = self.ray(lip_ray_deg)
         return float(r.density_ratio * abs(r.normal_velocity_ratio) / math.sin(math.radians(lip_ray_deg)))
 
-    def stream_surface_pressure_integral(self, lip_ray_deg: float, n: int = 257) -> tuple[float, float]:
+    def stream_surface_pressure_integral(self, lip_ray_deg: float, n: int = 65) -> tuple[float, float]:
         """Along the conical stream line that ends on the lip (ray omega_L), from the shock to the lip:
         (I, s) with I = integral (p/p0 - 1) d(r^2/r_L^2) (r the radius from the axis) and s = (r_s/r_L)^2
         at the shock crossing; (0, 1) when omega_L lies at or beyond the shock.
@@ -343,11 +343,12 @@ def _outward_batch(theta_c: float, surface_mach: np.ndarray, end: np.ndarray):
 
 
 def _series(theta_c, beta, c_r, c_w):
-    cheb = np.polynomial.chebyshev
+    coef = np.stack([c_r, c_w], axis=1)  # (degree + 1, 2): both series in one Clenshaw recurrence
 
     def velocity(w):
         t = 2.0 * (np.asarray(w) - theta_c) / (beta - theta_c) - 1.0
-        return cheb.chebval(t, c_r), cheb.chebval(t, c_w)
+        vr, vw = np.polynomial.chebyshev.chebval(t, coef)
+        return vr, vw
     return velocity
 
 
