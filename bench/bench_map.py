@@ -50,6 +50,7 @@ def clear_caches():
 
     conical.clear_cache()
     axisymmetric_spike._column.cache_clear()
+    axisymmetric_spike._detached_values.cache_clear()
 
 
 def best_time(fn, repeats):

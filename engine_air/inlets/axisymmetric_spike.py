@@ -85,53 +85,35 @@ def spike_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
     return []
 
 
+@lru_cache(maxsize=256)
+def _detached_values(cone: float, design_mach: float) -> tuple[float, float, float]:
+    """(detachment Mach, MFR_max and pressure integral just attached) of the first cone, for the blend."""
+    m_det = detachment_mach(cone)
+    lip_ray = cone_solution(design_mach, cone).wave_angle_deg
+    at_det = cone_solution(m_det * (1.0 + 1e-7), cone)  # just attached
+    if at_det is None or not m_det < design_mach:
+        return m_det, 1.0, 0.0
+    return m_det, at_det.captured_flow_ratio(lip_ray), at_det.stream_surface_pressure_integral(lip_ray)[0]
+
+
 @lru_cache(maxsize=16384)
-def _column(m0: float, cones: tuple[float, ...], design_mach: float):
-    """Everything of one flight Mach column: (recovery before the terminal shock, entry Mach, entry flow
-    angle, wave angles, downstream Machs, p_t ratios, p ratios, detached, MFR_max, pressure integral)."""
-    n = len(cones)
-    beta = [np.nan] * n
-    mach = [np.nan] * n
-    pts = [np.nan] * n
-    ps = [np.nan] * n
-    first = cone_solution(m0, cones[0])
-    design = cone_solution(design_mach, cones[0])
-    lip_ray = design.wave_angle_deg
+def _column(m0: float, cone: float, design_mach: float) -> tuple[float, ...]:
+    """The first cone at one flight Mach column: (wave angle rad, surface Mach, p_t ratio, p_c/p0, MFR_max,
+    pressure integral); the first four NaN where the cone's shock is detached."""
+    first = cone_solution(m0, cone)
     if first is None:
         # detached first cone: normal shock at M0; capture and drag carried from the detachment point
-        m_det = detachment_mach(cones[0])
-        at_det = cone_solution(m_det * (1.0 + 1e-7), cones[0])  # just attached
-        if at_det is not None and m_det < design_mach:
-            mfr_det = at_det.captured_flow_ratio(lip_ray)
-            integral_det = at_det.stream_surface_pressure_integral(lip_ray)[0]
-        else:
-            mfr_det, integral_det = 1.0, 0.0
-        mfr = float(detached_cone_capture_blend(m0, m_det, mfr_det, 1.0))
-        integral = float(detached_cone_capture_blend(m0, m_det, integral_det, 0.0))
-        return 1.0, np.nan, 0.0, tuple(beta), tuple(mach), tuple(pts), tuple(ps), True, mfr, integral
-    beta[0] = math.radians(first.wave_angle_deg)
-    mach[0] = first.surface_mach
-    pts[0] = first.shock_total_pressure_ratio
-    ps[0] = first.surface_pressure_ratio
-    recovery = first.shock_total_pressure_ratio
-    m_entry, angle, detached = first.surface_mach, math.radians(cones[0]), False
-    if n == 2:
-        s2 = oblique_shock(first.surface_mach, math.radians(cones[1] - cones[0]))
-        if bool(s2.attached) and first.surface_mach > 1.0:
-            beta[1] = float(s2.wave_angle_rad)
-            mach[1] = float(s2.downstream_mach)
-            pts[1] = float(s2.total_pressure_ratio)
-            ps[1] = float(s2.static_pressure_ratio)
-            recovery *= float(s2.total_pressure_ratio)
-            m_entry, angle = float(s2.downstream_mach), math.radians(cones[1])
-        else:
-            detached = first.surface_mach > 1.0
+        m_det, mfr_det, integral_det = _detached_values(cone, design_mach)
+        return (np.nan, np.nan, np.nan, np.nan, float(detached_cone_capture_blend(m0, m_det, mfr_det, 1.0)),
+                float(detached_cone_capture_blend(m0, m_det, integral_det, 0.0)))
     if m0 < design_mach:
+        lip_ray = cone_solution(design_mach, cone).wave_angle_deg
         mfr = first.captured_flow_ratio(lip_ray)
         integral = first.stream_surface_pressure_integral(lip_ray)[0]
     else:
         mfr, integral = 1.0, 0.0
-    return recovery, m_entry, angle, tuple(beta), tuple(mach), tuple(pts), tuple(ps), detached, mfr, integral
+    return (math.radians(first.wave_angle_deg), first.surface_mach, first.shock_total_pressure_ratio,
+            first.surface_pressure_ratio, mfr, integral)
 
 
 class AxisymmetricSpikeInlet:
@@ -143,21 +125,44 @@ class AxisymmetricSpikeInlet:
         return spike_problems(inlet)
 
     def _columns(self, inlet: Inlet, flight_mach):
+        """Per flight Mach: (M0, scalars, per-shock arrays); scalars = recovery ahead of the terminal shock,
+        entry Mach (NaN: the first cone detached, M0), entry flow angle, detached, MFR_max, integral."""
         m0 = np.asarray(flight_mach, dtype=float)
         cones = tuple(float(c) for c in inlet.cone_half_angles_deg)
         n = len(cones)
+        design = float(inlet.shock_on_lip_mach)
         uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)
         inverse = inverse.reshape(m0.shape)
-        solve_columns(uniq[uniq > 1.0], cones[0])  # every new column of the first cone in one batch
-        scalars = np.full((6, uniq.size), np.nan)  # recovery, entry Mach, angle, detached, MFR_max, integral
+        sup = uniq > 1.0
+        solve_columns(uniq[sup], cones[0])  # every new column of the first cone in one batch
+        first = np.full((6, uniq.size), np.nan)
+        first[4] = np.nan
+        first[5] = 0.0
+        for i in np.nonzero(sup)[0]:
+            first[:, i] = _column(float(uniq[i]), cones[0], design)
+        beta1, mc, pt1, pc = first[:4]
+        attached1 = np.isfinite(beta1)
         per = np.full((4, n, uniq.size), np.nan)
-        for i, m in enumerate(uniq):
-            if not m > 1.0:
-                scalars[:, i] = (1.0, m, 0.0, 0.0, np.nan, 0.0)
-                continue
-            rec, me, ang, beta, mach, pts, ps, det, mfr, integ = _column(float(m), cones, float(inlet.shock_on_lip_mach))
-            scalars[:, i] = (rec, me, ang, float(det), mfr, integ)
-            per[:, :, i] = (beta, mach, pts, ps)
+        per[:, 0] = first[:4]
+        recovery = np.where(attached1, pt1, 1.0)
+        entry = np.where(attached1, mc, np.where(sup, np.nan, uniq))
+        angle = np.where(attached1, math.radians(cones[0]), 0.0)
+        detached = sup & ~attached1
+        if n == 2:
+            # second cone: a plane oblique shock at the first cone's surface Mach (vectorised over columns)
+            live = attached1 & (np.nan_to_num(mc) > 1.0)
+            s2 = oblique_shock(np.where(live, mc, 2.0), math.radians(cones[1] - cones[0]))
+            ok2 = live & s2.attached
+            per[0, 1] = np.where(ok2, s2.wave_angle_rad, np.nan)
+            per[1, 1] = np.where(ok2, s2.downstream_mach, np.nan)
+            per[2, 1] = np.where(ok2, s2.total_pressure_ratio, np.nan)
+            per[3, 1] = np.where(ok2, s2.static_pressure_ratio, np.nan)
+            recovery = np.where(ok2, recovery * s2.total_pressure_ratio, recovery)
+            entry = np.where(ok2, s2.downstream_mach, entry)
+            angle = np.where(ok2, math.radians(cones[1]), angle)
+            detached = detached | (live & ~s2.attached)
+        scalars = np.stack([recovery, entry, angle, detached.astype(float), np.where(sup, first[4], np.nan),
+                            np.where(sup, first[5], 0.0)])
         return m0, scalars[:, inverse], per[:, :, inverse]
 
     def shock_system(self, inlet: Inlet, flight_mach) -> ShockSystem:
