@@ -112,3 +112,14 @@ def test_spike_continuous_through_cone_attachment():
     kind = inlet_type("axisymmetric-spike")
     inlet = Inlet("axisymmetric-spike", 0.8, 0.62, 0.7, cone_half_angles_deg=(18.0, 28.0), shock_on_lip_mach=2.0)
     _assert_continuous_through(kind, inlet, detachment_mach(18.0))
+
+
+def test_pitot_captured_tube_crosses_the_strong_part_of_its_bow_shock():
+    """Moeckel's bow shock ahead of a spilling pitot (body sonic point at the lip, y_b = 1): the sonic point
+    lies above the lip radius, so every captured stream line (y <= 1) crosses the shock where its wave angle
+    exceeds the sonic one (the strong, nearly normal part): the §7 balance with the normal-shock total
+    pressure applies (engine_air.inlets.pitot)."""
+    m0 = np.linspace(1.05, 3.0, 40)
+    b = moeckel_bow_shock(m0, axisymmetric=True)
+    assert np.all(b.sonic_point[1] > 1.0)
+    assert np.all(b.wave_angle_at(1.0) >= sonic_shock(m0).wave_angle_rad)
