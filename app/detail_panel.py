@@ -11,7 +11,7 @@ from __future__ import annotations
 import html
 import math
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import Qt, QTimer, Signal
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QHeaderView,
@@ -113,10 +113,34 @@ def _table(columns: list[str]) -> QTableWidget:
     t.setEditTriggers(QAbstractItemView.NoEditTriggers)
     t.setSelectionMode(QAbstractItemView.ContiguousSelection)
     t.setVerticalScrollBarPolicy(Qt.ScrollBarAlwaysOff)
-    t.setHorizontalScrollBarPolicy(Qt.ScrollBarAsNeeded)
+    t.setHorizontalScrollBarPolicy(Qt.ScrollBarAlwaysOff)  # as wide as its columns (``_fit_width``)
     t.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)
     t.horizontalHeader().setStretchLastSection(True)
     return t
+
+
+WRAP_COLUMN_EM = 12  # a word-wrapped column is never narrower than this many average characters
+
+
+def _fit_width(t: QTableWidget, wrap_column: int | None = None) -> None:
+    """Never narrower than its columns' contents: a narrow panel scrolls as a whole; no column is cut.
+
+    A word-wrapped column counts with at most ``WRAP_COLUMN_EM`` characters (it wraps below that).
+    """
+    h = t.horizontalHeader()
+    total = 0
+    for c in range(t.columnCount()):
+        if h.isSectionHidden(c):
+            continue
+        need = max(h.sectionSizeHint(c), t.sizeHintForColumn(c), h.minimumSectionSize())
+        if c == wrap_column:
+            need = min(need, WRAP_COLUMN_EM * t.fontMetrics().averageCharWidth())
+        elif c == t.columnCount() - 1 and h.stretchLastSection():
+            need = max(need, h.defaultSectionSize())  # a stretched last section keeps at least this
+        total += need
+    width = total + 2 * t.frameWidth() + 2
+    if t.minimumWidth() != width:
+        t.setMinimumWidth(width)
 
 
 def _fit_height(t: QTableWidget) -> None:
@@ -128,7 +152,13 @@ def _fit_height(t: QTableWidget) -> None:
 
 
 class DetailPanel(QScrollArea):
-    """Everything about one grid point of one case."""
+    """Everything about one grid point of one case.
+
+    The panel scrolls down, never sideways: ``needed_width()`` is the width at which every table shows
+    every column; ``neededWidthChanged(width)`` says when that changes (after a font or content change).
+    """
+
+    neededWidthChanged = Signal(int)
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
@@ -140,6 +170,8 @@ class DetailPanel(QScrollArea):
         self._index = None
         self._case = None
         self._fitted: dict = {}
+        self._refit_pending = False
+        self._needed_width = 0
 
         body = QWidget()
         lay = QVBoxLayout(body)
@@ -152,13 +184,16 @@ class DetailPanel(QScrollArea):
         self.stale_label.setObjectName("detailStale")
         self.stale_label.setStyleSheet("background: #8a3b00; color: white; font-weight: bold; padding: 4px;")
         self.stale_label.hide()
-        self.stations = _table(["", "0 free stream", "1 capture", "th throat", "2 face"])
+        self.stations = _table(["", "0\nfree stream", "1\ncapture", "th\nthroat", "2\nface"])
         self.flow = _table(["Quantity", "Value", "Unit"])
-        self.shocks = _table(["Shock", "M ahead", "M behind", "Wave angle (°)", "p_t ratio"])
+        self.shocks = _table(["Shock", "M\nahead", "M\nbehind", "Wave\nangle (°)", "p_t\nratio"])
         self.checks = _table(["Limit: rule", "Value", "Margin", "Status"])
         self.checks.setWordWrap(True)
         self.checks.horizontalHeader().setSectionResizeMode(0, QHeaderView.Stretch)
         self.checks.horizontalHeader().setStretchLastSection(False)
+        # the rule texts wrap: their rows follow the column's width; no table is narrower than its columns
+        for t in (self.checks, self.stations, self.flow, self.shocks):
+            t.horizontalHeader().sectionResized.connect(self._schedule_refit)
         self.flags_label = QLabel("")
         self.flags_label.setWordWrap(True)
         self.flags_label.setTextFormat(Qt.RichText)
@@ -236,6 +271,7 @@ class DetailPanel(QScrollArea):
         self._fitted.clear()
         if self._record is not None:
             self._fill()
+        self._schedule_refit()
 
     def _fit(self, t: QTableWidget) -> None:
         """Fit rows and height once per (row count, style); refits cost more than the refill itself."""
@@ -245,6 +281,30 @@ class DetailPanel(QScrollArea):
         t.resizeRowsToContents()
         _fit_height(t)
         self._fitted[id(t)] = key
+
+    def _schedule_refit(self, *_args) -> None:
+        """Fit widths and wrapped rows again once the layout has settled (a font or width change)."""
+        if not self._refit_pending:
+            self._refit_pending = True
+            QTimer.singleShot(0, self._refit_layout)
+
+    def _refit_layout(self) -> None:
+        self._refit_pending = False
+        for t in (self.checks, self.stations, self.flow, self.shocks):
+            _fit_width(t, 0 if t is self.checks else None)
+        if self.checks.rowCount():
+            self.checks.resizeRowsToContents()
+            _fit_height(self.checks)
+        need = self.needed_width()
+        if need != self._needed_width:
+            self._needed_width = need
+            self.neededWidthChanged.emit(need)
+
+    def needed_width(self) -> int:
+        """The panel's width at which its content needs no sideways scrolling."""
+        body = self.widget()
+        return (body.minimumSizeHint().width() + self.verticalScrollBar().sizeHint().width()
+                + 2 * self.frameWidth() + 2)
 
     def set_stale(self, text: str | None) -> None:
         if text:
@@ -293,6 +353,7 @@ class DetailPanel(QScrollArea):
                     m.dataChanged.emit(m.index(0, 0), m.index(t.rowCount() - 1, t.columnCount() - 1))
         for t in tables:
             self._fit(t)
+        self._schedule_refit()
 
     def _fill_all(self) -> None:
         u, rec = self._units, self._record
@@ -303,8 +364,9 @@ class DetailPanel(QScrollArea):
         verdict = "all limits hold" if rec["holds"] else "SOME LIMIT FAILS"
         where = "" if self._inside else "  (outside the envelope: computed, not judged)"
         self.header.setText(
-            f"<b>Case “{html.escape(rec['case'])}”</b> &nbsp; M0 = {rec['mach']:.3f}, "
-            f"altitude = {group_digits(alt)} {u.label('altitude')}" +
+            f"<b>Case “{html.escape(rec['case'])}”</b> &nbsp; <span style='white-space:nowrap'>"
+            f"M0 = {rec['mach']:.3f},</span> <span style='white-space:nowrap'>"
+            f"altitude = {group_digits(alt)} {u.label('altitude')}</span>" +
             f"<br>Regime: {rec['regime']} &nbsp;·&nbsp; limiting: {html.escape(str(lim_label))}"
             f"{'' if lim_holds is None else (' (holds)' if lim_holds else ' (FAILS)')}"
             f"<br><b>{verdict}</b>{where}"
@@ -341,7 +403,7 @@ class DetailPanel(QScrollArea):
         rows = self._stations_si
         if t.columnCount() != 1 + len(rows):
             t.setColumnCount(1 + len(rows))
-            t.setHorizontalHeaderLabels([""] + [f"{r['station']} {r['name']}" for r in rows])
+            t.setHorizontalHeaderLabels([""] + [f"{r['station']}\n{r['name']}" for r in rows])
         _set_rows(t, len(STATION_COLUMNS))
         for q, (key, head, dim) in enumerate(STATION_COLUMNS):
             _set_text(t, q, 0, head if dim == "none" else f"{head} ({u.label(dim)})")

@@ -17,7 +17,7 @@ from __future__ import annotations
 import logging
 from dataclasses import replace
 
-from PySide6.QtCore import Qt, QTimer, Signal
+from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QCheckBox,
     QComboBox,
@@ -42,6 +42,7 @@ from engine_air.project.model import INLET_TYPES, REFERENCE_RECOVERY_NAME, Case
 from .edit_widgets import CellError, UnitSpin, cell_si, make_table, number_item
 from .units import Units
 from .validation import validate
+from .worker import Debouncer
 
 DEBOUNCE_MS = 150
 
@@ -79,10 +80,7 @@ class ProjectEditors(QWidget):
         self._project = None
         self._units = Units()
         self._pending: list = []
-        self._timer = QTimer(self)
-        self._timer.setSingleShot(True)
-        self._timer.setInterval(DEBOUNCE_MS)
-        self._timer.timeout.connect(self.flush)
+        self._timer = Debouncer(DEBOUNCE_MS, self.flush, self)
         self._loading = False
 
         self.error = QLabel("")
@@ -116,7 +114,7 @@ class ProjectEditors(QWidget):
         if self._loading or self._project is None:
             return
         self._pending.append(change)
-        self._timer.start()
+        self._timer.trigger()
 
     def apply_now(self, change) -> bool:
         """Immediate edit (buttons, tables, combos); pending spin-box edits go first."""
@@ -127,7 +125,7 @@ class ProjectEditors(QWidget):
 
     def flush(self) -> bool:
         """Apply pending edits as one candidate; True if it was accepted."""
-        self._timer.stop()
+        self._timer.cancel()
         changes, self._pending = self._pending, []
         if not changes or self._project is None:
             return False
@@ -158,7 +156,7 @@ class ProjectEditors(QWidget):
         """Show ``project`` (after load, undo, new); ignored for the project these editors just emitted."""
         if project is self._project:
             return
-        self._timer.stop()
+        self._timer.cancel()
         self._pending = []
         self._project = project
         self.error.hide()

@@ -12,22 +12,23 @@ Work is never lost: unsaved edits are autosaved at intervals (``AUTOSAVE_MS``,
 a clean close. A failed autosave is a note in the status bar. A failed save
 keeps the edits and the unsaved mark and says why; a bad file on Open is
 reported and the open project stays.
+
+This module builds the window and runs the map (computing, selection, units, presentation mode). Its
+other parts live in ``app.window``: ``verdict`` (the banner), ``files`` (New, Open, Save, recent
+files, exports; saving over a read-only file asks first) and ``autosave`` (the recovery slot).
 """
 
 from __future__ import annotations
 
-import html
 import logging
 import math
-from pathlib import Path
 
-from PySide6.QtCore import QSettings, Qt, QTime, QTimer
+from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QAction, QActionGroup, QFont, QKeySequence
 from PySide6.QtWidgets import (
     QApplication,
     QComboBox,
     QDockWidget,
-    QFileDialog,
     QLabel,
     QMainWindow,
     QMessageBox,
@@ -36,30 +37,34 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine_air.project.errors import ProjectError, ProjectSaveError
 from engine_air.envelope.evaluate import WORST
 from engine_air.outputs.quantities import DEFAULT_QUANTITY, QUANTITIES
 
-from . import APPLICATION, ORGANISATION, analysis, exports, style
+from . import APPLICATION, ORGANISATION, analysis, style
 from .about import about_html
 from .detail_panel import DetailPanel
 from .document import ProjectDocument
 from .editors import ProjectEditors
 from .findings import FindingsList
 from .map_view import EnvelopeMap
-from .recovery import AUTOSAVE_MS, RecoveryStore, reason_of
+from .recovery import AUTOSAVE_MS, RecoveryStore
 from .template import new_project
 from .units import SI, SYSTEM_LABELS, US, Units
+from .window.autosave import AutosaveActions
+from .window.files import FileActions
+from .window.verdict import VerdictBanner
 from .worker import MapRunner
 
 log = logging.getLogger(__name__)
 
-MAX_RECENT = 8
 BUSY_DELAY_MS = 120
 WORST_LABEL = "Worst of all cases"
+MAP_MIN_SHARE = 0.45  # the map keeps at least this share of the window's width when the point panel widens
 
 
-class MainWindow(QMainWindow):
+class MainWindow(FileActions, AutosaveActions, QMainWindow):
+    """The program's window; file actions and autosave come from ``app.window``."""
+
     def __init__(self, project=None, path=None, settings: QSettings | None = None, runner: MapRunner | None = None,
                  parent=None, recovery: RecoveryStore | None = None, autosave_ms: int | None = None) -> None:
         super().__init__(parent)
@@ -74,7 +79,6 @@ class MainWindow(QMainWindow):
         self._pending_selection = "worst"  # what to select when the next result arrives
         self._last_error = ""
         self._shutdown = False
-        self.verdict_state = "busy"
         self._progress = 0.0
         self._busy_timer = QTimer(self)
         self._busy_timer.setSingleShot(True)
@@ -91,7 +95,7 @@ class MainWindow(QMainWindow):
         self._build_docks()
         self._build_menus()
         self.setStyleSheet(style.stylesheet(False))
-        self._fit_verdict_height()
+        self.verdict.fit_height()
         self.autosave_label = QLabel("")
         self.autosave_label.setObjectName("autosaveNote")
         self.statusBar().addPermanentWidget(self.autosave_label)
@@ -104,6 +108,7 @@ class MainWindow(QMainWindow):
         self.runner.finished.connect(self._on_finished)
         self.runner.failed.connect(self._on_failed)
         self.map.pointSelected.connect(self._on_point_selected)
+        self.detail.neededWidthChanged.connect(self._fit_detail_dock)
         self.findings.findingActivated.connect(self.go_to_finding)
         self.editors.projectEdited.connect(lambda p: self.document.edit(p, validated=True))
         self.document.stateChanged.connect(self._sync_recovery)
@@ -120,11 +125,7 @@ class MainWindow(QMainWindow):
         lay = QVBoxLayout(central)
         lay.setContentsMargins(4, 4, 4, 4)
         lay.setSpacing(4)
-        self.verdict = QLabel("Computing…")
-        self.verdict.setObjectName("verdict")
-        self.verdict.setAlignment(Qt.AlignCenter)
-        self.verdict.setWordWrap(True)
-        self.verdict.setTextFormat(Qt.RichText)
+        self.verdict = VerdictBanner()
         lay.addWidget(self.verdict)
         self.map = EnvelopeMap()
         lay.addWidget(self.map, 1)
@@ -231,9 +232,9 @@ class MainWindow(QMainWindow):
         self._action(h, "&About", self.show_about)
 
     def _add_design_menu(self):
-        """The "Design" menu (sizing, comparison, sweep, review pack) from ``app.design_dialogs``, if present."""
+        """The "Design" menu (sizing, comparison, sweep, review pack) from ``app.dialogs``, if present."""
         try:
-            from .design_dialogs import add_design_menu
+            from .dialogs import add_design_menu
         except ImportError:
             return None
         try:
@@ -249,33 +250,10 @@ class MainWindow(QMainWindow):
         self.undo_action.setEnabled(d.can_undo())
         self.redo_action.setEnabled(d.can_redo())
 
-    def _fit_verdict_height(self) -> None:
-        """Two lines of banner text, fixed, so a change of verdict never resizes (and repaints) the map."""
-        big = 28 if self.presentation else 16
-        small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
-        pad = 10 if self.presentation else 6
-        self.verdict.setFixedHeight(int(1.45 * (big + small) * 96 / 72) + 2 * pad + 4)
-
-    def _set_verdict(self, state: str, text: str) -> None:
-        colour = {"holds": style.HOLDS_BG, "fails": style.FAILS_BG, "busy": style.BUSY_BG,
-                  "stale": style.STALE_BG}[state]
-        self.verdict_state = state
-        self.verdict.setText(text)
-        css = f"background: {colour};"
-        if self.verdict.styleSheet() != css:  # restyling costs a few ms: only on a change of colour
-            self.verdict.setStyleSheet(css)
-
-    def _verdict_for(self, result) -> tuple[str, str]:
-        failing, total = analysis.failing_count(result)
-        n_cases = len(result.cases)
-        small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
-        over = f"whole envelope, {n_cases} case{'s' if n_cases != 1 else ''}"
-        if failing == 0:
-            return "holds", (f"✔  ALL {total} LIMITS HOLD<br><span style='font-size:{small}pt; font-weight:normal'>"
-                             f"{over}</span>")
-        names = "; ".join(html.escape(s.label) for s in result.summary if not s.holds)
-        return "fails", (f"✖  {failing} OF {total} LIMITS FAIL<br><span style='font-size:{small}pt; "
-                         f"font-weight:normal'>{names} — {over}</span>")
+    @property
+    def verdict_state(self) -> str:
+        """The banner's state: "holds", "fails", "busy" or "stale"."""
+        return self.verdict.state
 
     # -- computing -----------------------------------------------------------------
     def recompute(self) -> int:
@@ -289,7 +267,7 @@ class MainWindow(QMainWindow):
     def _on_started(self, _gen: int) -> None:
         # The banner says so at once; the map's own overlay follows if the run lasts longer than
         # BUSY_DELAY_MS, so that quick edits do not flash (and repaint) the whole map twice.
-        self._set_verdict("busy", "Computing…")
+        self.verdict.show_state("busy", "Computing…")
         self.detail.set_stale("Computing… the values below belong to the previous result.")
         self._busy_timer.start()
 
@@ -311,7 +289,7 @@ class MainWindow(QMainWindow):
         self._fill_case_combo(result)
         self._redraw()
         self.map.set_current()
-        self._set_verdict(*self._verdict_for(result))
+        self.verdict.show_result(result)
         # The side panels follow in the next turn of the event loop, so that the map's repaint is
         # not held up behind them and the GUI thread never stalls for their sum.
         QTimer.singleShot(0, lambda g=gen: self._update_panels(g))
@@ -336,12 +314,12 @@ class MainWindow(QMainWindow):
         log.warning("computation %d failed: %s", gen, message)
         self.statusBar().showMessage(f"Computation failed: {message}", 15000)
         if self.result is None:
-            self._set_verdict("stale", f"NO RESULT — the computation failed: {message}")
+            self.verdict.show_state("stale", f"NO RESULT — the computation failed: {message}")
             self.map.set_stale(message)
             return
         self.map.set_stale(message)
         self.detail.set_stale("OUT OF DATE — the last computation failed; values are from the previous result.")
-        self._set_verdict("stale", f"OUT OF DATE — computation failed: {message}")
+        self.verdict.show_state("stale", f"OUT OF DATE — computation failed: {message}")
 
     # -- map -----------------------------------------------------------------------
     def current_case(self) -> str:
@@ -455,7 +433,7 @@ class MainWindow(QMainWindow):
         self.presentation = on
         self.presentation_action.setChecked(on)
         self.setStyleSheet(style.stylesheet(on))
-        self._fit_verdict_height()
+        self.verdict.set_presentation(on)
         if on:
             # the map and the verdict get the room; the editors and findings come back afterwards
             self._docks_before = {d: d.isVisible() for d in (self.editor_dock, self.findings_dock)}
@@ -469,230 +447,26 @@ class MainWindow(QMainWindow):
             self.detail_dock.raise_()
         self.map.set_presentation(on)
         self.detail.refresh()
-        if self.result is not None and self.verdict_state in ("holds", "fails"):
-            self._set_verdict(*self._verdict_for(self.result))
-        self.resizeDocks([self.detail_dock], [600 if on else 560], Qt.Horizontal)
+        if self.result is not None and self.verdict.state in ("holds", "fails"):
+            self.verdict.show_result(self.result)
+        self.resizeDocks([self.detail_dock], [max(600, int(0.38 * self.width())) if on else 560], Qt.Horizontal)
+        self._fit_detail_dock()
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().resizeEvent(event)
+        QTimer.singleShot(0, self._fit_detail_dock)
+
+    def _fit_detail_dock(self, *_args) -> None:
+        """The point's panel as wide as its tables (no sideways scrolling), leaving the map at least
+        ``MAP_MIN_SHARE`` of the window."""
+        if not self.detail_dock.isVisible() or self.detail_dock.isFloating():
+            return
+        need = min(self.detail.needed_width(), int(self.width() * (1.0 - MAP_MIN_SHARE)))
+        if self.detail_dock.width() < need:
+            self.resizeDocks([self.detail_dock], [need], Qt.Horizontal)
 
     def show_about(self) -> None:
         QMessageBox.about(self, f"About {APPLICATION}", about_html())
-
-    # -- files ---------------------------------------------------------------------
-    def _ask_unsaved(self) -> bool:
-        """True when it is fine to drop the current project (saved, discarded, or clean)."""
-        if not self.document.dirty:
-            return True
-        answer = QMessageBox.warning(
-            self, "Unsaved changes",
-            f"{self.document.display_name} has unsaved changes. Save them first?",
-            QMessageBox.Save | QMessageBox.Discard | QMessageBox.Cancel, QMessageBox.Save)
-        if answer == QMessageBox.Save:
-            return self.save()
-        return answer == QMessageBox.Discard
-
-    def new_file(self) -> None:
-        if not self._ask_unsaved():
-            return
-        self._pending_selection = "worst"
-        self.map.clear_selection()
-        self.document.reset(new_project(), None, saved=False)
-
-    def open_dialog(self) -> None:
-        if not self._ask_unsaved():
-            return
-        start = str(self.document.path.parent) if self.document.path else ""
-        path, _ = QFileDialog.getOpenFileName(self, "Open project", start, "Project files (*.toml);;All files (*)")
-        if path:
-            self.open_file(path, ask=False)
-
-    def open_file(self, path, ask: bool = True) -> bool:
-        """Open ``path``; on a bad file show the loader's message and keep the current project."""
-        if ask and not self._ask_unsaved():
-            return False
-        try:
-            self._pending_selection = "worst"
-            self.document.open(path)
-        except ProjectError as exc:
-            self._pending_selection = None
-            QMessageBox.critical(self, "Cannot open project",
-                                 f"{exc}\n\nThe project that was open stays open.")
-            return False
-        except Exception as exc:  # noqa: BLE001 - whatever the file holds, the open project stays
-            log.exception("opening %s failed", path)
-            self._pending_selection = None
-            text = " ".join(str(exc).split())
-            QMessageBox.critical(self, "Cannot open project",
-                                 f"{path}: cannot be opened ({type(exc).__name__}: {text})"
-                                 "\n\nThe project that was open stays open.")
-            return False
-        self.map.clear_selection()
-        self._add_recent(self.document.path)
-        for w in self.document.project.warnings:
-            self.statusBar().showMessage(w, 10000)
-        return True
-
-    def save(self) -> bool:
-        if self.document.path is None:
-            return self.save_as_dialog()
-        return self.save_to(self.document.path)
-
-    def save_as_dialog(self) -> bool:
-        start = str(self.document.path) if self.document.path else self.document.display_name
-        path, _ = QFileDialog.getSaveFileName(self, "Save project as", start, "Project files (*.toml)")
-        if not path:
-            return False
-        if not path.lower().endswith(".toml"):
-            path += ".toml"
-        return self.save_to(path)
-
-    def save_to(self, path) -> bool:
-        self.editors.flush()
-        try:
-            saved = self.document.save(path)
-        except (ProjectSaveError, OSError) as exc:
-            QMessageBox.critical(self, "Could not save",
-                                 f"{exc}\n\nYour edits are kept in the window; try another folder or name.")
-            return False
-        except Exception as exc:  # noqa: BLE001 - never lose the edits to an unexpected error
-            log.exception("saving to %s failed", path)
-            QMessageBox.critical(self, "Could not save",
-                                 f"could not save the project to {path}: {type(exc).__name__}: "
-                                 f"{' '.join(str(exc).split())}\n\nYour edits are kept in the window.")
-            return False
-        self._add_recent(saved)
-        self.statusBar().showMessage(f"Saved {saved}", 5000)
-        return True
-
-    def recent_files(self) -> list[str]:
-        value = self.settings.value("recent_files", [])
-        if isinstance(value, str):
-            value = [value]
-        return [str(v) for v in (value or [])]
-
-    def _add_recent(self, path) -> None:
-        if path is None:
-            return
-        p = str(Path(path).resolve())
-        files = [f for f in self.recent_files() if f != p]
-        self.settings.setValue("recent_files", [p] + files[: MAX_RECENT - 1])
-
-    def _fill_recent_menu(self) -> None:
-        self.recent_menu.clear()
-        files = self.recent_files()
-        if not files:
-            a = self.recent_menu.addAction("(none)")
-            a.setEnabled(False)
-            return
-        for f in files:
-            a = self.recent_menu.addAction(f)
-            a.triggered.connect(lambda _c=False, f=f: self.open_file(f))
-
-    # -- export --------------------------------------------------------------------
-    def _export_dialog(self, kind: str) -> None:
-        if self.result is None:
-            QMessageBox.information(self, "Nothing to export", "There is no computed map yet.")
-            return
-        stem = Path(self.document.display_name).stem
-        filters = {"png": "PNG image (*.png)", "svg": "SVG drawing (*.svg)", "csv": "CSV table (*.csv)",
-                   "txt": "Text (*.txt)"}
-        suggested = {"png": f"{stem}_map.png", "svg": f"{stem}_map.svg", "csv": f"{stem}_grid.csv",
-                     "txt": f"{stem}_findings.txt"}[kind]
-        folder = self.document.path.parent if self.document.path else Path.cwd()
-        path, _ = QFileDialog.getSaveFileName(self, "Export", str(folder / suggested), filters[kind])
-        if path:
-            self.export(kind, path)
-
-    def export(self, kind: str, path) -> bool:
-        """Write ``kind`` ("png", "svg", "csv", "txt") to ``path``; a failure is reported, never raised."""
-        writers = {
-            "png": lambda: exports.write_map_png(self.map, path),
-            "svg": lambda: exports.write_map_svg(self.map, path),
-            "csv": lambda: exports.write_grid_csv(self.result, path),
-            "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
-                                                       self.document.display_name),
-        }
-        if kind not in writers:
-            raise ValueError(f"unknown export kind {kind!r}")
-        QApplication.setOverrideCursor(Qt.WaitCursor)
-        try:
-            writers[kind]()
-        except Exception as exc:  # noqa: BLE001 - a failed export is reported, never fatal
-            QApplication.restoreOverrideCursor()
-            if not isinstance(exc, OSError):
-                log.exception("export to %s failed", path)
-            QMessageBox.critical(self, "Export failed", f"Could not write {path}: {reason_of(exc)}")
-            return False
-        finally:
-            if QApplication.overrideCursor() is not None:
-                QApplication.restoreOverrideCursor()
-        stale = " (note: the map is out of date)" if self.map.state != "current" else ""
-        self.statusBar().showMessage(f"Exported {path}{stale}", 5000)
-        return True
-
-    # -- autosave and recovery ------------------------------------------------------------
-    def autosave_now(self) -> bool:
-        """Hand the project to the recovery store if it holds unsaved work not autosaved yet (timer slot)."""
-        if self._shutdown or self.recovery.closed:
-            return False
-        d = self.document
-        if not d.has_unsaved_work:
-            self._sync_recovery()
-            return False
-        key = (d.project, d.path)
-        if self._autosaved is not None and self._autosaved[1] == key[1] and self._autosaved[0] == key[0]:
-            return False
-        self._autosaved = key
-        self.recovery.write(d.project, d.path)
-        return True
-
-    def _sync_recovery(self) -> None:
-        """No unsaved work any more (saved, undone, New/Open after Discard): the recovery copy goes."""
-        if not self.document.has_unsaved_work and not self.recovery.closed:
-            self._autosaved = None
-            self.recovery.remove()
-
-    def _on_recovery_report(self, action: str, ok: bool, message: str) -> None:
-        if action == "write":
-            if ok:
-                self.autosave_error = ""
-                self.autosave_label.setStyleSheet("")
-                self.autosave_label.setText(f"Autosaved {QTime.currentTime().toString('HH:mm:ss')}")
-                self.autosave_label.setToolTip(f"Unsaved edits are kept in {self.recovery.project_file}")
-                return
-            self._autosaved = None  # try again at the next tick
-            if message != self.autosave_error:
-                log.warning("autosave to %s failed: %s", self.recovery.folder, message)
-            self.autosave_error = message
-            self.autosave_label.setStyleSheet("color: #8a3b00; font-weight: bold;")
-            self.autosave_label.setText("Autosave failed")
-            self.autosave_label.setToolTip(f"Autosave to {self.recovery.folder} failed: {message}")
-            self.statusBar().showMessage(
-                f"Autosave failed: {message}. Your edits are still here; save them to keep them.", 15000)
-        elif action == "remove":
-            if ok:
-                self.autosave_label.setStyleSheet("")
-                self.autosave_label.setText("")
-                self.autosave_label.setToolTip("")
-            else:
-                self.statusBar().showMessage(f"Could not delete the recovery copy: {message}", 15000)
-
-    def restore_recovered(self, entry, project=None) -> bool:
-        """Open a recovered project marked unsaved, its own file (if any) as the save target."""
-        if project is None:
-            try:
-                project = entry.load()
-            except ProjectError as exc:
-                QMessageBox.critical(self, "Cannot restore", f"{exc}\n\nThe project that was open stays open.")
-                return False
-        if self.document.has_unsaved_work and not self._ask_unsaved():
-            return False
-        self._pending_selection = "worst"
-        self.map.clear_selection()
-        self.document.reset(project, entry.original_path, saved=False, recovered=True)
-        self.recovery.adopt(entry)
-        self._autosaved = (self.document.project, self.document.path)
-        target = f"; Save writes it to {entry.original_path}" if entry.original_path is not None else ""
-        self.statusBar().showMessage(f"Restored unsaved work — not saved yet{target}", 15000)
-        return True
 
     # -- closing -------------------------------------------------------------------
     def closeEvent(self, event) -> None:  # noqa: N802 - Qt override

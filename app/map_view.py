@@ -14,12 +14,14 @@ line; a click selects the nearest grid point (``pointSelected(i, j)``).
 
 from __future__ import annotations
 
+import html
+
 import math
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QFont
+from PySide6.QtCore import QPointF, QRectF, Qt, QTimer, Signal
+from PySide6.QtGui import QFont, QFontMetrics
 from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 
 from engine_air.envelope.evaluate import WORST
@@ -27,7 +29,6 @@ from engine_air.outputs.quantities import QUANTITIES
 
 from . import analysis
 from .colour_maps import colour_map_for, levels_for
-from .contours import iso_segments, join_segments
 from .units import Units, dimension_of_si_unit, group_digits
 
 OUTSIDE_GREY = "#bdbdbd"
@@ -39,6 +40,29 @@ def _no_si_prefix(axis) -> None:
     if hasattr(axis, "setSIPrefixEnableRanges"):
         axis.setSIPrefixEnableRanges(())
     axis.enableAutoSIPrefix(False)
+
+
+def iso_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float):
+    """The ``level`` line of ``field`` (rows along ``y``) in data coordinates, by pyqtgraph's isocurve.
+
+    Returns ``(xs, ys)``: polylines separated by NaN (for ``PlotDataItem(connect='finite')``). An edge
+    with a NaN end gives a NaN point, so the line stops at the envelope instead of following the NaN fill.
+    """
+    f = np.asarray(field, dtype=float)
+    if f.ndim != 2 or min(f.shape) < 2:
+        return np.empty(0), np.empty(0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        lines = pg.functions.isocurve(f, level, connected=True)
+    xs, ys = [], []
+    for line in lines:
+        pts = np.asarray(line, dtype=float).reshape(-1, 2) - 0.5  # pixel centres -> (row, column) indices
+        ys.append(np.interp(pts[:, 0], np.arange(len(y)), y))
+        xs.append(np.interp(pts[:, 1], np.arange(len(x)), x))
+        xs.append([np.nan])
+        ys.append([np.nan])
+    if not xs:
+        return np.empty(0), np.empty(0)
+    return np.concatenate(xs), np.concatenate(ys)
 
 
 def quantity_dimension(key: str) -> str:
@@ -119,6 +143,7 @@ class EnvelopeMap(QWidget):
 
         self.readout = QLabel("Hover over the map for Mach, altitude and value; click to select a point.")
         self.readout.setObjectName("mapReadout")
+        self.readout.setWordWrap(True)
         self.readout.setTextInteractionFlags(Qt.TextSelectableByMouse)
         self.state_label = QLabel(self.canvas)
         self.state_label.setObjectName("mapState")
@@ -192,7 +217,8 @@ class EnvelopeMap(QWidget):
         self.plot.setLabel("bottom", "Flight Mach number M0")
         self.plot.setLabel("left", units.with_unit("Pressure altitude", "altitude"))
         case_text = "worst of all cases" if case == WORST else f"case “{case}”"
-        self.plot.setTitle(f"{q.label} — {case_text}")
+        self._title_parts = (q.label, case_text)
+        self._fit_title()
 
         self._draw_outline(result.project)
         self._draw_zero_line(result, case, key, q.kind, values)
@@ -300,8 +326,8 @@ class EnvelopeMap(QWidget):
 
     def _draw_zero_line(self, result, case, key, kind, values) -> None:
         field = values if kind == "margin" else analysis.limiting_field(result, case)
-        xs, ys = join_segments(*iso_segments(self._x, self._y, field, 0.0))
-        self._zero_found = xs.size > 0
+        xs, ys = iso_line(self._x, self._y, field, 0.0)
+        self._zero_found = int(np.isfinite(xs).sum()) >= 2
         self.zero_halo.setData(xs, ys)
         self.zero_line.setData(xs, ys)
         self.zero_halo.setPen(self._pen("w", 6.0))
@@ -309,8 +335,8 @@ class EnvelopeMap(QWidget):
 
     def _draw_ram_line(self, result, case) -> None:
         ratio = np.asarray(result.quantity(case, "face_static_to_ambient"), dtype=float)
-        xs, ys = join_segments(*iso_segments(self._x, self._y, ratio, 1.0))
-        self._ram_found = xs.size > 0
+        xs, ys = iso_line(self._x, self._y, ratio, 1.0)
+        self._ram_found = int(np.isfinite(xs).sum()) >= 2
         self.ram_halo.setData(xs, ys)
         self.ram_line.setData(xs, ys)
         self.ram_halo.setPen(self._pen("w", 5.5))
@@ -363,9 +389,16 @@ class EnvelopeMap(QWidget):
         self._update_legend_text()
 
     def _update_legend_text(self) -> None:
-        size = f"{11 * self._scale:.0f}pt"
+        self._legend_shown = None
+        self._fit_legend()
+
+    def _set_legend_text(self, pt: float) -> None:
+        shown = (tuple(self._legend_texts), round(pt, 1))
+        if shown == getattr(self, "_legend_shown", None):
+            return
+        self._legend_shown = shown
         for label, text in zip(self._legend_labels, self._legend_texts):
-            label.setText(text, size=size, color="k")
+            label.setText(text, size=f"{pt:.0f}pt", color="k")
 
     def _apply_style(self) -> None:
         s = self._scale
@@ -391,12 +424,16 @@ class EnvelopeMap(QWidget):
         self.colour_bar.layout.setColumnFixedWidth(1, int(24 * s))
         self.colour_bar.setMinimumWidth(bar_width)
         self.colour_bar.setMaximumWidth(bar_width)
-        self.legend.setColumnCount(2 if s > 1.2 else 4)
+        self.legend.setColumnCount(2 if s > 1.2 else 4)  # fewer when the map is narrow (``_fit_legend``)
         self.plot.titleLabel.opts["size"] = f"{15 * s:.0f}pt"
         self.plot.titleLabel.opts["color"] = "#000"
         if hasattr(self, "_legend_labels"):
             self._update_legend_text()
         self.readout.setStyleSheet(f"font-size: {12 * s:.0f}pt; padding: 4px; color: black; background: #f2f2f2;")
+        # the readout wraps instead of widening the window; two lines reserved, so hovering never resizes the map
+        font = QFont(self.readout.font())
+        font.setPointSizeF(12 * s)
+        self.readout.setMinimumHeight(2 * QFontMetrics(font).lineSpacing() + 8 + 2)
 
     def _set_state(self, state: str, text: str = "") -> None:
         changed = state != getattr(self, "_state", None) or self._styled_scale != self._scale
@@ -434,6 +471,70 @@ class EnvelopeMap(QWidget):
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
         super().resizeEvent(event)
         self._place_overlays()
+        self._fit_title()
+        self._fit_legend()
+        self._schedule_canvas_fit()
+
+    def _schedule_canvas_fit(self) -> None:
+        if not getattr(self, "_canvas_fit_pending", False):
+            self._canvas_fit_pending = True
+            QTimer.singleShot(0, self._fit_canvas)
+
+    def _fit_canvas(self) -> None:
+        """Lay the scene out again at the canvas's size: a resize that came while the title or legend was
+        still wider left the scene at its old, larger minimum (and cut off on the right)."""
+        self._canvas_fit_pending = False
+        ci = self.canvas.ci
+        ci.layout.invalidate()
+        ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
+        ci.layout.activate()
+        self.canvas.viewport().update()
+
+    def _fit_legend(self) -> None:
+        """As many legend columns as the style asks (4, or 2 in presentation) and the width allows; in a
+        narrow window the legend's type first shrinks (to 75 %), then it drops columns."""
+        if not getattr(self, "_legend_labels", None):
+            return
+        room = self.canvas.width() - 30
+        full = 11 * self._scale
+        wanted = 2 if self._scale > 1.2 else 4
+        tries = [(wanted, full), (wanted, 0.85 * full), (wanted, 0.75 * full)]
+        tries += [(n, 0.75 * full) for n in range(wanted - 1, 0, -1)]
+        before = getattr(self, "_legend_shown", None)
+        moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
+        for n, pt in tries:
+            self._set_legend_text(pt)
+            if self.legend.columnCount != n:
+                self.legend.setColumnCount(n)
+                moved = True
+            self.legend.layout.invalidate()
+            if self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:
+                break
+        if moved or self._legend_shown != before:
+            self._schedule_canvas_fit()
+
+    def _fit_title(self) -> None:
+        """The title on one line when it fits beside the colour bar, else on two (quantity / case), so a
+        narrow window never widens the map beyond its place; the title row is as high as its lines."""
+        parts = getattr(self, "_title_parts", None)
+        if parts is None:
+            return
+        font = QFont()
+        font.setPointSizeF(15 * self._scale)
+        fm = QFontMetrics(font)
+        one = f"{parts[0]} — {parts[1]}"
+        room = (self.canvas.width() - self.colour_bar.maximumWidth()
+                - self.plot.getAxis("left").width() - 40)
+        lines = [one] if fm.horizontalAdvance(one) <= room else list(parts)
+        text = "<br>".join(html.escape(line) for line in lines)
+        if (text, self._scale) == getattr(self, "_title_shown", None):
+            return
+        self._title_shown = (text, self._scale)
+        self.plot.setTitle(text)
+        height = len(lines) * fm.lineSpacing() + 12
+        self.plot.titleLabel.setMaximumHeight(height)
+        self.plot.layout.setRowFixedHeight(0, height)
+        self._schedule_canvas_fit()
 
     # -- mouse -----------------------------------------------------------------
     def _grid_index_at_scene(self, scene_pos) -> tuple[int, int] | None:

@@ -1,33 +1,57 @@
-"""The envelope computation off the GUI thread.
+"""The one way the desktop program runs work off the GUI thread, and the one debounce.
 
-``MapRunner.request(project)`` starts ``evaluate_project`` on a private
-``QThreadPool`` and returns the request's generation number. A newer request
-sets every older request's cancel flag (polled by ``evaluate_project`` between
-cases), and any result, progress or error that arrives from an older
-generation is dropped, so only the newest request can ever reach the views.
+``Worker`` runs tasks ``fn(progress, cancelled) -> result`` on a private ``QThreadPool`` and numbers
+each request (its *generation*). Every result, progress report and error comes back as a signal on
+the GUI thread, tagged with its generation:
 
-Signals (all on the GUI thread): ``started(generation)``, ``progress(fraction)``,
-``finished(generation, MapResult)``, ``failed(generation, message)``.
-A failure never kills the runner: the next request works as usual.
+- ``started(generation)``, ``progress(fraction)`` (newest generation only),
+  ``finished(generation, result)``, ``failed(generation, message)``.
 
-Without an ``evaluate`` argument the runner calls
-``engine_air.envelope.evaluate.evaluate_project`` as found in that module at the
-time of each request (so a test can replace it there).
+Two policies, chosen when the worker is made:
+
+- ``supersede=True`` (the map, the design dialogs): a new request sets every older request's cancel
+  flag (``cancelled()`` returns True; the analysis polls it and raises ``Cancelled``), and whatever an
+  older request still delivers is *dropped* (counted in ``dropped``), so only the newest request can
+  reach the views.
+- ``supersede=False`` (autosave): every request runs to its end, one after another in the order asked
+  (``threads=1``), and every outcome is reported.
+
+A task that raises never kills the worker: the error becomes ``failed(generation, message)`` with a
+one-line message (``describe_error(exc)``) and the next request works as usual.
+
+``MapRunner`` is the worker the main window uses for the envelope map. Without an ``evaluate`` argument
+it calls ``engine_air.envelope.evaluate.evaluate_project`` as found in that module at the time of each
+request (so a test can replace it there).
+
+``Debouncer`` collects bursts of calls (typing "0.45" into a spin box) into one call after a quiet
+interval; ``flush()`` makes the pending call at once, ``cancel()`` forgets it.
 """
 
 from __future__ import annotations
 
 import logging
 import threading
-from collections import deque
 import traceback
+from collections import deque
+from typing import Callable
 
-from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
+from PySide6.QtCore import QObject, QRunnable, QThreadPool, QTimer, Signal
 
 from engine_air.envelope import evaluate as _evaluate_module
 from engine_air.envelope.evaluate import Cancelled
+from engine_air.project.errors import ProjectError
 
 log = logging.getLogger(__name__)
+
+Task = Callable[[Callable[[float], None], Callable[[], bool]], object]
+
+
+def one_line_error(exc: BaseException) -> str:
+    """The message of a failed task on one line: the loader's own text, else "Type: text"."""
+    text = " ".join(str(exc).split())
+    if isinstance(exc, ProjectError):
+        return text or type(exc).__name__
+    return f"{type(exc).__name__}: {text}" if text else type(exc).__name__
 
 
 class _JobSignals(QObject):
@@ -40,53 +64,53 @@ class _JobSignals(QObject):
 
 
 class _Job(QRunnable):
-    def __init__(self, generation, project, evaluate, stop: threading.Event, signals: _JobSignals):
+    def __init__(self, generation: int, fn: Task, stop: threading.Event, signals: _JobSignals,
+                 describe_error: Callable[[BaseException], str]) -> None:
         super().__init__()
         self.setAutoDelete(True)
         self.generation = generation
-        self.project = project
-        self.evaluate = evaluate
+        self.fn = fn
         self.stop = stop
         self.signals = signals
+        self.describe_error = describe_error
 
     def run(self) -> None:  # worker thread
         gen, sig = self.generation, self.signals
         try:
             if self.stop.is_set():
                 raise Cancelled()
-            result = self.evaluate(
-                self.project,
-                progress=lambda f: sig.progress.emit(gen, float(f)),
-                cancelled=self.stop.is_set,
-            )
+            result = self.fn(lambda f: sig.progress.emit(gen, float(f)), self.stop.is_set)
         except Cancelled:
             sig.cancelled.emit(gen)
         except Exception as exc:  # noqa: BLE001 - reported to the user, never fatal
-            log.error("computation %d failed:\n%s", gen, traceback.format_exc())
-            text = " ".join(str(exc).split())
-            sig.error.emit(gen, f"{type(exc).__name__}: {text}" if text else type(exc).__name__)
+            if not isinstance(exc, (ProjectError, OSError)):
+                log.error("task %d failed:\n%s", gen, traceback.format_exc())
+            sig.error.emit(gen, self.describe_error(exc))
         else:
             sig.done.emit(gen, result)
 
 
-class MapRunner(QObject):
-    """Runs one envelope evaluation at a time for the views; newer requests supersede older ones."""
+class Worker(QObject):
+    """Runs tasks ``fn(progress, cancelled)`` off the GUI thread; see the module text for the policies."""
 
     started = Signal(int)
     progress = Signal(float)
     finished = Signal(int, object)
     failed = Signal(int, str)
+    cancelled = Signal(int)
 
-    def __init__(self, parent=None, evaluate=None, threads: int = 2) -> None:
+    def __init__(self, parent=None, threads: int = 1, supersede: bool = True,
+                 describe_error: Callable[[BaseException], str] = one_line_error) -> None:
         super().__init__(parent)
-        self._evaluate = evaluate
         self._pool = QThreadPool(self)
         self._pool.setMaxThreadCount(max(1, threads))
+        self._supersede = supersede
+        self._describe_error = describe_error
         self._generation = 0
         self._stops: dict[int, threading.Event] = {}
         self._signals: dict[int, _JobSignals] = {}
-        self.shown_generation = 0
-        self.dropped: deque[int] = deque(maxlen=1000)  # the latest stale generations whose results were dropped
+        self.shown_generation = 0  # the newest generation whose result was delivered
+        self.dropped: deque[int] = deque(maxlen=1000)  # the latest stale generations whose outcome was dropped
         self.dropped_total = 0
 
     @property
@@ -96,12 +120,13 @@ class MapRunner(QObject):
 
     @property
     def busy(self) -> bool:
+        """Some request has not reported back yet."""
         return bool(self._stops)
 
-    def request(self, project) -> int:
-        """Start evaluating ``project``; cancels every older request. Returns the new generation."""
-        for stop in self._stops.values():
-            stop.set()
+    def submit(self, fn: Task) -> int:
+        """Start ``fn(progress, cancelled)``; returns its generation. Supersedes older requests if so set."""
+        if self._supersede:
+            self.cancel()
         self._generation += 1
         gen = self._generation
         stop = threading.Event()
@@ -112,27 +137,33 @@ class MapRunner(QObject):
         sig.cancelled.connect(self._on_cancelled)
         self._stops[gen] = stop
         self._signals[gen] = sig
-        evaluate = self._evaluate if self._evaluate is not None else _evaluate_module.evaluate_project
-        self._pool.start(_Job(gen, project, evaluate, stop, sig))
+        self._pool.start(_Job(gen, fn, stop, sig, self._describe_error))
         self.started.emit(gen)
         return gen
 
     def cancel(self) -> None:
+        """Ask every running or queued request to stop."""
         for stop in self._stops.values():
             stop.set()
 
     def wait(self, msecs: int = 5000) -> bool:
-        """Block until every job has ended (used at shutdown and in tests)."""
-        return self._pool.waitForDone(msecs)
+        """Block until every request has ended on its thread (shutdown and tests); False on timeout."""
+        return self._pool.waitForDone(int(msecs))
 
-    def shutdown(self) -> None:
-        self.cancel()
-        self._pool.waitForDone(10000)
+    def shutdown(self, msecs: int = 10000) -> bool:
+        """Cancel (superseding worker only: autosave requests are finished) and wait for the threads."""
+        if self._supersede:
+            self.cancel()
+        return self._pool.waitForDone(int(msecs))
 
     # -- GUI thread --------------------------------------------------------
+    def _stale(self, gen: int) -> bool:
+        return self._supersede and gen != self._generation
+
     def _drop(self, gen: int) -> None:
         self.dropped.append(gen)
         self.dropped_total += 1
+        log.debug("dropped stale outcome of request %d (newest is %d)", gen, self._generation)
 
     def _forget(self, gen: int) -> None:
         self._stops.pop(gen, None)
@@ -141,26 +172,81 @@ class MapRunner(QObject):
             sig.deleteLater()
 
     def _on_progress(self, gen: int, fraction: float) -> None:
-        if gen == self._generation:
+        if not self._stale(gen):
             self.progress.emit(fraction)
 
     def _on_done(self, gen: int, result) -> None:
         self._forget(gen)
-        if gen != self._generation:
+        if self._stale(gen):
             self._drop(gen)
-            log.debug("dropped stale result of computation %d (newest is %d)", gen, self._generation)
             return
-        self.shown_generation = gen
+        self.shown_generation = max(self.shown_generation, gen)
         self.finished.emit(gen, result)
 
     def _on_error(self, gen: int, message: str) -> None:
         self._forget(gen)
-        if gen != self._generation:
+        if self._stale(gen):
             self._drop(gen)
             return
         self.failed.emit(gen, message)
 
     def _on_cancelled(self, gen: int) -> None:
         self._forget(gen)
-        if gen != self._generation:
+        if self._stale(gen):
             self._drop(gen)
+            return
+        self.cancelled.emit(gen)
+
+
+class MapRunner(Worker):
+    """The envelope map's worker: ``request(project)`` evaluates the whole envelope, newest request wins."""
+
+    def __init__(self, parent=None, evaluate=None, threads: int = 2) -> None:
+        super().__init__(parent, threads=threads, supersede=True)
+        self._evaluate = evaluate
+
+    def request(self, project) -> int:
+        """Start evaluating ``project``; cancels every older request. Returns the new generation."""
+        evaluate = self._evaluate if self._evaluate is not None else _evaluate_module.evaluate_project
+
+        def task(progress, cancelled):
+            return evaluate(project, progress=progress, cancelled=cancelled)
+
+        return self.submit(task)
+
+
+class Debouncer(QObject):
+    """Calls ``slot()`` once, ``ms`` milliseconds after the last of a burst of ``trigger()`` calls."""
+
+    def __init__(self, ms: int, slot: Callable[[], object], parent=None) -> None:
+        super().__init__(parent)
+        self._slot = slot
+        self._timer = QTimer(self)
+        self._timer.setSingleShot(True)
+        self._timer.setInterval(int(ms))
+        self._timer.timeout.connect(self._fire)
+
+    @property
+    def pending(self) -> bool:
+        return self._timer.isActive()
+
+    def trigger(self) -> None:
+        """(Re)start the quiet interval."""
+        self._timer.start()
+
+    def cancel(self) -> None:
+        """Forget a pending call."""
+        self._timer.stop()
+
+    def flush(self):
+        """Make the pending call now (if any); returns its value, or None."""
+        if not self._timer.isActive():
+            return None
+        self._timer.stop()
+        return self._slot()
+
+    def _fire(self) -> None:
+        self._slot()
+
+
+__all__ = ["Debouncer", "MapRunner", "Worker", "one_line_error"]

@@ -9,7 +9,10 @@ feasible range of the face area of each sample. Prints:
 
 - variants per second for the in-process and the local-process sweep,
 - the ratio of the distributed run's wall time to the local run's (same sweep),
-- the sizing time per sample (goal: under a few seconds each).
+- the time to refuse a sweep over the point-evaluation limit (1000 x 10 variants of the pitot sample; the size is
+  checked before any work, goal: well under 1 s; tests/test_sweep.py checks the refusal, not its time),
+- the sizing time per sample (goal: under a few seconds each, at most 10 s; tests/test_sizing.py checks the
+  answer, not its time).
 
 The process pool's first start (forkserver) is timed separately as warm-up.
 """
@@ -28,6 +31,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+from engine_air.project.errors import ProjectError  # noqa: E402
 from engine_air.project.toml_file import load_project  # noqa: E402
 from engine_air.studies.sizing import feasible_range  # noqa: E402
 from engine_air.studies.sweep import sweep  # noqa: E402
@@ -83,6 +87,14 @@ def main(argv=None) -> int:
             print(f"  dask 2 workers {dist.seconds:7.2f} s  {count / dist.seconds:8.1f} variants/s "
                   f"(cluster start {start:.2f} s, not included)")
             print(f"  distributed / local wall-time ratio: {dist.seconds / local.seconds:.2f}")
+
+    t0 = time.perf_counter()
+    try:
+        sweep(project, {"face_area_m2": np.linspace(1, 3, 1000), "capture_area_m2": np.linspace(2.3, 3, 10)})
+    except ProjectError:
+        print(f"size check: 10 000-variant sweep refused in {1000 * (time.perf_counter() - t0):.1f} ms")
+    else:
+        print("size check: the 10 000-variant sweep was NOT refused")
 
     print("sizing (face_area_m2, default search range, 25 scan values):")
     for path in sorted(SAMPLES.glob("*.toml")):

@@ -19,8 +19,15 @@ choice as the package (so that the two can be compared point by point):
   recovery scale down by the same factor;
 - subsonic flight: the reported MFR_max is the throat's choked flow over the
   capture flow rho0 V0 A_c;
-- a detached ramp shock takes no part in the dividing-streamline trace;
-- ramp inlets in supersonic flight: additive drag is not computed (NaN).
+- the first detached ramp (local Mach supersonic) stands behind a bow shock taken straight at the wave angle
+  of maximum deflection from its leading edge, turning the flow by the maximum deflection (method section 10);
+- external-ramp inlets in supersonic flight: pre-entry drag = the pressure on the dividing stream line behind
+  each ramp shock plus the momentum balance of the spillage behind the terminal shock (method section 13);
+  mixed compression: not computed (NaN);
+- mixed compression (method section 11): the started state of a point at M0 is found by stepping from Mach 1
+  to M0 every 0.0025 (then M0 itself): unstarted until a node self-starts (Kantrowitz), started while every
+  node can run started; a started point has the supersonic throat Mach as its throat Mach and no throat
+  choking; the throat area is read from the schedule (linear in M0, ends held).
 """
 
 from __future__ import annotations
@@ -207,7 +214,7 @@ def ramp_geometry(ramps_deg, design_mach):
     return lip, corners, flow
 
 
-SUPPORTED_TYPES = ("pitot", "external-ramp")
+SUPPORTED_TYPES = ("pitot", "external-ramp", "mixed-compression")
 
 
 def external_compression(inlet, m0):
@@ -289,6 +296,68 @@ def spill_drag(m0, mn, pi_n, angle, mfr, mfr_max):
     return max(d, 0.0)
 
 
+def area_ratio(m):
+    """A/A* of isentropic flow at Mach m."""
+    return _base(m) ** ((GAMMA + 1.0) / (2.0 * (GAMMA - 1.0))) * (2.0 / (GAMMA + 1.0)) ** (
+        (GAMMA + 1.0) / (2.0 * (GAMMA - 1.0))) / m
+
+
+def throat_area(inlet, m0):
+    """Throat area at flight Mach m0: the schedule's (linear, ends held) or the fixed value."""
+    sched = inlet.schedule
+    if sched is not None and sched.throat_area_m2 is not None:
+        return _interp(m0, sched.mach, sched.throat_area_m2)
+    return inlet.throat_area_m2
+
+
+MIXED_STEP = 0.0025
+_MIXED_CACHE: dict = {}
+
+
+def mixed_node(inlet, m0):
+    """Mixed compression at flight Mach m0: (can_run, starts, M_th, pi_ramps * pi_cowl, Kantrowitz limit)."""
+    key = (inlet, m0)
+    if key in _MIXED_CACHE:
+        return _MIXED_CACHE[key]
+    result = (False, False, NAN, NAN, 1.0)
+    if m0 > 1.0:
+        m, pi, attached = m0, 1.0, True
+        for a in inlet.ramp_angles_deg:
+            shock = oblique_shock(m, math.radians(a))
+            if shock is None:
+                attached = False
+                break
+            _, m, pt = shock
+            pi *= pt
+        limit = 1.0 / area_ratio(m) / normal_shock(m)[1] if m > 1.0 else 1.0
+        result = (False, False, NAN, NAN, limit)
+        cowl = oblique_shock(m, math.radians(sum(inlet.ramp_angles_deg))) if attached and m > 1.0 else None
+        if cowl is not None and cowl[1] > 1.0:
+            c = throat_area(inlet, m0) / inlet.capture_area_m2
+            target = c * area_ratio(cowl[1])
+            if target >= 1.0:
+                m_th = 1.0 if target == 1.0 else brentq(lambda x: area_ratio(x) - target, 1.0, cowl[1] + 1e-9,
+                                                         xtol=1e-15, rtol=8.9e-16, maxiter=200)
+                result = (True, c >= limit, m_th, pi * cowl[2], limit)
+    _MIXED_CACHE[key] = result
+    return result
+
+
+def mixed_started(inlet, m0):
+    """Started at M0 after accelerating from Mach 1 (nodes every MIXED_STEP, then M0)."""
+    started = False
+    k = 0
+    while True:
+        node = 1.0 + k * MIXED_STEP
+        if node >= m0:
+            node = m0
+        can_run, starts, *_ = mixed_node(inlet, node)
+        started = can_run and (started or starts)
+        if node == m0:
+            return started
+        k += 1
+
+
 def mil_e_5008b(m0):
     if m0 <= 1.0:
         return 1.0
@@ -332,11 +401,15 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
     out["flags"] = flags
     if rating.fan_tip_speed_m_s is None:
         flags.add("no-tip-speed")
+    if rating.net_thrust_n is None:  # the installation ledger (method section 13) is not modelled here
+        flags.add("no-thrust-data")
     out["reference_recovery"] = mil_e_5008b(m0)
     low = m0 < LOW_SPEED_MACH
     if low:
         flags.add("low-speed")
     supersonic = m0 > 1.0
+    mixed = inlet.type == "mixed-compression"
+    started = False
     # the shock system depends on the flight Mach number alone (section 4)
     if supersonic:
         pi_ext, mfr_max_geom, detached, inside_cowl, oblique, drag_terms = external_compression(inlet, m0)
@@ -344,6 +417,14 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
             flags.add("shock-detached")
         if inside_cowl:
             flags.add("shock-inside-cowl")
+        if mixed:  # its pre-entry drag is not modelled yet (the external-ramp type's is, method §13)
+            flags.add("additive-drag-not-modelled")
+            started = mixed_started(inlet, m0)
+            if started:
+                _, _, m_th_started, pi_ramps_cowl, _ = mixed_node(inlet, m0)
+                pi_ext = pi_ramps_cowl * normal_shock(m_th_started)[1] * inlet.internal_recovery_factor
+            else:
+                flags.add("unstarted")
     else:
         pi_ext, mfr_max_geom, oblique = 1.0, NAN, False
     out["external_recovery"] = pi_ext
@@ -406,10 +487,15 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
                 w /= ratio
         else:
             regime = "subcritical"
+        if started and ratio < 1.0 - CRITICAL_BAND:
+            flags.add("unstart-risk")
 
     # throat
-    throat_mfp = w * math.sqrt(tt0) / (inlet.throat_area_m2 * pi_ext * pt_in)
-    if throat_mfp >= MFP_STAR:
+    a_th = throat_area(inlet, m0)
+    throat_mfp = w * math.sqrt(tt0) / (a_th * pi_ext * pt_in)
+    if started:
+        m_th = m_th_started
+    elif throat_mfp >= MFP_STAR:
         flags.add("throat-choked")
         k = MFP_STAR / throat_mfp
         pi *= k
@@ -426,7 +512,7 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
         if supersonic:
             mfr_max = mfr_max_geom
         else:
-            mfr_max = inlet.throat_area_m2 * pi_ext * pt_in * MFP_STAR / math.sqrt(tt0) / capture_flow
+            mfr_max = a_th * pi_ext * pt_in * MFP_STAR / math.sqrt(tt0) / capture_flow
     sff = project.limits.stable_flow_fraction
     if sff is not None and supersonic and oblique and not supercritical and not critical and mfr / mfr_max_geom < sff:
         flags.add("buzz-risk")
@@ -436,7 +522,7 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
     cap_mfp = w * math.sqrt(tt0) / (inlet.capture_area_m2 * pt1)
     m1 = 1.0 if cap_mfp >= MFP_STAR else subsonic_mach_from_mfp(cap_mfp)
     ramp_supersonic = supersonic and inlet.type == "external-ramp"
-    if low:
+    if low or (supersonic and mixed):
         d_add = c_add = c_spill = NAN
     elif ramp_supersonic:  # method §13: ramp regions plus the spillage behind the terminal shock
         integral, mn, pi_n, angle = drag_terms

@@ -507,7 +507,7 @@ def test_huge_values_inside_the_size_limit(tmp_path):
 def test_unknown_keys_warn_and_loading_goes_on(tmp_path, capsys):
     data = sample_data()
     data["extra_table"] = {"x": 1}
-    data["inlet"]["bleed_fraction"] = 0.02
+    data["inlet"]["cowl_colour"] = 0.02
     data["engine"]["rating"][0]["spool"] = "fan"
     data["engine"]["other"] = 3
     data["case"][1]["humidity"] = 0.5
@@ -517,7 +517,7 @@ def test_unknown_keys_warn_and_loading_goes_on(tmp_path, capsys):
     project = pf.load_project(path)
     assert project == pf.load_project(PITOT)
     text = "\n".join(project.warnings)
-    for key in ("extra_table", "inlet.bleed_fraction", "engine.rating[0].spool", "engine.other",
+    for key in ("extra_table", "inlet.cowl_colour", "engine.rating[0].spool", "engine.other",
                 "case[1].humidity", "grid.refine", "project.author"):
         assert f"{path}: {key}: unknown key, ignored" in text
     assert cli_main(["check", str(path)]) == 0
@@ -573,17 +573,15 @@ def test_dotted_key_part_limit(make, tmp_path):
     assert f"more than {pf.MAX_KEY_PARTS} parts" in err.allowed
 
 
-def test_worst_file_of_dotted_keys_loads_in_bounded_time(tmp_path):
-    # 1 MiB of 64-part keys (the most allowed) parses in about a second (tomllib, 2 cores); 100 000 parts
-    # in one key, before the limit, took more than 4 GB of memory.
+def test_worst_file_of_dotted_keys_loads(tmp_path):
+    # 1 MiB of 64-part keys (the most allowed) loads (its time, about a second, is printed by
+    # bench/bench_loading.py, not asserted here); 100 000 parts in one key, before the limit, took more than
+    # 4 GB of memory.
     key = ".".join(["d"] * (pf.MAX_KEY_PARTS - 1))
     lines = [f"{key}.k{i} = 1" for i in range((pf.MAX_FILE_BYTES - 4096) // (2 * pf.MAX_KEY_PARTS + 12))]
     path = write_text(tmp_path, "\n".join(lines) + "\n" + PITOT.read_text(encoding="utf-8"))
     assert os.path.getsize(path) <= pf.MAX_FILE_BYTES
-    import time
-    t0 = time.perf_counter()
     project = pf.load_project(path)
-    assert time.perf_counter() - t0 < 10.0
     assert project.warnings == (f"{path}: d: unknown key, ignored",)
 
 

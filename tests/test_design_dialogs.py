@@ -1,4 +1,4 @@
-"""Design dialogs (app/design_dialogs.py): they run the analysis off the GUI thread and show its answers.
+"""Design dialogs (app/dialogs/): they run the analysis off the GUI thread and show its answers.
 
 Runs offscreen with pytest-qt; every dialog is also grabbed to an image to be sure it paints.
 """
@@ -19,7 +19,7 @@ pytest.importorskip("pytestqt")
 
 from PySide6.QtWidgets import QMainWindow  # noqa: E402
 
-from app.design_dialogs import (  # noqa: E402
+from app.dialogs import (  # noqa: E402
     CompareDialog,
     ReviewPackDialog,
     SizingDialog,

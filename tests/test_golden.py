@@ -18,11 +18,20 @@ from pathlib import Path
 import pytest
 
 from engine_air.cli import main
+from engine_air.envelope.flags import DESCRIPTIONS
 
 ROOT = Path(__file__).resolve().parents[1]
 GOLDEN = ROOT / "tests" / "golden"
 SAMPLES = ["subsonic_transport_nacelle", "supersonic_two_ramp", "undersized_business_jet"]
 RTOL = 1e-9
+ADDED_FLAGS = {"no-thrust-data"}
+"""Flags added on purpose after the golden files were written (method section 13: a rating without a thrust
+table carries ``no-thrust-data``); they are taken out before comparing flag lists."""
+
+
+def _without_added(names: list[str]) -> list[str]:
+    kept = [n for n in names if n not in ADDED_FLAGS]
+    return kept or ["ok"]
 
 
 def _same(a: str, b: str) -> bool:
@@ -59,6 +68,8 @@ def test_map_csv_equals_golden(sample, tmp_path, capsys):
     for k, (g, r) in enumerate(zip(golden, rows)):
         for key, value in g.items():
             assert key in r, f"column {key} is gone"
+            if key == "flags":
+                r[key] = ";".join(_without_added(r[key].split(";")))
             assert _same(value, r[key]), f"row {k} column {key}: golden {value!r}, now {r[key]!r}"
 
 
@@ -86,4 +97,11 @@ def test_point_json_equals_golden(capsys):
                      "--altitude-m", altitude, "--json"])
         text = capsys.readouterr().out
         assert code == expected["exit"], key
+        if text.strip():
+            now = json.loads(text)
+            now["flags"] = _without_added(now["flags"])
+            now["flag_descriptions"] = {k: v for k, v in now["flag_descriptions"].items() if k not in ADDED_FLAGS}
+            if now["flags"] == ["ok"]:
+                now["flag_descriptions"].setdefault("ok", DESCRIPTIONS["ok"])
+            text = json.dumps(now)
         _assert_same_json(expected["json"], json.loads(text) if text.strip() else None, key)

@@ -354,6 +354,60 @@ def test_exports(make_window, tmp_path):
     assert "Verdict" in text and "Preliminary-design" in text
 
 
+@pytest.mark.parametrize("name", ["undersized_business_jet", "supersonic_two_ramp"])
+def test_presentation_mode_is_readable_without_clipping_at_common_screen_sizes(make_window, qtbot, tmp_path, name):
+    """Issue 9: at 1366 x 768, 1600 x 1000 and 1920 x 1080 in presentation mode no label is elided or cut, no
+    table column lies outside its view, nothing needs sideways scrolling, and the map's title, colour bar
+    and legend lie inside the map. Each size is grabbed to <tmp_path>/<sample>_<w>x<h>.png (to look at)."""
+    from PySide6.QtWidgets import QApplication
+
+    from app.main_window import apply_base_font
+    from gui_support import layout_problems, map_problems
+
+    app = QApplication.instance()
+    font = app.font()
+    apply_base_font(app)
+    try:
+        w = make_window(sample(name))
+        w.set_presentation(True)
+        assert w.detail.record() is not None  # a point is shown: its tables are filled
+        for width, height in ((1366, 768), (1600, 1000), (1920, 1080)):
+            w.resize(width, height)
+            qtbot.waitUntil(lambda: w.width() == width and w.height() == height, timeout=5000)
+            qtbot.wait(150)  # the deferred fits (panel widths, wrapped rows, dock width) run
+            image = w.grab()
+            assert image.save(str(tmp_path / f"{name}_{width}x{height}.png"))
+            problems = layout_problems(w) + map_problems(w)
+            assert problems == [], f"{width} x {height}: " + "; ".join(problems)
+            assert w.verdict.height() >= w.verdict.heightForWidth(w.verdict.width())  # the banner's lines
+    finally:
+        app.setFont(font)
+
+
+def test_layout_check_sees_an_elided_label_and_a_cut_column(qtbot):
+    """The check above is not blind: a label too narrow for its text and a column past the view's edge."""
+    from PySide6.QtWidgets import QLabel, QTableWidget, QVBoxLayout, QWidget
+
+    from gui_support import layout_problems
+
+    box = QWidget()
+    lay = QVBoxLayout(box)
+    label = QLabel("a rule text far too long for the room it was given")
+    label.setFixedWidth(60)
+    table = QTableWidget(1, 3)
+    table.setFixedWidth(150)
+    for c in range(3):
+        table.setColumnWidth(c, 90)
+    lay.addWidget(label)
+    lay.addWidget(table)
+    qtbot.addWidget(box)
+    box.show()
+    qtbot.waitExposed(box)
+    problems = layout_problems(box)
+    assert any(p.startswith("label") for p in problems)
+    assert any("outside the viewport" in p for p in problems)
+
+
 def test_presentation_mode_and_about(make_window, monkeypatch):
     w = make_window(sample("supersonic_two_ramp"))
     w.set_presentation(True)
@@ -426,3 +480,85 @@ def test_grid_edit_keeps_the_selected_condition(make_window, qtbot):
     assert abs(w.result.mach[j2] - cond[0]) <= (w.result.mach[1] - w.result.mach[0]) / 2 + 1e-12
     assert abs(w.result.altitude_m[i2] - cond[1]) <= (w.result.altitude_m[1] - w.result.altitude_m[0]) / 2 + 1e-9
     assert w.detail.index == (i2, j2)
+
+
+# -- the one worker pattern and the one debounce (app/worker.py) -------------------------------------------
+
+def test_worker_drops_stale_results_and_reports_progress_of_the_newest(qtbot):
+    """A newer request cancels the older one; whatever the older still delivers is dropped."""
+    import threading
+
+    from app.worker import Worker
+
+    worker = Worker(threads=2, supersede=True)
+    release = threading.Event()
+    seen, progress, failed = [], [], []
+    worker.finished.connect(lambda gen, result: seen.append((gen, result)))
+    worker.progress.connect(progress.append)
+    worker.failed.connect(lambda gen, message: failed.append(message))
+
+    def stubborn(report, cancelled):  # ignores its cancel flag: finishes late on purpose
+        release.wait(5)
+        return "old"
+
+    def quick(report, cancelled):
+        report(0.5)
+        return "new"
+
+    old = worker.submit(stubborn)
+    new = worker.submit(quick)
+    qtbot.waitUntil(lambda: bool(seen), timeout=WAIT_MS)
+    release.set()
+    qtbot.waitUntil(lambda: old in worker.dropped, timeout=WAIT_MS)
+    assert seen == [(new, "new")] and progress == [0.5] and failed == []
+    assert worker.shown_generation == new and not worker.busy
+    # an error is one line, and the worker keeps working after it
+    worker.submit(lambda report, cancelled: (_ for _ in ()).throw(ValueError("bad\nvalue")))
+    qtbot.waitUntil(lambda: bool(failed), timeout=WAIT_MS)
+    assert failed == ["ValueError: bad value"]
+    last = worker.submit(lambda report, cancelled: 42)
+    qtbot.waitUntil(lambda: seen[-1] == (last, 42), timeout=WAIT_MS)
+    worker.shutdown()
+
+
+def test_ordered_worker_runs_every_request_in_turn(qtbot):
+    """Autosave's mode: nothing is superseded or dropped; requests run one after another as asked."""
+    import time as _time
+
+    from app.worker import Worker
+
+    worker = Worker(threads=1, supersede=False)
+    order, done = [], []
+    worker.finished.connect(lambda gen, result: done.append(result))
+
+    def job(k):
+        def run(report, cancelled):
+            _time.sleep(0.01 * (5 - k))  # earlier jobs take longer: order must still hold
+            order.append(k)
+            return k
+        return run
+
+    for k in range(5):
+        worker.submit(job(k))
+    assert worker.wait(10000)
+    qtbot.waitUntil(lambda: len(done) == 5, timeout=WAIT_MS)
+    assert order == list(range(5)) and done == list(range(5)) and list(worker.dropped) == []
+
+
+def test_debouncer_makes_one_call_per_burst(qtbot):
+    from app.worker import Debouncer
+
+    calls = []
+    d = Debouncer(40, lambda: calls.append(1))
+    for _ in range(5):
+        d.trigger()
+    assert d.pending and calls == []
+    qtbot.waitUntil(lambda: calls == [1], timeout=2000)
+    assert not d.pending
+    d.trigger()
+    d.flush()  # at once, and not again when the interval would have ended
+    assert calls == [1, 1]
+    d.trigger()
+    d.cancel()
+    qtbot.wait(100)
+    assert calls == [1, 1] and d.flush() is None

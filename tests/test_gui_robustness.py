@@ -166,6 +166,36 @@ def test_clean_save_removes_the_recovery_copy(make_window, qtbot, rec_dir, tmp_p
     assert w.autosave_label.text() == ""
 
 
+def test_saving_over_a_read_only_file_asks_first(make_window, qtbot, monkeypatch, tmp_path):
+    """Issue 9: Save over a mode-0444 project file asks; No keeps the file and the edits, Yes replaces it."""
+    path = copy_sample(tmp_path)
+    before = path.read_bytes()
+    path.chmod(0o444)
+    w = make_window(path)
+    new = edited(w)
+    asked = []
+    answer = {"button": QMessageBox.No}
+
+    def question(parent, title, text, *args, **kwargs):
+        asked.append((title, text))
+        return answer["button"]
+
+    monkeypatch.setattr(QMessageBox, "question", staticmethod(question))
+    monkeypatch.setattr(QMessageBox, "critical", staticmethod(lambda *a, **k: pytest.fail(f"error box: {a[2]}")))
+    assert w.save() is False
+    assert len(asked) == 1 and "read-only" in asked[0][1] and str(path) in asked[0][1]
+    assert path.read_bytes() == before and (path.stat().st_mode & 0o777) == 0o444  # untouched
+    assert w.document.dirty and w.document.project == new  # the edits stay
+    answer["button"] = QMessageBox.Yes
+    assert w.save() is True
+    assert len(asked) == 2
+    assert load_project(path) == new and not w.document.dirty
+    assert os.access(path, os.W_OK)
+    # a writable file is saved without a question
+    edited(w)
+    assert w.save() is True and len(asked) == 2
+
+
 def test_undo_back_to_the_saved_state_removes_the_recovery_copy(make_window, qtbot):
     w = make_window()
     edited(w)
@@ -258,7 +288,7 @@ def answer_with(monkeypatch, *choices):
         asked.append((entry, error, index, count))
         return queue.pop(0) if queue else recovery.LATER
 
-    monkeypatch.setattr(recovery, "ask_recovery", ask)
+    monkeypatch.setattr(recovery.offer, "ask_recovery", ask)
     return asked
 
 

@@ -1,4 +1,9 @@
-"""Review pack and map pictures: every section present, valid PNGs, reproducible inputs, escaped text."""
+"""Review pack: every section present, valid PNGs, reproducible inputs, escaped text, safe output.
+
+The safe-output tests are built from the reproductions in issue 9: case names whose slugs collide, a symbolic
+link planted at ``out/maps/<name>.png`` and ``out/project.toml``, a non-empty folder that is not a pack, and a
+10 000-character case name.
+"""
 
 from __future__ import annotations
 
@@ -7,7 +12,6 @@ import html.parser
 from dataclasses import replace
 from pathlib import Path
 
-import numpy as np
 import pytest
 
 import engine_air
@@ -75,22 +79,41 @@ def test_pack_has_every_section(ramp_pack):
     assert "ramp 1 oblique" in text and "terminal normal" in text
 
 
+PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
+
+
+def png_shape(data: bytes) -> tuple[int, int, int]:
+    """Decode with matplotlib's reader (an independent PNG decoder: Pillow underneath)."""
+    import io
+
+    from matplotlib import image
+
+    assert data[:8] == PNG_SIGNATURE
+    return image.imread(io.BytesIO(data), format="png").shape
+
+
 def test_pack_pictures_are_valid_pngs(ramp_pack):
     page = parse(ramp_pack.index_path)
     result = ramp_pack.result
     n_cases = len(result.cases) + 1  # each case and the worst of all
-    assert len(page.images) == n_cases * len(PACK_QUANTITIES) == len(ramp_pack.pictures)
+    assert len(ramp_pack.pictures) == n_cases * len(PACK_QUANTITIES)
+    # sections: the limiting check's own quantity (recovery against MIL-E-5008B here), then every mapped one
+    assert len(ramp_pack.section_pictures) == 2 * (len(PACK_QUANTITIES) + 1)
+    assert Path(ramp_pack.section_pictures[0]).name == "recovery_minus_reference__along-mach.png"
+    assert len(page.images) == len(ramp_pack.pictures) + len(ramp_pack.section_pictures)
     for img in page.images:
         prefix = "data:image/png;base64,"
         assert img["src"].startswith(prefix)
         data = base64.b64decode(img["src"][len(prefix):])
-        rgb = P.read_png(data)
-        assert rgb.shape == (int(img["height"]), int(img["width"]), 3)
-    for path in ramp_pack.pictures:
-        assert P.read_png(Path(path).read_bytes()).ndim == 3
+        shape = png_shape(data)
+        if "height" in img:
+            assert shape[:2] == (int(img["height"]), int(img["width"]))
+    for path in ramp_pack.all_pictures:
+        assert len(png_shape(Path(path).read_bytes())) == 3
     ids = set(page.ids)
     for q in PACK_QUANTITIES:
-        assert f"map-isa-max-{q}" in ids
+        assert f"map-c1-isa-max-{q}" in ids and f"map-all-worst-{q}" in ids
+        assert f"section-{q}-along-mach" in ids and f"section-{q}-along-altitude" in ids
 
 
 def test_pack_inputs_reproduce_the_project(ramp_pack):
@@ -113,56 +136,17 @@ def test_pack_from_a_project_escapes_text(tmp_path):
         write_review_pack(p, tmp_path / "bad", quantities=("no_such_quantity",))
 
 
-def test_map_picture_cues():
-    result = evaluate_project(load_project(FAILING))
-    pic = P.render_map(result, "face_mach_margin")
-    rgb = P.read_png(pic.png)
-    left, top, w, h = pic.map_box
-    fx, fy = pic.cell
-    ny, nx = result.inside.shape
-    assert (w, h) == (nx * fx, ny * fy)
-    cells = rgb[top:top + h, left:left + w][::-1]  # back to row 0 = lowest altitude
-    outside = ~result.inside
-    i, j = np.argwhere(outside)[0]
-    assert tuple(cells[i * fy, j * fx]) == P.OUTSIDE_GREY
-    failing = result.failing(WORST)
-    assert pic.failing_points == int(failing.sum()) > 0
-    i, j = np.argwhere(failing)[len(np.argwhere(failing)) // 2]
-    block = cells[i * fy:(i + 1) * fy, j * fx:(j + 1) * fx].reshape(-1, 3)
-    hatch = {P.HATCH_DARK, P.HATCH_LIGHT}
-    assert any(tuple(px) in hatch for px in block) or fx * fy < P.HATCH_PERIOD
-    assert pic.vmin == -pic.vmax  # margins: symmetric scale
-
-
-def test_ramps():
-    div = P.ramp_lut(P.DIVERGING_ANCHORS, 257)
-    assert tuple(div[128]) == (247, 247, 247)  # zero margin is the white centre
-    assert div[0, 2] < div[0, 0] and div[-1, 2] > div[-1, 0]  # orange below zero, blue above
-    seq = P.ramp_lut(P.SEQUENTIAL_ANCHORS, 256).astype(float)
-    lum = seq @ np.array([0.2126, 0.7152, 0.0722])
-    assert np.all(np.diff(lum) >= -1e-9)  # lightness rises monotonically along the sequential ramp
-
-
-def test_png_writer_round_trip():
-    rgb = (np.arange(5 * 7 * 3) % 256).astype(np.uint8).reshape(5, 7, 3)
-    assert np.array_equal(P.read_png(P.png_bytes(rgb)), rgb)
-    bad = bytearray(P.png_bytes(rgb))
-    bad[20] ^= 0xFF
-    with pytest.raises(ValueError):
-        P.read_png(bytes(bad))
-
-
 def test_write_map_png_signature_used_by_the_cli(tmp_path, capsys):
     result = evaluate_project(load_project(PITOT))
     out = tmp_path / "m.png"
     pic = P.write_map_png(result, out, "recovery")
-    assert P.read_png(out.read_bytes()).shape == (pic.height, pic.width, 3)
+    assert png_shape(out.read_bytes())[:2] == (pic.height, pic.width)
     P.write_map_png(result, tmp_path / "c.png", "spillage_fraction", case="ISA, take-off")
     with pytest.raises(KeyError):
         P.write_map_png(result, tmp_path / "x.png", "no_such_quantity")
     png = tmp_path / "cli.png"
     assert main(["map", str(PITOT), "--case", "ISA, take-off", "--csv", str(tmp_path / "m.csv"), "--png", str(png)]) == 0
-    assert P.read_png(png.read_bytes()).ndim == 3
+    assert len(png_shape(png.read_bytes())) == 3
 
 
 def test_cli_pack_exit_codes(tmp_path, capsys):
@@ -185,3 +169,127 @@ def test_analysis_modules_never_import_qt():
             "print(any(m.split('.')[0] in ('PySide6', 'pyqtgraph', 'PyQt5', 'PyQt6') for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "False"
+
+
+# -- safe output (issue 9) -------------------------------------------------------------------------------
+
+from engine_air.outputs.review_pack import MANIFEST, PackFolderError  # noqa: E402
+from engine_air.project.model import Grid  # noqa: E402
+
+
+def small(project, names):
+    """The project on a coarse grid with cases of the given names (each a copy of the first case)."""
+    base = project.cases[0]
+    return replace(project, grid=Grid(9, 7), cases=tuple(replace(base, name=n) for n in names))
+
+
+COLLIDING = ["ISA+15, max", "ISA-15, max", "ISA!", "ISA?", "Worst of all cases!"]
+
+
+def test_colliding_case_names_write_every_reported_picture(tmp_path):
+    import hashlib
+
+    project = small(load_project(RAMP), COLLIDING)
+    pack = write_review_pack(project, tmp_path / "out", quantities=("face_mach_margin", "recovery"))
+    expected = (len(COLLIDING) + 1) * 2  # every case and the worst of all, two quantities
+    assert len(pack.pictures) == len(set(pack.pictures)) == expected
+    on_disk = sorted(p.name for p in (tmp_path / "out" / "maps").iterdir())
+    assert on_disk == sorted(Path(p).name for p in pack.pictures)
+    # every picture is its own: the case name is in the title, so no two files are the same bytes
+    digests = {hashlib.sha256(Path(p).read_bytes()).hexdigest() for p in pack.pictures}
+    assert len(digests) == expected
+    page = parse(pack.index_path)
+    ids = [i for i in page.ids if i.startswith("map-")]
+    assert len(ids) == len(set(ids)) == expected
+    for path in pack.all_pictures:
+        assert f"{Path(path).parent.name}/{Path(path).name}" in Path(pack.index_path).read_text(encoding="utf-8")
+
+
+def test_a_ten_thousand_character_case_name_works(tmp_path):
+    long_name = "ISA " + "x" * 9996
+    project = small(load_project(PITOT), [long_name, "short"])
+    pack = write_review_pack(project, tmp_path / "out", quantities=("face_mach_margin",))
+    assert len(pack.pictures) == 3
+    for path in pack.all_pictures:
+        assert Path(path).is_file() and len(Path(path).name) <= 80
+    assert long_name in Path(pack.index_path).read_text(encoding="utf-8")  # the name itself is kept in the page
+
+
+def _victim(tmp_path, name):
+    victim = tmp_path / name
+    victim.write_bytes(b"precious, not the pack's")
+    return victim
+
+
+def test_links_planted_in_a_pack_folder_are_never_written_through(tmp_path):
+    project = small(load_project(PITOT), ["ISA, take-off"])
+    out = tmp_path / "out"
+    first = write_review_pack(project, out, quantities=("face_mach_margin",))
+    picture = Path(first.pictures[0])
+    v_png, v_toml, v_dir = _victim(tmp_path, "v.png"), _victim(tmp_path, "v.toml"), tmp_path / "elsewhere"
+    v_dir.mkdir()
+    picture.unlink()
+    picture.symlink_to(v_png)
+    (out / "project.toml").unlink()
+    (out / "project.toml").symlink_to(v_toml)
+    sections = out / "sections"
+    for f in sections.iterdir():
+        f.unlink()
+    sections.rmdir()
+    sections.symlink_to(v_dir, target_is_directory=True)
+
+    again = write_review_pack(project, out, quantities=("face_mach_margin",))
+    assert v_png.read_bytes() == b"precious, not the pack's"
+    assert v_toml.read_bytes() == b"precious, not the pack's"
+    assert list(v_dir.iterdir()) == []
+    assert not picture.is_symlink() and picture.read_bytes()[:8] == PNG_SIGNATURE
+    assert not (out / "project.toml").is_symlink() and load_project(out / "project.toml") == project
+    assert not sections.is_symlink() and all(Path(p).is_file() for p in again.section_pictures)
+
+
+def test_a_link_in_a_fresh_folder_or_as_the_folder_is_refused(tmp_path):
+    victim = _victim(tmp_path, "v.toml")
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "project.toml").symlink_to(victim)
+    with pytest.raises(PackFolderError, match="not empty"):
+        write_review_pack(PITOT, out, quantities=("face_mach_margin",))
+    assert victim.read_bytes() == b"precious, not the pack's"
+    real = tmp_path / "real"
+    real.mkdir()
+    (tmp_path / "link").symlink_to(real, target_is_directory=True)
+    with pytest.raises(PackFolderError, match="symbolic link"):
+        write_review_pack(PITOT, tmp_path / "link", quantities=("face_mach_margin",))
+    assert list(real.iterdir()) == []
+
+
+def test_a_foreign_non_empty_folder_is_refused(tmp_path, capsys):
+    out = tmp_path / "mine"
+    out.mkdir()
+    (out / "thesis.txt").write_text("do not touch")
+    with pytest.raises(PackFolderError, match="not empty"):
+        write_review_pack(PITOT, out, quantities=("face_mach_margin",))
+    (out / MANIFEST).write_text('{"written_by": "someone else"}')  # a file of that name is not enough
+    with pytest.raises(PackFolderError):
+        write_review_pack(PITOT, out, quantities=("face_mach_margin",))
+    assert sorted(p.name for p in out.iterdir()) == sorted(["thesis.txt", MANIFEST])
+    assert (out / "thesis.txt").read_text() == "do not touch"
+    assert main(["pack", str(PITOT), "--out", str(out), "--quantity", "face_mach_margin"]) == 2
+    err = capsys.readouterr().err
+    assert "not empty" in err and len(err.strip().splitlines()) == 1
+    # an empty folder, and a folder the pack wrote before, are taken
+    empty = tmp_path / "empty"
+    empty.mkdir()
+    project = small(load_project(PITOT), ["ISA, take-off"])
+    write_review_pack(project, empty, quantities=("face_mach_margin",))
+    write_review_pack(project, empty, quantities=("recovery",))
+    assert sorted(p.name for p in (empty / "maps").iterdir()) == ["c1-isa-take-off__recovery.png"]  # stale removed
+
+
+def test_picture_stems_are_unique_and_short():
+    from engine_air.outputs.review_pack import picture_stems
+
+    names = COLLIDING + ["x" * 10_000, WORST]
+    stems = picture_stems(names)
+    assert len(set(stems.values())) == len(names)
+    assert all(len(s) <= 30 for s in stems.values())

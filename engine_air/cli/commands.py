@@ -61,7 +61,9 @@ def _parser() -> argparse.ArgumentParser:
     z.add_argument("project")
     z.add_argument("--variable", required=True,
                    help="capture_area_m2, throat_area_m2, face_area_m2, duct_loss_coefficient, "
-                        "ramp_angles_deg[k] (k from 1), shock_on_lip_mach")
+                        "ramp_angles_deg[k] (k from 1), shock_on_lip_mach, bleed_fraction, bypass_area_m2, "
+                        "auxiliary_inlet_area_m2, schedule.KEY[i] (row i from 1; KEY throat_area_m2, "
+                        "shock_on_lip_mach, bleed_fraction), schedule.ramp_angles_deg[i][k]")
     z.add_argument("--lower", type=float, help="lower end of the search range (the variable's SI unit)")
     z.add_argument("--upper", type=float, help="upper end of the search range")
     z.add_argument("--scan", type=int, default=25, help="values scanned before refining (3 to 201; default 25)")
@@ -242,6 +244,8 @@ def cmd_point(args) -> int:
     record = point_record(points, 0, case.name)
     json.dump(record, sys.stdout, indent=2, allow_nan=False)
     sys.stdout.write("\n")
+    if record["holds"] is None and "outside-case-region" in record["flags"]:
+        return EXIT_HOLDS  # computed, not judged: the case does not apply here (method section 14)
     if record["holds"] is None:
         print(f"engine-air: no limit can be judged at Mach {args.mach:g}, {args.altitude_m:g} m: "
               + "; ".join(F.DESCRIPTIONS[n] for n in record["flags"] if n != "ok"), file=sys.stderr)

@@ -9,7 +9,9 @@ check closest to failing.
 Checks, in order:
 - ``face-mach``: face Mach limit - M2 (a choked face, M2 = 1, always fails).
 - ``throat-mach``: throat Mach limit - M_th; without a given limit only choking
-  (M_th = 1) fails it, with the limit taken as 1.
+  (M_th = 1) fails it, with the limit taken as 1. A started mixed-compression inlet has a supersonic throat
+  with the terminal shock just behind it: there the judged value is the Mach number behind that shock
+  (the subsonic side of the throat, NACA Report 1135 eq. 96), not the supersonic M_th reported.
 - ``recovery``: a number: pi - pi_min. The name "mil-e-5008b": the recovery of
   the shock system and its regime corrections (pi / pi_duct: everything except the
   subsonic duct's own friction loss, which the reference does not contain) less
@@ -18,6 +20,13 @@ Checks, in order:
 - ``stability``: MFR/MFR_max - stable flow fraction, supersonic subcritical only.
 - ``relative-tip-mach``: limit - blade relative tip Mach, where a tip speed is given.
 - ``spillage``: spillage limit - spillage fraction (an extension of the file format).
+- ``started``: mixed-compression inlets (``limits.started_required``, default true for them), supersonic
+  points only: fails where the inlet is ``unstarted`` or, started, at ``unstart-risk`` (method §11).
+  Margin +1 where it holds, -1 where it fails (a yes/no check).
+- ``installation-loss``: limit - installation loss 1 - F_inst/F_n (method section 13), where thrust data give it.
+
+No check applies outside the atmosphere model or outside the case's region (``outside-case-region``, method
+section 14): such points are computed but judged by no limit.
 """
 
 from __future__ import annotations
@@ -27,6 +36,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine_air.envelope import flags as F
+from engine_air.physics.shocks import normal_shock
 from engine_air.project.model import REFERENCE_RECOVERY_NAME, Limits
 
 
@@ -61,7 +71,7 @@ def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=N
 
 def build_checks(limits: Limits, points) -> list[Check]:
     """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints)."""
-    inside = (points.flags & F.OUTSIDE_ATMOSPHERE) == 0
+    inside = (points.flags & (F.OUTSIDE_ATMOSPHERE | F.OUTSIDE_CASE_REGION)) == 0
     bits = points.flags
     checks = [
         _check(
@@ -71,11 +81,14 @@ def build_checks(limits: Limits, points) -> list[Check]:
         )
     ]
     throat_limit = limits.throat_mach_max if limits.throat_mach_max is not None else 1.0
+    throat_judged = points.throat_mach
+    if points.started is not None:  # started: the subsonic side of the throat, behind the terminal shock
+        throat_judged = np.where(points.started, normal_shock(points.throat_mach).downstream_mach, throat_judged)
     checks.append(
         _check(
             "throat-mach", "Throat Mach number",
             f"M_th <= {throat_limit:g}" if limits.throat_mach_max is not None else "throat not choked",
-            points.throat_mach, throat_limit - points.throat_mach, throat_limit, inside,
+            throat_judged, throat_limit - throat_judged, throat_limit, inside,
             forced_fail=F.has(bits, F.THROAT_CHOKED),
         )
     )
@@ -126,6 +139,24 @@ def build_checks(limits: Limits, points) -> list[Check]:
                 "spillage", "Spillage fraction", f"spillage <= {cap:g}",
                 points.spillage_fraction, cap - points.spillage_fraction, max(cap, 0.01),
                 inside & np.isfinite(points.spillage_fraction),
+            )
+        )
+    started = getattr(points, "started", None)
+    if started is not None and (limits.started_required is None or limits.started_required):
+        bad = F.has(bits, F.UNSTARTED) | F.has(bits, F.UNSTART_RISK)
+        checks.append(
+            _check(
+                "started", "Inlet started (mixed compression)", "started, no unstart risk",
+                np.where(bad, 0.0, 1.0), np.where(bad, -1.0, 1.0), 1.0, inside & (points.mach > 1.0),
+            )
+        )
+    if limits.installation_loss_max is not None:
+        cap = limits.installation_loss_max
+        loss = points.installation_loss_fraction
+        checks.append(
+            _check(
+                "installation-loss", "Installation loss", f"1 - F_inst/F_n <= {cap:g}",
+                loss, cap - loss, max(cap, 0.01), inside & np.isfinite(loss),
             )
         )
     return checks

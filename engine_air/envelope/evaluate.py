@@ -8,7 +8,11 @@ Grid arrays have shape (altitude_points, mach_points): row i is altitude
 
 The summary gives, for each check, whether it holds at every envelope point of
 every case, the worst value and margin and where, and the share of envelope
-points (over all evaluated cases) at which it fails.
+points (over all evaluated cases) at which it fails. Only *judged* points count
+(method section 14): inside the envelope and inside the case's region
+(``mach_range``, ``altitude_range_m``); a point outside its case's region is
+computed, flagged ``outside-case-region`` and judged by no check, so it is in no
+verdict and no failing share (failing share = failing judged / judged points).
 """
 
 from __future__ import annotations
@@ -107,6 +111,14 @@ class MapResult:
         else:
             bits = np.bitwise_or.reduce(np.stack([c.points.flags for c in self.cases]), axis=0)
         return np.where(self.inside, bits, bits | F.OUTSIDE_ENVELOPE)
+
+    def judged(self, case: str) -> np.ndarray:
+        """(ny, nx) bool: judged points (inside the envelope and the case's region); for WORST, judged in any case."""
+        cases = self.cases if case == WORST else [self.case_map(case)]
+        out = np.zeros(self.inside.shape, bool)
+        for c in cases:
+            out |= (c.points.flags & F.OUTSIDE_CASE_REGION) == 0
+        return out & self.inside
 
     def failing(self, case: str, check: str | None = None) -> np.ndarray:
         """(ny, nx) bool: some (or the named) check fails at an envelope point."""

@@ -24,6 +24,12 @@ FLAG_BITS: dict[str, int] = {
     "outside-atmosphere": 1 << 9,
     "additive-drag-not-modelled": 1 << 10,
     "no-tip-speed": 1 << 11,
+    "unstarted": 1 << 20,
+    "unstart-risk": 1 << 21,
+    # airflow management and the installation ledger (method section 12-14)
+    "no-thrust-data": 1 << 22,
+    "outside-case-region": 1 << 23,
+    "bypass-insufficient": 1 << 24,
 }
 
 OUTSIDE_ENVELOPE = FLAG_BITS["outside-envelope"]
@@ -38,6 +44,11 @@ LOW_SPEED = FLAG_BITS["low-speed"]
 OUTSIDE_ATMOSPHERE = FLAG_BITS["outside-atmosphere"]
 ADDITIVE_DRAG_NOT_MODELLED = FLAG_BITS["additive-drag-not-modelled"]
 NO_TIP_SPEED = FLAG_BITS["no-tip-speed"]
+UNSTARTED = FLAG_BITS["unstarted"]
+UNSTART_RISK = FLAG_BITS["unstart-risk"]
+NO_THRUST_DATA = FLAG_BITS["no-thrust-data"]
+OUTSIDE_CASE_REGION = FLAG_BITS["outside-case-region"]
+BYPASS_INSUFFICIENT = FLAG_BITS["bypass-insufficient"]
 
 DESCRIPTIONS: dict[str, str] = {
     "ok": "No flag: every modelled quantity is defined and no special regime applies.",
@@ -62,6 +73,18 @@ DESCRIPTIONS: dict[str, str] = {
     "additive-drag-not-modelled": "Supersonic ramp inlet: the ramp surface force is not in the stream-tube balance, "
     "so additive drag is not computed.",
     "no-tip-speed": "The rating gives no fan tip speed: blade relative tip Mach is not computed.",
+    "unstarted": "Mixed-compression inlet not started: accelerating from Mach 1 it has not yet swallowed its "
+    "starting shock (throat too small for the Kantrowitz self-start limit) or it cannot run started here; a "
+    "normal shock stands ahead of the cowl, recovery is low and the excess air spills.",
+    "unstart-risk": "Mixed-compression inlet started, but the engine takes less air than the inlet captures: "
+    "without bleed or bypass to take the excess the terminal shock would be expelled and the inlet unstart.",
+    "no-thrust-data": "The rating gives no thrust table and recovery exchange rate: net and installed thrust and "
+    "the installation loss are not computed.",
+    "outside-case-region": "The condition lies outside the region (Mach range, altitude range) where this case "
+    "applies: it is computed but judged by no limit.",
+    "bypass-insufficient": "The bypass doors cannot pass all the air the inlet captures at critical and the engine "
+    "and bleed do not take: the rest spills ahead of the cowl (external compression) or would unstart a "
+    "mixed-compression inlet.",
 }
 
 

@@ -16,6 +16,12 @@ of any shape (they broadcast) with no Python loop over points. The chain:
 7. Additive drag from the stream-tube momentum balance between stations 0 and 1.
 8. Flags and the limiting check.
 
+Airflow management, the ledger and case regions (method sections 12-14) are kept in their own modules and
+called from here: ``engine_air.flow.airflow`` (bleed, bypass doors, auxiliary doors),
+``engine_air.flow.ledger`` (ram drag, installed thrust), ``engine_air.flow.schedule_columns`` (a scheduled
+inlet's shock system per Mach column). The scheduled throat area and bleed fraction are arrays of the Mach
+array's shape (``engine_air.inlets.schedule.scheduled``).
+
 Low speed (M0 < 0.05): stream tube, MFR, spillage and drag coefficients are not
 defined (NaN, flag ``low-speed``); face and throat Mach use p_t0 = p0.
 
@@ -36,11 +42,16 @@ from engine_air.flow.demand import corrected_flow_demand
 from engine_air.physics.isentropic import (
     choked_mass_flow_parameter,
     dynamic_to_total_pressure,
+    mass_flow_parameter,
     mach_from_flow_ratio,
     pressure_ratio,
 )
 from engine_air.inlets.base import CaptureState
 from engine_air.inlets.registry import inlet_type
+from engine_air.inlets.schedule import scheduled
+from engine_air.flow import airflow
+from engine_air.flow.ledger import installation_ledger
+from engine_air.flow.schedule_columns import per_column, scheduled_pre_entry_drag, scheduled_shock_system
 from engine_air.envelope.checks import Check, build_checks, limiting_index
 from engine_air.project.model import Case, Project
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
@@ -87,6 +98,24 @@ class OperatingPoints:
     spillage_drag_coefficient: np.ndarray
     face_static_to_ambient: np.ndarray
     relative_tip_mach: np.ndarray
+    # airflow management (method section 12); fractions are of the captured flow
+    captured_flow_kg_s: np.ndarray  # through the capture plane (what MFR counts)
+    bleed_fraction: np.ndarray
+    bleed_flow_kg_s: np.ndarray
+    bypass_fraction: np.ndarray
+    bypass_flow_kg_s: np.ndarray
+    auxiliary_flow_kg_s: np.ndarray  # through the auxiliary doors (not through the capture plane)
+    bypass_shortfall_kg_s: np.ndarray  # critical capture (x (1 - b)) that engine and doors do not take; M0 > 1
+    tip_speed_m_s: np.ndarray  # physical fan tip speed used for the relative tip Mach (NaN without one)
+    # the ledger (method section 13), newtons
+    ram_drag_n: np.ndarray
+    spillage_drag_n: np.ndarray
+    bleed_drag_n: np.ndarray
+    bypass_drag_n: np.ndarray
+    net_thrust_n: np.ndarray
+    installed_thrust_n: np.ndarray
+    installation_loss_fraction: np.ndarray
+    thrust_reference_recovery: np.ndarray
     # status
     regime: np.ndarray  # int index into REGIMES
     flags: np.ndarray  # int bits, see engine_air.envelope.flags
@@ -95,6 +124,8 @@ class OperatingPoints:
     ramp_wave_angle_rad: np.ndarray | None = None  # (n_ramps, ...)
     ramp_downstream_mach: np.ndarray | None = None
     oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
+    started: np.ndarray | None = None  # bool, mixed compression only (method §11)
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
 
     @property
     def face_mach_margin(self) -> np.ndarray:
@@ -102,7 +133,16 @@ class OperatingPoints:
 
     @property
     def recovery_minus_reference(self) -> np.ndarray:
-        return self.recovery - self.reference_recovery
+        """What the MIL-E-5008B recovery check compares: the recovery of the shock system and its regime
+        corrections (pi / pi_duct) less the reference, in supersonic flight only; NaN (not judged) at M0 <= 1."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            shock_recovery = self.recovery / self.duct_recovery
+        return np.where(self.mach > 1.0, shock_recovery - self.reference_recovery, np.nan)
+
+    @property
+    def judged(self) -> np.ndarray:
+        """Bool: the point is judged (inside the envelope and inside its case's region, method section 14)."""
+        return (self.flags & (F.OUTSIDE_ENVELOPE | F.OUTSIDE_CASE_REGION)) == 0
 
     def check(self, name: str) -> Check:
         for c in self.checks:
@@ -125,6 +165,41 @@ def _per_ramp(values: np.ndarray, shape: tuple[int, ...]) -> np.ndarray:
     values = np.asarray(values)
     lead = len(shape) - (values.ndim - 1)
     return np.broadcast_to(values.reshape(values.shape[:1] + (1,) * lead + values.shape[1:]), values.shape[:1] + shape)
+
+
+def _outside_case_region(case: Case, m0: np.ndarray, h: np.ndarray) -> np.ndarray:
+    """Bool: outside the case's ``mach_range`` or ``altitude_range_m`` (bounds included, method section 14)."""
+    out = np.zeros(np.broadcast_shapes(m0.shape, h.shape), bool)
+    if case.mach_range is not None:
+        lo, hi = case.mach_range
+        out = out | (m0 < lo) | (m0 > hi)
+    if case.altitude_range_m is not None:
+        lo, hi = case.altitude_range_m
+        out = out | (h < lo) | (h > hi)
+    return out
+
+
+def _tip_speed(rating, theta2):
+    """Physical fan tip speed U (m/s): the rating's one speed, or U = U_c sqrt(theta2) from its corrected tip
+    speed table against theta2 (linear, ends held; method section 14); None without either."""
+    if rating.corrected_tip_speed_m_s is not None:
+        corrected = np.interp(theta2, np.asarray(rating.theta, float), np.asarray(rating.corrected_tip_speed_m_s, float))
+        return corrected * np.sqrt(theta2)
+    return rating.fan_tip_speed_m_s
+
+
+def _bypass(inlet, open_, needed, throat_room, duct_total_pressure, total_temperature, static_pressure, bits):
+    """Bypass door flow (kg/s) where the doors are ``open_`` and the flags with ``bypass-insufficient`` added.
+
+    The doors pass what is needed up to the lesser of their capacity and the throat's room (kg/s)."""
+    if inlet.bypass_area_m2 <= 0.0:
+        return np.zeros(np.shape(open_)), bits
+    capacity = airflow.door_flow(inlet.bypass_area_m2, inlet.bypass_discharge_coefficient, duct_total_pressure,
+                                 total_temperature, static_pressure)
+    capacity = np.minimum(capacity, np.maximum(throat_room, 0.0))
+    flow, short = airflow.bypass_flow(np.where(open_, needed, 0.0), capacity)
+    flow = np.where(open_, flow, 0.0)
+    return flow, bits | np.where(open_ & short, F.BYPASS_INSUFFICIENT, 0)
 
 
 def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> OperatingPoints:
@@ -162,6 +237,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         pt0 = p0 * base0 ** (GAMMA / (GAMMA - 1.0))
         v0 = m0 * a0
         low = m0 < LOW_SPEED_MACH
+        bits |= np.where(_outside_case_region(case, m0, h), F.OUTSIDE_CASE_REGION, 0)
         bits |= np.where(low, F.LOW_SPEED, 0)
         pt0_inlet = np.where(low, p0, pt0)
         supersonic = m0 > 1.0
@@ -181,18 +257,21 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
 
         # 4. recovery ahead of any regime correction
         kind = inlet_type(inlet.type)
-        shocks = kind.shock_system(inlet, m0)
+        shocks = scheduled_shock_system(kind, inlet, m0)  # per Mach column when scheduled
         bits |= np.where(shocks.detached, F.SHOCK_DETACHED, 0)
         bits |= np.where(shocks.inside_cowl, F.SHOCK_INSIDE_COWL, 0)
         pi_ext = shocks.external_recovery
         pi_duct = 1.0 - inlet.duct_loss_coefficient * dynamic_to_total_pressure(m2)
         pi = pi_ext * pi_duct
+        # scheduled geometry (method section 12): arrays of the Mach array's shape
+        throat_area = scheduled(inlet, "throat_area_m2", m0)
+        bleed = scheduled(inlet, "bleed_fraction", m0)
 
         # 5. flow at that recovery, capture ratio
         sqrt_theta2 = np.sqrt(theta2)
-        w = wc2_face * (pi * pt0_inlet / P_REF) / sqrt_theta2
+        w = wc2_face * (pi * pt0_inlet / P_REF) / sqrt_theta2  # engine flow
         capture_flow = rho0 * v0 * inlet.capture_area_m2  # W at MFR = 1
-        mfr_demand = np.where(low, np.nan, w / capture_flow)
+        mfr_demand = np.where(low, np.nan, w / (1.0 - bleed) / capture_flow)  # captured = engine/(1 - b)
 
         # 6. supersonic regime
         mfr_max_geom = shocks.max_mass_flow_ratio
@@ -206,23 +285,65 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         pi = pi * scale
         w = w * scale
         bits |= np.where(supercritical, F.SUPERCRITICAL, 0)
+        # mixed compression (method §11): unstarted, or started with the demand below the capture
+        started = None if shocks.started is None else supersonic & shocks.started
+        if started is not None:
+            bits |= np.where(supersonic & ~started, F.UNSTARTED, 0)
 
-        # throat
-        throat_ratio = w * np.sqrt(tt0) / (inlet.throat_area_m2 * pi_ext * pt0_inlet) / mfp_star
+        # throat, with the auxiliary doors in parallel where they are open; it passes engine + bypass flow
+        a_throat, aux_share, _ = airflow.auxiliary_share(throat_area, inlet.auxiliary_inlet_area_m2, m0,
+                                                         inlet.auxiliary_door_mach_max)
+
+        # bypass doors (supersonic, below critical): hold the inlet critical up to their capacity and as far as
+        # the throat passes the extra air within its Mach limit (unchoked without one); the rest spills
+        throat_mach_cap = (project.limits.throat_mach_max if project.limits.throat_mach_max is not None else 1.0) * (1.0 - 1e-9)
+        throat_room = a_throat * pi_ext * pt0_inlet * mass_flow_parameter(throat_mach_cap) / np.sqrt(tt0) - w
+        if started is not None:  # a started throat is supersonic: it passes the whole capture
+            throat_room = np.where(started, np.inf, throat_room)
+        doors_open = supersonic & ~over & ~low
+        bypass_needed = np.where(doors_open, np.maximum(mfr_max_geom * capture_flow * (1.0 - bleed) - w, 0.0), 0.0)
+        w_bp, bits = _bypass(inlet, doors_open, bypass_needed, throat_room, pi_ext * pt0_inlet, tt0, p0, bits)
+        # what neither engine, bleed nor doors take of the critical capture: it spills (external compression)
+        # or would unstart a mixed-compression inlet, whose type judges it
+        bypass_shortfall = np.where(doors_open, np.maximum(bypass_needed - w_bp, 0.0), 0.0)
+        throat_flow = w + w_bp
+        throat_ratio = throat_flow * np.sqrt(tt0) / (a_throat * pi_ext * pt0_inlet) / mfp_star
         throat_choked = throat_ratio >= 1.0
+        if started is not None:  # started: the throat is supersonic, the terminal shock just behind it
+            throat_choked = throat_choked & ~started
         bits |= np.where(throat_choked, F.THROAT_CHOKED, 0)
-        choke_scale = np.where(throat_choked, 1.0 / throat_ratio, 1.0)
+        # a choked throat closes the bypass first, then starves the engine (recovery falls in proportion)
+        choke_flow = throat_flow / throat_ratio
+        w_bp_choked = np.maximum(w_bp - (throat_flow - choke_flow), 0.0)
+        choke_scale = np.where(throat_choked, np.where(w_bp > 0.0, (choke_flow - w_bp_choked) / w, 1.0 / throat_ratio),
+                               1.0)
+        w_bp = np.where(throat_choked, w_bp_choked, w_bp)
         pi = pi * choke_scale
         w = w * choke_scale
         m_th = np.where(throat_choked, 1.0, mach_from_flow_ratio(np.minimum(throat_ratio, 1.0)))
+        if inlet.auxiliary_inlet_area_m2 > 0.0:  # the doors' own loss on their share (one pass)
+            pi_aux = airflow.auxiliary_recovery(aux_share, inlet.auxiliary_loss_coefficient, m_th)
+            pi = pi * pi_aux
+            w = w * pi_aux
+        w_aux = aux_share * (w + w_bp)
+        captured = (w + w_bp - w_aux) / (1.0 - bleed)  # through the capture plane; bleed = b x captured
+        w_bleed = bleed * captured
+        bypass_fraction = np.where(w_bp > 0.0, w_bp / captured, 0.0)
+        held = supersonic & (w_bp > 0.0) & (np.abs(captured / capture_flow / mfr_max_geom - 1.0) <= CRITICAL_BAND)
+        critical = (critical | held) & ~supercritical
+        if started is not None:
+            m_th = np.where(started, shocks.terminal_upstream_mach, m_th)
+            # started with the capture (after any bypass) below the critical one: the shock may be expelled
+            bits |= np.where(started & (captured / capture_flow / mfr_max_geom < 1.0 - CRITICAL_BAND),
+                             F.UNSTART_RISK, 0)
 
         regime = np.where(
             supersonic,
             np.where(supercritical, SUPERCRITICAL, np.where(critical, CRITICAL, SUBCRITICAL)),
             SUBSONIC,
         )
-        mfr = np.where(low, np.nan, w / capture_flow)
-        throat_choke_flow = inlet.throat_area_m2 * pi_ext * pt0_inlet * mfp_star / np.sqrt(tt0)
+        mfr = np.where(low, np.nan, captured / capture_flow)
+        throat_choke_flow = throat_area * pi_ext * pt0_inlet * mfp_star / np.sqrt(tt0)
         mfr_max = np.where(supersonic, mfr_max_geom, np.where(low, np.nan, throat_choke_flow / capture_flow))
         stable_fraction = project.limits.stable_flow_fraction
         if stable_fraction is not None:
@@ -235,9 +356,9 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         spillage = np.where(low, np.nan, np.maximum(0.0, 1.0 - mfr))
 
         # 7. additive drag, stream tube 0 -> capture plane 1 (A1 = A_c, p_t1 = pi_ext p_t0)
-        a0_tube = w / (rho0 * v0)
+        a0_tube = captured / (rho0 * v0)
         pt1 = pi_ext * pt0_inlet
-        capture_ratio = w * np.sqrt(tt0) / (inlet.capture_area_m2 * pt1) / mfp_star
+        capture_ratio = captured * np.sqrt(tt0) / (inlet.capture_area_m2 * pt1) / mfp_star
         m1 = mach_from_flow_ratio(np.minimum(capture_ratio, 1.0))
         p1 = pt1 * pressure_ratio(m1)
         a1 = inlet.capture_area_m2
@@ -245,7 +366,10 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         q0 = 0.5 * GAMMA * p0 * m0 * m0
         if supersonic.any():
             state = CaptureState(m0, p0, q0, mfr, inlet.capture_area_m2, d_add)
-            d_super = kind.supersonic_pre_entry_drag(inlet, shocks, state)
+            if per_column(kind, inlet):
+                d_super = scheduled_pre_entry_drag(kind, inlet, np.broadcast_to(m0, shape), state)
+            else:
+                d_super = kind.supersonic_pre_entry_drag(inlet, shocks, state)
         else:
             d_super = d_add
         if d_super is None:
@@ -256,21 +380,32 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
             d_add = np.where(supersonic, d_super, d_add)
         d_add = np.where(low | not_modelled, np.nan, d_add)
         c_add = d_add / (q0 * inlet.capture_area_m2)
-        suction = np.where(supersonic, 0.0, inlet.lip_suction_factor)
+        suction = np.where(supersonic, inlet.supersonic_lip_suction_factor, inlet.lip_suction_factor)
         c_spill = (1.0 - suction) * c_add
+        # spillage drag in newtons: 0 at MFR >= 1 and below M0 0.05 (q0 < 0.2 % of p0)
+        d_spill = np.where(low | (mfr >= 1.0), 0.0, (1.0 - suction) * d_add)
 
         # face static to ambient
         p_face_static = pi * pt0_inlet * pressure_ratio(m2)
         face_static_to_ambient = p_face_static / p0
 
         # blade relative tip Mach
-        if rating.fan_tip_speed_m_s is not None:
+        u_tip = _tip_speed(rating, theta2)
+        if u_tip is not None:
             t2 = tt0 / (1.0 + 0.5 * (GAMMA - 1.0) * m2 * m2)
             a2 = np.sqrt(GAMMA * R_AIR * t2)
-            m_rel = np.sqrt(m2 * m2 + (rating.fan_tip_speed_m_s / a2) ** 2)
+            m_rel = np.sqrt(m2 * m2 + (u_tip / a2) ** 2)
         else:
+            u_tip = np.nan
             m_rel = np.full(shape, np.nan)
             bits |= F.NO_TIP_SPEED
+
+        # the installation ledger (method section 13)
+        d_bleed = airflow.bleed_drag(w_bleed, v0, inlet.bleed_exit_velocity_ratio)
+        d_bypass = airflow.bypass_drag(w_bp, v0, inlet.bypass_exit_velocity_ratio)
+        ledger = installation_ledger(rating, m0, h, pi, w, v0, d_spill, d_bleed, d_bypass)
+        if ledger.no_thrust_data:
+            bits |= F.NO_THRUST_DATA
 
         reference = mil_e_5008b_recovery(m0)
         terminal = np.where(supersonic & (shocks.terminal_upstream_mach > 1.0), shocks.terminal_upstream_mach, np.nan)
@@ -306,11 +441,29 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         spillage_drag_coefficient=full(c_spill),
         face_static_to_ambient=full(face_static_to_ambient),
         relative_tip_mach=full(m_rel),
+        captured_flow_kg_s=full(captured),
+        bleed_fraction=full(bleed),
+        bleed_flow_kg_s=full(w_bleed),
+        bypass_fraction=full(bypass_fraction),
+        bypass_flow_kg_s=full(w_bp),
+        auxiliary_flow_kg_s=full(w_aux),
+        bypass_shortfall_kg_s=full(bypass_shortfall),
+        tip_speed_m_s=full(u_tip),
+        ram_drag_n=full(ledger.ram_drag_n),
+        spillage_drag_n=full(d_spill),
+        bleed_drag_n=full(d_bleed),
+        bypass_drag_n=full(d_bypass),
+        net_thrust_n=full(ledger.net_thrust_n),
+        installed_thrust_n=full(ledger.installed_thrust_n),
+        installation_loss_fraction=full(ledger.installation_loss_fraction),
+        thrust_reference_recovery=full(ledger.thrust_reference_recovery),
         regime=full(regime.astype(np.int8)),
         flags=bits,
         ramp_wave_angle_rad=_per_ramp(shocks.ramp_wave_angle_rad, shape),
         ramp_downstream_mach=_per_ramp(shocks.ramp_downstream_mach, shape),
         oblique_ahead_of_cowl=None if shocks.oblique_ahead_of_cowl is None else full(shocks.oblique_ahead_of_cowl),
+        started=None if started is None else full(started),
+        self_start_contraction=None if shocks.self_start_contraction is None else full(shocks.self_start_contraction),
     )
     points.checks = build_checks(project.limits, points)
     points.limiting = limiting_index(points.checks, points.flags)

@@ -54,6 +54,12 @@ class CaptureState:
 
 @runtime_checkable
 class InletType(Protocol):
+    """Optional attribute (read with ``getattr(kind, "handles_schedule", False)``, so not a protocol member):
+    ``handles_schedule = True`` when the type evaluates a scheduled inlet itself (``shock_system`` then gets the
+    inlet with its ``[inlet.schedule]``, e.g. for a starting history). Otherwise the match evaluates the shock
+    system per unique flight Mach number with the fixed inlet at that Mach (``engine_air.flow.schedule_columns``).
+    """
+
     name: str  # the value of inlet.type in the file
     label: str  # a few words for menus
     fields: tuple[Field, ...]  # the keys only this type (or a few types) reads

@@ -51,7 +51,32 @@ def _cross(ax, ay, bx, by):
 
 
 def ramp_design_problems(ramp_angles_deg, design_mach) -> list[str]:
-    """Why the ramps cannot be laid out shock-on-lip at ``design_mach`` (empty when they can)."""
+    """Why the ramps cannot be laid out shock-on-lip at ``design_mach`` (empty when they can).
+
+    Each ramp's shock must stay attached at its local Mach number, theta_k <= theta_max(M_k)
+    [NACA Report 1135, eq. 168], and the flow behind the last ramp must stay supersonic.
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+
+    Returns
+    -------
+    list of str
+        One plain-words reason per problem found (empty: the layout exists).
+
+    Examples
+    --------
+    A 20 deg ramp at M = 1.5 is past the maximum deflection (about 12 deg, NACA Report 1135, Chart 2):
+
+    >>> ramp_design_problems([20.0], 1.5)
+    ['ramp 1 turns 20 deg but at its local Mach 1.500 a shock stays attached only up to 12.11 deg']
+    >>> ramp_design_problems([8.0, 7.0], 2.0)
+    []
+    """
     problems = []
     m = np.asarray(float(design_mach))
     for k, angle in enumerate(ramp_angles_deg):
@@ -73,9 +98,38 @@ def ramp_design_problems(ramp_angles_deg, design_mach) -> list[str]:
 
 
 def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
-    """Corner and lip positions for shock-on-lip at ``design_mach`` (H = 1).
+    """Corner and lip positions for shock-on-lip at ``design_mach``, in units of the capture height H.
 
-    Raises ValueError when a ramp shock is detached at the design Mach number.
+    The first ramp's shock (wave angle beta_1 at M_d) meets the lip at height 1:
+    x_L = cot(beta_1); each later corner C_k lies on the previous ramp, where the shock
+    at absolute angle theta_k + beta_{k+1} passes through the lip (module text).
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+
+    Returns
+    -------
+    RampGeometry
+        ``lip`` (x, y), ``corners`` (one row per ramp, the first at the origin) and
+        ``flow_angle_rad`` (flow direction ahead of and behind each ramp, rad).
+
+    Raises
+    ------
+    ValueError
+        When a ramp shock is detached at the design Mach number.
+
+    Examples
+    --------
+    One 10 deg ramp at M_d = 2: beta_1 = 39.31 deg (NACA Report 1135, Chart 2, about 39.3 deg),
+    so the lip stands cot(39.31 deg) = 1.22 capture heights behind the leading edge.
+
+    >>> g = ramp_design_geometry([10.0], 2.0)
+    >>> print(f"{g.lip[0]:.2f} {g.lip[1]:.2f}")
+    1.22 1.00
     """
     problems = ramp_design_problems(ramp_angles_deg, design_mach)
     if problems:
@@ -130,6 +184,32 @@ def ramp_trace(ramp_angles_deg, design_mach, flight_mach) -> RampTrace:
     ``pressure_integral`` = sum_k (p_k/p0 - 1) dy_k, dy_k the rise of the stream line in the region behind
     shock k (2-D: dA_x = span dy), i.e. the pre-entry drag at critical flow over p0 A_c (method §13).
     At and above the design Mach number the stream line meets no shock ahead of the lip: y_0 = 1, integral 0.
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless), any shape.
+
+    Returns
+    -------
+    RampTrace
+        Per-ramp shock arrays (first axis: ramp), the state ahead of the terminal shock, the captured height
+        y_0 = MFR_max and the pressure integral, arrays of the Mach array's shape.
+
+    Examples
+    --------
+    The two-ramp layout (8 + 7 deg, M_d = 2): at M0 = 1.2 both ramps are detached and ramp 1's bow shock at
+    maximum deflection already spills 7 %; at 1.8 both shocks are attached (tests/test_pre_entry_drag.py
+    works this point by hand); at 2.0 the shocks meet the lip.
+
+    >>> import numpy as np
+    >>> t = ramp_trace([8.0, 7.0], 2.0, np.array([1.2, 1.8, 2.0]))
+    >>> print(np.round(t.captured_height, 4), np.round(t.pressure_integral, 4), t.detached)
+    [0.9301 0.937  1.    ] [0.0247 0.0655 0.    ] [ True False False]
     """
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         return _ramp_trace(ramp_angles_deg, design_mach, flight_mach)
@@ -199,7 +279,41 @@ def _ramp_trace(ramp_angles_deg, design_mach, flight_mach) -> RampTrace:
 
 def ramp_shock_system(ramp_angles_deg, design_mach, flight_mach) -> ShockSystem:
     """Ramp shocks, terminal normal shock and maximum capture at flight Mach ``flight_mach`` (array)
-    for ramps laid out shock-on-lip at ``design_mach`` (the trace of ``ramp_trace``)."""
+    for ramps laid out shock-on-lip at ``design_mach``.
+
+    pi_ext = prod_k (p_t2/p_t1)_oblique,k x (p_t2/p_t1)_normal(M_last) [NACA Report 1135,
+    eqs. 99, 132, 138]; a detached ramp ends the oblique sequence (one normal shock at its
+    local Mach). MFR_max = y_0 / H from the dividing streamline traced back from the lip
+    (``ramp_trace``; a detached ramp's bow shock taken at maximum deflection, method §10),
+    1 at and above M_d (module text).
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless), any shape.
+
+    Returns
+    -------
+    ShockSystem
+        External recovery pi_ext, terminal-shock Mach numbers, MFR_max (NaN in subsonic
+        flight), detached / inside-cowl masks and the per-ramp wave angles (rad), Mach
+        numbers and pressure ratios (first axis: ramp).
+
+    Examples
+    --------
+    One 10 deg ramp, M_d = 2, at M0 = 2: the oblique shock (p_t2/p_t1 = 0.9846, M2 = 1.6405)
+    and a normal shock at 1.6405 (0.8797, NACA Report 1135, Table II, interpolated) give 0.8662; at M0 = 1.8
+    the steeper shock spills: MFR_max = 0.9595 (closed-form lip streamline, checked in the tests).
+
+    >>> import numpy as np
+    >>> s = ramp_shock_system([10.0], 2.0, np.array([2.0, 1.8]))
+    >>> print(f"{s.external_recovery[0]:.4f} {s.max_mass_flow_ratio[0]:.4f} {s.max_mass_flow_ratio[1]:.4f}")
+    0.8662 1.0000 0.9595
+    """
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
     tr = ramp_trace(ramp_angles_deg, design_mach, m0)
@@ -235,7 +349,33 @@ def terminal_spill_drag(flight_mach, entry_mach, entry_total_pressure_ratio, ent
 
     (the last term is int (p_n - p0) dA plus the §7 term -p_n (A_e - A_n)). Zero at MFR >= MFR_max (to 1e-12).
     Sources: NACA Report 1135 (normal shock, isentropic relations); Seddon & Goldsmith, Intake Aerodynamics,
-    2nd ed., ch. 3 (additive drag). Example: a pitot (M_n = M0, pi_n = 1, MFR_max = 1) gives the §7 balance.
+    2nd ed., ch. 3 (additive drag).
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless).
+    entry_mach : array_like
+        Mach number M_n ahead of the terminal shock (behind the external compression).
+    entry_total_pressure_ratio : array_like
+        Total pressure there over p_t0 (the external oblique or conical shocks), pi_n.
+    entry_flow_angle_rad : array_like
+        Flow direction there, rad (the last ramp's or cone's turning).
+    mass_flow_ratio, max_mass_flow_ratio : array_like
+        Captured MFR and MFR_max (dimensionless).
+
+    Returns
+    -------
+    numpy.ndarray
+        D_add / (p0 A_c), dimensionless, >= 0.
+
+    Examples
+    --------
+    A pitot at M0 = 2 (M_n = M0, pi_n = 1, MFR_max = 1) spilling to MFR = 0.7: the §7 balance with the
+    normal-shock total pressure (0.72087, NACA Report 1135), C_add = 1.1718 / (0.7 x 2^2) = 0.419.
+
+    >>> print(f"{float(terminal_spill_drag(2.0, 2.0, 1.0, 0.0, 0.7, 1.0)):.4f}")
+    1.1718
     """
     m0 = np.asarray(flight_mach, dtype=float)
     mn = np.asarray(entry_mach, dtype=float)
@@ -260,6 +400,36 @@ def ramp_pre_entry_drag(ramp_angles_deg, design_mach, shocks: ShockSystem, state
 
     Zero at MFR = 1 (then MFR_max = 1: no stream-line rise, no spillage). For a mixed-compression inlet pass
     its external ramps: the entry state is that behind the last attached external ramp.
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+    shocks : ShockSystem
+        The inlet's shock system at ``state.flight_mach`` (its ``max_mass_flow_ratio`` is used).
+    state : CaptureState
+        Free stream and captured stream tube: M0, p0 (Pa), MFR, A_c (m^2).
+
+    Returns
+    -------
+    numpy.ndarray
+        Pre-entry drag D_add, N, >= 0.
+
+    Examples
+    --------
+    The two-ramp layout at M0 = 1.8, p0 = 22 632 Pa, A_c = 1 m^2, running critical (MFR = MFR_max): the
+    pressure on the stream line behind the ramp shocks alone, 0.0655 p0 A_c.
+
+    >>> import numpy as np
+    >>> from engine_air.inlets.base import CaptureState
+    >>> m0 = np.array([1.8])
+    >>> shocks = ramp_shock_system([8.0, 7.0], 2.0, m0)
+    >>> st = CaptureState(m0, np.array([22632.0]), 0.7 * 22632.0 * m0 ** 2, shocks.max_mass_flow_ratio, 1.0,
+    ...                   np.zeros(1))
+    >>> print(f"{float(ramp_pre_entry_drag([8.0, 7.0], 2.0, shocks, st)[0]):.0f}")
+    1482
     """
     tr = ramp_trace(ramp_angles_deg, design_mach, state.flight_mach)
     spill = terminal_spill_drag(state.flight_mach, tr.entry_mach, tr.entry_total_pressure_ratio,

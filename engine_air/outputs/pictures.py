@@ -1,228 +1,189 @@
-"""Map pictures as PNG files without Qt: a raster writer on zlib and struct.
+"""Pictures without Qt, drawn with matplotlib (Agg): envelope maps and section plots as PNG files.
 
-``write_map_png(result, path, quantity_key, case=None)`` draws one quantity of
-an envelope evaluation (``engine_air.envelope.evaluate.MapResult``) for one case, or the
-worst of all cases when ``case`` is None:
+Maps (``map_figure``, ``render_map``, ``write_map_png``): one quantity of an
+envelope evaluation (``engine_air.envelope.evaluate.MapResult``) for one case,
+or the worst of all cases when ``case`` is None, over flight Mach number (x)
+and pressure altitude (y: km in SI, ft in US units), with
 
-- one grid cell per map point, upscaled by whole numbers (nearest neighbour) to
-  about 480 x 360 pixels, altitude upwards and Mach to the right, inside a thin
-  dark frame;
-- colour from a ramp: a viridis-like sequential ramp for level quantities
-  (``SEQUENTIAL_ANCHORS``), a blue-white-orange diverging ramp centred on zero
-  for margins (``DIVERGING_ANCHORS``: blue where the limit holds, orange where
-  it fails, white at zero; the scale is symmetric about zero). Both ramps stay
-  readable with the common colour-vision deficiencies and grow monotonically in
-  lightness along each arm;
-- points outside the envelope polygon in light grey (``OUTSIDE_GREY``), points
-  inside it where the quantity is not defined (e.g. spillage below Mach 0.05) in
-  mid grey (``UNDEFINED_GREY``);
-- points where some limit fails carry a second cue besides colour: a diagonal
-  hatch of dark pixels (light pixels on dark colours);
-- a colour-bar strip below the map with the scale's low end, centre and high end
-  written in a small built-in pixel font (``labels=False`` leaves the numbers to
-  the surrounding document). Labels with units belong in the
-  document around the picture (see ``MapPicture`` for the numbers).
+- a title naming the quantity and the case (and the project);
+- a colour bar labelled with the quantity and its unit. Margins use the
+  diverging scale centred on zero (orange where the limit fails, blue where it
+  holds), levels the sequential one (``engine_air.outputs.colours``, the same
+  scales as the program);
+- points where the quantity is not judged (not defined, or its check does not
+  apply there) in neutral grey, points outside the envelope in light grey;
+- the envelope outline, an ``x`` on failing points (thinned to a regular
+  pattern when dense), the margin = 0 line (of the quantity shown, or of the
+  least relative margin over all limits for a level quantity) and the dashed
+  face static = ambient line (p2/p0 = 1), each named in a legend below.
 
-``map_png_bytes(...)`` returns the same PNG as bytes; ``render_map(...)`` returns
-a ``MapPicture`` with the bytes and the scale used; ``array_picture(...)`` draws
-any (altitude x Mach) array, e.g. a difference map.
+Section plots (``section_figure``, ``write_section_png``): a cut from
+``engine_air.outputs.sections.cut``, one line per case, the limit line (zero
+for a margin) and the failing stretches marked.
 
-The PNG is 8-bit RGB, one IDAT chunk, filter type 0 on every row (PNG
-specification, ISO/IEC 15948). ``read_png`` decodes exactly such files (for tests).
+Every figure-building function returns a ``matplotlib.figure.Figure`` (no pyplot,
+no global state); ``figure_png`` renders one to PNG bytes.
 """
 
 from __future__ import annotations
 
+import io
 import math
-import struct
-import zlib
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
 
 from engine_air.envelope.evaluate import WORST, MapResult
+from engine_air.outputs import colours as C
 from engine_air.outputs.quantities import QUANTITIES
-
-# position along the ramp (0..1) -> sRGB colour. Viridis-like: dark blue-violet
-# through teal and green to yellow, lightness rising steadily.
-SEQUENTIAL_ANCHORS: tuple[tuple[float, tuple[int, int, int]], ...] = (
-    (0.000, (68, 1, 84)),
-    (0.125, (72, 36, 117)),
-    (0.250, (59, 82, 139)),
-    (0.375, (44, 114, 142)),
-    (0.500, (33, 145, 140)),
-    (0.625, (40, 174, 128)),
-    (0.750, (94, 201, 98)),
-    (0.875, (173, 220, 48)),
-    (1.000, (253, 231, 37)),
+from engine_air.outputs.sections import (
+    ALTITUDE,
+    Section,
+    check_of,
+    cut,
+    judged_map,
+    stretches,
 )
-# Diverging about 0.5 (= margin 0): orange-brown below (the limit fails), blue above.
-DIVERGING_ANCHORS: tuple[tuple[float, tuple[int, int, int]], ...] = (
-    (0.00, (127, 59, 8)),
-    (0.20, (224, 130, 20)),
-    (0.40, (253, 184, 99)),
-    (0.50, (247, 247, 247)),
-    (0.60, (146, 197, 222)),
-    (0.80, (67, 147, 195)),
-    (1.00, (5, 48, 97)),
-)
-OUTSIDE_GREY = (212, 212, 212)
-UNDEFINED_GREY = (150, 150, 150)
-FRAME = (70, 70, 70)
-BACKGROUND = (255, 255, 255)
-HATCH_DARK = (20, 20, 20)
-HATCH_LIGHT = (235, 235, 235)
-HATCH_PERIOD = 5  # pixels between hatch lines
 
-TARGET_WIDTH, TARGET_HEIGHT = 480, 360
-BAR_GAP, BAR_HEIGHT = 6, 14
-FONT_SCALE = 2
-
-# 3 x 5 pixel glyphs, rows top to bottom.
-_GLYPHS = {
-    "0": ("111", "101", "101", "101", "111"), "1": ("010", "110", "010", "010", "111"),
-    "2": ("111", "001", "111", "100", "111"), "3": ("111", "001", "111", "001", "111"),
-    "4": ("101", "101", "111", "001", "001"), "5": ("111", "100", "111", "001", "111"),
-    "6": ("111", "100", "111", "101", "111"), "7": ("111", "001", "001", "001", "001"),
-    "8": ("111", "101", "111", "101", "111"), "9": ("111", "101", "111", "001", "111"),
-    "-": ("000", "000", "111", "000", "000"), "+": ("000", "010", "111", "010", "000"),
-    ".": ("000", "000", "000", "000", "010"), "e": ("111", "100", "111", "100", "111"),
-    " ": ("000", "000", "000", "000", "000"),
-}
+# Names kept for callers of the former raster writer; the scales themselves live in ``colours``.
+levels_for = C.levels_for
+OUTSIDE_GREY = C.OUTSIDE_GREY
+UNDEFINED_GREY = C.NOT_JUDGED_GREY
+NOT_JUDGED_GREY = C.NOT_JUDGED_GREY
 
 
-def ramp_lut(anchors, n: int = 256) -> np.ndarray:
-    """(n, 3) uint8 colours interpolated linearly (sRGB) between the anchors."""
-    pos = np.array([p for p, _ in anchors], dtype=float)
-    col = np.array([c for _, c in anchors], dtype=float)
-    t = np.linspace(0.0, 1.0, n)
-    return np.stack([np.interp(t, pos, col[:, k]) for k in range(3)], axis=1).round().astype(np.uint8)
+def __getattr__(name: str):
+    """``DIVERGING_ANCHORS`` / ``SEQUENTIAL_ANCHORS``: the scales as (position, (r, g, b)) stops, made on first use."""
+    if name == "DIVERGING_ANCHORS":
+        return C.anchors(C.MARGIN)
+    if name == "SEQUENTIAL_ANCHORS":
+        return C.anchors(C.LEVEL)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+DPI = 100
+MAP_SIZE_IN = (8.0, 6.4)
+SECTION_SIZE_IN = (8.0, 5.2)
+MAX_MARKER_AXIS = 40  # failing-point marks: at most about this many along either axis
+MAX_NAME = 60  # characters of a case or project name shown in a title
+
+SI, US = "si", "us"
+_FT = 0.3048
+_UNIT_US = {"m": ("ft", 1 / _FT), "m/s": ("ft/s", 1 / _FT), "m^2": ("ft²", 1 / _FT**2), "m²": ("ft²", 1 / _FT**2),
+            "Pa": ("psi", 1 / 6894.757293168361), "kg/s": ("lbm/s", 1 / 0.45359237), "N": ("lbf", 1 / 4.4482216152605),
+            "K": ("°R", 1.8)}
 
 
-def anchors_for(kind: str):
-    """The ramp anchors for a quantity kind: ``"margin"`` diverging, anything else sequential."""
-    return DIVERGING_ANCHORS if kind == "margin" else SEQUENTIAL_ANCHORS
+def _system(units: str) -> str:
+    s = str(units).strip().lower()
+    if s not in (SI, US):
+        raise ValueError(f"units must be 'si' or 'us', got {units!r}")
+    return s
 
 
-def levels_for(kind: str, values) -> tuple[float, float]:
-    """Colour-scale ends: symmetric about zero for margins, the finite data range for levels."""
-    v = np.asarray(values, dtype=float)
-    v = v[np.isfinite(v)]
-    if kind == "margin":
-        a = float(np.max(np.abs(v))) if v.size else 1.0
-        a = a if a > 0 else 1.0
-        return -a, a
-    if v.size == 0:
-        return 0.0, 1.0
-    lo, hi = float(v.min()), float(v.max())
-    if hi - lo <= 1e-12 * max(1.0, abs(hi)):
-        pad = max(abs(hi) * 0.01, 1e-6)
-        lo, hi = lo - pad, hi + pad
-    return lo, hi
+def altitude_scale(units: str = SI) -> tuple[str, float]:
+    """(unit label, display value of one metre) for the altitude axis: km in SI, ft in US units."""
+    return ("km", 1e-3) if _system(units) == SI else ("ft", 1 / _FT)
 
 
-def _colour(values: np.ndarray, kind: str, vmin: float, vmax: float) -> np.ndarray:
-    lut = ramp_lut(anchors_for(kind))
+def quantity_scale(quantity_key: str, units: str = SI) -> tuple[str, float]:
+    """(unit label, display value of one SI unit) of a quantity; "–" for a dimensionless one."""
+    unit = QUANTITIES[quantity_key].unit
+    if _system(units) == US and unit in _UNIT_US:
+        return _UNIT_US[unit]
+    return (unit or "–"), 1.0
+
+
+def short(text: str, limit: int = MAX_NAME) -> str:
+    """``text`` on one line, cut to ``limit`` characters with an ellipsis."""
+    one = " ".join(str(text).split())
+    return one if len(one) <= limit else one[: limit - 1] + "…"
+
+
+def case_title(case: str | None) -> str:
+    return "worst of all cases" if case in (None, WORST) else f"case “{short(case)}”"
+
+
+def _rgb(c) -> tuple[float, float, float]:
+    return tuple(v / 255 for v in c[:3])
+
+
+def _mpl():
+    """matplotlib's pieces, imported on first use (importing this module stays cheap for the colour names)."""
+    from matplotlib import patheffects
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.colors import ListedColormap, Normalize
+    from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Patch
+
+    return patheffects, FigureCanvasAgg, ListedColormap, Normalize, Figure, Line2D, Patch
+
+
+def figure_png(fig: Figure) -> bytes:
+    """PNG bytes of ``fig`` (Agg)."""
+    _, FigureCanvasAgg, *_rest = _mpl()
+    canvas = fig.canvas if isinstance(fig.canvas, FigureCanvasAgg) else FigureCanvasAgg(fig)
+    buf = io.BytesIO()
+    canvas.print_png(buf, metadata={"Software": None})
+    return buf.getvalue()
+
+
+def _crosses(field, level: float) -> bool:
+    f = np.asarray(field, float)
+    if f.ndim != 2 or min(f.shape) < 2:
+        return False
     with np.errstate(invalid="ignore"):
-        t = (values - vmin) / (vmax - vmin)
-    t = np.clip(np.nan_to_num(t, nan=0.0), 0.0, 1.0)
-    return lut[np.rint(t * (len(lut) - 1)).astype(np.intp)]
+        finite = f[np.isfinite(f)]
+    return finite.size > 0 and float(finite.min()) < level < float(finite.max())
 
 
-# -- PNG ---------------------------------------------------------------------------
-
-def _chunk(kind: bytes, data: bytes) -> bytes:
-    return struct.pack(">I", len(data)) + kind + data + struct.pack(">I", zlib.crc32(kind + data) & 0xFFFFFFFF)
-
-
-def png_bytes(rgb: np.ndarray) -> bytes:
-    """An 8-bit RGB PNG of the (height, width, 3) uint8 array ``rgb``."""
-    rgb = np.ascontiguousarray(rgb, dtype=np.uint8)
-    if rgb.ndim != 3 or rgb.shape[2] != 3 or rgb.shape[0] < 1 or rgb.shape[1] < 1:
-        raise ValueError(f"need a (height, width, 3) array, got shape {rgb.shape}")
-    h, w, _ = rgb.shape
-    raw = np.zeros((h, 1 + 3 * w), dtype=np.uint8)  # filter byte 0 on every row
-    raw[:, 1:] = rgb.reshape(h, 3 * w)
-    header = struct.pack(">IIBBBBB", w, h, 8, 2, 0, 0, 0)
-    return (b"\x89PNG\r\n\x1a\n" + _chunk(b"IHDR", header) + _chunk(b"IDAT", zlib.compress(raw.tobytes(), 6))
-            + _chunk(b"IEND", b""))
+def _contour(ax, x, y, field, level, **style) -> bool:
+    """Draw the ``level`` line of ``field``; False when the field does not cross it."""
+    if not _crosses(field, level):
+        return False
+    halo = style.pop("halo", 0)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        cs = ax.contour(x, y, np.ma.masked_invalid(field), levels=[level], **style)
+    if halo:
+        patheffects = _mpl()[0]
+        cs.set(path_effects=[patheffects.withStroke(linewidth=halo, foreground="white")])
+    return True
 
 
-def read_png(data: bytes) -> np.ndarray:
-    """Decode a PNG written by ``png_bytes`` (8-bit RGB, filter 0) to (height, width, 3) uint8.
-
-    Checks the signature and every chunk's CRC; raises ValueError otherwise.
-    """
-    if data[:8] != b"\x89PNG\r\n\x1a\n":
-        raise ValueError("not a PNG file (bad signature)")
-    pos, idat, header = 8, [], None
-    while pos < len(data):
-        (length,) = struct.unpack(">I", data[pos:pos + 4])
-        kind = data[pos + 4:pos + 8]
-        body = data[pos + 8:pos + 8 + length]
-        (crc,) = struct.unpack(">I", data[pos + 8 + length:pos + 12 + length])
-        if zlib.crc32(kind + body) & 0xFFFFFFFF != crc:
-            raise ValueError(f"bad CRC in chunk {kind!r}")
-        if kind == b"IHDR":
-            header = struct.unpack(">IIBBBBB", body)
-        elif kind == b"IDAT":
-            idat.append(body)
-        elif kind == b"IEND":
-            break
-        pos += 12 + length
-    if header is None:
-        raise ValueError("no IHDR chunk")
-    w, h, depth, colour, _, _, interlace = header
-    if (depth, colour, interlace) != (8, 2, 0):
-        raise ValueError("only 8-bit RGB, non-interlaced PNGs are read")
-    raw = np.frombuffer(zlib.decompress(b"".join(idat)), dtype=np.uint8).reshape(h, 1 + 3 * w)
-    if np.any(raw[:, 0] != 0):
-        raise ValueError("only filter type 0 is read")
-    return raw[:, 1:].reshape(h, w, 3).copy()
+def least_relative_margin(result: MapResult, case: str) -> np.ndarray:
+    """(ny, nx) least relative margin over the checks that apply (and over cases for WORST); NaN where none
+    applies. Failing checks keep their value capped at 0, so the zero level bounds the failing region."""
+    cases = result.cases if case == WORST else [result.case_map(case)]
+    stack = [np.full(result.inside.shape, np.inf)]
+    for cm in cases:
+        for c in cm.points.checks:
+            rel = np.asarray(c.relative_margin, dtype=float)
+            with np.errstate(invalid="ignore"):
+                stack.append(np.where(c.applies, np.where(c.fails, np.minimum(rel, 0.0), rel), np.inf))
+    out = np.min(np.stack(stack), axis=0)
+    return np.where(np.isinf(out) | ~result.inside, np.nan, out)
 
 
-# -- text ----------------------------------------------------------------------------
+def _altitude_ticks(axis, unit: str) -> None:
+    if unit == "ft":
+        from matplotlib.ticker import StrMethodFormatter
 
-def _number_text(x: float) -> str:
-    if not math.isfinite(x):
-        return ""
-    if x == 0:
-        return "0"
-    text = f"{x:.3g}"
-    if "e" in text:
-        mant, exp = text.split("e")
-        text = f"{mant}e{int(exp)}"
-    return text
+        axis.set_major_formatter(StrMethodFormatter("{x:,.0f}"))
 
 
-def _draw_text(img: np.ndarray, text: str, x: int, y: int, colour=(30, 30, 30), scale: int = FONT_SCALE) -> None:
-    """Draw ``text`` with its top-left corner at (x, y), clipped to the image."""
-    h, w, _ = img.shape
-    for i, ch in enumerate(text):
-        glyph = _GLYPHS.get(ch, _GLYPHS[" "])
-        mask = np.array([[c == "1" for c in row] for row in glyph], dtype=bool)
-        mask = np.repeat(np.repeat(mask, scale, axis=0), scale, axis=1)
-        gx = x + i * 4 * scale
-        ys, xs = np.nonzero(mask)
-        ys, xs = ys + y, xs + gx
-        keep = (ys >= 0) & (ys < h) & (xs >= 0) & (xs < w)
-        img[ys[keep], xs[keep]] = colour
+def _edges(v: np.ndarray) -> np.ndarray:
+    v = np.asarray(v, float)
+    if v.size == 1:
+        return np.array([v[0] - 0.5, v[0] + 0.5])
+    mid = 0.5 * (v[1:] + v[:-1])
+    return np.concatenate([[2 * v[0] - mid[0]], mid, [2 * v[-1] - mid[-1]]])
 
-
-def _text_width(text: str, scale: int = FONT_SCALE) -> int:
-    return max(0, len(text) * 4 * scale - scale)
-
-
-# -- pictures ------------------------------------------------------------------------
 
 @dataclass(frozen=True)
 class MapPicture:
-    """A rendered map: the PNG bytes and what they show.
-
-    ``vmin``/``vmax`` are the colour-scale ends (SI units of the quantity);
-    ``map_box`` is (left, top, width, height) of the map area in pixels, inside
-    the frame; ``cell`` the pixel size of one grid point (width, height).
-    """
+    """A rendered map: the PNG bytes and what they show (``vmin``/``vmax``: colour-scale ends, SI units)."""
 
     png: bytes
     width: int
@@ -230,94 +191,131 @@ class MapPicture:
     kind: str
     vmin: float
     vmax: float
-    map_box: tuple[int, int, int, int]
-    cell: tuple[int, int]
     failing_points: int
-    undefined_points: int
+    not_judged_points: int
     quantity: str = ""
     label: str = ""
     unit: str = ""
     case: str = ""
 
+    @property
+    def undefined_points(self) -> int:
+        return self.not_judged_points
 
-def _scale_factors(ny: int, nx: int) -> tuple[int, int]:
-    return max(1, math.ceil(TARGET_WIDTH / nx)), max(1, math.ceil(TARGET_HEIGHT / ny))
+
+@dataclass(frozen=True)
+class MapFigure:
+    """A map figure and its parts (for tests and callers that add to it)."""
+
+    figure: Figure
+    axes: object
+    colour_bar: object
+    legend: object
+    kind: str
+    vmin: float
+    vmax: float
+    failing_points: int
+    not_judged_points: int
+    zero_line: bool
+    ram_line: bool
 
 
-def array_picture(
-    values,
-    kind: str = "level",
-    inside=None,
-    failing=None,
+def map_figure(
+    result: MapResult,
+    quantity_key: str = "face_mach_margin",
+    case: str | None = None,
+    *,
+    units: str = SI,
     levels: tuple[float, float] | None = None,
-    colour_bar: bool = True,
-    labels: bool = True,
-) -> MapPicture:
-    """Render a (altitude, Mach) array (row 0 = lowest altitude) as a ``MapPicture``.
+    project_title: str | None = None,
+) -> MapFigure:
+    """Build the map of ``quantity_key`` for ``case`` (None: the worst of all cases).
 
-    ``inside`` (bool array, default all True) marks the envelope: outside is
-    light grey. NaN inside is mid grey (not defined). ``failing`` (bool array)
-    hatches those points. ``levels`` fixes the colour-scale ends (default
-    ``levels_for(kind, values inside)``), e.g. to share one scale between maps.
+    KeyError for an unknown quantity or case; ValueError for unknown ``units``.
     """
-    v = np.asarray(values, dtype=float)
-    if v.ndim != 2 or v.shape[0] < 1 or v.shape[1] < 1:
-        raise ValueError(f"need a 2-D map, got shape {v.shape}")
-    ny, nx = v.shape
-    inside = np.ones(v.shape, bool) if inside is None else np.asarray(inside, bool)
-    failing = np.zeros(v.shape, bool) if failing is None else (np.asarray(failing, bool) & inside)
+    q = QUANTITIES[quantity_key]
+    name = WORST if case is None else case
+    if name != WORST:
+        result.case_map(name)  # KeyError for an unknown case
+    alt_unit, alt_f = altitude_scale(units)
+    q_unit, q_f = quantity_scale(quantity_key, units)
+    kind = q.kind
+    x = np.asarray(result.mach, float)
+    y = np.asarray(result.altitude_m, float) * alt_f
+    values = np.asarray(result.quantity(name, quantity_key), float)
+    judged = judged_map(result, name, quantity_key) if kind == C.MARGIN else (result.inside & np.isfinite(values))
+    not_judged = result.inside & ~judged
+    shown = np.where(judged, values, np.nan)
+    failing = result.failing(name) & result.inside  # any limit, as in the program's map
     if levels is None:
-        levels = levels_for(kind, v[inside])
+        levels = C.levels_for(kind, shown)
     vmin, vmax = float(levels[0]), float(levels[1])
     if not (math.isfinite(vmin) and math.isfinite(vmax)) or vmax <= vmin:
-        vmin, vmax = levels_for(kind, np.array([vmin, vmax]))
-    undefined = inside & ~np.isfinite(v)
-    cells = _colour(v, kind, vmin, vmax)
-    cells[~inside] = OUTSIDE_GREY
-    cells[undefined] = UNDEFINED_GREY
-    # altitude upwards: the last row of the map is the top of the picture
-    cells, fail_cells = cells[::-1], failing[::-1]
-    fx, fy = _scale_factors(ny, nx)
-    big = np.repeat(np.repeat(cells, fy, axis=0), fx, axis=1)
-    fail_big = np.repeat(np.repeat(fail_cells, fy, axis=0), fx, axis=1)
-    hgt, wid = big.shape[:2]
-    yy, xx = np.mgrid[0:hgt, 0:wid]
-    hatch = fail_big & (((xx + yy) % HATCH_PERIOD) == 0)
-    luminance = big @ np.array([0.2126, 0.7152, 0.0722]) / 255.0
-    big[hatch & (luminance >= 0.35)] = HATCH_DARK
-    big[hatch & (luminance < 0.35)] = HATCH_LIGHT
+        vmin, vmax = C.levels_for(kind, np.array([vmin, vmax]))
 
-    label_h = (5 * FONT_SCALE + 4) if labels else 0
-    total_h = hgt + 2 + ((BAR_GAP + BAR_HEIGHT + 2 + label_h) if colour_bar else 0)
-    total_w = wid + 2
-    img = np.empty((total_h, total_w, 3), np.uint8)
-    img[:] = BACKGROUND
-    img[0:hgt + 2, 0:wid + 2] = FRAME
-    img[1:hgt + 1, 1:wid + 1] = big
-    if colour_bar:
-        top = hgt + 2 + BAR_GAP
-        lut = ramp_lut(anchors_for(kind), n=total_w - 2)
-        img[top:top + BAR_HEIGHT + 2, :] = FRAME
-        img[top + 1:top + 1 + BAR_HEIGHT, 1:total_w - 1] = lut[None, :, :]
-    if colour_bar and labels:
-        ty = top + BAR_HEIGHT + 2 + 3
-        lo_t, hi_t = _number_text(vmin), _number_text(vmax)
-        mid_t = "0" if kind == "margin" else _number_text(0.5 * (vmin + vmax))
-        _draw_text(img, lo_t, 0, ty)
-        _draw_text(img, hi_t, total_w - _text_width(hi_t), ty)
-        mid_x = (total_w - _text_width(mid_t)) // 2
-        if mid_x > _text_width(lo_t) + 6 and mid_x + _text_width(mid_t) < total_w - _text_width(hi_t) - 6:
-            _draw_text(img, mid_t, mid_x, ty)
-    return MapPicture(
-        png=png_bytes(img), width=total_w, height=total_h, kind=kind, vmin=vmin, vmax=vmax,
-        map_box=(1, 1, wid, hgt), cell=(fx, fy), failing_points=int(failing.sum()),
-        undefined_points=int(undefined.sum()),
-    )
+    _, FigureCanvasAgg, ListedColormap, Normalize, Figure, Line2D, Patch = _mpl()
+    fig = Figure(figsize=MAP_SIZE_IN, dpi=DPI, layout="constrained")
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot()
+    ax.set_facecolor(_rgb(C.OUTSIDE_GREY))
+    xe, ye = _edges(x), _edges(y)
+    grey = np.where(not_judged, 1.0, np.nan)
+    ax.pcolormesh(xe, ye, np.ma.masked_invalid(grey), cmap=ListedColormap([_rgb(C.NOT_JUDGED_GREY)]),
+                  vmin=0, vmax=2, shading="flat")
+    mesh = ax.pcolormesh(xe, ye, np.ma.masked_invalid(shown * q_f), cmap=C.matplotlib_colormap(kind),
+                         norm=Normalize(vmin * q_f, vmax * q_f), shading="flat")
 
+    env = result.project.envelope
+    ex = np.array(list(env.mach) + [env.mach[0]], float)
+    ey = np.array(list(env.altitude_m) + [env.altitude_m[0]], float) * alt_f
+    ax.plot(ex, ey, color=_rgb(C.OUTLINE), lw=2.0, zorder=4)
 
-def quantity_kind(quantity_key: str) -> str:
-    """``"margin"`` or ``"level"``; KeyError for a key that is not a map quantity."""
-    return QUANTITIES[quantity_key].kind
+    zero_field = shown if kind == C.MARGIN else least_relative_margin(result, name)
+    zero = _contour(ax, x, y, zero_field, 0.0, colors=[_rgb(C.ZERO_LINE)], linewidths=2.2, halo=5, zorder=5)
+    ratio = np.asarray(result.quantity(name, "face_static_to_ambient"), float)
+    ram = _contour(ax, x, y, ratio, 1.0, colors=[_rgb(C.RAM_LINE)], linewidths=2.2, linestyles="--",
+                   halo=4.5, zorder=5)
+
+    ny, nx = failing.shape
+    stride = max(1, math.ceil(max(nx, ny) / MAX_MARKER_AXIS))
+    pattern = np.zeros_like(failing)
+    pattern[::stride, ::stride] = True
+    marks = failing & pattern
+    if failing.any() and not marks.any():
+        marks = failing
+    ii, jj = np.nonzero(marks)
+    ax.scatter(x[jj], y[ii], marker="x", s=22, c=[_rgb(C.FAIL_MARK)], linewidths=1.1, zorder=6)
+
+    ax.set_xlim(xe[0], xe[-1])
+    ax.set_ylim(ye[0], ye[-1])
+    _altitude_ticks(ax.yaxis, alt_unit)
+    ax.set_xlabel("Flight Mach number M0")
+    ax.set_ylabel(f"Pressure altitude ({alt_unit})")
+    title = f"{q.label} — {case_title(name)}"
+    sub = short(project_title if project_title is not None else (result.project.title or ""))
+    ax.set_title(title + (f"\n{sub}" if sub else ""), fontsize=12)
+    ax.grid(True, color="white", alpha=0.25, lw=0.6)
+
+    bar = fig.colorbar(mesh, ax=ax, fraction=0.06, pad=0.02)
+    bar_label = f"{q.label} ({q_unit})"
+    if kind == C.MARGIN:
+        bar_label += "\n< 0: limit fails   > 0: limit holds"
+    bar.set_label(bar_label)
+
+    none = " (none here)"
+    zero_text = (f"{q.label} = 0" if kind == C.MARGIN else "limit boundary (least margin = 0)")
+    handles = [
+        Line2D([], [], color=_rgb(C.OUTLINE), lw=2.0, label="flight envelope"),
+        Line2D([], [], color=_rgb(C.ZERO_LINE), lw=2.2, label=zero_text + ("" if zero else none)),
+        Line2D([], [], color=_rgb(C.RAM_LINE), lw=2.2, ls="--",
+               label="face static = ambient (p2/p0 = 1)" + ("" if ram else none)),
+        Line2D([], [], color=_rgb(C.FAIL_MARK), marker="x", ls="", ms=7,
+               label="a limit fails here" + ("" if failing.any() else " (nowhere)")),
+        Patch(facecolor=_rgb(C.NOT_JUDGED_GREY), edgecolor="0.3", label="not judged / not defined"),
+        Patch(facecolor=_rgb(C.OUTSIDE_GREY), edgecolor="0.3", label="outside the envelope"),
+    ]
+    legend = fig.legend(handles=handles, loc="outside lower center", ncols=3, fontsize=9, frameon=True)
+    return MapFigure(fig, ax, bar, legend, kind, vmin, vmax, int(failing.sum()), int(not_judged.sum()), zero, ram)
 
 
 def render_map(
@@ -325,28 +323,22 @@ def render_map(
     quantity_key: str = "face_mach_margin",
     case: str | None = None,
     levels: tuple[float, float] | None = None,
-    colour_bar: bool = True,
-    labels: bool = True,
+    *,
+    units: str = SI,
+    **_ignored,
 ) -> MapPicture:
-    """Render ``quantity_key`` (a key of ``engine_air.outputs.quantities.QUANTITIES``) for ``case``
-    (None: the worst of all cases) of ``result``; KeyError for an unknown quantity or case."""
+    """Render ``quantity_key`` (a key of ``QUANTITIES``) for ``case`` (None: worst of all cases) as PNG."""
+    m = map_figure(result, quantity_key, case, units=units, levels=levels)
+    png = figure_png(m.figure)
+    w, h = (int(round(v)) for v in m.figure.get_size_inches() * m.figure.dpi)
     q = QUANTITIES[quantity_key]
-    name = WORST if case is None else case
-    values = result.quantity(name, quantity_key)
-    failing = result.failing(name)
-    pic = array_picture(values, q.kind, inside=result.inside, failing=failing, levels=levels, colour_bar=colour_bar,
-                        labels=labels)
-    return MapPicture(**{**pic.__dict__, "quantity": quantity_key, "label": q.label, "unit": q.unit, "case": name})
+    return MapPicture(png, w, h, m.kind, m.vmin, m.vmax, m.failing_points, m.not_judged_points, quantity_key,
+                      q.label, q.unit, WORST if case is None else case)
 
 
-def map_png_bytes(
-    result: MapResult,
-    quantity_key: str = "face_mach_margin",
-    case: str | None = None,
-    levels: tuple[float, float] | None = None,
-) -> bytes:
+def map_png_bytes(result, quantity_key="face_mach_margin", case=None, levels=None, *, units: str = SI) -> bytes:
     """The PNG bytes of ``render_map(result, quantity_key, case, levels)``."""
-    return render_map(result, quantity_key, case, levels).png
+    return render_map(result, quantity_key, case, levels, units=units).png
 
 
 def write_map_png(
@@ -355,13 +347,131 @@ def write_map_png(
     quantity_key: str = "face_mach_margin",
     case: str | None = None,
     levels: tuple[float, float] | None = None,
+    *,
+    units: str = SI,
 ) -> MapPicture:
     """Write the map of ``quantity_key`` for ``case`` (None: worst of all cases) to ``path`` as PNG.
 
-    Returns the ``MapPicture`` (scale ends, size). Raises KeyError for an
-    unknown quantity or case and OSError when the file cannot be written.
+    Returns the ``MapPicture``. Raises KeyError for an unknown quantity or case and OSError when the
+    file cannot be written.
     """
-    pic = render_map(result, quantity_key, case, levels)
+    pic = render_map(result, quantity_key, case, levels, units=units)
     with open(path, "wb") as fh:
         fh.write(pic.png)
     return pic
+
+
+# -- sections ------------------------------------------------------------------------
+
+def _fail_colour() -> tuple[int, int, int]:
+    """The failing band of section plots: the orange arm of the margin scale."""
+    return C.anchors(C.MARGIN, 9)[1][1]
+
+
+@dataclass(frozen=True)
+class SectionFigure:
+    figure: Figure
+    axes: object
+    legend: object
+    section: Section
+
+
+def section_figure(section: Section, *, units: str = SI, project_title: str | None = None) -> SectionFigure:
+    """A section plot: one line per case against Mach (values up) or against altitude (altitude up), the
+    limit line, failing stretches under a broad orange band; points not judged drawn thin and dotted."""
+    q = QUANTITIES[section.quantity]
+    alt_unit, alt_f = altitude_scale(units)
+    q_unit, q_f = quantity_scale(section.quantity, units)
+    along_mach = section.axis != ALTITUDE
+    _, FigureCanvasAgg, _, _, Figure, Line2D, _ = _mpl()
+    fig = Figure(figsize=SECTION_SIZE_IN, dpi=DPI, layout="constrained")
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot()
+    from matplotlib import colormaps
+
+    palette = [colormaps["tab10"](k) for k in (0, 4, 2, 8, 6, 5)]  # orange is kept for the failing band
+    styles = ["-", "--", "-.", (0, (5, 1, 1, 1, 1, 1))]
+    position = section.x * (1.0 if along_mach else alt_f)
+    any_fail = False
+
+    def draw(a, b, **kw):
+        return ax.plot(a, b, **kw) if along_mach else ax.plot(b, a, **kw)
+
+    for k, cs in enumerate(section.cases):
+        worst = cs.case == WORST
+        colour = (0, 0, 0) if worst else palette[k % len(palette)]
+        style = ":" if worst else styles[k % len(styles)]
+        width = 1.6 if worst else 2.2
+        v = cs.values * q_f
+        label = case_title(cs.case)
+        n = len(v)
+        for a, b in stretches(cs.failing):
+            # the failing points, extended half a grid step towards finite neighbours
+            at = [float(a - 0.5)] if a > 0 and np.isfinite(v[a - 1]) else []
+            at += list(range(a, b + 1))
+            at += [float(b + 0.5)] if b + 1 < n and np.isfinite(v[b + 1]) else []
+            at = np.asarray(at, float)
+            finite = np.isfinite(v)
+            xs = np.interp(at, np.arange(n), position)
+            ys = np.interp(at, np.flatnonzero(finite), v[finite])
+            draw(xs, ys, color=_rgb(_fail_colour()), lw=9, alpha=0.45, solid_capstyle="round", zorder=1,
+                 marker="o" if len(at) == 1 else None, ms=9)
+            any_fail = True
+        draw(position, np.where(cs.judged, v, np.nan), color=colour, lw=width, ls=style,
+             label=label, zorder=4 if worst else 3)
+        loose = np.where(~cs.judged & np.isfinite(v), v, np.nan)
+        if np.isfinite(loose).any():
+            draw(position, loose, color=colour, lw=0.9, ls=":", zorder=2)
+    handles, labels = ax.get_legend_handles_labels()
+    if section.limit is not None:
+        lim = section.limit * q_f
+        (ax.axhline if along_mach else ax.axvline)(lim, color="k", lw=1.4, ls=(0, (6, 2, 1, 2)), zorder=2)
+        handles.append(Line2D([], [], color="k", lw=1.4, ls=(0, (6, 2, 1, 2))))
+        labels.append("margin = 0 (the limit)" if section.kind == C.MARGIN else f"limit {lim:g}")
+    handles.append(Line2D([], [], color=_rgb(_fail_colour()), lw=9, alpha=0.45))
+    labels.append("limit fails" + ("" if any_fail else " (nowhere on this cut)"))
+    handles.append(Line2D([], [], color="0.3", lw=0.9, ls=":"))
+    labels.append("not judged")
+    value_label = f"{q.label} ({q_unit})"
+    if along_mach:
+        ax.set_xlabel("Flight Mach number M0")
+        ax.set_ylabel(value_label)
+        where = f"at {section.at * alt_f:,.{1 if alt_unit == 'km' else 0}f} {alt_unit}"
+        title = f"{q.label} against flight Mach number {where}"
+    else:
+        ax.set_xlabel(value_label)
+        ax.set_ylabel(f"Pressure altitude ({alt_unit})")
+        _altitude_ticks(ax.yaxis, alt_unit)
+        title = f"{q.label} against altitude at Mach {section.at:.3g}"
+    sub = short(project_title or "")
+    ax.set_title(title + (f"\n{sub}" if sub else ""), fontsize=12)
+    ax.grid(True, alpha=0.3)
+    legend = fig.legend(handles, labels, loc="outside lower center", ncols=3, fontsize=9)
+    return SectionFigure(fig, ax, legend, section)
+
+
+def write_section_png(section: Section, path, *, units: str = SI, project_title: str | None = None) -> bytes:
+    """Write a section plot to ``path``; returns the PNG bytes."""
+    png = figure_png(section_figure(section, units=units, project_title=project_title).figure)
+    with open(path, "wb") as fh:
+        fh.write(png)
+    return png
+
+
+def section_png_bytes(result: MapResult, quantity_key: str, *, altitude_m=None, mach=None, units: str = SI,
+                      cases=None) -> bytes:
+    """PNG bytes of the section of ``quantity_key`` at ``altitude_m`` (along Mach) or ``mach`` (along altitude)."""
+    sec = cut(result, quantity_key, altitude_m=altitude_m, mach=mach, cases=cases)
+    return figure_png(section_figure(sec, units=units, project_title=result.project.title).figure)
+
+
+def quantity_kind(quantity_key: str) -> str:
+    """``"margin"`` or ``"level"``; KeyError for a key that is not a map quantity."""
+    return QUANTITIES[quantity_key].kind
+
+
+__all__ = [
+    "MapFigure", "MapPicture", "SectionFigure", "altitude_scale", "check_of", "figure_png", "map_figure",
+    "map_png_bytes", "quantity_kind", "quantity_scale", "render_map", "section_figure", "section_png_bytes",
+    "write_map_png", "write_section_png",
+]

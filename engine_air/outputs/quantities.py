@@ -26,7 +26,8 @@ QUANTITIES: dict[str, Quantity] = {
         Quantity("face_mach", "Face Mach number", "", "level", "Engine-face axial Mach number M2"),
         Quantity("recovery", "Total-pressure recovery", "", "level", "p_t2 / p_t0"),
         Quantity("recovery_minus_reference", "Recovery minus MIL-E-5008B", "", "margin",
-                 "Recovery less the MIL-E-5008B reference recovery at the flight Mach number"),
+                 "Recovery of the shock system (p_t2/p_t0 over the duct's own loss) less the MIL-E-5008B reference, "
+                 "M0 > 1 only (what the reference-recovery check compares)"),
         Quantity("spillage_fraction", "Spillage fraction", "", "level", "max(0, 1 - mass-flow ratio)"),
         Quantity("mass_flow_ratio", "Mass-flow ratio", "", "level", "A0 / A_c, captured stream tube over capture area"),
         Quantity("throat_mach", "Throat Mach number", "", "level", "Average Mach number at the inlet throat"),

@@ -15,10 +15,27 @@ envelope for every case and writes into ``folder``:
   (``caution``);
 - ``project.toml``: the same TOML text, so ``engine-air check project.toml``
   reproduces the verdict;
-- ``maps/<case>__<quantity>.png``: the map pictures as files too.
+- ``maps/<stem>__<quantity>.png``: the map pictures as files too; ``<stem>`` is
+  ``c<k>-<slug>`` for the k-th case (the slug cut to 24 characters) and
+  ``all-worst`` for the worst of all cases, so every name is unique and short
+  whatever the case names;
+- ``sections/<quantity>__along-mach.png`` and ``..__along-altitude.png``: section
+  plots (every case) through the overall worst point, of the limiting check's own
+  quantity and of every mapped quantity;
+- ``engine-air-pack.json``: the manifest, naming every file the pack wrote.
 
-The pictures come from ``engine_air.outputs.pictures`` (no Qt). Every text taken from
-the project (title, notes, case names) is HTML-escaped.
+Safe output: the pack writes only into a new or empty folder, or into one that
+holds its own manifest (a pack written before; files listed there and not
+written again are removed). It never writes through a symbolic link: every file
+is written under a fresh temporary name (created exclusively, links not
+followed) and renamed over the final name, which replaces a link planted there
+rather than its target; a link in place of the folder itself is refused, one in
+place of ``maps`` or ``sections`` is replaced by a real folder. Before it returns
+it checks that every picture it reports is a regular, non-empty file.
+``PackFolderError`` (an ``OSError``) says why a folder is refused.
+
+The pictures come from ``engine_air.outputs.pictures`` (matplotlib, no Qt). Every text
+taken from the project (title, notes, case names) is HTML-escaped.
 
 Example::
 
@@ -30,11 +47,15 @@ from __future__ import annotations
 
 import base64
 import datetime as _dt
+import errno
 import html
+import json
 import math
 import os
 import platform
 import re
+import secrets
+import stat
 import sys
 import tomllib
 from dataclasses import dataclass, field
@@ -47,7 +68,8 @@ from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project
 from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
-from engine_air.outputs.pictures import render_map
+from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
+from engine_air.outputs.sections import check_of, cut
 from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.point_record import shock_table, station_table
@@ -55,7 +77,7 @@ from engine_air.studies.sizing import worst_point
 
 PACK_QUANTITIES = ("face_mach_margin", "recovery", "spillage_fraction", "throat_mach")
 """Quantities mapped in a pack by default."""
-SECTION_IDS = ("verdict", "findings", "maps", "stations", "shocks", "inputs", "version", "sources", "caution")
+SECTION_IDS = ("verdict", "findings", "maps", "sections", "stations", "shocks", "inputs", "version", "sources", "caution")
 """Element ids of the pack's sections, in page order."""
 SOURCES = (
     "U.S. Standard Atmosphere, 1976 (NOAA/NASA/USAF); ISO 2533:1975 — free-stream conditions.",
@@ -70,20 +92,196 @@ SOURCES = (
 )
 
 
+MANIFEST = "engine-air-pack.json"
+"""The pack's own manifest file; a folder holding it was written by a pack before."""
+_SIGNATURE = "engine-air review pack"
+SLUG_CHARS = 24
+
+
 @dataclass
 class ReviewPack:
     folder: str
     index_path: str
     project_path: str
-    pictures: list[str]
+    pictures: list[str]  # the map pictures
     holds: bool
     result: MapResult
     notes: list[str] = field(default_factory=list)
+    section_pictures: list[str] = field(default_factory=list)
+    manifest_path: str = ""
+
+    @property
+    def all_pictures(self) -> list[str]:
+        return self.pictures + self.section_pictures
 
 
-def _slug(text: str) -> str:
-    s = re.sub(r"[^A-Za-z0-9]+", "-", text).strip("-").lower()
+class PackFolderError(OSError):
+    """The folder cannot take a review pack (not empty and not a pack's, a symbolic link, ...)."""
+
+    def __init__(self, path, message: str) -> None:
+        super().__init__(errno.EEXIST, message, os.fspath(path))
+
+    def __str__(self) -> str:
+        return f"{self.filename}: {self.strerror}"
+
+
+def _slug(text: str, limit: int = SLUG_CHARS) -> str:
+    s = re.sub(r"[^A-Za-z0-9]+", "-", text).strip("-").lower()[:limit].strip("-")
     return s or "case"
+
+
+def picture_stems(case_names: list[str]) -> dict[str, str]:
+    """A short file-name stem per case, unique whatever the names: ``c<k>-<slug>``; ``all-worst`` for WORST.
+
+    >>> picture_stems(["ISA+15, max", "ISA-15, max", WORST])
+    {'ISA+15, max': 'c1-isa-15-max', 'ISA-15, max': 'c2-isa-15-max', 'worst of all cases': 'all-worst'}
+    """
+    out = {}
+    k = 0
+    for name in case_names:
+        if name == WORST and name not in out:
+            out[name] = "all-worst"
+        elif name not in out:
+            k += 1
+            out[name] = f"c{k}-{_slug(name)}"
+    return out
+
+
+# -- writing without following links -------------------------------------------------
+
+_DIR_FD = os.open in os.supports_dir_fd and os.rename in os.supports_dir_fd and os.mkdir in os.supports_dir_fd
+_NOFOLLOW = getattr(os, "O_NOFOLLOW", 0)
+_DIRECTORY = getattr(os, "O_DIRECTORY", 0)
+
+
+def _is_our_manifest(data: bytes) -> tuple[bool, list[str]]:
+    try:
+        doc = json.loads(data.decode("utf-8"))
+    except (UnicodeDecodeError, ValueError):
+        return False, []
+    if not isinstance(doc, dict) or doc.get("written_by") != _SIGNATURE:
+        return False, []
+    files = doc.get("files", [])
+    return True, [f for f in files if isinstance(f, str)] if isinstance(files, list) else []
+
+
+class _Folder:
+    """A pack folder: refuses a foreign non-empty folder, writes files by exclusive temp file + rename."""
+
+    def __init__(self, path: str) -> None:
+        self.path = path
+        if os.path.islink(path):
+            raise PackFolderError(path, "is a symbolic link; the review pack does not write through links "
+                                        "(give the real folder)")
+        if not os.path.exists(path):
+            os.makedirs(path)
+        elif not os.path.isdir(path):
+            raise PackFolderError(path, "exists and is not a folder")
+        self.fd = os.open(path, os.O_RDONLY | _DIRECTORY | _NOFOLLOW) if _DIR_FD else None
+        self.dirs: dict[str, int | None] = {"": self.fd}
+        self.previous: list[str] = []
+        entries = os.listdir(self.fd if self.fd is not None else path)
+        if entries:
+            ours = False
+            if MANIFEST in entries:
+                st = self._lstat("", MANIFEST)
+                if st is not None and stat.S_ISREG(st.st_mode):
+                    ours, self.previous = _is_our_manifest(self._read("", MANIFEST))
+            if not ours:
+                self.close()
+                shown = ", ".join(sorted(entries)[:3]) + (", …" if len(entries) > 3 else "")
+                raise PackFolderError(path, f"is not empty ({shown}) and holds no review-pack manifest "
+                                            f"({MANIFEST}); give a new or empty folder")
+
+    def close(self) -> None:
+        for fd in set(self.dirs.values()):
+            if fd is not None:
+                os.close(fd)
+        self.dirs = {}
+
+    def _lstat(self, sub: str, name: str):
+        try:
+            if self.fd is not None:
+                return os.stat(name, dir_fd=self.dirs[sub], follow_symlinks=False)
+            return os.lstat(os.path.join(self.path, sub, name))
+        except FileNotFoundError:
+            return None
+
+    def _read(self, sub: str, name: str) -> bytes:
+        if self.fd is not None:
+            fd = os.open(name, os.O_RDONLY | _NOFOLLOW, dir_fd=self.dirs[sub])
+        else:
+            fd = os.open(os.path.join(self.path, sub, name), os.O_RDONLY | _NOFOLLOW)
+        with os.fdopen(fd, "rb") as fh:
+            return fh.read(1 << 20)
+
+    def subfolder(self, sub: str) -> None:
+        """Make sure ``sub`` is a real folder of ours: a link there is removed (the link, not its target)."""
+        st = self._lstat("", sub)
+        if st is not None and stat.S_ISLNK(st.st_mode):
+            if self.fd is not None:
+                os.unlink(sub, dir_fd=self.fd)
+            else:
+                os.unlink(os.path.join(self.path, sub))
+            st = None
+        if st is None:
+            if self.fd is not None:
+                os.mkdir(sub, dir_fd=self.fd)
+            else:
+                os.mkdir(os.path.join(self.path, sub))
+        elif not stat.S_ISDIR(st.st_mode):
+            raise PackFolderError(os.path.join(self.path, sub), "exists and is not a folder")
+        if self.fd is not None:
+            self.dirs[sub] = os.open(sub, os.O_RDONLY | _DIRECTORY | _NOFOLLOW, dir_fd=self.fd)
+        else:
+            self.dirs[sub] = None
+
+    def write(self, relative: str, data: bytes) -> str:
+        """Write ``data`` to ``relative`` (``name`` or ``sub/name``) by a fresh temporary file and a rename:
+        a link at the final name is replaced, never written through. Returns the full path."""
+        sub, _, name = relative.rpartition("/")
+        tmp = f".{name[:40]}.{secrets.token_hex(6)}.tmp"
+        flags = os.O_WRONLY | os.O_CREAT | os.O_EXCL | _NOFOLLOW | getattr(os, "O_BINARY", 0)
+        dir_fd = self.dirs[sub]
+        base = os.path.join(self.path, sub)
+        fd = os.open(tmp, flags, 0o644, dir_fd=dir_fd) if dir_fd is not None else os.open(os.path.join(base, tmp),
+                                                                                          flags, 0o644)
+        try:
+            with os.fdopen(fd, "wb") as fh:
+                fh.write(data)
+            if dir_fd is not None:
+                os.replace(tmp, name, src_dir_fd=dir_fd, dst_dir_fd=dir_fd)
+            else:
+                os.replace(os.path.join(base, tmp), os.path.join(base, name))
+        except BaseException:
+            try:
+                os.unlink(tmp, dir_fd=dir_fd) if dir_fd is not None else os.unlink(os.path.join(base, tmp))
+            except OSError:
+                pass
+            raise
+        return os.path.join(self.path, *relative.split("/"))
+
+    def remove(self, relative: str) -> None:
+        """Remove a file (or a link: the link itself) the previous pack wrote; missing is fine."""
+        sub, _, name = relative.rpartition("/")
+        if sub not in self.dirs:
+            return
+        try:
+            if self.dirs[sub] is not None:
+                os.unlink(name, dir_fd=self.dirs[sub])
+            else:
+                os.unlink(os.path.join(self.path, sub, name))
+        except (FileNotFoundError, IsADirectoryError, PermissionError):
+            pass
+
+    def is_picture(self, relative: str) -> bool:
+        sub, _, name = relative.rpartition("/")
+        st = self._lstat(sub, name)
+        return st is not None and stat.S_ISREG(st.st_mode) and st.st_size > 0
+
+    def manifest(self, files: list[str], complete: bool) -> None:
+        doc = {"written_by": _SIGNATURE, "version": __version__, "complete": complete, "files": files}
+        self.write(MANIFEST, json.dumps(doc, indent=1).encode("utf-8"))
 
 
 def _num(x, digits: int = 4) -> str:
@@ -116,8 +314,8 @@ th { background: #efefef; text-align: left; } td.n { text-align: right; font-var
 .banner { padding: 8px 12px; border: 2px solid; display: inline-block; margin: 8px 0; font-weight: bold; }
 .banner.holds { border-color: #0b4f8a; background: #eaf2fa; } .banner.fails { border-color: #b35806; background: #fdf0e3; }
 .meta { color: #555; } .maps { display: flex; flex-wrap: wrap; gap: 18px; }
-figure { margin: 0; width: 488px; } figure img { display: block; image-rendering: pixelated; }
-figcaption { font-size: 12px; color: #333; } .scale { display: flex; justify-content: space-between; font-size: 12px; }
+figure { margin: 0; width: 540px; } figure img { display: block; width: 100%; height: auto; }
+figcaption { font-size: 12px; color: #333; }
 pre { background: #f6f6f6; border: 1px solid #ddd; padding: 10px; white-space: pre-wrap; overflow-wrap: anywhere;
       font-size: 12px; }
 .caution { border-left: 4px solid #b35806; padding: 6px 12px; background: #fdf6ee; }
@@ -185,6 +383,7 @@ def write_review_pack(
     case_names: list[str] | None = None,
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
+    units: str = "si",
 ) -> ReviewPack:
     """Evaluate a project and write its review pack into ``folder`` (created if needed).
 
@@ -195,11 +394,14 @@ def write_review_pack(
         (its text is ``source_text`` when that loads back to the same project,
         else ``dumps_project(project)``).
     folder : path
-        Output folder; existing files of the same names are replaced.
+        Output folder: new, empty, or holding a pack's manifest (a pack written before, replaced);
+        anything else raises ``PackFolderError``. Links are never written through.
     quantities : tuple of str
         Keys of ``engine_air.outputs.quantities.QUANTITIES`` to map.
     case_names : list of str, optional
         Evaluate only these cases (default every case).
+    units : "si" or "us"
+        Axes of the pictures: altitude in km ("si") or ft ("us").
 
     Returns a ``ReviewPack`` (paths, verdict, the evaluation). Raises
     ``ProjectError`` for an unusable project, KeyError for an unknown quantity,
@@ -208,17 +410,41 @@ def write_review_pack(
     for q in quantities:
         if q not in QUANTITIES:
             raise KeyError(q)
+    if str(units).lower() not in ("si", "us"):
+        raise ValueError(f"units must be 'si' or 'us', got {units!r}")
     project, text, source_name, notes = _read_source(project_or_path, source_text)
     folder = os.fspath(folder)
-    os.makedirs(os.path.join(folder, "maps"), exist_ok=True)
     result = evaluate_project(project, case_names, cancelled=cancelled)
+    out = _Folder(folder)
+    try:
+        return _write(out, project, text, source_name, notes, result, quantities, progress, cancelled, units)
+    finally:
+        out.close()
+
+
+_PREVIOUS = re.compile(r"^(maps|sections)/[^/\\]+$")
+
+
+def _write(out: _Folder, project, text, source_name, notes, result, quantities, progress, cancelled,
+           units) -> ReviewPack:
+    folder = out.path
+    written: list[str] = []
+    out.manifest(sorted(set(out.previous) | {MANIFEST}), complete=False)  # ours from the first byte on
+    out.subfolder("maps")
+    out.subfolder("sections")
     cases = [c.name for c in result.cases] + ([WORST] if len(result.cases) > 1 else [])
-    total = len(cases) * len(quantities) + 1
+    stems = picture_stems(cases)
+    worst = worst_point(result)
+    total = len(cases) * len(quantities) + 2 * (len(quantities) + 1) + 1
     done = 0
 
     def tick():
         if progress is not None:
             progress(min(1.0, done / total))
+
+    def check_cancel():
+        if cancelled is not None and cancelled():
+            raise Cancelled()
 
     # -- maps
     figures: dict[str, list[str]] = {}
@@ -227,33 +453,65 @@ def write_review_pack(
         quantity = QUANTITIES[q]
         figures[q] = []
         for case in cases:
-            if cancelled is not None and cancelled():
-                raise Cancelled()
-            pic = render_map(result, q, None if case == WORST else case, labels=False)
-            name = f"{_slug(case if case != WORST else 'worst-of-all-cases')}__{q}.png"
-            path = os.path.join(folder, "maps", name)
-            with open(path, "wb") as fh:
-                fh.write(pic.png)
-            pictures.append(path)
-            unit = f" {quantity.unit}" if quantity.unit else ""
-            mid = "0" if pic.kind == "margin" else _g(0.5 * (pic.vmin + pic.vmax), 4)
-            scale = "diverging, blue: limit holds, orange: fails" if pic.kind == "margin" else "sequential"
+            check_cancel()
+            pic = render_map(result, q, None if case == WORST else case, units=units)
+            name = f"{stems[case]}__{q}.png"
+            pictures.append(out.write(f"maps/{name}", pic.png))
+            written.append(f"maps/{name}")
+            scale = ("diverging, centred on zero: orange where the limit fails, blue where it holds"
+                     if pic.kind == "margin" else "sequential")
             data = base64.b64encode(pic.png).decode("ascii")
-            fail_text = f"{pic.failing_points} failing points hatched" if pic.failing_points else "no failing point"
+            fail_text = (f"{pic.failing_points} failing points (x marks)" if pic.failing_points
+                         else "no failing point")
             figures[q].append(
-                f'<figure id="map-{e(_slug(case))}-{e(q)}"><img alt="{e(quantity.label)}, {e(case)}" '
+                f'<figure id="map-{e(stems[case])}-{e(q)}"><img alt="{e(quantity.label)}, {e(short(case))}" '
                 f'width="{pic.width}" height="{pic.height}" src="data:image/png;base64,{data}">'
-                f'<div class="scale" style="width:{pic.width}px"><span>{e(_g(pic.vmin, 4))}</span>'
-                f"<span>{e(mid)}</span><span>{e(_g(pic.vmax, 4))}{e(unit)}</span></div>"
                 f"<figcaption><b>{e(quantity.label)}</b> ({e(quantity.description)}), "
-                f"case <b>{e(case)}</b>. Colour scale {e(scale)}. Mach {result.mach[0]:.3g} to "
-                f"{result.mach[-1]:.3g} left to right, altitude {result.altitude_m[0]:.0f} to "
-                f"{result.altitude_m[-1]:.0f} m bottom to top; light grey outside the envelope, mid grey where "
-                f"the quantity is not defined; {fail_text} (some limit fails there). "
+                f"case <b>{e(case)}</b>. Colour scale {e(scale)}, from {e(_g(pic.vmin, 4))} to "
+                f"{e(_g(pic.vmax, 4))}; neutral grey where not judged, light grey outside the envelope; "
+                f"{fail_text}. "
                 f'File: <code>maps/{e(name)}</code>.</figcaption></figure>'
             )
             done += 1
             tick()
+
+    # -- sections through the overall worst point (the middle of the grid when nothing is judged)
+    if worst.check is not None:
+        at_alt, at_mach = float(worst.altitude_m), float(worst.mach)
+        where = f"through the worst point ({e(worst.where())})"
+    else:
+        at_alt = float(result.altitude_m[len(result.altitude_m) // 2])
+        at_mach = float(result.mach[len(result.mach) // 2])
+        where = "through the middle of the grid (no check applies anywhere)"
+    section_pictures = []
+    section_html = []
+    section_quantities = list(quantities)
+    if worst.check is not None:  # the limiting check's own quantity first, mapped or not
+        own = next((k for k in QUANTITIES if check_of(result, k) == worst.check), None)
+        if own is not None:
+            section_quantities = [own] + [k for k in section_quantities if k != own]
+    for q in section_quantities:
+        quantity = QUANTITIES[q]
+        row = []
+        for tag, kw in (("along-mach", {"altitude_m": at_alt}), ("along-altitude", {"mach": at_mach})):
+            check_cancel()
+            sec = cut(result, q, cases=cases, **kw)
+            png = figure_png(section_figure(sec, units=units, project_title=project.title).figure)
+            name = f"{q}__{tag}.png"
+            section_pictures.append(out.write(f"sections/{name}", png))
+            written.append(f"sections/{name}")
+            data = base64.b64encode(png).decode("ascii")
+            cut_text = (f"against flight Mach number at {sec.at:.0f} m" if tag == "along-mach"
+                        else f"against altitude at Mach {sec.at:.3f}")
+            row.append(
+                f'<figure id="section-{e(q)}-{tag}"><img alt="{e(quantity.label)} {e(cut_text)}" '
+                f'src="data:image/png;base64,{data}"><figcaption><b>{e(quantity.label)}</b> {e(cut_text)}, '
+                f"every case; the limit as a dash-dot line, failing stretches under a broad orange band. "
+                f"File: <code>sections/{e(name)}</code>.</figcaption></figure>")
+            done += 1
+            tick()
+        section_html.append(f"<h3>{e(quantity.label)}</h3><div class=\"maps\">{''.join(row)}</div>")
+    sections_html = f"<p>Cuts {where}.</p>" + "".join(section_html)
 
     # -- verdict and findings
     holds = result.holds
@@ -277,7 +535,6 @@ def write_review_pack(
             _num(s.worst_margin), _num(s.worst_mach, 3), _num(s.worst_altitude_m, 0), e(s.worst_case or "–"),
             e(regime), e(flags), e(why),
         ])
-    worst = worst_point(result)
 
     # -- station and shock tables at the worst point
     station_html = "<p>No check applies at any envelope point.</p>"
@@ -329,8 +586,8 @@ def write_review_pack(
         shock_html = "\n".join(shock_parts)
 
     # -- inputs
-    with open(os.path.join(folder, "project.toml"), "w", encoding="utf-8", newline="") as fh:
-        fh.write(text)
+    project_path = out.write("project.toml", text.encode("utf-8"))
+    written.append("project.toml")
     warnings = "".join(f"<li>{e(w)}</li>" for w in project.warnings)
     notes_html = "".join(f"<li>{e(n)}</li>" for n in notes)
 
@@ -378,10 +635,17 @@ envelope points over all cases.</p>
 </section>
 
 <section id="maps"><h2>Maps per case and quantity</h2>
-<p>Each picture shows one grid point per cell. Hatching (a second cue besides colour) marks points where some limit
-fails. Margin maps use a blue–white–orange scale symmetric about zero; level maps a sequential scale from the lowest
-to the highest value inside the envelope.</p>
+<p>Each picture shows one grid point per cell, flight Mach number across and pressure altitude up. An x (a second
+cue besides colour) marks points where a limit fails. Margin maps use an orange–white–blue scale symmetric about
+zero (orange: the limit fails); level maps a sequential scale from the lowest to the highest value inside the
+envelope. Each map carries the envelope outline, the zero-margin line and the face static = ambient line.</p>
 {maps_html}
+</section>
+
+<section id="sections"><h2>Sections</h2>
+<p>The quantity against flight Mach number at one altitude and against altitude at one Mach number, one line per
+case (and the worst of all cases); thin dotted where the quantity is not judged.</p>
+{sections_html}
 </section>
 
 <section id="stations"><h2>Station table at the worst point</h2>
@@ -420,14 +684,21 @@ FOLDER</code> this pack.</p>
 </section>
 </body></html>
 """
-    index_path = os.path.join(folder, "index.html")
-    tmp = index_path + ".tmp"
-    with open(tmp, "w", encoding="utf-8") as fh:
-        fh.write(page)
-    os.replace(tmp, index_path)
+    index_path = out.write("index.html", page.encode("utf-8"))
+    written.append("index.html")
+    missing = [r for r in written if r.endswith(".png") and not out.is_picture(r)]
+    if missing:
+        raise OSError(errno.EIO, f"pictures reported but not written: {', '.join(missing[:5])}", folder)
+    keep = set(written) | {MANIFEST}
+    for old in out.previous:
+        if old not in keep and _PREVIOUS.match(old) and ".." not in old:
+            out.remove(old)
+    out.manifest(sorted(keep), complete=True)
     done = total
     tick()
-    return ReviewPack(folder, index_path, os.path.join(folder, "project.toml"), pictures, holds, result, notes)
+    return ReviewPack(folder, index_path, project_path, pictures, holds, result, notes, section_pictures,
+                      os.path.join(folder, MANIFEST))
 
 
-__all__ = ["PACK_QUANTITIES", "SECTION_IDS", "SOURCES", "ReviewPack", "write_review_pack"]
+__all__ = ["MANIFEST", "PACK_QUANTITIES", "SECTION_IDS", "SOURCES", "PackFolderError", "ReviewPack", "picture_stems",
+           "write_review_pack"]

@@ -71,15 +71,52 @@ class Atmosphere:
 
 
 def standard_atmosphere(altitude_m, isa_offset_k=0.0) -> Atmosphere:
-    """Static temperature (K), pressure (Pa), density (kg/m^3) and speed of sound (m/s).
+    """Static temperature (K), pressure (Pa), density (kg/m^3) and speed of sound (m/s) [1].
 
-    ``altitude_m`` is geopotential (pressure) altitude in m, any array shape;
-    ``isa_offset_k`` (K) broadcasts with it. Outside -5 km .. 84.852 km the
-    values are NaN and ``inside_model`` is False (the caller flags
-    ``outside-atmosphere``).
+    In the layer containing H (base H_b, T_b, p_b, lapse L = dT/dH) [1, eqs. 23, 33a, 33b]:
 
-    >>> round(float(standard_atmosphere(11000.0).pressure_pa), 2)
-    22632.06
+        T = T_b + L (H - H_b)
+        p = p_b (T_b / T)^(g0 / (R L))            (L != 0)
+        p = p_b exp(-g0 (H - H_b) / (R T_b))       (L == 0)
+
+    then with the day's temperature T_day = T + dT: rho = p / (R T_day),
+    a = sqrt(g R T_day); g0 = 9.80665 m/s^2, R = 287.0531 J/(kg K), g = 1.4.
+
+    Parameters
+    ----------
+    altitude_m : array_like
+        Geopotential (pressure) altitude H, m, any array shape; the model spans
+        -5 000 m to 84 852 m.
+    isa_offset_k : array_like
+        Temperature offset dT from the standard day, K (broadcasts with ``altitude_m``);
+        the pressure is the standard one at the same altitude.
+
+    Returns
+    -------
+    Atmosphere
+        ``temperature_k`` (K), ``pressure_pa`` (Pa), ``density_kg_m3`` (kg/m^3),
+        ``speed_of_sound_m_s`` (m/s) and ``inside_model`` (bool). Outside the model's
+        range, or where T_day <= 0 K, the values are NaN and ``inside_model`` is False
+        (the caller flags ``outside-atmosphere``).
+
+    Examples
+    --------
+    U.S. Standard Atmosphere 1976 [1]: at H = 11 000 m, T = 216.65 K, p = 22 632 Pa,
+    rho = 0.36392 kg/m^3, a = 295.07 m/s; at sea level rho = 1.2250 kg/m^3, a = 340.29 m/s.
+
+    >>> s = standard_atmosphere(11000.0)
+    >>> print(f"{float(s.temperature_k):.2f} {float(s.pressure_pa):.0f} {float(s.density_kg_m3):.5f} "
+    ...       f"{float(s.speed_of_sound_m_s):.2f}")
+    216.65 22632 0.36392 295.07
+    >>> s = standard_atmosphere(0.0)
+    >>> print(f"{float(s.density_kg_m3):.4f} {float(s.speed_of_sound_m_s):.2f}")
+    1.2250 340.29
+
+    An ISA+20 day at 5 000 m keeps the standard pressure (54 020 Pa [1]) at 255.65 + 20 K:
+
+    >>> s = standard_atmosphere(5000.0, 20.0)
+    >>> print(f"{float(s.temperature_k):.2f} {float(s.pressure_pa):.0f}")
+    275.65 54020
     """
     h = np.asarray(altitude_m, dtype=float)
     dt = np.asarray(isa_offset_k, dtype=float)
@@ -107,12 +144,48 @@ def standard_atmosphere(altitude_m, isa_offset_k=0.0) -> Atmosphere:
 
 
 def geometric_to_geopotential(z_m):
-    """Geopotential altitude H = r0 z / (r0 + z), m, from geometric altitude z (m) [1, eq. 18]."""
+    """Geopotential altitude H = r0 z / (r0 + z), m, from geometric altitude z [1, eq. 18].
+
+    Parameters
+    ----------
+    z_m : array_like
+        Geometric altitude z, m (r0 = 6 356 766 m, the 1976 standard's effective earth radius).
+
+    Returns
+    -------
+    ndarray
+        Geopotential altitude H, m.
+
+    Examples
+    --------
+    U.S. Standard Atmosphere 1976 [1]: the model's top, 86 km geometric, is 84 852 m geopotential.
+
+    >>> print(f"{float(geometric_to_geopotential(86000.0)):.0f}")
+    84852
+    """
     z = np.asarray(z_m, dtype=float)
     return EARTH_RADIUS_M * z / (EARTH_RADIUS_M + z)
 
 
 def geopotential_to_geometric(h_m):
-    """Geometric altitude z = r0 H / (r0 - H), m, from geopotential altitude H (m) [1, eq. 18]."""
+    """Geometric altitude z = r0 H / (r0 - H), m, from geopotential altitude H [1, eq. 18].
+
+    Parameters
+    ----------
+    h_m : array_like
+        Geopotential altitude H, m (r0 = 6 356 766 m).
+
+    Returns
+    -------
+    ndarray
+        Geometric altitude z, m.
+
+    Examples
+    --------
+    U.S. Standard Atmosphere 1976 [1]: the tropopause, H = 11 000 m, is at z = 11 019 m.
+
+    >>> print(f"{float(geopotential_to_geometric(11000.0)):.0f}")
+    11019
+    """
     h = np.asarray(h_m, dtype=float)
     return EARTH_RADIUS_M * h / (EARTH_RADIUS_M - h)

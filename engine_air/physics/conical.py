@@ -154,9 +154,27 @@ def _family(cone_deg: float) -> _Family:
 
 
 def detachment_mach(cone_half_angle_deg: float) -> float:
-    """Lowest flight Mach number at which a cone of half-angle ``cone_half_angle_deg`` (deg) carries an
-    attached shock (the minimum of M0 over the Taylor-Maccoll family [1, 3]). Example: about 1.21 for a
-    20 deg cone (NACA Report 1135 [4], chart 5, at chart precision)."""
+    """Lowest flight Mach number at which a cone carries an attached shock: the minimum of M0 over the
+    Taylor-Maccoll family of the cone [1, 3].
+
+    Parameters
+    ----------
+    cone_half_angle_deg : float
+        Cone half-angle, deg.
+
+    Returns
+    -------
+    float
+        Detachment Mach number (dimensionless).
+
+    Examples
+    --------
+    About 1.21 for a 20 deg cone (NACA Report 1135 [4], chart 5, at chart precision; pygasflow agrees in
+    the tests):
+
+    >>> round(detachment_mach(20.0), 3)
+    1.211
+    """
     return _family(round(float(cone_half_angle_deg), _ROUND)).detachment_mach
 
 
@@ -353,10 +371,27 @@ def _series(theta_c, beta, c_r, c_w):
 
 
 def solve_columns(flight_mach, cone_half_angle_deg: float) -> None:
-    """Solve every not yet cached attached column of ``flight_mach`` (array) for one cone together: one
-    vectorised ``solve_ivp`` per Newton step on the surface Mach numbers (two or three in all), started from
-    the family table; the results fill the per-column cache of ``cone_solution``. Columns a batch does not
-    settle are left to ``cone_solution``'s own per-column solve."""
+    """Solve every not yet cached attached column of ``flight_mach`` for one cone together: one vectorised
+    ``solve_ivp`` per Newton step on the surface Mach numbers (two or three in all), started from the family
+    table; the results fill the per-column cache of ``cone_solution``. Columns a batch does not settle are
+    left to ``cone_solution``'s own per-column solve. Fewer than four new columns: nothing is done.
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach numbers M0 (dimensionless), any shape.
+    cone_half_angle_deg : float
+        Cone half-angle, deg.
+
+    Examples
+    --------
+    The batch and the single-column solve agree to the column matching (1e-6 in M0):
+
+    >>> import numpy as np
+    >>> solve_columns(np.linspace(1.5, 2.5, 11), 20.0)
+    >>> round(cone_solution(2.0, 20.0).wave_angle_deg, 4)
+    37.7959
+    """
     cone = round(float(cone_half_angle_deg), _ROUND)
     if not cone > 0.0:
         return
@@ -410,18 +445,44 @@ _BATCH_SOLUTIONS: dict[float, dict[float, ConeSolution]] = {}
 
 
 def clear_cache() -> None:
-    """Empty every per-column and per-cone cache (for timing from cold)."""
+    """Empty every per-column and per-cone cache (for timing from cold).
+
+    Examples
+    --------
+    >>> clear_cache()
+    >>> round(cone_solution(2.0, 20.0).surface_mach, 3)
+    1.568
+    """
     _BATCH_SOLUTIONS.clear()
     _family.cache_clear()
     _cone_solution_cached.cache_clear()
 
 
 def cone_solution(flight_mach: float, cone_half_angle_deg: float) -> ConeSolution | None:
-    """The weak conical-shock solution for a cone of half-angle ``cone_half_angle_deg`` (deg) at flight Mach
-    ``flight_mach``, or ``None`` where M0 <= 1 or the shock is detached (M0 below ``detachment_mach``).
+    """The weak conical-shock solution for one cone at one flight Mach number [1] (cached on (M0, angle)
+    rounded to 1e-9).
 
-    Cached on (M0, angle) rounded to 1e-9. Source: Taylor-Maccoll [1]. Example (NASA SP-3004 [3] and
-    NACA Report 1135 [4], chart precision): a 10 deg cone at M0 = 2 has beta of about 31.2 deg.
+    Parameters
+    ----------
+    flight_mach : float
+        Flight Mach number M0 (dimensionless).
+    cone_half_angle_deg : float
+        Cone half-angle, deg.
+
+    Returns
+    -------
+    ConeSolution or None
+        Wave angle (deg), surface Mach, shock total-pressure ratio, surface pressure ratio p_c/p0 and the
+        flow on every ray (``ray``); ``None`` where M0 <= 1 or the shock is detached (M0 below
+        ``detachment_mach``).
+
+    Examples
+    --------
+    A 10 deg cone at M0 = 2: beta about 31.2 deg (NASA SP-3004 [3], NACA Report 1135 [4], chart precision);
+    a 41 deg cone detaches there.
+
+    >>> round(cone_solution(2.0, 10.0).wave_angle_deg, 1), cone_solution(2.0, 41.0)
+    (31.2, None)
     """
     m0 = round(float(flight_mach), _ROUND)
     cone = round(float(cone_half_angle_deg), _ROUND)
@@ -447,7 +508,28 @@ class ConeFlow:
 def cone_flow(flight_mach, cone_half_angle_deg: float) -> ConeFlow:
     """Wave angle, surface Mach and pressure ratios for one cone at an array of flight Mach numbers.
 
-    The unique Mach numbers of the array are solved once each (``cone_solution``, cached) and mapped back.
+    The unique Mach numbers of the array are solved once each (``solve_columns``, then ``cone_solution``,
+    cached) and mapped back.
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach numbers M0 (dimensionless), any shape.
+    cone_half_angle_deg : float
+        Cone half-angle, deg.
+
+    Returns
+    -------
+    ConeFlow
+        Arrays of the Mach array's shape; NaN where subsonic or detached, ``detached`` true where the
+        flight is supersonic and the shock detached.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> f = cone_flow(np.array([0.8, 1.1, 2.0]), 20.0)
+    >>> print(np.round(np.degrees(f.wave_angle_rad), 2), f.detached)
+    [ nan  nan 37.8] [False  True False]
     """
     m0 = np.asarray(flight_mach, dtype=float)
     uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)

@@ -65,7 +65,26 @@ def max_deflection_shock(upstream_mach, gamma=GAMMA) -> ShockPoint:
 
     sin^2(beta_m) = [(g+1)/4 M^2 - 1 + sqrt((g+1)((g+1)/16 M^4 + (g-1)/2 M^2 + 1))] / (g M^2).
 
-    Example (NACA Report 1135, chart 2): at M = 2 the largest deflection is 22.97 deg, at beta_m = 64.67 deg.
+    Parameters
+    ----------
+    upstream_mach : array_like
+        Mach number ahead of the shock (> 1).
+    gamma : float
+        Ratio of specific heats.
+
+    Returns
+    -------
+    ShockPoint
+        Wave angle and deflection (rad), downstream Mach, static and total-pressure ratios.
+
+    Examples
+    --------
+    NACA Report 1135, chart 2: at M = 2 the largest deflection is 22.97 deg, at beta_m = 64.67 deg.
+
+    >>> import numpy as np
+    >>> s = max_deflection_shock(2.0)
+    >>> print(f"{np.degrees(s.deflection_rad):.2f} {np.degrees(s.wave_angle_rad):.2f}")
+    22.97 64.67
     """
     m = np.asarray(upstream_mach, dtype=float)
     ms = np.where(m > 1.0, m, 2.0)
@@ -80,7 +99,26 @@ def sonic_shock(upstream_mach, gamma=GAMMA) -> ShockPoint:
 
     sin^2(sigma*) = [(g+1)/4 M^2 - (3-g)/4 + sqrt((g+1)((9+g)/16 - (3-g)/8 M^2 + (g+1)/16 M^4))] / (g M^2).
 
-    Example: at M = 2, sigma* = 61.49 deg (a little below the 64.67 deg of maximum deflection).
+    Parameters
+    ----------
+    upstream_mach : array_like
+        Mach number ahead of the shock (> 1).
+    gamma : float
+        Ratio of specific heats.
+
+    Returns
+    -------
+    ShockPoint
+        Wave angle and deflection (rad), downstream Mach (1), static and total-pressure ratios.
+
+    Examples
+    --------
+    At M = 2, sigma* = 61.49 deg, a little below the 64.67 deg of maximum deflection:
+
+    >>> import numpy as np
+    >>> s = sonic_shock(2.0)
+    >>> print(f"{np.degrees(s.wave_angle_rad):.2f} {float(s.downstream_mach):.6f}")
+    61.49 1.000000
     """
     m = np.asarray(upstream_mach, dtype=float)
     ms = np.where(m > 1.0, m, 2.0)
@@ -121,8 +159,32 @@ def moeckel_bow_shock(flight_mach, body_flow_angle_rad=0.0, axisymmetric: bool =
     (rad), by Moeckel's method [1] as described in the module docstring (M0 > 1; arrays).
 
     The stand-off of the shock vertex ahead of a nose at the sonic point's axial station is ``-vertex_x``.
-    Example: for a flat-faced 2-D body (theta_b = 0) the stand-off grows without bound as M0 falls to 1
-    (K -> 1) and shrinks with rising M0.
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach number M0 (> 1).
+    body_flow_angle_rad : array_like
+        Flow direction at the body's sonic point, rad (0: a flat face or a cowl lip).
+    axisymmetric : bool
+        True for a body of revolution, False for a plane (2-D) body.
+    gamma : float
+        Ratio of specific heats.
+
+    Returns
+    -------
+    BowShock
+        Vertex position, hyperbola parameter, the shock's sonic point and the Mach angle; ``x_at(y)`` and
+        ``wave_angle_at(y)`` give the shape.
+
+    Examples
+    --------
+    Flat faces (theta_b = 0) at M0 = 2: the stand-off is 2.27 sonic-point heights for a 2-D body and 0.89
+    radii for a disk, smaller the faster the flight:
+
+    >>> b2, ba = moeckel_bow_shock(2.0), moeckel_bow_shock(2.0, axisymmetric=True)
+    >>> print(f"{-float(b2.vertex_x):.2f} {-float(ba.vertex_x):.2f}")
+    2.27 0.89
     """
     m0 = np.asarray(flight_mach, dtype=float)
     ms = np.where(m0 > 1.0, m0, 2.0)
@@ -148,6 +210,26 @@ def detached_cone_capture_blend(flight_mach, detachment_mach, value_at_detachmen
     per flight Mach column; between M0 = 1 (a normal shock that turns nothing: capture 1, no pre-entry
     pressure rise ahead of the shock) and detachment the capture is taken linear in M0 (a simplification,
     continuous at both ends).
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach number M0 (dimensionless).
+    detachment_mach : float
+        The cone's detachment Mach number.
+    value_at_detachment, value_at_mach_one : float
+        The quantity just attached and at M0 = 1.
+
+    Returns
+    -------
+    numpy.ndarray
+        The quantity, held at the end values outside [1, detachment Mach].
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> print(detached_cone_capture_blend(np.array([1.0, 1.1, 1.2]), 1.2, 0.8, 1.0))
+    [1.  0.9 0.8]
     """
     m0 = np.asarray(flight_mach, dtype=float)
     w = np.clip((m0 - 1.0) / (detachment_mach - 1.0), 0.0, 1.0)

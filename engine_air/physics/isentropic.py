@@ -1,18 +1,14 @@
-"""One-dimensional compressible flow of a perfect gas: isentropic relations,
-the mass-flow function and its inverse, normal and weak oblique shocks.
+"""One-dimensional isentropic flow of a perfect gas: static-to-total ratios,
+area ratio, the mass-flow function and its inverse (shocks: ``engine_air.physics.shocks``).
 
 All functions take numpy arrays of any shape (they broadcast) and use
 gamma = 1.4 unless told otherwise. Equation numbers refer to NACA Report 1135 [1].
 
-Worked examples [1]: at M = 2, p/p_t = 0.12780, T/T_t = 0.55556, A/A* = 1.6875;
-a normal shock at M1 = 2 gives M2 = 0.57735, p_t2/p_t1 = 0.72087, p2/p1 = 4.5;
-an oblique shock at M1 = 2 turning the flow 10 degrees has a wave angle of
-39.31 degrees, M2 = 1.6405 and p_t2/p_t1 = 0.98464.
+Worked examples [1, Table I]: at M = 2, p/p_t = 0.12780, T/T_t = 0.55556,
+rho/rho_t = 0.23005, A/A* = 1.6875; at M = 0.5, p/p_t = 0.84302, A/A* = 1.3398.
 
 [1] NACA Report 1135, Equations, Tables, and Charts for Compressible Flow (1953).
-[2] Thompson, M. J., "A note on the calculation of oblique shock-wave characteristics",
-    J. Aero. Sci. 17 (1950) 741; closed-form wave angle as given by
-    Wolf, T., "Comment on approximate formula of weak oblique shock wave angle", AIAA J. 31 (1993).
+[2] U.S. Standard Atmosphere, 1976, NOAA/NASA/USAF: R = R*/M0 = 8314.32/28.9644 J/(kg K).
 """
 
 from __future__ import annotations
@@ -41,28 +37,138 @@ def _power(base, exponent):
 
 
 def temperature_ratio(mach, gamma=GAMMA):
-    """Static-to-total temperature T/T_t = (1 + (g-1)/2 M^2)^-1, dimensionless [1, eq. 43]."""
+    """Static-to-total temperature ratio T/T_t of isentropic flow [1, eq. 43].
+
+    T/T_t = (1 + (g-1)/2 M^2)^-1
+
+    Parameters
+    ----------
+    mach : array_like
+        Mach number M (dimensionless, >= 0).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        T/T_t (dimensionless), the shape of ``mach``.
+
+    Examples
+    --------
+    NACA Report 1135, Table I: T/T_t = 0.55556 at M = 2, 0.95238 at M = 0.5.
+
+    >>> print(f"{float(temperature_ratio(2.0)):.5f} {float(temperature_ratio(0.5)):.5f}")
+    0.55556 0.95238
+    """
     return 1.0 / _isentropic_base(mach, gamma)
 
 
 def pressure_ratio(mach, gamma=GAMMA):
-    """Static-to-total pressure p/p_t = (1 + (g-1)/2 M^2)^(-g/(g-1)), dimensionless [1, eq. 44]."""
+    """Static-to-total pressure ratio p/p_t of isentropic flow [1, eq. 44].
+
+    p/p_t = (1 + (g-1)/2 M^2)^(-g/(g-1))
+
+    Parameters
+    ----------
+    mach : array_like
+        Mach number M (dimensionless, >= 0).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        p/p_t (dimensionless), the shape of ``mach``.
+
+    Examples
+    --------
+    NACA Report 1135, Table I: p/p_t = 0.12780 at M = 2, 0.84302 at M = 0.5.
+
+    >>> print(f"{float(pressure_ratio(2.0)):.5f} {float(pressure_ratio(0.5)):.5f}")
+    0.12780 0.84302
+    """
     return _power(_isentropic_base(mach, gamma), -gamma / (gamma - 1.0))
 
 
 def density_ratio(mach, gamma=GAMMA):
-    """Static-to-total density rho/rho_t = (1 + (g-1)/2 M^2)^(-1/(g-1)), dimensionless [1, eq. 45]."""
+    """Static-to-total density ratio rho/rho_t of isentropic flow [1, eq. 45].
+
+    rho/rho_t = (1 + (g-1)/2 M^2)^(-1/(g-1))
+
+    Parameters
+    ----------
+    mach : array_like
+        Mach number M (dimensionless, >= 0).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        rho/rho_t (dimensionless), the shape of ``mach``.
+
+    Examples
+    --------
+    NACA Report 1135, Table I: rho/rho_t = 0.23005 at M = 2.
+
+    >>> print(f"{float(density_ratio(2.0)):.5f}")
+    0.23005
+    """
     return _isentropic_base(mach, gamma) ** (-1.0 / (gamma - 1.0))
 
 
 def dynamic_to_total_pressure(mach, gamma=GAMMA):
-    """q/p_t = (g/2) M^2 (p/p_t), dimensionless (q = rho V^2 / 2 = g p M^2 / 2)."""
+    """Dynamic-to-total pressure ratio q/p_t [1, Table I, column q/p_t].
+
+    q/p_t = (g/2) M^2 (p/p_t), since q = rho V^2 / 2 = g p M^2 / 2.
+
+    Parameters
+    ----------
+    mach : array_like
+        Mach number M (dimensionless, >= 0).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        q/p_t (dimensionless), the shape of ``mach``.
+
+    Examples
+    --------
+    NACA Report 1135, Table I: q/p_t = 0.10031 at M = 0.4.
+
+    >>> print(f"{float(dynamic_to_total_pressure(0.4)):.5f}")
+    0.10031
+    """
     m = np.asarray(mach, dtype=float)
     return 0.5 * gamma * m * m * pressure_ratio(m, gamma)
 
 
 def area_ratio(mach, gamma=GAMMA):
-    """A/A* = (1/M) [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^((g+1)/(2(g-1))), dimensionless [1, eq. 80]."""
+    """Isentropic area ratio A/A* (flow area over the sonic area of the same flow) [1, eq. 80].
+
+    A/A* = (1/M) [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^((g+1)/(2(g-1)))
+
+    Parameters
+    ----------
+    mach : array_like
+        Mach number M (dimensionless, >= 0; infinite at M = 0).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        A/A* (dimensionless, >= 1), the shape of ``mach``.
+
+    Examples
+    --------
+    NACA Report 1135, Table I: A/A* = 1.6875 at M = 2, 1.3398 at M = 0.5.
+
+    >>> print(f"{float(area_ratio(2.0)):.4f} {float(area_ratio(0.5)):.4f}")
+    1.6875 1.3398
+    """
     m = np.asarray(mach, dtype=float)
     with np.errstate(divide="ignore"):
         return _power(2.0 / (gamma + 1.0) * _isentropic_base(m, gamma), (gamma + 1.0) / (2.0 * (gamma - 1.0))) / m
@@ -71,21 +177,84 @@ def area_ratio(mach, gamma=GAMMA):
 def mass_flow_parameter(mach, gamma=GAMMA, r=R_AIR):
     """Mass-flow function MFP = W sqrt(T_t) / (A p_t), kg K^0.5 / (N s).
 
-    MFP(M) = sqrt(g/R) M (1 + (g-1)/2 M^2)^(-(g+1)/(2(g-1))).
-    At M = 1 (choking) and air, MFP* = 0.0404147; times p_ref/sqrt(T_ref) this is
-    the choking corrected flow per unit area, 241.24 kg/(s m^2).
+    MFP(M) = sqrt(g/R) M (1 + (g-1)/2 M^2)^(-(g+1)/(2(g-1)))
+
+    from continuity with the isentropic relations [1, eqs. 43-45]; MFP/MFP* = A*/A
+    [1, eq. 80]. At M = 1 (choking) and air, MFP* = 0.0404147; times
+    p_ref/sqrt(T_ref) this is the choking corrected flow per unit area, 241.24 kg/(s m^2).
+
+    Parameters
+    ----------
+    mach : array_like
+        Mach number M (dimensionless, >= 0).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+    r : float
+        Specific gas constant R, J/(kg K); 8314.32/28.9644 = 287.0531 for air [2].
+
+    Returns
+    -------
+    ndarray
+        MFP, kg K^0.5 / (N s), the shape of ``mach``.
+
+    Examples
+    --------
+    MFP*/MFP = A/A*, 1.3398 at M = 0.5 (NACA Report 1135, Table I):
+
+    >>> print(f"{choked_mass_flow_parameter() / float(mass_flow_parameter(0.5)):.4f}")
+    1.3398
     """
     m = np.asarray(mach, dtype=float)
     return np.sqrt(gamma / r) * m * _power(_isentropic_base(m, gamma), -(gamma + 1.0) / (2.0 * (gamma - 1.0)))
 
 
 def choked_mass_flow_parameter(gamma=GAMMA, r=R_AIR) -> float:
-    """MFP at M = 1, kg K^0.5 / (N s)."""
+    """Mass-flow function at choking, MFP* = sqrt(g/R) ((g+1)/2)^(-(g+1)/(2(g-1))), kg K^0.5 / (N s).
+
+    Parameters
+    ----------
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+    r : float
+        Specific gas constant R, J/(kg K); 287.0531 for air [2].
+
+    Returns
+    -------
+    float
+        MFP*, kg K^0.5 / (N s): sqrt(1.4/287.0531) / 1.2^3 = 0.0404147 for air (worked from the formula).
+
+    Examples
+    --------
+    >>> print(f"{choked_mass_flow_parameter():.7f}")
+    0.0404147
+    """
     return float(mass_flow_parameter(1.0, gamma, r))
 
 
 def choked_corrected_flow_per_area(gamma=GAMMA, r=R_AIR) -> float:
-    """Choking corrected flow per unit area, W_c/A = MFP* p_ref / sqrt(T_ref), kg/(s m^2) (241.24 for air)."""
+    """Choking corrected flow per unit area, W_c/A = MFP* p_ref / sqrt(T_ref), kg/(s m^2).
+
+    The largest corrected flow a duct section can pass (M = 1 there), with
+    p_ref = 101 325 Pa and T_ref = 288.15 K (the 1976 sea-level values [2]).
+
+    Parameters
+    ----------
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+    r : float
+        Specific gas constant R, J/(kg K); 287.0531 for air [2].
+
+    Returns
+    -------
+    float
+        W_c/A at choking, kg/(s m^2): 0.0404147 x 101325 / sqrt(288.15) = 241.24 for air
+        (49.4 lbm/(s ft^2)).
+
+    Examples
+    --------
+    >>> print(f"{choked_corrected_flow_per_area():.2f}")
+    241.24
+    """
     from engine_air.physics.constants import P_REF, T_REF
 
     return choked_mass_flow_parameter(gamma, r) * P_REF / np.sqrt(T_REF)
@@ -116,12 +285,37 @@ def _tables(gamma):
 
 
 def mach_from_flow_ratio(flow_ratio, supersonic=False, gamma=GAMMA):
-    """Mach number from MFP/MFP* = A*/A, dimensionless, on the chosen branch.
+    """Mach number from the flow ratio MFP/MFP* = A*/A, on the chosen branch: the inverse of [1, eq. 80].
 
-    Returns NaN where ``flow_ratio`` > 1 (more flow than choking allows) or is
-    not finite, 1 where it equals 1, 0 (subsonic) where it is 0.
-    Accurate to about 1e-11 in Mach number (about 1e-8 within 1e-6 of Mach 1, where the
-    flow ratio itself no longer resolves the Mach number in double precision).
+    Solves A*/A = M [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^(-(g+1)/(2(g-1))) for M: a
+    table start value, then one Newton step.
+
+    Parameters
+    ----------
+    flow_ratio : array_like
+        MFP/MFP* = A*/A (dimensionless, 0..1).
+    supersonic : bool
+        The supersonic root (M > 1) instead of the subsonic one (M < 1).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        Mach number (dimensionless), the shape of ``flow_ratio``: NaN where
+        ``flow_ratio`` > 1 (more flow than choking allows) or is not finite,
+        1 where it equals 1, 0 (subsonic) where it is 0. Accurate to about 1e-11
+        in Mach number (about 1e-8 within 1e-6 of Mach 1, where the flow ratio
+        itself no longer resolves the Mach number in double precision).
+
+    Examples
+    --------
+    NACA Report 1135, Table I: A/A* = 1.6875 at M = 2 and 1.3398 at M = 0.5.
+
+    >>> print(f"{float(mach_from_flow_ratio(1 / 1.6875, supersonic=True)):.4f}")
+    2.0000
+    >>> print(f"{float(mach_from_flow_ratio(1 / 1.3398)):.4f}")
+    0.5000
     """
     r = np.asarray(flow_ratio, dtype=float)
     s_sub, m_sub, s_sup, m_sup = _tables(gamma)
@@ -145,8 +339,30 @@ def mach_from_flow_ratio(flow_ratio, supersonic=False, gamma=GAMMA):
 
 
 def mach_from_mass_flow_parameter(mfp, supersonic=False, gamma=GAMMA, r=R_AIR):
-    """Mach number from MFP = W sqrt(T_t)/(A p_t) in kg K^0.5/(N s); subsonic root unless ``supersonic``.
+    """Mach number from the mass-flow function MFP = W sqrt(T_t)/(A p_t): ``mach_from_flow_ratio(MFP/MFP*)``.
 
-    NaN where MFP exceeds the choking value (no solution).
+    Parameters
+    ----------
+    mfp : array_like
+        Mass-flow function, kg K^0.5 / (N s).
+    supersonic : bool
+        The supersonic root instead of the subsonic one.
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+    r : float
+        Specific gas constant R, J/(kg K); 287.0531 for air [2].
+
+    Returns
+    -------
+    ndarray
+        Mach number (dimensionless); NaN where MFP exceeds the choking value (no solution).
+
+    Examples
+    --------
+    A corrected flow of 180.05 kg/s per m^2 of face, MFP = (W_c/A) sqrt(T_ref)/p_ref, puts the
+    face at M = 0.5 (A/A* = 1.3398 at M = 0.5, NACA Report 1135, Table I, gives 241.24/1.3398):
+
+    >>> print(f"{float(mach_from_mass_flow_parameter(180.05 * 288.15**0.5 / 101325.0)):.3f}")
+    0.500
     """
     return mach_from_flow_ratio(np.asarray(mfp, dtype=float) / choked_mass_flow_parameter(gamma, r), supersonic, gamma)

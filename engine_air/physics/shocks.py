@@ -2,9 +2,11 @@
 
 Equation numbers refer to NACA Report 1135 [1].
 
-Worked examples [1]: a normal shock at M1 = 2 gives M2 = 0.57735, p_t2/p_t1 = 0.72087, p2/p1 = 4.5;
-an oblique shock at M1 = 2 turning the flow 10 degrees has a wave angle of
-39.31 degrees, M2 = 1.6405 and p_t2/p_t1 = 0.98464.
+Worked examples: a normal shock at M1 = 2 gives M2 = 0.57735, p_t2/p_t1 = 0.72087,
+p2/p1 = 4.5000 [1, Table II]; an oblique shock at M1 = 2 turning the flow 10 degrees
+has a wave angle of about 39.3 degrees, M2 about 1.64 and p_t2/p_t1 about 0.985
+[1, Chart 2 and the oblique-shock charts, read by eye; 39.314 deg, 1.6405 and 0.98464
+from the relations].
 
 [1] NACA Report 1135, Equations, Tables, and Charts for Compressible Flow (1953).
 [2] Thompson, M. J., "A note on the calculation of oblique shock-wave characteristics",
@@ -37,9 +39,32 @@ def normal_shock(upstream_mach, gamma=GAMMA) -> NormalShock:
 
     M2^2 = (1 + (g-1)/2 M1^2) / (g M1^2 - (g-1)/2)
     p2/p1 = 1 + 2g/(g+1) (M1^2 - 1)
+    T2/T1 = (p2/p1) (2 + (g-1) M1^2) / ((g+1) M1^2)
     p_t2/p_t1 = [(g+1) M1^2 / ((g-1) M1^2 + 2)]^(g/(g-1)) [(g+1) / (2 g M1^2 - (g-1))]^(1/(g-1))
 
-    Where M1 <= 1 there is no shock: M2 = M1 and every ratio is 1.
+    Parameters
+    ----------
+    upstream_mach : array_like
+        Mach number M1 ahead of the shock (dimensionless).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    NormalShock
+        ``downstream_mach`` M2, ``total_pressure_ratio`` p_t2/p_t1, ``static_pressure_ratio``
+        p2/p1 and ``static_temperature_ratio`` T2/T1 (all dimensionless, the shape of
+        ``upstream_mach``). Where M1 <= 1 there is no shock: M2 = M1 and every ratio is 1.
+
+    Examples
+    --------
+    NACA Report 1135, Table II: at M1 = 2, M2 = 0.57735, p_t2/p_t1 = 0.72087,
+    p2/p1 = 4.5000, T2/T1 = 1.6875.
+
+    >>> ns = normal_shock(2.0)
+    >>> print(f"{float(ns.downstream_mach):.5f} {float(ns.total_pressure_ratio):.5f} "
+    ...       f"{float(ns.static_pressure_ratio):.4f} {float(ns.static_temperature_ratio):.4f}")
+    0.57735 0.72087 4.5000 1.6875
     """
     m1 = np.asarray(upstream_mach, dtype=float)
     shock = m1 > 1.0
@@ -64,7 +89,27 @@ def max_deflection_rad(upstream_mach, gamma=GAMMA):
     """Largest flow deflection (rad) for an attached oblique shock at M1 [1, eq. 168].
 
     sin^2(beta_max) = [ (g+1)/4 M^2 - 1 + sqrt((g+1)((g+1)/16 M^4 + (g-1)/2 M^2 + 1)) ] / (g M^2),
-    then the deflection from the theta-beta-M relation. 0 where M1 <= 1.
+    then the deflection from the theta-beta-M relation [1, eq. 138].
+
+    Parameters
+    ----------
+    upstream_mach : array_like
+        Mach number M1 ahead of the shock (dimensionless).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        Maximum deflection theta_max, rad; 0 where M1 <= 1.
+
+    Examples
+    --------
+    NACA Report 1135, Chart 2 (read by eye): about 23 deg at M1 = 2 (22.97 deg from the relation).
+
+    >>> import math
+    >>> print(f"{math.degrees(float(max_deflection_rad(2.0))):.1f}")
+    23.0
     """
     m = np.asarray(upstream_mach, dtype=float)
     sup = m > 1.0
@@ -76,9 +121,31 @@ def max_deflection_rad(upstream_mach, gamma=GAMMA):
 
 
 def deflection_from_wave_angle(upstream_mach, wave_angle_rad, gamma=GAMMA):
-    """Flow deflection (rad) behind an oblique shock of wave angle beta at M1 [1, eq. 138]:
+    """Flow deflection (rad) behind an oblique shock of wave angle beta at M1 [1, eq. 138].
 
-    tan(theta) = 2 cot(beta) (M^2 sin^2 beta - 1) / (M^2 (g + cos 2 beta) + 2).
+    tan(theta) = 2 cot(beta) (M^2 sin^2 beta - 1) / (M^2 (g + cos 2 beta) + 2)
+
+    Parameters
+    ----------
+    upstream_mach : array_like
+        Mach number M1 ahead of the shock (dimensionless).
+    wave_angle_rad : array_like
+        Wave angle beta between the shock and the upstream flow, rad (broadcasts with M1).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        Deflection theta, rad (0 for a Mach wave, beta = asin(1/M1), and for a normal shock, beta = 90 deg).
+
+    Examples
+    --------
+    NACA Report 1135, Chart 2 (read by eye): at M1 = 2 a wave angle of 39.3 deg turns the flow 10 deg.
+
+    >>> import math
+    >>> print(f"{math.degrees(float(deflection_from_wave_angle(2.0, math.radians(39.3)))):.1f}")
+    10.0
     """
     m = np.asarray(upstream_mach, dtype=float)
     b = np.asarray(wave_angle_rad, dtype=float)
@@ -152,9 +219,42 @@ def oblique_shock(upstream_mach, deflection_rad, gamma=GAMMA) -> ObliqueShock:
         tan(beta) = (M^2 - 1 + 2 L cos((4 pi + acos X)/3)) / (3 (1 + (g-1)/2 M^2) tan(theta))
         L = sqrt((M^2 - 1)^2 - 3 (1 + (g-1)/2 M^2)(1 + (g+1)/2 M^2) tan^2(theta))
         X = ((M^2 - 1)^3 - 9 (1 + (g-1)/2 M^2)(1 + (g-1)/2 M^2 + (g+1)/4 M^4) tan^2(theta)) / L^3
-    then the normal-shock relations on M1 sin(beta), and M2 = M_n2 / sin(beta - theta) [1, eq. 132].
-    A zero deflection is a Mach wave (beta = asin(1/M), no loss). The shock is
-    detached where M1 <= 1 or theta exceeds ``max_deflection_rad(M1)``.
+    polished by Newton steps on the theta-beta-M relation [1, eq. 138] where it
+    loses precision (small deflections), then the normal-shock relations on
+    M1 sin(beta), and M2 = M_n2 / sin(beta - theta) [1, eq. 132].
+
+    Parameters
+    ----------
+    upstream_mach : array_like
+        Mach number M1 ahead of the shock (dimensionless).
+    deflection_rad : array_like
+        Flow deflection theta (ramp angle), rad, >= 0 (broadcasts with M1).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ObliqueShock
+        ``wave_angle_rad`` beta (rad), ``downstream_mach`` M2, ``total_pressure_ratio``
+        p_t2/p_t1, ``static_pressure_ratio`` p2/p1 and ``attached`` (bool). A zero
+        deflection is a Mach wave (beta = asin(1/M1), no loss). The shock is detached
+        (NaN fields, ``attached`` False) where M1 <= 1 or theta exceeds ``max_deflection_rad(M1)``.
+
+    Examples
+    --------
+    NACA Report 1135, Chart 2 and the oblique-shock charts (read by eye): at M1 = 2 and
+    theta = 10 deg, beta is about 39.3 deg, M2 about 1.64, p_t2/p_t1 about 0.985.
+
+    >>> import math
+    >>> ob = oblique_shock(2.0, math.radians(10.0))
+    >>> print(f"{math.degrees(float(ob.wave_angle_rad)):.1f} {float(ob.downstream_mach):.2f} "
+    ...       f"{float(ob.total_pressure_ratio):.3f}")
+    39.3 1.64 0.985
+
+    A zero deflection is a Mach wave, asin(1/2) = 30 deg:
+
+    >>> print(f"{math.degrees(float(oblique_shock(2.0, 0.0).wave_angle_rad)):.4f}")
+    30.0000
     """
     m = np.asarray(upstream_mach, dtype=float)
     th = np.asarray(deflection_rad, dtype=float)

@@ -34,6 +34,7 @@ from engine_air.project.model import (
     Limits,
     Project,
     Rating,
+    Schedule,
 )
 
 MAX_FILE_BYTES = 1_048_576
@@ -64,16 +65,38 @@ MAX_TOTAL_RAMP_DEG = 40.0
 _TOP_KEYS = ("project", "limits", "inlet", "engine", "envelope", "grid", "case")
 _PROJECT_KEYS = ("format", "title", "notes")
 _LIMIT_KEYS = ("face_mach_max", "throat_mach_max", "recovery_min", "stable_flow_fraction",
-               "relative_tip_mach_max", "spillage_fraction_max")
+               "relative_tip_mach_max", "spillage_fraction_max", "started_required", "installation_loss_max")
 _INLET_KEYS = ("type", "capture_area_m2", "throat_area_m2", "face_area_m2", "duct_loss_coefficient",
-               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "cone_half_angles_deg")
-_RAMP_KEYS = ("ramp_angles_deg", "shock_on_lip_mach", "cone_half_angles_deg")
+               "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "internal_recovery_factor",
+               "schedule", "cone_half_angles_deg") + (
+    # airflow management (method section 12)
+    "supersonic_lip_suction_factor", "bleed_fraction", "bleed_exit_velocity_ratio", "bypass_area_m2",
+    "bypass_discharge_coefficient", "bypass_exit_velocity_ratio", "auxiliary_inlet_area_m2",
+    "auxiliary_door_mach_max", "auxiliary_loss_coefficient")
+_AIRFLOW_NUMBERS = (  # key, lo, hi, lo_open, hi_open, default
+    ("supersonic_lip_suction_factor", 0.0, 1.0, False, False, 0.0),
+    ("bleed_fraction", 0.0, 0.5, False, False, 0.0),
+    ("bleed_exit_velocity_ratio", 0.0, 1.0, False, False, 0.0),
+    ("bypass_area_m2", 0.0, MAX_AREA_M2, False, False, 0.0),
+    ("bypass_discharge_coefficient", 0.0, 1.0, True, False, 0.9),
+    ("bypass_exit_velocity_ratio", 0.0, 1.0, False, False, 0.0),
+    ("auxiliary_inlet_area_m2", 0.0, MAX_AREA_M2, False, False, 0.0),
+    ("auxiliary_door_mach_max", 0.0, 1.0, True, False, None),
+    ("auxiliary_loss_coefficient", 0.0, 5.0, False, False, 0.0),
+)
+_RAMP_KEYS = ("ramp_angles_deg", "shock_on_lip_mach")
+_RAMP_TYPES = ("external-ramp", "mixed-compression")
 MAX_CONES = 2
 MAX_CONE_DEG = 40.0
-_RATING_KEYS = ("name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s")
+_SCHEDULE_KEYS = ("mach", "throat_area_m2", "shock_on_lip_mach", "ramp_angles_deg", "bleed_fraction")
+_RATING_KEYS = ("name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s", "corrected_tip_speed_m_s",
+                "thrust_mach", "thrust_altitude_m", "net_thrust_n", "thrust_reference_recovery",
+                "recovery_thrust_exchange")
+_THRUST_KEYS = ("thrust_mach", "thrust_altitude_m", "net_thrust_n", "thrust_reference_recovery",
+                "recovery_thrust_exchange")
 _ENVELOPE_KEYS = ("mach", "altitude_m")
 _GRID_KEYS = ("mach_points", "altitude_points")
-_CASE_KEYS = ("name", "rating", "isa_offset_K")
+_CASE_KEYS = ("name", "rating", "isa_offset_K", "mach_range", "altitude_range_m")
 
 _MISSING = object()
 
@@ -275,6 +298,9 @@ def _read_limits(r: _Reader, data: dict) -> Limits:
                    f"not {_kind(recovery)}")
         else:
             recovery = r.check_number(recovery, "limits.recovery_min", "recovery_min", 0.0, 1.0)
+    started_required = t.get("started_required", None)
+    if started_required is not None and not isinstance(started_required, bool):
+        r.fail("limits.started_required", started_required, f"must be true or false, not {_kind(started_required)}")
     return Limits(
         face_mach_max=r.number(t, "face_mach_max", "limits.face_mach_max", 0.0, 1.0, hi_open=True),
         throat_mach_max=r.number(t, "throat_mach_max", "limits.throat_mach_max", 0.0, 1.0, default=None),
@@ -285,6 +311,9 @@ def _read_limits(r: _Reader, data: dict) -> Limits:
                                        hi_open=True, default=None),
         spillage_fraction_max=r.number(t, "spillage_fraction_max", "limits.spillage_fraction_max", 0.0, 1.0,
                                        lo_open=False, hi_open=True, default=None),
+        started_required=started_required,
+        installation_loss_max=r.number(t, "installation_loss_max", "limits.installation_loss_max", -1.0, 1.0,
+                                       hi_open=True, default=None),
     )
 
 
@@ -310,7 +339,7 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     ramps: tuple[float, ...] = ()
     cones: tuple[float, ...] = ()
     lip_mach = None
-    if kind == "external-ramp":
+    if kind in _RAMP_TYPES:
         ramps = r.number_list(t, "ramp_angles_deg", "inlet.ramp_angles_deg", 1, MAX_RAMPS, 0.0, MAX_RAMP_DEG,
                               unit="deg")
         if sum(ramps) > MAX_TOTAL_RAMP_DEG:
@@ -329,11 +358,73 @@ def _read_inlet(r: _Reader, data: dict) -> Inlet:
     else:
         for name in _RAMP_KEYS:
             if name in t:
-                owner = "axisymmetric-spike" if name == "cone_half_angles_deg" else "external-ramp"
-                r.warn(f"inlet.{name}", f'ignored: it applies to type = "{owner}" only, this inlet is "{kind}"')
+                r.warn(f"inlet.{name}", f'ignored: it applies to ramp inlets only, this inlet is "{kind}"')
+        if "cone_half_angles_deg" in t:
+            r.warn("inlet.cone_half_angles_deg",
+                   f'ignored: it applies to type = "axisymmetric-spike" only, this inlet is "{kind}"')
+    eta_int = 1.0
+    if kind == "mixed-compression":
+        eta_int = r.number(t, "internal_recovery_factor", "inlet.internal_recovery_factor", 0.0, 1.0, default=1.0)
+    elif "internal_recovery_factor" in t:
+        r.warn("inlet.internal_recovery_factor", f'ignored: it applies to type = "mixed-compression" only, '
+               f'this inlet is "{kind}"')
+    airflow = {key: r.number(t, key, f"inlet.{key}", lo, hi, lo_open=lo_o, hi_open=hi_o, default=d)
+               for key, lo, hi, lo_o, hi_o, d in _AIRFLOW_NUMBERS}
+    if airflow["auxiliary_inlet_area_m2"] > 0.0 and airflow["auxiliary_door_mach_max"] is None:
+        r.fail("inlet.auxiliary_door_mach_max", None,
+               "missing; required with auxiliary_inlet_area_m2: the flight Mach number below which the doors open")
+    schedule = _read_schedule(r, t, kind, capture, ramps)
     return Inlet(type=kind, capture_area_m2=capture, throat_area_m2=throat, face_area_m2=face,
                  duct_loss_coefficient=duct_k, lip_suction_factor=suction, ramp_angles_deg=ramps,
-                 shock_on_lip_mach=lip_mach, cone_half_angles_deg=cones)
+                 shock_on_lip_mach=lip_mach, cone_half_angles_deg=cones, internal_recovery_factor=eta_int,
+                 schedule=schedule, **airflow)
+
+
+def _read_schedule(r: _Reader, inlet_table: dict, kind: str, capture: float, ramps: tuple[float, ...]):
+    """``[inlet.schedule]`` (method section 12): lists as long as ``mach`` (strictly increasing)."""
+    t = r.table(inlet_table, "schedule", "inlet.schedule", required=False)
+    if t is None:
+        return None
+    kp = "inlet.schedule"
+    r.check_known(t, kp, _SCHEDULE_KEYS)
+    mach = r.number_list(t, "mach", f"{kp}.mach", 1, 64, 0.0, 6.0, lo_open=False)
+    for k in range(1, len(mach)):
+        if mach[k] <= mach[k - 1]:
+            r.fail(f"{kp}.mach[{k}]", t["mach"][k], f"must be greater than mach[{k - 1}] = {_g(mach[k - 1])} "
+                                                    "(the schedule's Mach numbers must increase strictly)")
+    n = len(mach)
+
+    def same_length(name, values):
+        if values is not None and len(values) != n:
+            r.fail(f"{kp}.{name}", list(t[name]), f"must have one entry per schedule mach value ({n}); "
+                                                 f"it has {len(values)}")
+        return values
+
+    throat = same_length("throat_area_m2", r.number_list(t, "throat_area_m2", f"{kp}.throat_area_m2", 1, None,
+                                                         0.0, capture, unit="m^2, at most capture_area_m2",
+                                                         required=False))
+    ramp_kind = kind in _RAMP_TYPES
+    lip = None
+    rows = None
+    if ramp_kind:
+        lip = same_length("shock_on_lip_mach", r.number_list(t, "shock_on_lip_mach", f"{kp}.shock_on_lip_mach", 1,
+                                                             None, 1.0, 5.0, required=False))
+        raw = t.get("ramp_angles_deg", _MISSING)
+        if raw is not _MISSING:
+            if not isinstance(raw, (list, tuple)):
+                r.fail(f"{kp}.ramp_angles_deg", raw, "must be a list of ramp-angle lists, one per schedule mach value")
+            rows = same_length("ramp_angles_deg", tuple(
+                r.number_list({"row": row}, "row", f"{kp}.ramp_angles_deg[{i}]", len(ramps), len(ramps), 0.0,
+                              MAX_RAMP_DEG, unit=f"deg, {len(ramps)} ramps as inlet.ramp_angles_deg")
+                for i, row in enumerate(raw)))
+    else:
+        for name in ("shock_on_lip_mach", "ramp_angles_deg"):
+            if name in t:
+                r.warn(f"{kp}.{name}", f'ignored: this inlet is "{kind}"')
+    bleed = same_length("bleed_fraction", r.number_list(t, "bleed_fraction", f"{kp}.bleed_fraction", 1, None,
+                                                        0.0, 0.5, lo_open=False, required=False))
+    return Schedule(mach=mach, throat_area_m2=throat, shock_on_lip_mach=lip, ramp_angles_deg=rows,
+                    bleed_fraction=bleed)
 
 
 def _read_ratings(r: _Reader, data: dict) -> tuple[Rating, ...]:
@@ -361,8 +452,61 @@ def _read_ratings(r: _Reader, data: dict) -> tuple[Rating, ...]:
                    f"must have one entry per theta value ({len(theta)}); it has {len(flow)}")
         tip = r.number(t, "fan_tip_speed_m_s", f"{kp}.fan_tip_speed_m_s", 0.0, MAX_TIP_SPEED_M_S, unit="m/s",
                        default=None)
-        ratings.append(Rating(name=name, theta=theta, corrected_flow_kg_s=flow, fan_tip_speed_m_s=tip))
+        corrected_tip = r.number_list(t, "corrected_tip_speed_m_s", f"{kp}.corrected_tip_speed_m_s", len(theta),
+                                      len(theta), 0.0, MAX_TIP_SPEED_M_S, unit="m/s, one per theta value",
+                                      required=False)
+        if tip is not None and corrected_tip is not None:
+            r.fail(f"{kp}.corrected_tip_speed_m_s", list(t["corrected_tip_speed_m_s"]),
+                   "give either fan_tip_speed_m_s (physical) or corrected_tip_speed_m_s (against theta), not both")
+        ratings.append(Rating(name=name, theta=theta, corrected_flow_kg_s=flow, fan_tip_speed_m_s=tip,
+                              corrected_tip_speed_m_s=corrected_tip, **_read_thrust(r, t, kp)))
     return tuple(ratings)
+
+
+def _read_thrust(r: _Reader, t: dict, kp: str) -> dict:
+    """The optional thrust table of a rating (method section 13): all of its keys or none."""
+    given = [k for k in _THRUST_KEYS if k in t]
+    if not given:
+        return {}
+    for k in _THRUST_KEYS:
+        if k not in t:
+            r.fail(f"{kp}.{k}", None, "missing; a thrust table needs thrust_mach, thrust_altitude_m, net_thrust_n, "
+                                      "thrust_reference_recovery and recovery_thrust_exchange together")
+    out = {}
+    for name, lo, hi in (("thrust_mach", 0.0, 6.0), ("thrust_altitude_m", -5000.0, 84000.0)):
+        axis = r.number_list(t, name, f"{kp}.{name}", 1, 200, lo, hi, lo_open=False)
+        for k in range(1, len(axis)):
+            if axis[k] <= axis[k - 1]:
+                r.fail(f"{kp}.{name}[{k}]", t[name][k], f"must be greater than {name}[{k - 1}] (increase strictly)")
+        out[name] = axis
+    raw = t["net_thrust_n"]
+    rows_needed, cols = len(out["thrust_altitude_m"]), len(out["thrust_mach"])
+    if not isinstance(raw, (list, tuple)) or len(raw) != rows_needed:
+        r.fail(f"{kp}.net_thrust_n", raw, f"must be a list of {rows_needed} rows (one per thrust_altitude_m value), "
+                                          f"each of {cols} numbers (one per thrust_mach value)")
+    out["net_thrust_n"] = tuple(r.number_list({"row": row}, "row", f"{kp}.net_thrust_n[{i}]", cols, cols, 0.0, 1e7,
+                                              unit="N")
+                                for i, row in enumerate(raw))
+    ref = t["thrust_reference_recovery"]
+    if isinstance(ref, str):
+        if ref.strip().lower() != REFERENCE_RECOVERY_NAME:
+            r.fail(f"{kp}.thrust_reference_recovery", ref,
+                   f"must be a number with 0 < value <= 1 or the name \"{REFERENCE_RECOVERY_NAME}\"")
+        out["thrust_reference_recovery"] = REFERENCE_RECOVERY_NAME
+    else:
+        out["thrust_reference_recovery"] = r.check_number(ref, f"{kp}.thrust_reference_recovery",
+                                                          "thrust_reference_recovery", 0.0, 1.0)
+    out["recovery_thrust_exchange"] = r.number(t, "recovery_thrust_exchange", f"{kp}.recovery_thrust_exchange",
+                                               0.0, 10.0, lo_open=False)
+    return out
+
+
+def _read_range(r: _Reader, t: dict, name: str, kp: str, lo: float, hi: float):
+    """An optional ``[lo, hi]`` pair with lo <= hi (bounds included)."""
+    pair = r.number_list(t, name, f"{kp}.{name}", 2, 2, lo, hi, lo_open=False, required=False)
+    if pair is not None and pair[1] < pair[0]:
+        r.fail(f"{kp}.{name}", list(t[name]), "must be [low, high] with low <= high")
+    return pair
 
 
 def _read_envelope(r: _Reader, data: dict) -> Envelope:
@@ -438,7 +582,9 @@ def _read_cases(r: _Reader, data: dict, ratings: tuple[Rating, ...], grid: Grid)
             r.fail(f"{kp}.rating", rating, "must name one of the engine ratings: " + ", ".join(repr(x) for x in names))
         offset = r.number(t, "isa_offset_K", f"{kp}.isa_offset_K", -100.0, 100.0, lo_open=False, unit="K",
                           default=0.0)
-        cases.append(Case(name=name, rating=rating, isa_offset_K=offset))
+        cases.append(Case(name=name, rating=rating, isa_offset_K=offset,
+                          mach_range=_read_range(r, t, "mach_range", kp, 0.0, 6.0),
+                          altitude_range_m=_read_range(r, t, "altitude_range_m", kp, -5000.0, 84852.0)))
     return tuple(cases)
 
 
@@ -447,8 +593,16 @@ def _check_physics(project: Project, path: str | os.PathLike | None) -> None:
     raised as the first ``ProjectError``."""
     from engine_air.inlets.registry import inlet_type
 
-    for key, value, allowed in inlet_type(project.inlet.type).check_design(project.inlet):
+    from engine_air.inlets.schedule import inlet_at
+
+    kind = inlet_type(project.inlet.type)
+    for key, value, allowed in kind.check_design(project.inlet):
         raise ProjectError(path, key, value, allowed)
+    schedule = project.inlet.schedule
+    if schedule is not None and not getattr(kind, "handles_schedule", False):
+        for i, m in enumerate(schedule.mach):  # each scheduled geometry as a fixed one (method section 12)
+            for key, value, allowed in kind.check_design(inlet_at(project.inlet, m)):
+                raise ProjectError(path, f"inlet.schedule (row {i}, mach {m:g}): {key}", value, allowed)
 
 
 # -- public API ----------------------------------------------------------------
@@ -542,7 +696,7 @@ def project_to_dict(project: Project) -> dict:
         "duct_loss_coefficient": inl.duct_loss_coefficient,
         "lip_suction_factor": inl.lip_suction_factor,
     }
-    if inl.type == "external-ramp":
+    if inl.type in _RAMP_TYPES:
         inlet["ramp_angles_deg"] = list(inl.ramp_angles_deg)
         if inl.shock_on_lip_mach is not None:
             inlet["shock_on_lip_mach"] = inl.shock_on_lip_mach
@@ -550,11 +704,30 @@ def project_to_dict(project: Project) -> dict:
         inlet["cone_half_angles_deg"] = list(inl.cone_half_angles_deg)
         if inl.shock_on_lip_mach is not None:
             inlet["shock_on_lip_mach"] = inl.shock_on_lip_mach
+    if inl.type == "mixed-compression":
+        inlet["internal_recovery_factor"] = inl.internal_recovery_factor
+    for key, _lo, _hi, _a, _b, default in _AIRFLOW_NUMBERS:
+        if getattr(inl, key) != default:
+            inlet[key] = getattr(inl, key)
+    if inl.schedule is not None:
+        sched = {"mach": list(inl.schedule.mach)}
+        for key in _SCHEDULE_KEYS[1:]:
+            value = getattr(inl.schedule, key)
+            if value is not None:
+                sched[key] = [list(v) for v in value] if key == "ramp_angles_deg" else list(value)
+        inlet["schedule"] = sched
     ratings = []
     for x in project.ratings:
         item: dict = {"name": x.name, "theta": list(x.theta), "corrected_flow_kg_s": list(x.corrected_flow_kg_s)}
         if x.fan_tip_speed_m_s is not None:
             item["fan_tip_speed_m_s"] = x.fan_tip_speed_m_s
+        if x.corrected_tip_speed_m_s is not None:
+            item["corrected_tip_speed_m_s"] = list(x.corrected_tip_speed_m_s)
+        for key in _THRUST_KEYS:
+            value = getattr(x, key)
+            if value is not None:
+                item[key] = [list(v) for v in value] if key == "net_thrust_n" else (
+                    list(value) if isinstance(value, tuple) else value)
         ratings.append(item)
     return {
         "project": meta,
@@ -563,8 +736,17 @@ def project_to_dict(project: Project) -> dict:
         "engine": {"rating": ratings},
         "envelope": {"mach": list(project.envelope.mach), "altitude_m": list(project.envelope.altitude_m)},
         "grid": {"mach_points": project.grid.mach_points, "altitude_points": project.grid.altitude_points},
-        "case": [{"name": c.name, "rating": c.rating, "isa_offset_K": c.isa_offset_K} for c in project.cases],
+        "case": [_case_dict(c) for c in project.cases],
     }
+
+
+def _case_dict(c: Case) -> dict:
+    item = {"name": c.name, "rating": c.rating, "isa_offset_K": c.isa_offset_K}
+    if c.mach_range is not None:
+        item["mach_range"] = list(c.mach_range)
+    if c.altitude_range_m is not None:
+        item["altitude_range_m"] = list(c.altitude_range_m)
+    return item
 
 
 _HEADER = "# engine-air project file. SI units: m, m^2, kg/s, m/s, K; angles in degrees."
@@ -592,8 +774,11 @@ def dumps_project(project: Project) -> str:
         out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items())
         out.append("")
 
+    schedule = d["inlet"].pop("schedule", None)
     for name in ("project", "limits", "inlet"):
         table(f"[{name}]", d[name])
+    if schedule is not None:
+        table("[inlet.schedule]", schedule)
     for item in d["engine"]["rating"]:
         table("[[engine.rating]]", item)
     table("[envelope]", d["envelope"])

@@ -11,6 +11,12 @@ name                        unit   meaning
 ``duct_loss_coefficient``   -      K of the duct loss pi_duct = 1 - K q2/p_t2
 ``ramp_angles_deg[k]``      deg    deflection of ramp k (k = 1..n), ramp inlets
 ``shock_on_lip_mach``       -      shock-on-lip design Mach number, ramp inlets
+``bleed_fraction``          -      bleed b, fraction of the captured flow
+``bypass_area_m2``          m^2    bypass door area (supersonic flight)
+``auxiliary_inlet_area_m2`` m^2    auxiliary take-off door area
+``schedule.KEY[i]``         (KEY)  row i (1..n) of ``[inlet.schedule]`` KEY: ``throat_area_m2``,
+                                   ``shock_on_lip_mach``, ``bleed_fraction``
+``schedule.ramp_angles_deg[i][k]`` deg  ramp k of schedule row i
 ==========================  =====  ==============================================
 
 ``with_design_value(project, variable, value)`` makes the edited project and
@@ -46,8 +52,22 @@ of 0.4. The face Mach follows from the corrected flow per unit face area alone
 (method section 3): MFP(0.4) p_ref / sqrt(T_ref) = 151.708920543 kg/(s m^2), so the
 smallest face area is A_2 = 100 / 151.708920543 = 0.65916 m^2::
 
+    >>> from engine_air.project.toml_file import project_from_dict
+    >>> project = project_from_dict({
+    ...     "project": {"format": 1, "title": "worked example"},
+    ...     "limits": {"face_mach_max": 0.4},
+    ...     "inlet": {"type": "pitot", "capture_area_m2": 5.0, "throat_area_m2": 4.5,
+    ...               "face_area_m2": 1.0, "duct_loss_coefficient": 0.0},
+    ...     "engine": {"rating": [{"name": "max", "theta": [0.8, 1.2],
+    ...                            "corrected_flow_kg_s": [100.0, 100.0]}]},
+    ...     "envelope": {"mach": [0.2, 0.8, 0.8, 0.2],
+    ...                  "altitude_m": [0.0, 0.0, 10000.0, 10000.0]},
+    ...     "grid": {"mach_points": 9, "altitude_points": 7},
+    ...     "case": [{"name": "std", "rating": "max"}]})
     >>> r = feasible_range(project, "face_area_m2", 0.3, 1.5)
-    >>> r.intervals[0].lower.value      # 0.65916 m^2, bounded by "Face Mach number"
+    >>> low = r.intervals[0].lower
+    >>> print(f"{low.value:.5f} m^2, bounded by {low.check}")
+    0.65916 m^2, bounded by face-mach
 """
 
 from __future__ import annotations
@@ -96,6 +116,42 @@ RTOL = 1e-6
 """Relative width to which each boundary of the feasible range is closed."""
 
 _RAMP_RE = re.compile(r"^ramp_angles_deg\[(\d+)\]$")
+AIRFLOW_VARIABLES = ("bleed_fraction", "bypass_area_m2", "auxiliary_inlet_area_m2")
+"""Airflow-management design variables (method section 12)."""
+_SCHEDULE_RE = re.compile(r"^schedule\.(throat_area_m2|shock_on_lip_mach|bleed_fraction|ramp_angles_deg)"
+                          r"\[(\d+)\](?:\[(\d+)\])?$")
+UNITS.update({"bleed_fraction": "", "bypass_area_m2": "m^2", "auxiliary_inlet_area_m2": "m^2"})
+LABELS.update({"bleed_fraction": "Bleed fraction b", "bypass_area_m2": "Bypass door area",
+               "auxiliary_inlet_area_m2": "Auxiliary door area"})
+
+
+def _parse_schedule(project: Project, variable: str):
+    """("schedule.KEY", (row, ramp or None)) from 0 for a schedule value; None when ``variable`` is not one."""
+    m = _SCHEDULE_RE.match(variable)
+    if m is None:
+        return None
+    key, row, ramp = m.group(1), int(m.group(2)), m.group(3)
+    sched = project.inlet.schedule
+    if sched is None or getattr(sched, key) is None:
+        raise ProjectError(None, variable, None, f"the inlet has no [inlet.schedule] {key} list to vary")
+    n = len(sched.mach)
+    if not 1 <= row <= n:
+        raise ProjectError(None, variable, None, f"schedule row must be from 1 to {n}")
+    if (key == "ramp_angles_deg") != (ramp is not None):
+        raise ProjectError(None, variable, None, "write schedule.ramp_angles_deg[row][ramp] for a ramp angle "
+                                                 "and schedule.KEY[row] for the other schedule lists")
+    if ramp is not None:
+        n_ramps = len(sched.ramp_angles_deg[row - 1])
+        if not 1 <= int(ramp) <= n_ramps:
+            raise ProjectError(None, variable, None, f"ramp number must be from 1 to {n_ramps}")
+        return f"schedule.{key}", (row - 1, int(ramp) - 1)
+    return f"schedule.{key}", (row - 1, None)
+
+
+def _schedule_value(project: Project, name: str, k) -> float:
+    table = getattr(project.inlet.schedule, name.split(".", 1)[1])
+    row, ramp = k
+    return float(table[row] if ramp is None else table[row][ramp])
 
 
 # -- variables -------------------------------------------------------------------
@@ -105,6 +161,11 @@ def _parse(project: Project, variable: str) -> tuple[str, int | None]:
     allowed = ", ".join(design_variables(project))
     if not isinstance(variable, str):
         raise ProjectError(None, "variable", variable, f"must be one of {allowed}")
+    scheduled_value = _parse_schedule(project, variable)
+    if scheduled_value is not None:
+        return scheduled_value
+    if variable in AIRFLOW_VARIABLES:
+        return variable, None
     if variable in SCALAR_VARIABLES:
         if variable == "shock_on_lip_mach" and project.inlet.type != "external-ramp":
             raise ProjectError(None, variable, None,
@@ -131,11 +192,23 @@ def design_variables(project: Project) -> list[str]:
     if project.inlet.type == "external-ramp":
         names += [f"ramp_angles_deg[{k + 1}]" for k in range(len(project.inlet.ramp_angles_deg))]
         names.append("shock_on_lip_mach")
+    names += list(AIRFLOW_VARIABLES)
+    sched = project.inlet.schedule
+    if sched is not None:
+        for key in ("throat_area_m2", "shock_on_lip_mach", "bleed_fraction"):
+            if getattr(sched, key) is not None:
+                names += [f"schedule.{key}[{i + 1}]" for i in range(len(sched.mach))]
+        if sched.ramp_angles_deg is not None:
+            names += [f"schedule.ramp_angles_deg[{i + 1}][{k + 1}]" for i, row in enumerate(sched.ramp_angles_deg)
+                      for k in range(len(row))]
     return names
 
 
 def variable_unit(variable: str) -> str:
     """SI unit of a design variable ("" for dimensionless)."""
+    m = _SCHEDULE_RE.match(variable)
+    if m:
+        return UNITS[m.group(1)]
     return UNITS["ramp_angles_deg" if variable.startswith("ramp_angles_deg") else variable]
 
 
@@ -144,12 +217,18 @@ def variable_label(variable: str) -> str:
     m = _RAMP_RE.match(variable)
     if m:
         return f"Ramp {m.group(1)} deflection"
+    m = _SCHEDULE_RE.match(variable)
+    if m:
+        what = LABELS[m.group(1)] if m.group(3) is None else f"Ramp {m.group(3)} deflection"
+        return f"{what}, schedule row {m.group(2)}"
     return LABELS.get(variable, variable)
 
 
 def design_value(project: Project, variable: str) -> float:
     """The current value of ``variable`` in ``project`` (SI, see the module table)."""
     name, k = _parse(project, variable)
+    if name.startswith("schedule."):
+        return _schedule_value(project, name, k)
     if k is not None:
         return float(project.inlet.ramp_angles_deg[k])
     value = getattr(project.inlet, name)
@@ -180,15 +259,25 @@ def with_design_values(project: Project, values: Mapping[str, float]) -> Project
     inlet = project.inlet
     changes: dict = {}
     ramps = list(inlet.ramp_angles_deg)
+    schedule_changes: dict = {}
     for variable, value in values.items():
         name, k = _parse(project, variable)
         x = _finite(variable, value)
-        if k is None:
+        if name.startswith("schedule."):
+            key = name.split(".", 1)[1]
+            table = schedule_changes.get(key, getattr(inlet.schedule, key))
+            row, ramp = k
+            rows = list(table)
+            rows[row] = x if ramp is None else tuple(x if j == ramp else v for j, v in enumerate(rows[row]))
+            schedule_changes[key] = tuple(rows)
+        elif k is None:
             changes[name] = x
         else:
             ramps[k] = x
     if tuple(ramps) != inlet.ramp_angles_deg:
         changes["ramp_angles_deg"] = tuple(ramps)
+    if schedule_changes:
+        changes["schedule"] = replace(inlet.schedule, **schedule_changes)
     edited = replace(project, inlet=replace(inlet, **changes))
     # Every project-file rule, with the loader's own messages (the data of a
     # loaded project is valid, so only the edit can break a rule).
@@ -250,7 +339,14 @@ def allowed_range(project: Project, variable: str) -> AllowedRange:
     name, k = _parse(project, variable)
     inlet = project.inlet
     tiny = 1e-9
+    if name.startswith("schedule.") or name in AIRFLOW_VARIABLES:
+        return _airflow_allowed_range(project, variable, name)
     if name == "capture_area_m2":
+        sched = inlet.schedule
+        if sched is not None and sched.throat_area_m2 is not None and max(sched.throat_area_m2) > inlet.throat_area_m2:
+            largest = max(sched.throat_area_m2)
+            return AllowedRange(largest, MAX_AREA_M2, f"largest scheduled throat area {largest:g} m^2 (the throat "
+                                "may not exceed the capture area)", f"largest area allowed, {MAX_AREA_M2:g} m^2")
         return AllowedRange(inlet.throat_area_m2, MAX_AREA_M2, f"throat area {inlet.throat_area_m2:g} m^2 "
                             "(the throat may not exceed the capture area)", f"largest area allowed, {MAX_AREA_M2:g} m^2")
     if name == "throat_area_m2":
@@ -280,13 +376,42 @@ def allowed_range(project: Project, variable: str) -> AllowedRange:
     return AllowedRange(lo, hi, reason, "largest design Mach number allowed, 5")
 
 
+def _airflow_allowed_range(project: Project, variable: str, name: str) -> AllowedRange:
+    """What the file rules allow for an airflow or schedule variable (others held), by bisection on the rules
+    where the design checks (attached shocks at each scheduled geometry) bound it."""
+    inlet = project.inlet
+    if name in ("bleed_fraction", "schedule.bleed_fraction"):
+        return AllowedRange(0.0, 0.5, "bleed may not be negative", "largest bleed fraction allowed, 0.5")
+    if name in ("bypass_area_m2", "auxiliary_inlet_area_m2"):
+        return AllowedRange(0.0, MAX_AREA_M2, "a door area may not be negative", f"largest area allowed, {MAX_AREA_M2:g} m^2")
+    if name == "schedule.throat_area_m2":
+        return AllowedRange(1e-9 * inlet.capture_area_m2, inlet.capture_area_m2, "areas must be positive",
+                            f"capture area {inlet.capture_area_m2:g} m^2 (the throat may not exceed it)")
+    lo, hi = (1e-6, MAX_RAMP_DEG) if name == "schedule.ramp_angles_deg" else (1.0 + 1e-6, 5.0)
+    lo_reason = "a ramp must turn the flow" if name == "schedule.ramp_angles_deg" else "the design Mach number must exceed 1"
+    hi_reason = f"largest value allowed, {hi:g}"
+    current = design_value(project, variable)
+    if not _valid(project, variable, hi):
+        hi = _bisect_valid_edge(project, variable, good=current, bad=hi)
+        hi_reason = "ramp shocks stay attached at this schedule row's geometry"
+    if not _valid(project, variable, lo):
+        lo = _bisect_valid_edge(project, variable, good=current, bad=lo)
+        lo_reason = "ramp shocks stay attached at this schedule row's geometry"
+    return AllowedRange(lo, hi, lo_reason, hi_reason)
+
+
 def default_search_range(project: Project, variable: str) -> tuple[float, float]:
     """The search interval used when none is given: half to twice an area, 0 to max(0.2, 4K),
     the whole allowed range of a ramp, 1 + (M_d - 1)/2 to 1 + 2 (M_d - 1); clipped to the rules."""
     v = design_value(project, variable)
     allowed = allowed_range(project, variable)
     name, _ = _parse(project, variable)
-    if name in AREA_VARIABLES:
+    if name.startswith("schedule.") or name in AIRFLOW_VARIABLES:
+        if name in ("schedule.throat_area_m2", "bypass_area_m2", "auxiliary_inlet_area_m2") and v > 0.0:
+            lo, hi = 0.5 * v, 2.0 * v
+        else:
+            lo, hi = allowed.lower, allowed.upper
+    elif name in AREA_VARIABLES:
         lo, hi = 0.5 * v, 2.0 * v
     elif name == "duct_loss_coefficient":
         lo, hi = 0.0, max(0.2, 4.0 * v)

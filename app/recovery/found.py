@@ -1,0 +1,125 @@
+"""Finding what a session that ended without a clean close left behind in the recovery folder."""
+
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import logging
+from dataclasses import dataclass
+from pathlib import Path
+
+from PySide6.QtCore import QLockFile
+
+from engine_air.project.toml_file import load_project
+
+
+from .slot import MAX_SIDECAR_BYTES, Slot, recovery_dir
+
+log = logging.getLogger(__name__)
+
+
+@dataclass
+class Recovered:
+    """Unsaved work left by a session that is no longer running; this process holds its lock."""
+
+    slot: Slot
+    original_path: Path | None
+    saved_at: _dt.datetime | None
+    title: str
+
+    @property
+    def key(self) -> str:
+        return self.slot.key
+
+    def load(self):
+        """The recovered project, checked by the loader's rules; raises ``ProjectError``."""
+        return load_project(self.slot.project_file)
+
+    def original_changed_since(self) -> bool:
+        """True if the project's own file was modified after this copy was autosaved."""
+        if self.original_path is None or self.saved_at is None:
+            return False
+        try:
+            mtime = _dt.datetime.fromtimestamp(self.original_path.stat().st_mtime).astimezone()
+        except OSError:
+            return False
+        return mtime > self.saved_at + _dt.timedelta(seconds=1)
+
+    def discard(self) -> None:
+        """Delete the recovered copy (raises ``OSError`` if it cannot be deleted) and let go of it."""
+        try:
+            self.slot.remove_files()
+        finally:
+            self.slot.release()
+
+    def release(self) -> None:
+        """Keep the files for a later start ("Later")."""
+        self.slot.release()
+
+
+def _read_sidecar(path: Path) -> dict:
+    try:
+        if path.stat().st_size > MAX_SIDECAR_BYTES:
+            return {}
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return {}
+    return data if isinstance(data, dict) else {}
+
+
+def _entry(slot: Slot) -> Recovered:
+    meta = _read_sidecar(slot.sidecar_file)
+    original = meta.get("original_path")
+    original = Path(original) if isinstance(original, str) and original.strip() else None
+    saved_at = None
+    text = meta.get("saved_at")
+    if isinstance(text, str):
+        try:
+            saved_at = _dt.datetime.fromisoformat(text)
+            if saved_at.tzinfo is None:
+                saved_at = saved_at.astimezone()
+        except ValueError:
+            saved_at = None
+    if saved_at is None:
+        try:
+            saved_at = _dt.datetime.fromtimestamp(slot.project_file.stat().st_mtime).astimezone()
+        except OSError:
+            saved_at = None
+    title = meta.get("title")
+    return Recovered(slot=slot, original_path=original, saved_at=saved_at,
+                     title=title if isinstance(title, str) else "")
+
+
+def find_recovered(folder: str | Path | None = None, exclude: set[str] | frozenset = frozenset()) -> list[Recovered]:
+    """Unsaved work of sessions that ended without a clean close, newest first.
+
+    Each returned entry's lock is now held by this process (so a second program starting at the same
+    time does not offer it too); call ``discard()`` or ``release()`` on each. Never raises.
+    """
+    folder = Path(folder) if folder is not None else recovery_dir()
+    try:
+        candidates = sorted(p for p in folder.glob("*.toml") if p.is_file())
+    except OSError as exc:
+        log.warning("cannot list the recovery folder %s: %s", folder, exc)
+        return []
+    found = []
+    for path in candidates:
+        key = path.stem
+        if key in exclude or key.startswith("."):
+            continue
+        slot = Slot(folder, key)
+        lock = QLockFile(str(slot.lock_file))
+        lock.setStaleLockTime(0)
+        if lock.tryLock(0):
+            slot.lock = lock
+        elif lock.error() == QLockFile.LockFailedError:
+            continue  # the session that wrote it is still running
+        # else: no lock can be made here (read-only folder): offer it all the same
+        try:
+            found.append(_entry(slot))
+        except Exception:  # noqa: BLE001 - a strange file is skipped, never fatal
+            log.exception("skipping recovery file %s", path)
+            slot.release()
+    far_past = _dt.datetime.min.replace(tzinfo=_dt.timezone.utc)
+    found.sort(key=lambda e: e.saved_at or far_past, reverse=True)
+    return found

@@ -1,0 +1,144 @@
+"""Starting of a supersonic internal contraction: self-start limit, isentropic limit, started throat Mach.
+
+A duct that contracts a supersonic stream (a mixed-compression inlet, a supersonic diffuser) has two
+area ratios that bound its throat-to-entrance ratio A_th/A_c:
+
+- Isentropic contraction limit, A_th/A_c >= (A*/A)(M): the smallest throat through which a stream of Mach M
+  at the entrance can pass without a shock (the throat is then sonic) [1, eq. 80].
+- Self-start (Kantrowitz-Donaldson) limit, A_th/A_c >= (A*/A)(M)/pi_ns(M): with a normal shock standing at
+  the entrance (the unstarted state, or the state while the stream is being established) the flow behind it
+  has total pressure pi_ns(M) p_t, so its sonic area is A*/pi_ns; the throat passes all of it, and the shock
+  is swallowed, only when A_th is at least that [2]. At M = 2 the limit is 0.8220 (A*/A = 0.59259,
+  pi_ns = 0.72087 from NACA Report 1135 [1]).
+
+Between the two limits the contraction can run started (once started) but cannot start itself: the
+hysteresis of every fixed-geometry mixed-compression inlet.
+
+Arrays of any shape broadcast; gamma = 1.4 unless told otherwise.
+
+[1] NACA Report 1135, Equations, Tables, and Charts for Compressible Flow (1953).
+[2] Kantrowitz, A., and Donaldson, C. duP., "Preliminary investigation of supersonic diffusers",
+    NACA ACR L5D20 (1945) (report number from memory).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from engine_air.physics.constants import GAMMA
+from engine_air.physics.isentropic import area_ratio, mach_from_flow_ratio
+from engine_air.physics.shocks import normal_shock
+
+
+def isentropic_contraction_limit(mach, gamma=GAMMA):
+    """Isentropic contraction limit: the smallest throat-to-entrance area ratio A_th/A_c that passes a stream of
+    entrance Mach M without a shock (the throat is then sonic) [1, eq. 80].
+
+    (A_th/A_c)_min = A*/A(M) = M [ (2/(g+1)) (1 + (g-1)/2 M^2) ]^(-(g+1)/(2(g-1)))
+
+    Parameters
+    ----------
+    mach : array_like
+        Entrance Mach number M (dimensionless).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        A*/A (dimensionless, 0 < value <= 1), the shape of ``mach``; 1 where M <= 1 (a subsonic entrance has no
+        supersonic contraction).
+
+    Examples
+    --------
+    NACA Report 1135, Table I: A/A* = 1.6875 at M = 2, so A*/A = 0.5926.
+
+    >>> print(f"{float(isentropic_contraction_limit(2.0)):.4f}")
+    0.5926
+    """
+    m = np.asarray(mach, dtype=float)
+    sup = m > 1.0
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        value = 1.0 / area_ratio(np.where(sup, m, 2.0), gamma)
+    return np.where(sup, value, 1.0)
+
+
+def self_start_contraction(mach, gamma=GAMMA):
+    """Kantrowitz-Donaldson self-start limit on the throat-to-entrance area ratio A_th/A_c [2]: with a normal shock
+    at the entrance, the throat must pass, sonic, the whole stream behind it.
+
+    (A_th/A_c)_start = (A*/A)(M) / pi_ns(M)
+
+    with A*/A the isentropic area ratio [1, eq. 80] and pi_ns the normal-shock total-pressure ratio [1, eq. 99].
+    It falls monotonically with M: 0.9144 at M = 1.5, 0.8220 at M = 2, 0.7192 at M = 3, towards about 0.600 at
+    very high Mach numbers (g = 1.4); it tends to 1 as M -> 1 from above.
+
+    Parameters
+    ----------
+    mach : array_like
+        Entrance Mach number M ahead of the (starting) normal shock (dimensionless).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        The self-start limit (dimensionless, 0.6 < value <= 1), the shape of ``mach``; 1 where M <= 1.
+
+    Examples
+    --------
+    NACA Report 1135, Tables I and II at M = 2: (1/1.6875)/0.72087 = 0.8220.
+
+    >>> print(f"{float(self_start_contraction(2.0)):.4f}")
+    0.8220
+    """
+    m = np.asarray(mach, dtype=float)
+    sup = m > 1.0
+    ms = np.where(sup, m, 2.0)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        value = 1.0 / area_ratio(ms, gamma) / normal_shock(ms, gamma).total_pressure_ratio
+    return np.where(sup, value, 1.0)
+
+
+def started_throat_mach(contraction, entrance_mach, gamma=GAMMA):
+    """Supersonic throat Mach number M_th of a started isentropic contraction [1, eq. 80]:
+
+    A(M_th)/A* = (A_th/A_c) A(M1)/A*,   supersonic root
+
+    solved with the inverse of the flow function (``engine_air.physics.isentropic.mach_from_flow_ratio``,
+    supersonic branch).
+
+    Parameters
+    ----------
+    contraction : array_like
+        Throat-to-entrance area ratio A_th/A_c (dimensionless, > 0).
+    entrance_mach : array_like
+        Mach number M1 at the entrance area A_c (dimensionless, supersonic).
+    gamma : float
+        Ratio of specific heats g (dimensionless), 1.4 for air.
+
+    Returns
+    -------
+    ndarray
+        M_th (dimensionless, 1 <= M_th <= M1), the broadcast shape; NaN where there is no supersonic root (the
+        contraction is tighter than the isentropic limit A*/A(M1), or M1 <= 1): it cannot run started there.
+
+    Examples
+    --------
+    M1 = 2 (A/A* = 1.6875, NACA Report 1135 Table I) through A_th/A_c = 0.8: A/A* = 1.35 at the throat, the
+    supersonic root of which is M_th = 1.7130; no contraction keeps M1.
+
+    >>> print(f"{float(started_throat_mach(0.8, 2.0)):.4f} {float(started_throat_mach(1.0, 2.0)):.4f}")
+    1.7130 2.0000
+    >>> bool(np.isnan(started_throat_mach(0.5, 2.0)))   # tighter than A*/A = 0.5926
+    True
+    """
+    c = np.asarray(contraction, dtype=float)
+    m1 = np.asarray(entrance_mach, dtype=float)
+    c, m1 = np.broadcast_arrays(c, m1)
+    ok = (m1 > 1.0) & (c > 0.0)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        flow_ratio = 1.0 / (np.where(ok, c, 1.0) * area_ratio(np.where(ok, m1, 2.0), gamma))
+        ok = ok & (flow_ratio <= 1.0)
+        m_th = mach_from_flow_ratio(np.where(ok, flow_ratio, 0.5), supersonic=True, gamma=gamma)
+    return np.where(ok, m_th, np.nan)
