@@ -19,6 +19,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import engine_air
+from engine_air.project import load as load_module
 from engine_air.project import toml_file as pf
 from engine_air.envelope.polygon import (
     envelope_mask,
@@ -324,7 +325,7 @@ RAMP_RULES = [
     ("inlet.ramp_angles_deg", [], "inlet.ramp_angles_deg"),
     ("inlet.ramp_angles_deg", 8.0, "inlet.ramp_angles_deg"),
     ("inlet.ramp_angles_deg", [5.0, 5.0, 5.0, 5.0], "inlet.ramp_angles_deg"),
-    ("inlet.ramp_angles_deg", [0.0, 7.0], "inlet.ramp_angles_deg[0]"),
+    ("inlet.ramp_angles_deg", [-0.5, 7.0], "inlet.ramp_angles_deg[0]"),
     ("inlet.ramp_angles_deg", [8.0, -7.0], "inlet.ramp_angles_deg[1]"),
     ("inlet.ramp_angles_deg", [8.0, 25.5], "inlet.ramp_angles_deg[1]"),
     ("inlet.ramp_angles_deg", [20.0, 15.0, 6.0], "inlet.ramp_angles_deg"),  # sum 41 > 40
@@ -413,7 +414,7 @@ def test_throat_equal_to_capture_is_allowed():
 def test_ramp_limits_at_edges():
     d = setpath(ramp_data(), "inlet.ramp_angles_deg", [25.0, 15.0])
     d["inlet"]["shock_on_lip_mach"] = 5
-    with mock.patch.object(pf, "_check_physics", lambda project, path: None):
+    with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
         p = pf.project_from_dict(d)
     assert p.inlet.ramp_angles_deg == (25.0, 15.0) and p.inlet.shock_on_lip_mach == 5.0
 
@@ -458,33 +459,65 @@ def test_non_table_top_level():
     assert info.value.key == "(file)"
 
 
-# -- warnings ---------------------------------------------------------------------
+# -- strict files: unknown keys are errors (issue 9) ---------------------------------
 
-def test_unknown_keys_give_warnings_not_errors(tmp_path):
+@pytest.mark.parametrize("where, name, key, hint", [
+    ("", "extras", "extras", None),
+    ("", "limit", "limit", "limits"),
+    ("inlet", "colour", "inlet.colour", None),
+    ("inlet", "capture_area", "inlet.capture_area", "capture_area_m2"),
+    ("engine.rating.1", "maker", "engine.rating[1].maker", None),
+    ("engine.rating.1", "fan_tip_speed", "engine.rating[1].fan_tip_speed", "fan_tip_speed_m_s"),
+    ("engine", "spare", "engine.spare", None),
+    ("case.0", "comment", "case[0].comment", None),
+    ("case.0", "isa_offset_k", "case[0].isa_offset_k", "isa_offset_K"),
+    ("grid", "refine", "grid.refine", None),
+    ("grid", "mach_point", "grid.mach_point", "mach_points"),
+    ("limits", "face_mach_maximum", "limits.face_mach_maximum", "face_mach_max"),
+    ("project", "titel", "project.titel", "title"),
+])
+def test_unknown_key_is_an_error_with_suggestion(where, name, key, hint, tmp_path):
     d = pitot_data()
-    d["extras"] = {"colour": "blue"}
-    d["inlet"]["colour"] = "red"
-    d["engine"]["rating"][1]["maker"] = "nobody"
-    d["engine"]["spare"] = 1
-    d["case"][0]["comment"] = "x"
-    d["grid"]["refine"] = True
-    path = write(tmp_path, d)
-    p = pf.load_project(path)
-    assert p == pf.project_from_dict(pitot_data())
-    keys = ["extras", "inlet.colour", "engine.rating[1].maker", "engine.spare", "case[0].comment", "grid.refine"]
-    assert len(p.warnings) == len(keys)
-    for key in keys:
-        assert any(w == f"{path}: {key}: unknown key, ignored" for w in p.warnings), key
+    node = d
+    for part in where.split(".") if where else []:
+        node = node[int(part)] if isinstance(node, list) else node[part]
+    node[name] = 15
+    err = load_error(tmp_path, d)
+    assert err.key == key and "unknown" in err.allowed
+    if hint is not None:
+        assert f"did you mean {hint}?" in err.allowed
+    else:
+        assert "did you mean" not in err.allowed
 
 
-def test_ramp_keys_on_pitot_warn(tmp_path):
+def test_mistyped_isa_offset_names_case_and_suggests(tmp_path):
+    # issue 9: `isa_offset_k = 15` in a case called "ISA+15" ran at ISA with a normal exit code
     d = pitot_data()
-    d["inlet"]["ramp_angles_deg"] = [8.0]
-    d["inlet"]["shock_on_lip_mach"] = "not even a number"
-    p = pf.load_project(write(tmp_path, d))
-    assert p.inlet.ramp_angles_deg == () and p.inlet.shock_on_lip_mach is None
-    assert any("inlet.ramp_angles_deg" in w and "ignored" in w for w in p.warnings)
-    assert any("inlet.shock_on_lip_mach" in w and "ignored" in w for w in p.warnings)
+    d["case"][0] = {"name": "ISA+15", "rating": "max", "isa_offset_k": 15}
+    err = load_error(tmp_path, d)
+    assert err.key == "case[0].isa_offset_k" and err.value == 15
+    assert "did you mean isa_offset_K?" in str(err)
+
+
+@pytest.mark.parametrize("key, value", [("ramp_angles_deg", [8.0]), ("shock_on_lip_mach", 2.0)])
+def test_ramp_keys_on_pitot_are_errors_naming_their_types(key, value, tmp_path):
+    d = pitot_data()
+    d["inlet"][key] = value
+    err = load_error(tmp_path, d)
+    assert err.key == f"inlet.{key}"
+    assert "'external-ramp'" in err.allowed and "'pitot'" in err.allowed
+
+
+def test_schedule_key_of_another_type_is_an_error(tmp_path):
+    d = pitot_data()
+    d["inlet"]["schedule"] = {"mach": [0.0, 1.0], "ramp_angles_deg": [[4.0], [6.0]]}
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.schedule.ramp_angles_deg" and "'external-ramp'" in err.allowed
+
+
+def test_unknown_inlet_type_suggests_a_known_one(tmp_path):
+    err = load_error(tmp_path, setpath(pitot_data(), "inlet.type", "external_ramp"))
+    assert err.key == "inlet.type" and 'did you mean "external-ramp"?' in err.allowed
 
 
 def test_tip_mach_limit_without_tip_speed_warns():
@@ -819,7 +852,7 @@ def projects(draw):
 @settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(projects())
 def test_random_projects_round_trip_exactly(project):
-    with mock.patch.object(pf, "_check_physics", lambda p, path: None):
+    with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
         assert pf.project_from_dict(pf.project_to_dict(copy.deepcopy(project))) == project
         assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
         again = pf.project_from_dict(tomllib.loads(pf.dumps_project(project)))
