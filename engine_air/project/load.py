@@ -212,6 +212,9 @@ def _relations(r: _Reader, flds: tuple[Field, ...], values: dict, keypath: str, 
     def other(name):
         return lookup(name) if "." in name else values.get(name)
 
+    def shown(name):  # "envelope.mach", but "theta" inside engine.rating[0]
+        return name if "." in name or "[" in keypath else f"{keypath}.{name}"
+
     for f in flds:
         if f.key not in given:
             continue
@@ -228,14 +231,14 @@ def _relations(r: _Reader, flds: tuple[Field, ...], values: dict, keypath: str, 
             if ref is not None and len(v) != len(ref):
                 noun = "row" if f.kind == "number table" else "entry"
                 r.fail(f"{keypath}.{f.key}", list(v),
-                       f"must have one {noun} per {f.same_length_as} value ({len(ref)}); it has {len(v)}")
+                       f"must have one {noun} per {shown(f.same_length_as)} value ({len(ref)}); it has {len(v)}")
         if f.row_length_as:
             ref = other(f.row_length_as)
             if ref is not None:
                 for i, row in enumerate(v):
                     if len(row) != len(ref):
                         r.fail(f"{keypath}.{f.key}[{i}]", list(row),
-                               f"must have one value per {f.row_length_as} value ({len(ref)}); it has {len(row)}")
+                               f"must have one value per {shown(f.row_length_as)} value ({len(ref)}); it has {len(row)}")
 
 
 # -- tables from parsed TOML -----------------------------------------------------------------------------------------
@@ -281,9 +284,9 @@ def _unknown(r: _Reader, data: dict, keypath: str, known, subtables=(), header: 
                    f"{inlet_type!r}: remove the key or change inlet.type")
         hint = S.suggestion(name, known + tuple(subtables))
         where = header or f"[{keypath}]"
-        listing = ", ".join(known + tuple(subtables))
+        listing = ", ".join(known + tuple(subtables)) or "none"
         r.fail(path, data[name], "unknown key" + (f"; did you mean {hint}?" if hint else "")
-               + f" The keys of {where} are: {listing}")
+               + f" (the keys of {where} are: {listing})")
 
 
 def _read_fields(r: _Reader, data: dict, flds: tuple[Field, ...], keypath: str, lookup=lambda p: None):
@@ -384,8 +387,8 @@ def project_from_dict(data: dict, path: str | os.PathLike | None = None) -> Proj
         if name not in top:
             hint = S.suggestion(name, top)
             r.fail(str(name), data[name], "unknown table or key" + (f"; did you mean {hint}?" if hint else "")
-                   + " The file's tables are: " + ", ".join(f"[{t.name}]" if not t.array else f"[[{t.name}]]"
-                                                             for t in S.TABLES if t.name != "inlet.schedule"))
+                   + " (the file's tables are: " + ", ".join(f"[{t.name}]" if not t.array else f"[[{t.name}]]"
+                                                             for t in S.TABLES if t.name != "inlet.schedule") + ")")
     meta = _read_plain(r, data, "project", None, True)
     limits = _read_plain(r, data, "limits", Limits, True)
     inlet = _read_inlet(r, data)

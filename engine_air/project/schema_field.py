@@ -107,7 +107,7 @@ class Field:
             return "one of " + ", ".join(f'"{n}"' for n in self.names)
         if k == "number or name":
             names = " or ".join(f'"{n}"' for n in self.names)
-            return f"a number with {self.bounds_text()}, or the name {names}"
+            return f"a finite number with {self.bounds_text()}, or the name {names}"
         entries = self.bounds_text("each entry" if k == "number list" else "each value")
         shape = ""
         if self.length is not None:
