@@ -863,3 +863,224 @@ def test_replace_keeps_round_trip():
     p = pf.project_from_dict(ramp_data())
     q = replace(p, inlet=replace(p.inlet, ramp_angles_deg=(6.0, 6.0, 6.0)), title="edited")
     assert pf.project_from_dict(tomllib.loads(pf.dumps_project(q))) == q
+
+
+# -- the keys of the interfaces "Additions" (issues 10 and 11): bounds and shapes ------------------------------
+
+def full_data() -> dict:
+    """A ramp project using every optional key of every type-independent table."""
+    d = ramp_data()
+    d["inlet"].update(supersonic_lip_suction_factor=0.3, bleed_fraction=0.03, bleed_exit_velocity_ratio=0.4,
+                      bypass_area_m2=0.05, bypass_discharge_coefficient=0.85, bypass_exit_velocity_ratio=0.2,
+                      auxiliary_inlet_area_m2=0.08, auxiliary_door_mach_max=0.35, auxiliary_loss_coefficient=0.5)
+    d["inlet"]["schedule"] = {"mach": [0.0, 1.5, 2.0, 2.5], "throat_area_m2": [0.40, 0.40, 0.34, 0.30],
+                              "shock_on_lip_mach": [2.0, 2.0, 2.0, 2.5],
+                              "ramp_angles_deg": [[4.0, 4.0], [4.0, 4.0], [6.0, 6.0], [8.0, 8.0]],
+                              "bleed_fraction": [0.0, 0.02, 0.04, 0.05]}
+    d["limits"].update(started_required=True, installation_loss_max=0.06)
+    r = d["engine"]["rating"][0]
+    del r["fan_tip_speed_m_s"]
+    r.update(corrected_tip_speed_m_s=[400.0, 420.0, 430.0, 430.0], thrust_mach=[0.0, 0.8, 1.6, 2.2],
+             thrust_altitude_m=[0.0, 11000.0],
+             net_thrust_n=[[90000.0, 80000.0, 95000.0, 110000.0], [40000.0, 38000.0, 52000.0, 60000.0]],
+             thrust_reference_recovery="mil-e-5008b", recovery_thrust_exchange=1.3)
+    d["engine"]["rating"][1].update(fan_tip_speed_m_s=400.0, thrust_mach=[0.5], thrust_altitude_m=[0.0],
+                                    net_thrust_n=[[20000.0]], thrust_reference_recovery=0.97)
+    d["case"][0].update(mach_range=[0.0, 0.4], altitude_range_m=[0.0, 3000.0])
+    return d
+
+
+def test_every_new_key_loads_and_round_trips_exactly(tmp_path):
+    p = pf.load_project(write(tmp_path, full_data()))
+    assert p.inlet.bypass_area_m2 == 0.05 and p.inlet.auxiliary_door_mach_max == 0.35
+    assert p.inlet.schedule.ramp_angles_deg[2] == (6.0, 6.0) and p.inlet.schedule.bleed_fraction[-1] == 0.05
+    assert p.limits.started_required is True and p.limits.installation_loss_max == 0.06
+    assert p.ratings[0].net_thrust_n[1] == (40000.0, 38000.0, 52000.0, 60000.0)
+    assert p.ratings[0].thrust_reference_recovery == "mil-e-5008b" and p.ratings[1].thrust_reference_recovery == 0.97
+    assert p.cases[0].mach_range == (0.0, 0.4) and p.cases[1].mach_range is None
+    text = pf.dumps_project(p)
+    assert "[inlet.schedule]" in text
+    assert load_module.loads_project(text) == p
+    target = tmp_path / "saved.toml"
+    pf.save_project(p, target)
+    assert pf.load_project(target) == p and pf.dumps_project(pf.load_project(target)) == text
+    load_module.validate_project(p)
+
+
+def test_keys_at_default_are_left_out_of_the_file():
+    text = pf.dumps_project(pf.project_from_dict(pitot_data()))
+    for key in ("bleed_fraction", "bypass_area_m2", "bypass_discharge_coefficient", "auxiliary_inlet_area_m2",
+                "internal_recovery_factor", "started_required", "mach_range", "schedule"):
+        assert key not in text, key
+    assert "[grid]" in text  # the resolution is always written
+
+
+NEW_KEY_RULES = [
+    # (dotted place, bad value, key of the error, words of the allowed text)
+    ("inlet.supersonic_lip_suction_factor", 1.01, "inlet.supersonic_lip_suction_factor", "<= 1"),
+    ("inlet.supersonic_lip_suction_factor", -0.01, "inlet.supersonic_lip_suction_factor", "0 <="),
+    ("inlet.bleed_fraction", 0.5, "inlet.bleed_fraction", "< 0.5"),
+    ("inlet.bleed_fraction", -0.01, "inlet.bleed_fraction", "0 <="),
+    ("inlet.bleed_exit_velocity_ratio", 1.5, "inlet.bleed_exit_velocity_ratio", "<= 1"),
+    ("inlet.bypass_area_m2", -0.1, "inlet.bypass_area_m2", "0 <="),
+    ("inlet.bypass_discharge_coefficient", 0.0, "inlet.bypass_discharge_coefficient", "0 <"),
+    ("inlet.bypass_discharge_coefficient", 1.1, "inlet.bypass_discharge_coefficient", "<= 1"),
+    ("inlet.bypass_exit_velocity_ratio", -0.1, "inlet.bypass_exit_velocity_ratio", "0 <="),
+    ("inlet.auxiliary_inlet_area_m2", -1.0, "inlet.auxiliary_inlet_area_m2", "0 <="),
+    ("inlet.auxiliary_door_mach_max", 0.0, "inlet.auxiliary_door_mach_max", "0 <"),
+    ("inlet.auxiliary_door_mach_max", DELETE, "inlet.auxiliary_door_mach_max", "auxiliary_inlet_area_m2 > 0"),
+    ("inlet.auxiliary_loss_coefficient", -0.5, "inlet.auxiliary_loss_coefficient", "0 <="),
+    ("limits.started_required", 1, "limits.started_required", "true or false"),
+    ("limits.installation_loss_max", 0.0, "limits.installation_loss_max", "0 <"),
+    ("limits.installation_loss_max", 1.0, "limits.installation_loss_max", "< 1"),
+    # the schedule
+    ("inlet.schedule.mach", [0.0, 1.5, 1.5, 2.5], "inlet.schedule.mach[2]", "increase strictly"),
+    ("inlet.schedule.mach", DELETE, "inlet.schedule.mach", "missing"),
+    ("inlet.schedule.throat_area_m2", [0.40, 0.40, 0.34], "inlet.schedule.throat_area_m2", "one entry per inlet.schedule.mach"),
+    ("inlet.schedule.throat_area_m2", [0.40, 0.60, 0.34, 0.30], "inlet.schedule.throat_area_m2[1]",
+     "must not exceed capture_area_m2"),
+    ("inlet.schedule.shock_on_lip_mach", [2.0, 2.0, 2.0, 1.0], "inlet.schedule.shock_on_lip_mach[3]", "1 <"),
+    ("inlet.schedule.ramp_angles_deg", [[4.0, 4.0], [4.0], [6.0, 6.0], [8.0, 8.0]],
+     "inlet.schedule.ramp_angles_deg[1]", "one value per inlet.ramp_angles_deg"),
+    ("inlet.schedule.ramp_angles_deg", [4.0, 4.0, 6.0, 8.0], "inlet.schedule.ramp_angles_deg[0]", "row of numbers"),
+    ("inlet.schedule.ramp_angles_deg", [[4.0, 4.0], [4.0, 4.0], [6.0, 26.0], [8.0, 8.0]],
+     "inlet.schedule.ramp_angles_deg[2][1]", "<= 25"),
+    ("inlet.schedule.bleed_fraction", [0.0, 0.02, 0.6, 0.05], "inlet.schedule.bleed_fraction[2]", "< 0.5"),
+    ("inlet.schedule.throat", [0.4, 0.4, 0.4, 0.4], "inlet.schedule.throat", "did you mean throat_area_m2?"),
+    # ratings
+    ("engine.rating.1.corrected_tip_speed_m_s", [400.0], "engine.rating[1].fan_tip_speed_m_s",
+     "not both"),
+    ("engine.rating.0.corrected_tip_speed_m_s", [400.0, 420.0], "engine.rating[0].corrected_tip_speed_m_s",
+     "one entry per theta"),
+    ("engine.rating.0.corrected_tip_speed_m_s", [400.0, 420.0, 0.0, 430.0],
+     "engine.rating[0].corrected_tip_speed_m_s[2]", "0 <"),
+    ("engine.rating.0.thrust_mach", [0.0, 0.8, 0.8, 2.2], "engine.rating[0].thrust_mach[2]", "increase strictly"),
+    ("engine.rating.0.thrust_altitude_m", [11000.0, 0.0], "engine.rating[0].thrust_altitude_m[1]",
+     "increase strictly"),
+    ("engine.rating.0.net_thrust_n", [[90000.0, 80000.0, 95000.0, 110000.0]], "engine.rating[0].net_thrust_n",
+     "one row per thrust_altitude_m"),
+    ("engine.rating.0.net_thrust_n", [[90000.0, 80000.0, 95000.0], [40000.0, 38000.0, 52000.0, 60000.0]],
+     "engine.rating[0].net_thrust_n[0]", "one value per thrust_mach"),
+    ("engine.rating.0.net_thrust_n", [[90000.0, 80000.0, 95000.0, 110000.0], [40000.0, -1.0, 52000.0, 60000.0]],
+     "engine.rating[0].net_thrust_n[1][1]", "0 <"),
+    ("engine.rating.0.net_thrust_n", DELETE, "engine.rating[0].thrust_mach", "needs net_thrust_n"),
+    ("engine.rating.0.thrust_reference_recovery", "mil-std", "engine.rating[0].thrust_reference_recovery",
+     '"mil-e-5008b"'),
+    ("engine.rating.0.thrust_reference_recovery", 1.2, "engine.rating[0].thrust_reference_recovery", "<= 1"),
+    ("engine.rating.0.recovery_thrust_exchange", -1.0, "engine.rating[0].recovery_thrust_exchange", "0 <="),
+    # case regions
+    ("case.0.mach_range", [0.4, 0.0], "case[0].mach_range[1]", "lower bound first"),
+    ("case.0.mach_range", [0.4], "case[0].mach_range", "exactly 2"),
+    ("case.0.mach_range", [0.0, 7.0], "case[0].mach_range[1]", "<= 6"),
+    ("case.0.altitude_range_m", [3000.0, 0.0], "case[0].altitude_range_m[1]", "lower bound first"),
+    ("case.0.altitude_range_m", [-6000.0, 0.0], "case[0].altitude_range_m[0]", "-5000 <="),
+]
+
+
+@pytest.mark.parametrize("where, value, key, allowed", NEW_KEY_RULES,
+                         ids=[f"{w}={v!r}"[:60] if v is not DELETE else f"{w}-missing" for w, v, *_ in NEW_KEY_RULES])
+def test_new_key_rule(where, value, key, allowed, tmp_path):
+    err = load_error(tmp_path, setpath(full_data(), where, value))
+    assert err.key == key, str(err)
+    assert allowed in err.allowed, str(err)
+
+
+def test_equal_bounds_of_a_case_region_are_allowed():
+    d = setpath(full_data(), "case.0.mach_range", [0.3, 0.3])
+    assert pf.project_from_dict(d).cases[0].mach_range == (0.3, 0.3)
+
+
+def test_scheduled_ramps_must_stay_attached_at_their_own_shock_on_lip_mach(tmp_path):
+    # 20 + 20 deg at a shock-on-lip Mach of 1.6: the first ramp's shock detaches (NACA Report 1135: at M = 1.6 an
+    # attached shock turns the flow by at most about 14.7 deg), at row 1 only.
+    d = full_data()
+    d["inlet"]["schedule"]["ramp_angles_deg"] = [[4.0, 4.0], [20.0, 20.0], [6.0, 6.0], [8.0, 8.0]]
+    d["inlet"]["schedule"]["shock_on_lip_mach"] = [2.0, 1.6, 2.0, 2.5]
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.schedule.ramp_angles_deg[1]" and "row 1" in err.allowed and "1.6" in err.allowed
+
+
+def test_empty_schedule_is_an_error(tmp_path):
+    d = pitot_data()
+    d["inlet"]["schedule"] = {"mach": [0.0, 1.0]}
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.schedule" and "throat_area_m2" in err.allowed
+
+
+# -- 0 deg ramps, numbers the parser cannot hold --------------------------------------------------------------
+
+def test_zero_degree_ramp_is_accepted_and_is_a_mach_wave(tmp_path):
+    # A 0 deg ramp turns nothing: its wave is the Mach wave, sin(mu) = 1/M (at M = 2, 30 deg exactly), with no
+    # loss of total pressure (relations worked by hand).
+    d = setpath(ramp_data(), "inlet.ramp_angles_deg", [0.0, 7.0])
+    p = pf.load_project(write(tmp_path, d))
+    assert p.inlet.ramp_angles_deg == (0.0, 7.0)
+    from engine_air.physics.shocks import oblique_shock
+
+    s = oblique_shock(np.array([2.0, 3.0]), 0.0)
+    assert np.allclose(s.wave_angle_rad, np.arcsin([1 / 2.0, 1 / 3.0]), rtol=1e-12)
+    assert np.allclose(s.total_pressure_ratio, 1.0) and np.allclose(s.downstream_mach, [2.0, 3.0])
+
+
+@pytest.mark.parametrize("old, new, key", [
+    ("format = 1", "format = " + "9" * 5000, "project.format"),
+    ("mach_points = 121", "mach_points = " + "1" * 4301, "grid.mach_points"),
+    ("isa_offset_K = 20", "isa_offset_K = -" + "2" * 6000, "case[1].isa_offset_K"),
+])
+def test_integer_too_long_for_the_parser_names_the_key(old, new, key, tmp_path):
+    # Python refuses to convert integers of more than 4300 digits from text (ValueError inside tomllib).
+    text = pf.dumps_project(pf.project_from_dict(pitot_data())).replace("isa_offset_K = 20.0", "isa_offset_K = 20")
+    assert old in text
+    path = tmp_path / "long.toml"
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    err = info.value
+    assert err.key == key and "digits" in err.allowed and "\n" not in str(err)
+
+
+def test_long_digit_run_inside_text_is_just_text(tmp_path):
+    d = pitot_data()
+    d["project"]["notes"] = "9" * 5000
+    assert pf.load_project(write(tmp_path, d)).notes == "9" * 5000
+
+
+# -- validate_project works on the dataclasses ------------------------------------------------------------------
+
+def test_validate_project_checks_the_dataclasses_without_a_file_round_trip():
+    p = pf.project_from_dict(full_data())
+    load_module.validate_project(p)
+    bad = [
+        (replace(p, inlet=replace(p.inlet, bleed_fraction=0.5)), "inlet.bleed_fraction"),
+        (replace(p, inlet=replace(p.inlet, throat_area_m2=0.6)), "inlet.throat_area_m2"),
+        (replace(p, cases=(replace(p.cases[0], isa_offset_K=101.0),) + p.cases[1:]), "case[0].isa_offset_K"),
+        (replace(p, cases=(replace(p.cases[0], rating="nope"),) + p.cases[1:]), "case[0].rating"),
+        (replace(p, ratings=(replace(p.ratings[0], theta=(1.0, 0.9, 1.1, 1.2)),) + p.ratings[1:]),
+         "engine.rating[0].theta[1]"),
+        (replace(p, inlet=replace(p.inlet, type="pitot")), "inlet.ramp_angles_deg"),
+        (replace(p, inlet=replace(p.inlet, schedule=replace(p.inlet.schedule, mach=(0.0, 1.0)))),
+         "inlet.schedule.throat_area_m2"),
+        (replace(p, grid=Grid(1001, 1001)), "grid"),
+        (replace(p, limits=replace(p.limits, face_mach_max=float("nan"))), "limits.face_mach_max"),
+    ]
+    for project, key in bad:
+        with pytest.raises(ProjectError) as info:
+            load_module.validate_project(project)
+        assert info.value.key == key, str(info.value)
+
+
+# -- saving over a read-only file ---------------------------------------------------------------------------------
+
+def test_save_refuses_to_replace_a_read_only_file(tmp_path):
+    p = pf.project_from_dict(pitot_data())
+    target = tmp_path / "locked.toml"
+    pf.save_project(p, target)
+    before = target.read_bytes()
+    os.chmod(target, 0o444)
+    edited = replace(p, title="edited")
+    with pytest.raises(ProjectSaveError) as info:
+        pf.save_project(edited, target)
+    assert "read-only" in str(info.value) and str(target) in str(info.value)
+    assert target.read_bytes() == before and os.stat(target).st_mode & 0o777 == 0o444
+    pf.save_project(edited, target, overwrite_read_only=True)  # the program asked the user first
+    assert pf.load_project(target).title == "edited" and os.stat(target).st_mode & 0o777 == 0o444
