@@ -1084,3 +1084,71 @@ def test_save_refuses_to_replace_a_read_only_file(tmp_path):
     assert target.read_bytes() == before and os.stat(target).st_mode & 0o777 == 0o444
     pf.save_project(edited, target, overwrite_read_only=True)  # the program asked the user first
     assert pf.load_project(target).title == "edited" and os.stat(target).st_mode & 0o777 == 0o444
+
+
+# -- the generated file reference and the schema -----------------------------------------------------------------
+
+def test_docs_project_file_reference_is_current():
+    from engine_air.project.reference_doc import DOC_PATH, reference_markdown
+
+    assert DOC_PATH.read_text(encoding="utf-8") == reference_markdown(), (
+        "docs/project-file.md is stale: run python -m engine_air.project.reference_doc")
+
+
+def test_every_key_of_the_interfaces_is_in_the_schema_and_documented():
+    from engine_air.project import schema
+    from engine_air.project.reference_doc import reference_markdown
+
+    keys = {f.path for f in schema.all_fields()}
+    interfaces = {  # every key of the interfaces document, "Project file" and "Additions"
+        "project": ["format", "title", "notes"],
+        "limits": ["face_mach_max", "throat_mach_max", "recovery_min", "stable_flow_fraction",
+                   "relative_tip_mach_max", "started_required", "installation_loss_max"],
+        "inlet": ["type", "capture_area_m2", "throat_area_m2", "face_area_m2", "duct_loss_coefficient",
+                  "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "cone_half_angles_deg",
+                  "internal_recovery_factor", "supersonic_lip_suction_factor", "bleed_fraction",
+                  "bleed_exit_velocity_ratio", "bypass_area_m2", "bypass_discharge_coefficient",
+                  "bypass_exit_velocity_ratio", "auxiliary_inlet_area_m2", "auxiliary_door_mach_max",
+                  "auxiliary_loss_coefficient"],
+        "inlet.schedule": ["mach", "throat_area_m2", "shock_on_lip_mach", "ramp_angles_deg", "bleed_fraction"],
+        "engine.rating": ["name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s", "corrected_tip_speed_m_s",
+                          "thrust_mach", "thrust_altitude_m", "net_thrust_n", "thrust_reference_recovery",
+                          "recovery_thrust_exchange"],
+        "envelope": ["mach", "altitude_m"],
+        "grid": ["mach_points", "altitude_points"],
+        "case": ["name", "rating", "isa_offset_K", "mach_range", "altitude_range_m"],
+    }
+    text = reference_markdown()
+    for table, names in interfaces.items():
+        for name in names:
+            assert f"{table}.{name}" in keys, f"{table}.{name}"
+        header = f"[[{table}]]" if table in ("engine.rating", "case") else f"[{table}]"
+        section = text.split(f"## `{header}`")[1].split("\n## ")[0]
+        for name in names:
+            assert f"| `{name}` |" in section, f"{table}.{name}"
+    assert len(keys) == len(schema.all_fields())  # each key once
+
+
+def test_a_new_inlet_type_brings_its_keys_without_editing_the_schema(monkeypatch, tmp_path):
+    from engine_air.inlets import pitot, registry
+    from engine_air.project import schema
+    from engine_air.project.reference_doc import reference_markdown
+    from engine_air.project.schema_field import REQUIRED, Field
+
+    class Funnel(type(pitot.INLET)):
+        name = "funnel"
+        label = "test funnel"
+        fields = (Field("funnel_angle_deg", "inlet", "number", "half-angle of the funnel", unit="deg", lo=0.0,
+                        hi=30.0, default=REQUIRED),)
+
+    monkeypatch.setitem(registry.INLET_TYPES, "funnel", Funnel())
+    assert "inlet.funnel_angle_deg" in {f.path for f in schema.all_fields()}
+    assert "`funnel_angle_deg`" in reference_markdown()
+    d = pitot_data()
+    d["inlet"]["type"] = "funnel"
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.funnel_angle_deg" and "missing" in err.allowed
+    d["inlet"]["funnel_angle_deg"] = 12.0
+    assert pf.load_project(write(tmp_path, d)).inlet.type == "funnel"
+    err = load_error(tmp_path, setpath(pitot_data(), "inlet.funnel_angle_deg", 12.0))
+    assert "'funnel'" in err.allowed
