@@ -61,7 +61,7 @@ from engine_air.studies.compare import DIFFERENCE_QUANTITIES, compare_projects
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled
 from engine_air.outputs.pictures import DIVERGING_ANCHORS, OUTSIDE_GREY, SEQUENTIAL_ANCHORS, levels_for
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.review_pack import write_review_pack
 from engine_air.studies.sizing import (

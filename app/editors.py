@@ -418,7 +418,7 @@ class ProjectEditors(QWidget):
                 widget.setEnabled(show)
             del rows
         label = S.inlet_types()[kind].label if kind in S.inlet_types() else kind
-        self.type_note.setText(f"Keys shown are those of a {label} inlet (docs/project-file.md lists every key).")
+        self.type_note.setText(f"Keys shown: those of the inlet type {kind} ({label}); docs/project-file.md lists every key.")
 
     def _update_ramp_enabled(self, kind: str) -> None:
         self._update_type_rows(kind)

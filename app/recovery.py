@@ -3,7 +3,7 @@
 The recovery folder is ``$ENGINE_AIR_RECOVERY_DIR`` if set, else ``QStandardPaths.AppDataLocation /
 "recovery"``. Every window owns one *slot* there, named by a key unique to the session::
 
-    <key>.toml   the project, written with ``engine_air.project.toml_file.save_project`` (temporary file,
+    <key>.toml   the project, written with ``engine_air.project.save_project`` (temporary file,
                  fsync, rename: a crash never leaves half a file)
     <key>.json   a small sidecar: the project's own file (or null if never saved), the time, the title
     <key>.lock   a ``QLockFile`` held while the window runs
@@ -35,7 +35,7 @@ from PySide6.QtCore import QLockFile, QObject, QStandardPaths, Signal
 from PySide6.QtWidgets import QMessageBox
 
 from engine_air.project.errors import ProjectError, ProjectSaveError
-from engine_air.project.toml_file import load_project, save_project, write_bytes_atomic
+from engine_air.project import load_project, save_project, write_bytes_atomic
 
 log = logging.getLogger(__name__)
 

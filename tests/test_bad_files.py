@@ -26,7 +26,7 @@ import tomli_w
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from engine_air.project import toml_file as pf
+from engine_air import project as pf
 from engine_air.cli import main as cli_main
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import evaluate_project

@@ -20,7 +20,7 @@ from hypothesis import strategies as st
 
 import engine_air
 from engine_air.project import load as load_module
-from engine_air.project import toml_file as pf
+from engine_air import project as pf
 from engine_air.envelope.polygon import (
     envelope_mask,
     grid_axes,

@@ -21,7 +21,7 @@ from engine_air.envelope.evaluate import evaluate_project
 from engine_air.flow.match import REGIMES, evaluate_conditions
 from engine_air.envelope.polygon import polygon_contains
 from engine_air.envelope.explain import mechanism
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 from engine_air.outputs.point_record import point_record
 
 EXIT_HOLDS, EXIT_FAILS, EXIT_UNUSABLE = 0, 1, 2

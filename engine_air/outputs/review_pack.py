@@ -48,7 +48,7 @@ from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_p
 from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
 from engine_air.outputs.pictures import render_map
-from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
+from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.point_record import shock_table, station_table
 from engine_air.studies.sizing import worst_point

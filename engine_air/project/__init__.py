@@ -25,6 +25,7 @@ _EXPORTS = {
     "MAX_GRID_POINTS": "schema", "MAX_CASES": "schema", "MAX_CASE_POINTS": "schema",
     "MAX_ENVELOPE_VERTICES": "schema", "SUPPORTED_FORMATS": "schema", "MAX_KEY_PARTS": "schema",
     "MAX_AREA_M2": "schema", "MAX_CORRECTED_FLOW_KG_S": "schema", "MAX_TIP_SPEED_M_S": "schema",
+    "MAX_RAMPS": "schema", "MAX_RAMP_DEG": "schema", "MAX_TOTAL_RAMP_DEG": "schema",
 }
 
 __all__ = sorted(_EXPORTS)

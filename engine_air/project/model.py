@@ -1,7 +1,8 @@
 """The design variant as plain, immutable data (SI units throughout).
 
 These dataclasses mirror the project file of the interfaces document one to
-one; ``engine_air.project.toml_file`` loads, validates and saves them. Edits make a
+one; ``engine_air.project.load`` loads and validates them, ``engine_air.project.save`` saves them
+(every key is described once in ``engine_air.project.schema``). Edits make a
 new object with ``dataclasses.replace``.
 """
 
