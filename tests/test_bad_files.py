@@ -482,7 +482,7 @@ def test_file_growing_after_stat_is_still_capped(tmp_path, monkeypatch):
         def __getattr__(self, name):
             return 100 if name == "st_size" else getattr(self._st, name)
 
-    monkeypatch.setattr(pf.os, "stat", lambda p, *a, **k: SmallStat(real_stat(p, *a, **k)))
+    monkeypatch.setattr(os, "stat", lambda p, *a, **k: SmallStat(real_stat(p, *a, **k)))
     assert_project_error(path, key="(file)", allowed="more than 1048576 bytes")
 
 

@@ -605,7 +605,7 @@ def test_failed_save_leaves_old_file_intact(broken, tmp_path, monkeypatch):
     def fail(*args, **kwargs):
         raise OSError(28, "No space left on device")
 
-    monkeypatch.setattr(pf.os, broken, fail)
+    monkeypatch.setattr(os, broken, fail)
     with pytest.raises(ProjectSaveError) as info:
         pf.save_project(pf.project_from_dict(ramp_data()), target)
     monkeypatch.undo()
