@@ -110,7 +110,7 @@ class Project:
     title: str = ""
     notes: str = ""
     format: int = 1
-    warnings: tuple[str, ...] = field(default=(), compare=False)  # e.g. unknown keys met on loading
+    warnings: tuple[str, ...] = field(default=(), compare=False)  # e.g. a limit no rating lets be checked
 
     def rating(self, name: str) -> Rating:
         for r in self.ratings:
