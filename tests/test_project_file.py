@@ -31,7 +31,7 @@ from engine_air.envelope.polygon import (
     vertices_collinear,
 )
 from engine_air.project.errors import ProjectError, ProjectSaveError
-from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
+from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating, Schedule
 
 SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_projects").glob("*.toml"))
 
@@ -811,11 +811,32 @@ def star_polygons(draw):
     return Envelope(mach=mach, altitude_m=alt)
 
 
+def _increasing(lo, hi, max_size=4):
+    return st.lists(_fl(lo, hi, False), min_size=1, max_size=max_size, unique=True).map(lambda v: tuple(sorted(v)))
+
+
 @st.composite
 def ratings(draw):
     theta = draw(st.lists(_fl(0.3, 3.0, True, True), min_size=1, max_size=6, unique=True).map(sorted))
     flow = draw(st.lists(_fl(0.0, 5000.0), min_size=len(theta), max_size=len(theta)))
-    return draw(names), tuple(theta), tuple(flow), draw(_opt(_fl(0.0, 1000.0)))
+    extra = {}
+    if draw(st.booleans()):
+        extra["corrected_tip_speed_m_s"] = tuple(draw(st.lists(_fl(0.0, 1000.0), min_size=len(theta),
+                                                                max_size=len(theta))))
+    else:
+        extra["fan_tip_speed_m_s"] = draw(_opt(_fl(0.0, 1000.0)))
+    if draw(st.booleans()):
+        mach, alt = draw(_increasing(0.0, 6.0)), draw(_increasing(-5000.0, 84000.0, 3))
+        extra.update(thrust_mach=mach, thrust_altitude_m=alt,
+                     net_thrust_n=tuple(tuple(draw(st.lists(_fl(0.0, 1e7), min_size=len(mach), max_size=len(mach))))
+                                        for _ in alt),
+                     thrust_reference_recovery=draw(st.none() | _fl(0.0, 1.0) | st.just("mil-e-5008b")),
+                     recovery_thrust_exchange=draw(_opt(_fl(0.0, 10.0, False))))
+    return draw(names), tuple(theta), tuple(flow), extra
+
+
+def _range(lo, hi):
+    return st.tuples(_fl(lo, hi, False), _fl(lo, hi, False)).map(lambda t: (min(t), max(t)))
 
 
 @st.composite
@@ -827,6 +848,8 @@ def projects(draw):
         stable_flow_fraction=draw(_opt(_fl(0.0, 1.0, True, True))),
         relative_tip_mach_max=draw(_opt(_fl(0.0, 3.0, True, True))),
         spillage_fraction_max=draw(_opt(_fl(0.0, 1.0, False, True))),
+        started_required=draw(st.none() | st.booleans()),
+        installation_loss_max=draw(_opt(_fl(0.0, 1.0, True, True))),
     )
     capture = draw(_fl(0.0, 100.0))
     kind = draw(st.sampled_from(["pitot", "external-ramp"]))
@@ -836,14 +859,31 @@ def projects(draw):
         lip = draw(_fl(1.0, 5.0))
     inlet = Inlet(type=kind, capture_area_m2=capture, throat_area_m2=draw(_fl(0.0, capture)),
                   face_area_m2=draw(_fl(0.0, 100.0)), duct_loss_coefficient=draw(_fl(0.0, 2.0, False)),
-                  lip_suction_factor=draw(_fl(0.0, 1.0, False)), ramp_angles_deg=ramps, shock_on_lip_mach=lip)
+                  lip_suction_factor=draw(_fl(0.0, 1.0, False)), ramp_angles_deg=ramps, shock_on_lip_mach=lip,
+                  supersonic_lip_suction_factor=draw(_fl(0.0, 1.0, False)), bleed_fraction=draw(_fl(0.0, 0.5, False, True)),
+                  bleed_exit_velocity_ratio=draw(_fl(0.0, 1.0, False)), bypass_area_m2=draw(_fl(0.0, 100.0, False)),
+                  bypass_discharge_coefficient=draw(_fl(0.0, 1.0)), bypass_exit_velocity_ratio=draw(_fl(0.0, 1.0, False)),
+                  auxiliary_inlet_area_m2=draw(_fl(0.0, 100.0, False)), auxiliary_door_mach_max=draw(_fl(0.0, 1.0)),
+                  auxiliary_loss_coefficient=draw(_fl(0.0, 2.0, False)))
+    if draw(st.booleans()):
+        mach = draw(_increasing(0.0, 6.0))
+        n = len(mach)
+        sched = dict(mach=mach, throat_area_m2=draw(_opt(st.lists(_fl(0.0, capture), min_size=n, max_size=n).map(tuple))),
+                     bleed_fraction=tuple(draw(st.lists(_fl(0.0, 0.5, False, True), min_size=n, max_size=n))))
+        if kind == "external-ramp":
+            sched["shock_on_lip_mach"] = draw(_opt(st.lists(_fl(1.0, 5.0), min_size=n, max_size=n).map(tuple)))
+            sched["ramp_angles_deg"] = draw(_opt(st.lists(
+                st.lists(_fl(0.0, 25.0 / len(ramps), False), min_size=len(ramps), max_size=len(ramps)).map(tuple),
+                min_size=n, max_size=n).map(tuple)))
+        inlet = replace(inlet, schedule=Schedule(**sched))
     raw = draw(st.lists(ratings(), min_size=1, max_size=3, unique_by=lambda r: r[0]))
-    rating_objs = tuple(Rating(name=n, theta=t, corrected_flow_kg_s=f, fan_tip_speed_m_s=u) for n, t, f, u in raw)
+    rating_objs = tuple(Rating(name=n, theta=t, corrected_flow_kg_s=f, **extra) for n, t, f, extra in raw)
     mp = draw(st.integers(2, 1001))
     ap = draw(st.integers(2, min(1001, pf.MAX_GRID_POINTS // mp)))
     case_names = draw(st.lists(names, min_size=1, max_size=3, unique=True))
     cases = tuple(Case(name=c, rating=draw(st.sampled_from([r.name for r in rating_objs])),
-                       isa_offset_K=draw(_fl(-100.0, 100.0, False))) for c in case_names)
+                       isa_offset_K=draw(_fl(-100.0, 100.0, False)), mach_range=draw(_opt(_range(0.0, 6.0))),
+                       altitude_range_m=draw(_opt(_range(-5000.0, 84000.0)))) for c in case_names)
     return Project(limits=limits, inlet=inlet, ratings=rating_objs, envelope=draw(star_polygons()),
                    grid=Grid(mp, ap), cases=cases, title=draw(st.text(max_size=40)),
                    notes=draw(st.text(max_size=80)), format=1)
@@ -853,6 +893,7 @@ def projects(draw):
 @given(projects())
 def test_random_projects_round_trip_exactly(project):
     with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
+        load_module.validate_project(project)
         assert pf.project_from_dict(pf.project_to_dict(copy.deepcopy(project))) == project
         assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
         again = pf.project_from_dict(tomllib.loads(pf.dumps_project(project)))
