@@ -1063,6 +1063,19 @@ def test_zero_degree_ramp_is_accepted_and_is_a_mach_wave(tmp_path):
     assert np.allclose(s.total_pressure_ratio, 1.0) and np.allclose(s.downstream_mach, [2.0, 3.0])
 
 
+@pytest.mark.parametrize("angles", [(0.0,), (0.0, 7.0), (8.0, 0.0), (0.0, 0.0, 0.0)])
+def test_zero_degree_ramps_evaluate_without_warnings(angles):
+    import warnings
+
+    from engine_air.envelope.evaluate import evaluate_project
+
+    p = pf.project_from_dict(setpath(ramp_data(), "inlet.ramp_angles_deg", list(angles)))
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        result = evaluate_project(replace(p, grid=Grid(9, 5)))
+    assert np.isfinite(result.cases[0].points.recovery).all()
+
+
 @pytest.mark.parametrize("old, new, key", [
     ("format = 1", "format = " + "9" * 5000, "project.format"),
     ("mach_points = 121", "mach_points = " + "1" * 4301, "grid.mach_points"),
