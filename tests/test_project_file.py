@@ -1069,7 +1069,10 @@ def test_zero_degree_ramps_evaluate_without_warnings(angles):
 
     from engine_air.envelope.evaluate import evaluate_project
 
-    p = pf.project_from_dict(setpath(ramp_data(), "inlet.ramp_angles_deg", list(angles)))
+    sample = Path(__file__).resolve().parent.parent / "sample_projects" / "supersonic_two_ramp.toml"  # to M 2.1
+    p = pf.load_project(sample)
+    p = replace(p, inlet=replace(p.inlet, ramp_angles_deg=angles))
+    load_module.validate_project(p)
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         result = evaluate_project(replace(p, grid=Grid(9, 5)))
