@@ -15,7 +15,7 @@ import datetime as dt
 import math
 import os
 import random
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 import warnings
 from dataclasses import replace
 from pathlib import Path

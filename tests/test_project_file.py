@@ -6,7 +6,7 @@ import copy
 import math
 import os
 import sys
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 import types
 from dataclasses import replace
 from pathlib import Path
