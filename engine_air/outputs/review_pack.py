@@ -36,7 +36,7 @@ import os
 import platform
 import re
 import sys
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 from dataclasses import dataclass, field
 from typing import Callable
 

@@ -244,7 +244,7 @@ _BASE: dict[str, Project] = {}
 
 
 def _base_project(project_toml: str) -> Project:
-    import tomllib
+    from engine_air.project.load import tomllib  # tomli on Python 3.10
 
     base = _BASE.get(project_toml)
     if base is None:
