@@ -57,7 +57,7 @@ import re
 import secrets
 import stat
 import sys
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 from dataclasses import dataclass, field
 from typing import Callable
 
@@ -72,7 +72,7 @@ from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
 from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
 from engine_air.outputs.sections import check_of, cut
-from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
+from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.point_record import shock_table, station_table
 from engine_air.studies.sizing import worst_point

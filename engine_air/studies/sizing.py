@@ -86,7 +86,7 @@ from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project.toml_file import MAX_AREA_M2, MAX_RAMP_DEG, MAX_TOTAL_RAMP_DEG, project_from_dict, project_to_dict
+from engine_air.project import MAX_AREA_M2, MAX_RAMP_DEG, MAX_TOTAL_RAMP_DEG, project_from_dict, project_to_dict
 
 AREA_VARIABLES = ("capture_area_m2", "throat_area_m2", "face_area_m2")
 SCALAR_VARIABLES = AREA_VARIABLES + ("duct_loss_coefficient", "shock_on_lip_mach")

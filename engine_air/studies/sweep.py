@@ -67,7 +67,7 @@ from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project.toml_file import dumps_project, project_from_dict
+from engine_air.project import dumps_project, project_from_dict
 from engine_air.studies.sizing import _parse, _resolve_at, variable_unit, with_design_values, worst_point
 
 MAX_VARIABLES = 4
@@ -245,7 +245,7 @@ _BASE: dict[str, Project] = {}
 
 
 def _base_project(project_toml: str) -> Project:
-    import tomllib
+    from engine_air.project.load import tomllib  # tomli on Python 3.10
 
     base = _BASE.get(project_toml)
     if base is None:
