@@ -61,7 +61,7 @@ class ExternalRampInlet:
         return None  # the ramp surface force is not yet taken out of the stream-tube balance
 
     def design_variables(self, inlet: Inlet) -> list[str]:
-        return ["shock_on_lip_mach"] + [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))]
+        return [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))] + ["shock_on_lip_mach"]
 
 
 INLET = ExternalRampInlet()
