@@ -9,25 +9,17 @@ from __future__ import annotations
 
 import numpy as np
 
+from engine_air.envelope import ranking
 from engine_air.envelope.evaluate import WORST
-
-_FAIL_OFFSET = 1e6  # a failing check outranks every holding one
 
 
 def least_relative_margin(points) -> np.ndarray:
     """(ny, nx) least relative margin over the checks that apply; NaN where none applies.
 
-    Failing checks rank first (their value is kept, capped at 0), so the zero
+    Failing checks rank first (``engine_air.envelope.ranking``), so the zero
     level of this field is the boundary of the region where some limit fails.
     """
-    if not points.checks:
-        return np.full(np.shape(points.mach), np.nan)
-    stack = []
-    for c in points.checks:
-        rel = np.asarray(c.relative_margin, dtype=float)
-        stack.append(np.where(c.applies, np.where(c.fails, np.minimum(rel, 0.0), rel), np.inf))
-    out = np.min(np.stack(stack), axis=0)
-    return np.where(np.isinf(out), np.nan, out)
+    return ranking.worst_relative_margin(points.checks, np.shape(points.mach))
 
 
 def limiting_field(result, case: str) -> np.ndarray:
@@ -41,45 +33,26 @@ def limiting_field(result, case: str) -> np.ndarray:
     return np.where(result.inside, out, np.nan)
 
 
-def _rank_at(points, index) -> float:
-    best = np.inf
-    for c in points.checks:
-        if not bool(np.asarray(c.applies)[index]):
-            continue
-        rel = float(np.asarray(c.relative_margin)[index])
-        if bool(np.asarray(c.fails)[index]):
-            rel = min(rel, 0.0) - _FAIL_OFFSET
-        best = min(best, rel)
-    return best
-
-
 def case_at(result, case: str, index) -> str:
     """The case to show at grid ``index``: ``case`` itself, or for WORST the case with the least margin there."""
     if case != WORST:
         return case
-    ranks = [_rank_at(c.points, index) for c in result.cases]
-    return result.cases[int(np.argmin(ranks))].name
+    idx = ranking.worst_case_index([c.points for c in result.cases], np.shape(result.inside))
+    return result.cases[int(idx[index])].name
 
 
 def limiting_at(points, index) -> tuple[str, bool] | None:
     """(label, fails) of the limiting check at grid ``index``; None when no check applies."""
-    best = None
-    for c in points.checks:
-        if not bool(np.asarray(c.applies)[index]):
-            continue
-        rel = float(np.asarray(c.relative_margin)[index])
-        fails = bool(np.asarray(c.fails)[index])
-        rank = (min(rel, 0.0) - _FAIL_OFFSET) if fails else rel
-        if best is None or rank < best[0]:
-            best = (rank, c.label, fails)
-    return None if best is None else (best[1], best[2])
+    k = int(ranking.limiting_index(points.checks, np.shape(points.mach))[index])
+    if k < 0:
+        return None
+    c = points.checks[k]
+    return c.label, bool(np.asarray(c.fails)[index])
 
 
 def nearest_index(result, mach: float, altitude_m: float) -> tuple[int, int]:
     """Grid (row i, column j) nearest to a flight condition."""
-    i = int(np.argmin(np.abs(np.asarray(result.altitude_m) - altitude_m)))
-    j = int(np.argmin(np.abs(np.asarray(result.mach) - mach)))
-    return i, j
+    return ranking.nearest_index(result.mach, result.altitude_m, mach, altitude_m)
 
 
 def failing_count(result) -> tuple[int, int]:

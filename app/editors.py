@@ -9,11 +9,13 @@ red bar above the tabs and the project is not changed. An accepted candidate
 is emitted as ``projectEdited(Project)``; the main window records it (undo)
 and asks for a recompute.
 
-Spin-box ranges follow the loader's rules (``engine_air.project.toml_file``).
+Spin-box ranges, decimals, steps and tooltips come from the schema (``engine_air.project.schema``), and the
+inlet tab shows the keys of the inlet type chosen (from the registry of inlet types).
 """
 
 from __future__ import annotations
 
+import dataclasses
 import logging
 from dataclasses import replace
 
@@ -35,9 +37,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine_air.project import toml_file as pf
+from engine_air.project import schema as S
 from engine_air.project.errors import ProjectError
-from engine_air.project.model import INLET_TYPES, REFERENCE_RECOVERY_NAME, Case
+from engine_air.project.model import REFERENCE_RECOVERY_NAME, Case, Inlet
 
 from .edit_widgets import CellError, UnitSpin, cell_si, make_table, number_item
 from .units import Units
@@ -49,18 +51,40 @@ DEBOUNCE_MS = 150
 log = logging.getLogger(__name__)
 
 
-def _c(name: str, default):
-    return getattr(pf, name, default)
+_DIMENSIONS = {"m^2": "area", "kg/s": "flow", "m/s": "blade_speed", "m": "altitude", "K": "temperature_difference",
+               "N": "force"}
 
 
-MAX_AREA = _c("MAX_AREA_M2", 100.0)
-MAX_FLOW = _c("MAX_CORRECTED_FLOW_KG_S", 5000.0)
-MAX_TIP = _c("MAX_TIP_SPEED_M_S", 1000.0)
-MAX_RAMPS = _c("MAX_RAMPS", 3)
-MAX_RAMP_DEG = _c("MAX_RAMP_DEG", 25.0)
-MIN_AXIS = _c("MIN_AXIS_POINTS", 2)
-MAX_AXIS = _c("MAX_AXIS_POINTS", 1001)
-MAX_GRID = _c("MAX_GRID_POINTS", 250_000)
+def _dimension(f) -> str:
+    """The display-unit dimension of a schema field (``app.units``); "none" for plain numbers and degrees."""
+    return _DIMENSIONS.get(f.unit, "none")
+
+
+def _tooltip(f) -> str:
+    """A field's one-line description and what is allowed, from the schema."""
+    text = f"{f.path}: {f.description}.\nAllowed: {f.allowed_text()}"
+    if f.inlet_types:
+        text += "\nInlet types: " + ", ".join(f.inlet_types)
+    return text
+
+
+def _fallback(f) -> float:
+    """A value to show for a key the project does not give: its default, else a point inside its range."""
+    if isinstance(f.default, (int, float)) and not isinstance(f.default, bool):
+        return float(f.default)
+    lo = f.lo if f.lo is not None else 0.0
+    hi = f.hi if f.hi is not None else lo + 1.0
+    typical = {"ramp_angles_deg": 8.0, "shock_on_lip_mach": 2.0, "cone_half_angles_deg": 20.0,
+               "auxiliary_door_mach_max": 0.3}
+    return typical.get(f.key, (lo + hi) / 2.0)
+
+
+MAX_AREA = S.MAX_AREA_M2
+MAX_FLOW = S.MAX_CORRECTED_FLOW_KG_S
+MAX_TIP = S.MAX_TIP_SPEED_M_S
+MIN_AXIS = S.MIN_AXIS_POINTS
+MAX_AXIS = S.MAX_AXIS_POINTS
+MAX_GRID = S.MAX_GRID_POINTS
 
 
 def _scroll(widget: QWidget) -> QScrollArea:
@@ -212,91 +236,215 @@ class ProjectEditors(QWidget):
         self.notes_edit.setPlainText(p.notes)
 
     # -- inlet ---------------------------------------------------------------------
+    def _field_spin(self, f, change_of_value, dimension=None, suffix=None):
+        """A spin box for the schema field ``f``: range, open bounds, decimals, step and tooltip from the field."""
+        lo = f.lo if f.lo is not None else -1e12
+        hi = f.hi if f.hi is not None else 1e12
+        s = UnitSpin(dimension or _dimension(f), lo, hi, f.decimals if f.decimals is not None else 4,
+                     f.step if f.step is not None else 0.01, f.lo_open, f.hi_open,
+                     suffix=suffix if suffix is not None else ("°" if f.unit == "deg" else None))
+        s.setToolTip(_tooltip(f))
+        if change_of_value is not None:
+            s.valueChanged.connect(lambda _v, s=s: self.queue(lambda p, v=s.si(): change_of_value(p, v)))
+        return s
+
     def _build_inlet(self) -> None:
         w = QWidget()
         form = QFormLayout(w)
+        self.inlet_form = form
         self.inlet_type = QComboBox()
-        self.inlet_type.addItems(list(INLET_TYPES))
+        for name, kind in S.inlet_types().items():
+            self.inlet_type.addItem(name)
+            self.inlet_type.setItemData(self.inlet_type.count() - 1, kind.label, Qt.ToolTipRole)
+        self.inlet_type.setToolTip(_tooltip(S.field("inlet.type")))
         self.inlet_type.currentTextChanged.connect(self._on_type)
+        form.addRow("Inlet type", self.inlet_type)
 
         def inlet_field(name):
             return lambda p, v: replace(p, inlet=replace(p.inlet, **{name: v}))
 
-        self.capture_area = self._spin("area", 0.0, MAX_AREA, inlet_field("capture_area_m2"), lo_open=True)
-        self.throat_area = self._spin("area", 0.0, MAX_AREA, inlet_field("throat_area_m2"), lo_open=True)
-        self.face_area = self._spin("area", 0.0, MAX_AREA, inlet_field("face_area_m2"), lo_open=True)
-        self.duct_k = self._spin("none", 0.0, 2.0, inlet_field("duct_loss_coefficient"), 3, 0.005)
-        self.lip_suction = self._spin("none", 0.0, 1.0, inlet_field("lip_suction_factor"), 3, 0.05)
-        self.ramp_count = QSpinBox()
-        self.ramp_count.setRange(1, MAX_RAMPS)
-        self.ramp_count.valueChanged.connect(lambda _n: self.queue(self._ramps_from_widgets))
-        self.ramp_spins = []
-        for k in range(MAX_RAMPS):
-            s = UnitSpin("none", 0.0, MAX_RAMP_DEG, 2, 0.25, lo_open=True, suffix="°")
-            s.valueChanged.connect(lambda _v: self.queue(self._ramps_from_widgets))
-            self.ramp_spins.append(s)
-        self.lip_mach = self._spin("none", 1.0, 5.0, inlet_field("shock_on_lip_mach"), 3, 0.05, lo_open=True)
-        form.addRow("Inlet type", self.inlet_type)
-        form.addRow("Capture area A_c (station 1)", self.capture_area)
-        form.addRow("Throat area A_th", self.throat_area)
-        form.addRow("Engine-face flow area A2", self.face_area)
-        form.addRow("Duct loss coefficient K", self.duct_k)
-        form.addRow("Lip suction factor (0–1)", self.lip_suction)
-        form.addRow("Number of ramps", self.ramp_count)
-        for k, s in enumerate(self.ramp_spins):
-            form.addRow(f"Ramp {k + 1} deflection", s)
-        form.addRow("Shock-on-lip Mach M_d", self.lip_mach)
-        note = QLabel("Ramp angles and shock-on-lip Mach apply to external-ramp inlets only.")
-        note.setWordWrap(True)
-        form.addRow(note)
+        self.inlet_spins = {}  # key -> UnitSpin, for the numeric keys every type reads
+        self.inlet_optional = {}  # key -> (QCheckBox, UnitSpin), for optional numeric keys without default
+        self.type_widgets = {}  # key -> widgets of a type-specific key
+        self._type_rows = {}  # key -> the rows (label widgets) to show or hide
+        labels = {
+            "capture_area_m2": "Capture area A_c (station 1)", "throat_area_m2": "Throat area A_th",
+            "face_area_m2": "Engine-face flow area A2", "duct_loss_coefficient": "Duct loss coefficient K",
+            "lip_suction_factor": "Lip suction factor (0–1)",
+            "supersonic_lip_suction_factor": "Supersonic lip suction factor (0–1)",
+            "bleed_fraction": "Bleed fraction of captured flow", "bleed_exit_velocity_ratio": "Bleed exit V/V0",
+            "bypass_area_m2": "Bypass door area", "bypass_discharge_coefficient": "Bypass discharge coefficient",
+            "bypass_exit_velocity_ratio": "Bypass exit V/V0", "auxiliary_inlet_area_m2": "Auxiliary door area",
+            "auxiliary_door_mach_max": "Auxiliary doors closed above M0",
+            "auxiliary_loss_coefficient": "Auxiliary door loss coefficient",
+            "ramp_angles_deg": "Ramp", "shock_on_lip_mach": "Shock-on-lip Mach M_d",
+            "cone_half_angles_deg": "Cone", "internal_recovery_factor": "Internal recovery factor",
+        }
+        self._inlet_labels = labels
+        fields = S.inlet_fields()
+        for f in fields:
+            if f.key == "type" or f.inlet_types:
+                continue
+            if f.default is None:  # optional without a default: a check box gives it
+                box = QCheckBox()
+                spin = self._field_spin(f, None)
+                spin.valueChanged.connect(lambda _v, n=f.key: self.queue(self._inlet_optional_from_widgets(n)))
+                box.toggled.connect(lambda on, n=f.key: self._on_inlet_optional_toggled(n, on))
+                row = QHBoxLayout()
+                row.addWidget(box)
+                row.addWidget(spin, 1)
+                form.addRow(labels.get(f.key, f.key), row)
+                self.inlet_optional[f.key] = (box, spin)
+            else:
+                spin = self._field_spin(f, inlet_field(f.key))
+                form.addRow(labels.get(f.key, f.key), spin)
+                self.inlet_spins[f.key] = spin
+            if f.key == "face_area_m2":
+                self._build_type_fields(form, [g for g in fields if g.inlet_types], labels)
+        self.capture_area = self.inlet_spins["capture_area_m2"]
+        self.throat_area = self.inlet_spins["throat_area_m2"]
+        self.face_area = self.inlet_spins["face_area_m2"]
+        self.duct_k = self.inlet_spins["duct_loss_coefficient"]
+        self.lip_suction = self.inlet_spins["lip_suction_factor"]
+        ramps = self.type_widgets.get("ramp_angles_deg")
+        if ramps is not None:
+            self.ramp_count, self.ramp_spins = ramps
+        lip = self.type_widgets.get("shock_on_lip_mach")
+        if lip is not None:
+            self.lip_mach = lip
+        self.type_note = QLabel("")
+        self.type_note.setWordWrap(True)
+        form.addRow(self.type_note)
         self.tabs.addTab(_scroll(w), "Inlet")
 
+    def _build_type_fields(self, form, fields, labels) -> None:
+        """Rows for the keys of one or a few inlet types (from the registry); shown for the chosen type only."""
+        for f in fields:
+            label = labels.get(f.key, f.key)
+            if f.kind == "number list":
+                most = f.length[1] if f.length and f.length[1] else 3
+                count = QSpinBox()
+                count.setRange(f.length[0] if f.length else 1, most)
+                count.setToolTip(_tooltip(f))
+                count.valueChanged.connect(lambda _n, k=f.key: self.queue(self._type_list_from_widgets(k)))
+                count.valueChanged.connect(lambda _n: self._update_type_rows(self.inlet_type.currentText()))
+                spins = []
+                rows = [QLabel(f"Number of {label.lower()}s")]
+                form.addRow(rows[0], count)
+                for k in range(most):
+                    s = self._field_spin(f, None)
+                    s.valueChanged.connect(lambda _v, key=f.key: self.queue(self._type_list_from_widgets(key)))
+                    spins.append(s)
+                    lab = QLabel(f"{label} {k + 1}" + (" deflection" if f.key == "ramp_angles_deg" else
+                                                      " half-angle" if f.key == "cone_half_angles_deg" else ""))
+                    form.addRow(lab, s)
+                    rows.append(lab)
+                self.type_widgets[f.key] = (count, spins)
+                self._type_rows[f.key] = rows
+            elif f.kind == "number":
+                s = self._field_spin(f, lambda p, v, k=f.key: replace(p, inlet=replace(p.inlet, **{k: v})))
+                lab = QLabel(label)
+                form.addRow(lab, s)
+                self.type_widgets[f.key] = s
+                self._type_rows[f.key] = [lab]
+
+    def _type_list_from_widgets(self, key):
+        def change(p):
+            if key not in {f.key for f in S.inlet_fields(p.inlet.type)}:
+                return p
+            count, spins = self.type_widgets[key]
+            values = tuple(float(s.value()) for s in spins[:count.value()])
+            return replace(p, inlet=replace(p.inlet, **{key: values}))
+        return change
+
+    def _inlet_optional_from_widgets(self, name):
+        box, spin = self.inlet_optional[name]
+        value = spin.si() if box.isChecked() else None
+        return lambda p: replace(p, inlet=replace(p.inlet, **{name: value}))
+
+    def _on_inlet_optional_toggled(self, name, on) -> None:
+        self.inlet_optional[name][1].setEnabled(on)
+        if not self._loading:
+            self.apply_now(self._inlet_optional_from_widgets(name))
+
     def _ramps_from_widgets(self, p):
-        if p.inlet.type != "external-ramp":
-            return p
-        n = self.ramp_count.value()
-        angles = tuple(float(s.value()) for s in self.ramp_spins[:n])
-        return replace(p, inlet=replace(p.inlet, ramp_angles_deg=angles))
+        return self._type_list_from_widgets("ramp_angles_deg")(p)
+
+    def _type_values_from_widgets(self, kind: str) -> dict:
+        """The type-specific keys of type ``kind`` as the widgets show them; other types' keys at their default."""
+        own = {f.key for f in S.inlet_fields(kind) if f.inlet_types}
+        defaults = {fld.name: fld.default for fld in dataclasses.fields(Inlet)}
+        values = {}
+        for key, widget in self.type_widgets.items():
+            if key not in defaults:
+                continue
+            if key not in own:
+                values[key] = defaults[key]
+            elif isinstance(widget, tuple):
+                count, spins = widget
+                values[key] = tuple(float(s.value()) for s in spins[:count.value()])
+            else:
+                values[key] = float(widget.value())
+        return values
 
     def _on_type(self, kind: str) -> None:
         if self._loading:
             return
-        self._update_ramp_enabled(kind)
+        self._update_type_rows(kind)
 
         def change(p):
             if kind == p.inlet.type:
                 return p
-            if kind == "pitot":
-                return replace(p, inlet=replace(p.inlet, type=kind, ramp_angles_deg=(), shock_on_lip_mach=None))
-            n = self.ramp_count.value()
-            angles = tuple(float(s.value()) for s in self.ramp_spins[:n])
-            return replace(p, inlet=replace(p.inlet, type=kind, ramp_angles_deg=angles,
-                                            shock_on_lip_mach=float(self.lip_mach.value())))
+            return replace(p, inlet=replace(p.inlet, type=kind, schedule=None, **self._type_values_from_widgets(kind)))
 
         self.apply_now(change)
 
+    def _update_type_rows(self, kind: str) -> None:
+        own = {f.key for f in S.inlet_fields(kind) if f.inlet_types}
+        for key, widget in self.type_widgets.items():
+            show = key in own
+            rows = self._type_rows[key]
+            if isinstance(widget, tuple):
+                count, spins = widget
+                self.inlet_form.setRowVisible(count, show)
+                count.setEnabled(show)
+                for k, s in enumerate(spins):
+                    self.inlet_form.setRowVisible(s, show and k < count.value())
+                    s.setEnabled(show and k < count.value())
+            else:
+                self.inlet_form.setRowVisible(widget, show)
+                widget.setEnabled(show)
+            del rows
+        label = S.inlet_types()[kind].label if kind in S.inlet_types() else kind
+        self.type_note.setText(f"Keys shown: those of the inlet type {kind} ({label}); docs/project-file.md lists every key.")
+
     def _update_ramp_enabled(self, kind: str) -> None:
-        ramp = kind == "external-ramp"
-        self.ramp_count.setEnabled(ramp)
-        self.lip_mach.setEnabled(ramp)
-        for k, s in enumerate(self.ramp_spins):
-            s.setEnabled(ramp and k < self.ramp_count.value())
+        self._update_type_rows(kind)
 
     def _load_inlet(self, p) -> None:
         i = p.inlet
         self.inlet_type.setCurrentText(i.type)
-        self.capture_area.set_si(i.capture_area_m2)
-        self.throat_area.set_si(i.throat_area_m2)
-        self.face_area.set_si(i.face_area_m2)
-        self.duct_k.set_si(i.duct_loss_coefficient)
-        self.lip_suction.set_si(i.lip_suction_factor)
-        angles = list(i.ramp_angles_deg) or [8.0]
-        self.ramp_count.setValue(len(angles))
-        defaults = angles + [7.0] * MAX_RAMPS
-        for k, s in enumerate(self.ramp_spins):
-            s.set_si(defaults[k])
-        self.lip_mach.set_si(i.shock_on_lip_mach if i.shock_on_lip_mach is not None else 2.0)
-        self._update_ramp_enabled(i.type)
+        for key, spin in self.inlet_spins.items():
+            spin.set_si(getattr(i, key))
+        for key, (box, spin) in self.inlet_optional.items():
+            value = getattr(i, key)
+            box.setChecked(value is not None)
+            spin.setEnabled(value is not None)
+            spin.set_si(value if value is not None else _fallback(S.field(f"inlet.{key}")))
+        fields = {f.key: f for f in S.inlet_fields()}
+        for key, widget in self.type_widgets.items():
+            f = fields[key]
+            value = getattr(i, key, None)
+            if isinstance(widget, tuple):
+                count, spins = widget
+                values = list(value or ()) or [_fallback(f)]
+                count.setValue(len(values))
+                pad = values + [values[-1] if f.key != "ramp_angles_deg" else 7.0] * len(spins)
+                for k, s in enumerate(spins):
+                    s.set_si(pad[k])
+            else:
+                widget.set_si(value if value is not None else _fallback(f))
+        self._update_type_rows(i.type)
 
     # -- limits --------------------------------------------------------------------
     def _build_limits(self) -> None:
@@ -306,28 +454,35 @@ class ProjectEditors(QWidget):
         def limit_field(name):
             return lambda p, v: replace(p, limits=replace(p.limits, **{name: v}))
 
-        self.face_mach_max = self._spin("none", 0.0, 1.0, limit_field("face_mach_max"), 3, 0.01,
-                                        lo_open=True, hi_open=True)
+        self.face_mach_max = self._field_spin(S.field("limits.face_mach_max"), limit_field("face_mach_max"))
         form.addRow("Face Mach limit M2 max", self.face_mach_max)
         self.optional_limits = {}
-        for name, label, lo, hi, lo_open, hi_open in (
-            ("throat_mach_max", "Throat Mach limit M_th max", 0.0, 1.0, True, False),
-            ("stable_flow_fraction", "Stable flow fraction MFR/MFR_max", 0.0, 1.0, True, True),
-            ("relative_tip_mach_max", "Blade relative tip Mach max", 0.0, 3.0, True, True),
-            ("spillage_fraction_max", "Spillage fraction max", 0.0, 1.0, False, True),
-        ):
+        labels = {"throat_mach_max": "Throat Mach limit M_th max",
+                  "stable_flow_fraction": "Stable flow fraction MFR/MFR_max",
+                  "relative_tip_mach_max": "Blade relative tip Mach max", "spillage_fraction_max": "Spillage fraction max",
+                  "installation_loss_max": "Installation loss max (share of net thrust)"}
+        for f in S.LIMIT_FIELDS:
+            if f.kind != "number" or f.required:
+                continue
+            name = f.key
             box = QCheckBox()
-            spin = UnitSpin("none", lo, hi, 3, 0.01, lo_open, hi_open)
+            spin = self._field_spin(f, None)
             spin.valueChanged.connect(lambda _v, n=name: self.queue(self._optional_from_widgets(n)))
             box.toggled.connect(lambda on, n=name: self._on_optional_toggled(n, on))
             row = QHBoxLayout()
             row.addWidget(box)
             row.addWidget(spin, 1)
-            form.addRow(label, row)
+            form.addRow(labels.get(name, name), row)
             self.optional_limits[name] = (box, spin)
+        self.started_required = QComboBox()
+        self.started_required.addItems(["inlet type's default", "required", "not required"])
+        self.started_required.setToolTip(_tooltip(S.field("limits.started_required")))
+        self.started_required.currentIndexChanged.connect(self._on_started_changed)
+        form.addRow("Started operation (mixed compression)", self.started_required)
         self.recovery_mode = QComboBox()
         self.recovery_mode.addItems(["no recovery limit", "number", "MIL-E-5008B reference"])
-        self.recovery_min = UnitSpin("none", 0.0, 1.0, 3, 0.01, lo_open=True)
+        self.recovery_min = self._field_spin(S.field("limits.recovery_min"), None)
+        self.recovery_mode.setToolTip(_tooltip(S.field("limits.recovery_min")))
         self.recovery_mode.currentIndexChanged.connect(lambda _i: self._on_recovery_changed(True))
         self.recovery_min.valueChanged.connect(lambda _v: self._on_recovery_changed(False))
         row = QHBoxLayout()
@@ -346,6 +501,12 @@ class ProjectEditors(QWidget):
         if not self._loading:
             self.apply_now(self._optional_from_widgets(name))
 
+    def _on_started_changed(self, index: int) -> None:
+        if self._loading:
+            return
+        value = (None, True, False)[index]
+        self.apply_now(lambda p: replace(p, limits=replace(p.limits, started_required=value)))
+
     def _on_recovery_changed(self, immediate: bool) -> None:
         mode = self.recovery_mode.currentIndex()
         self.recovery_min.setEnabled(mode == 1)
@@ -362,12 +523,13 @@ class ProjectEditors(QWidget):
         lim = p.limits
         self.face_mach_max.set_si(lim.face_mach_max)
         defaults = {"throat_mach_max": 0.8, "stable_flow_fraction": 0.85, "relative_tip_mach_max": 1.5,
-                    "spillage_fraction_max": 0.3}
+                    "spillage_fraction_max": 0.3, "installation_loss_max": 0.06}
+        self.started_required.setCurrentIndex({None: 0, True: 1, False: 2}[lim.started_required])
         for name, (box, spin) in self.optional_limits.items():
             value = getattr(lim, name, None)
             box.setChecked(value is not None)
             spin.setEnabled(value is not None)
-            spin.set_si(value if value is not None else defaults[name])
+            spin.set_si(value if value is not None else defaults.get(name, _fallback(S.field(f"limits.{name}"))))
         rec = lim.recovery_min
         if rec is None:
             self.recovery_mode.setCurrentIndex(0)
@@ -398,7 +560,7 @@ class ProjectEditors(QWidget):
         form = QFormLayout()
         form.addRow("Name", self.rating_name)
         self.tip_box = QCheckBox("given")
-        self.tip_speed = UnitSpin("blade_speed", 0.0, MAX_TIP, 1, 5.0, lo_open=True)
+        self.tip_speed = self._field_spin(S.field("engine.rating.fan_tip_speed_m_s"), None)
         self.tip_box.toggled.connect(lambda _on: self._tip_changed(True))
         self.tip_speed.valueChanged.connect(lambda _v: self._tip_changed(False))
         row = QHBoxLayout()
@@ -416,8 +578,10 @@ class ProjectEditors(QWidget):
         buttons.addWidget(add_row)
         buttons.addWidget(remove_row)
         lay.addLayout(buttons)
-        hint = QLabel("θ2 must increase strictly (0.3 < θ2 < 3); corrected flow is interpolated linearly "
-                      "and held at the end values outside the table.")
+        theta = S.field("engine.rating.theta")
+        hint = QLabel(f"θ2 must increase strictly ({theta.bounds_text('θ2')}); corrected flow is interpolated "
+                      "linearly and held at the end values outside the table.")
+        hint.setToolTip(_tooltip(theta))
         hint.setWordWrap(True)
         lay.addWidget(hint)
         self.tabs.addTab(w, "Engine")
@@ -698,7 +862,9 @@ class ProjectEditors(QWidget):
         self.mach_points = QSpinBox()
         self.alt_points = QSpinBox()
         for s, name in ((self.mach_points, "mach_points"), (self.alt_points, "altitude_points")):
-            s.setRange(MIN_AXIS, MAX_AXIS)
+            f = S.field(f"grid.{name}")
+            s.setRange(int(f.lo), int(f.hi))
+            s.setToolTip(_tooltip(f))
             s.setKeyboardTracking(True)
             s.valueChanged.connect(lambda v, n=name: self.queue(
                 lambda p: replace(p, grid=replace(p.grid, **{n: int(v)}))))

@@ -2,77 +2,24 @@
 
 from __future__ import annotations
 
-import csv
 import datetime as _dt
-import math
 from pathlib import Path
 
-import numpy as np
 import pyqtgraph.exporters as pgx
 
 import engine_air
-from engine_air.envelope import flags as F
-from engine_air.flow import match
+from engine_air.outputs.table import point_table_columns, write_point_table
 
-from .findings import finding_lines
+from .findings import finding_lines, mechanisms
 from .units import Units
 
-REGIME_NAMES = tuple(getattr(match, "REGIMES", ("subsonic", "subcritical", "critical", "supercritical")))
-
-CSV_QUANTITIES = [
-    "face_mach", "face_mach_margin", "throat_mach", "recovery", "external_recovery", "duct_recovery",
-    "reference_recovery", "mass_flow_ratio", "max_mass_flow_ratio", "spillage_fraction",
-    "additive_drag_coefficient", "face_static_to_ambient", "relative_tip_mach", "theta2",
-    "corrected_flow_kg_s", "mass_flow_kg_s",
-]
-CSV_HEADER = ["case", "mach", "altitude_m", "inside_envelope"] + CSV_QUANTITIES + ["regime", "limiting", "holds",
-                                                                                   "flags"]
-
-
-def _flag_text(bits: int, cache: dict) -> str:
-    if bits not in cache:
-        names_of = getattr(F, "names_of", None)
-        if names_of is not None:
-            names = names_of(bits)
-        else:  # pragma: no cover
-            names = [n for n, b in F.FLAG_BITS.items() if bits & b] or ["ok"]
-        cache[bits] = ";".join(names)
-    return cache[bits]
-
-
-def _cell(x: float) -> str:
-    return repr(float(x)) if math.isfinite(x) else ""
+CSV_HEADER = point_table_columns()
+"""Columns of the CSV export: those of ``engine-air map --csv`` (one registry, one writer)."""
 
 
 def write_grid_csv(result, path: str | Path) -> int:
-    """Every grid point of every case, SI units; returns the number of rows written."""
-    mach_2d, alt_2d = np.meshgrid(result.mach, result.altitude_m)
-    inside = np.asarray(result.inside, dtype=bool).ravel()
-    rows = 0
-    cache: dict = {}
-    with open(path, "w", newline="", encoding="utf-8") as f:
-        w = csv.writer(f)
-        w.writerow(CSV_HEADER)
-        for cm in result.cases:
-            p = cm.points
-            cols = [np.asarray(p.value(k) if k != "face_mach_margin" else p.face_mach_margin, dtype=float).ravel()
-                    for k in CSV_QUANTITIES]
-            regime = np.asarray(p.regime).ravel()
-            bits = np.asarray(p.flags).ravel()
-            lim = np.asarray(p.limiting).ravel() if p.limiting is not None else np.full(bits.shape, -1)
-            names = [c.name for c in p.checks]
-            fails = np.zeros(bits.shape, bool)
-            for c in p.checks:
-                fails |= np.asarray(c.fails, dtype=bool).ravel()
-            m, h = mach_2d.ravel(), alt_2d.ravel()
-            for n in range(m.size):
-                w.writerow([cm.name, repr(float(m[n])), repr(float(h[n])), "1" if inside[n] else "0"]
-                           + [_cell(c[n]) for c in cols]
-                           + [REGIME_NAMES[int(regime[n])], names[lim[n]] if lim[n] >= 0 else "",
-                              "" if not inside[n] else ("0" if fails[n] else "1"),
-                              _flag_text(int(bits[n]), cache)])
-                rows += 1
-    return rows
+    """Every grid point of every case, SI units, the columns of ``engine-air map --csv``; returns the rows written."""
+    return write_point_table(result, path, "csv")
 
 
 def findings_text(result, units: Units, title: str = "", file_name: str = "") -> str:
@@ -86,7 +33,7 @@ def findings_text(result, units: Units, title: str = "", file_name: str = "") ->
         f"Verdict: {verdict}",
         "",
     ]
-    body = [f"- {line}" for line in finding_lines(result.summary, units)]
+    body = [f"- {line}" for line in finding_lines(result.summary, units, mechanisms(result))]
     tail = ["", engine_air.CAUTION, ""]
     return "\n".join([h for h in head if h is not None] + body + tail)
 

@@ -24,15 +24,27 @@ def where_text(s, units: Units) -> str:
     return f"M0 {s.worst_mach:.3f}, {group_digits(alt)} {units.label('altitude')}, {s.worst_case}"
 
 
-def finding_lines(summary, units: Units) -> list[str]:
-    """The findings as plain text lines (for export and the clipboard)."""
+def mechanisms(result) -> list[str]:
+    """Per finding of ``result.summary``: what drives that limit at its own worst point
+    (``engine_air.envelope.explain.finding_mechanism``)."""
+    from engine_air.envelope.explain import finding_mechanism
+
+    return [finding_mechanism(result.project, result, s)[2] for s in result.summary]
+
+
+def finding_lines(summary, units: Units, mechanism_texts=None) -> list[str]:
+    """The findings as plain text lines (for export and the clipboard); with ``mechanism_texts`` (one per
+    finding, e.g. ``mechanisms(result)``) each line ends with its own mechanism."""
     lines = []
-    for s in summary:
+    for k, s in enumerate(summary):
         verdict = "holds" if s.holds else "FAILS"
         value = "—" if not math.isfinite(s.worst_value) else f"{s.worst_value:.4g}"
         margin = "—" if not math.isfinite(s.worst_margin) else f"{s.worst_margin:+.4g}"
-        lines.append(f"{s.label} [{s.limit_text}]: {verdict}; worst value {value} (margin {margin}) at "
-                     f"{where_text(s, units)}; fails at {100 * s.failing_share:.1f} % of envelope points")
+        line = (f"{s.label} [{s.limit_text}]: {verdict}; worst value {value} (margin {margin}) at "
+                f"{where_text(s, units)}; fails at {100 * s.failing_share:.1f} % of envelope points")
+        if mechanism_texts is not None and k < len(mechanism_texts) and mechanism_texts[k]:
+            line += f"; mechanism: {mechanism_texts[k]}"
+        lines.append(line)
     return lines
 
 
@@ -53,7 +65,8 @@ class FindingsList(QTreeWidget):
         self.itemClicked.connect(self._on_clicked)
         self.itemActivated.connect(self._on_clicked)
 
-    def set_summary(self, summary, units: Units) -> None:
+    def set_summary(self, summary, units: Units, mechanism_texts=None) -> None:
+        """Show ``summary``; ``mechanism_texts`` (one per finding) become each row's tooltip."""
         self._summary = list(summary)
         self._units = units
         self.clear()
@@ -63,6 +76,9 @@ class FindingsList(QTreeWidget):
             item = QTreeWidgetItem([s.label, s.limit_text, "holds" if s.holds else "FAILS", value, margin,
                                     where_text(s, units), f"{100 * s.failing_share:.1f} %"])
             item.setData(0, Qt.UserRole, k)
+            if mechanism_texts is not None and k < len(mechanism_texts):
+                for col in range(1, len(COLUMNS)):
+                    item.setToolTip(col, mechanism_texts[k])
             if not s.holds:
                 f = item.font(2)
                 f.setBold(True)

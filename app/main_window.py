@@ -45,7 +45,7 @@ from .about import about_html
 from .detail_panel import DetailPanel
 from .document import ProjectDocument
 from .editors import ProjectEditors
-from .findings import FindingsList
+from .findings import FindingsList, mechanisms
 from .map_view import EnvelopeMap
 from .recovery import AUTOSAVE_MS, RecoveryStore
 from .template import new_project
@@ -298,7 +298,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         if gen != self.result_generation or self.result is None:
             return  # a newer result arrived meanwhile; it schedules its own update
         self.detail.set_stale(None)
-        self.findings.set_summary(self.result.summary, self.units)
+        self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
         self._restore_selection()
         self.panels_generation = gen
 
@@ -425,7 +425,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.detail.set_units(self.units)
         self.editors.set_units(self.units)
         if self.result is not None:
-            self.findings.set_summary(self.result.summary, self.units)
+            self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
             self._redraw()
 
     def set_presentation(self, on: bool) -> None:

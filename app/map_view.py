@@ -25,6 +25,7 @@ from PySide6.QtGui import QFont, QFontMetrics
 from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 
 from engine_air.envelope.evaluate import WORST
+from engine_air.envelope.ranking import nearest_index
 from engine_air.outputs.quantities import QUANTITIES
 
 from . import analysis
@@ -541,9 +542,7 @@ class EnvelopeMap(QWidget):
         if self._result is None or not self.view.sceneBoundingRect().contains(scene_pos):
             return None
         p = self.view.mapSceneToView(scene_pos)
-        j = int(np.argmin(np.abs(self._x - p.x())))
-        i = int(np.argmin(np.abs(self._y - p.y())))
-        return i, j
+        return nearest_index(self._x, self._y, p.x(), p.y())
 
     def _on_mouse_moved(self, scene_pos: QPointF) -> None:
         idx = self._grid_index_at_scene(scene_pos)

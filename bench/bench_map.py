@@ -36,7 +36,7 @@ import scalar_model  # noqa: E402
 from engine_air.envelope.polygon import grid_axes  # noqa: E402
 from engine_air.envelope.evaluate import evaluate_project  # noqa: E402
 from engine_air.project.model import Grid  # noqa: E402
-from engine_air.project.toml_file import load_project  # noqa: E402
+from engine_air.project import load_project  # noqa: E402
 
 SPEED_RATIO_GOAL = 100.0
 EXP_MULTIPLE_GOAL = 150.0

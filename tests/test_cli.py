@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import os
 import json
 import subprocess
 import sys
@@ -134,3 +135,153 @@ def test_point_outside_atmosphere_is_not_judged(capsys):
     assert code == 2
     assert record["holds"] is None and "outside-atmosphere" in record["flags"]
     assert "no limit can be judged" in captured.err
+
+
+# -- issue 9: point semantics, units, negative numbers, safe terminal text, options checked first -------------------
+
+def test_point_outside_envelope_is_not_judged_exit_3(capsys):
+    code = main(["point", str(PITOT), "--mach", "0.3", "--altitude-m", "14000", "--json"])
+    captured = capsys.readouterr()
+    record = json.loads(captured.out)
+    assert code == 3
+    assert record["holds"] is None and record["judged"] is False
+    assert "not judged" in captured.err
+    # inside the envelope the point is judged
+    code = main(["point", str(PITOT), "--mach", "0.5", "--altitude-m", "3000", "--json"])
+    record = json.loads(capsys.readouterr().out)
+    assert code in (0, 1) and record["judged"] is True and record["holds"] is (code == 0)
+
+
+def test_help_documents_exit_code_3():
+    res = run("point", "--help")
+    assert res.returncode == 0 and "3 not judged" in " ".join(res.stdout.split())
+
+
+@pytest.mark.parametrize("value", ["-1000", "-1e3", "-1000.0", "-.5e3"])
+def test_negative_altitude_after_option(value, capsys):
+    code = main(["point", str(RAMP), "--mach", "0.5", "--altitude-m", value, "--json"])
+    record = json.loads(capsys.readouterr().out)
+    assert code in (0, 1, 3)
+    assert record["altitude_m"] == pytest.approx(float(value))
+
+
+def test_negative_numbers_after_options_in_a_separate_process():
+    res = run("point", RAMP, "--altitude-m", "-1e3", "--mach", "0.5")
+    assert res.returncode in (0, 1, 3), res.stderr
+    assert json.loads(res.stdout)["altitude_m"] == -1000.0
+
+
+def test_altitude_in_feet_and_flight_level(capsys):
+    # 1 ft = 0.3048 m exactly (international foot); a flight level is hundreds of feet.
+    main(["point", str(RAMP), "--mach", "0.8", "--altitude-ft", "30000", "--json"])
+    ft = json.loads(capsys.readouterr().out)
+    main(["point", str(RAMP), "--mach", "0.8", "--fl", "300", "--json"])
+    fl = json.loads(capsys.readouterr().out)
+    main(["point", str(RAMP), "--mach", "0.8", "--altitude-m", "9144", "--json"])
+    m = json.loads(capsys.readouterr().out)
+    assert ft["altitude_m"] == pytest.approx(9144.0) and fl["altitude_m"] == pytest.approx(9144.0)
+    assert ft["face_mach"] == pytest.approx(m["face_mach"], rel=1e-12)
+    assert main(["point", str(RAMP), "--mach", "0.8", "--fl", "300", "--altitude-m", "1"]) == 2
+
+
+def test_units_us_point_keeps_si_keys(capsys):
+    main(["point", str(RAMP), "--mach", "0.8", "--altitude-m", "3048", "--units", "us"])
+    record = json.loads(capsys.readouterr().out)
+    assert record["units"] == "us"
+    assert record["altitude_m"] == pytest.approx(3048.0)  # SI key, SI value
+    assert record["us"]["altitude_m"] == {"value": pytest.approx(10000.0), "unit": "ft"}
+    # 1976 standard atmosphere at 3048 m: T = 268.338 K (288.15 - 6.5 x 3.048) = 483.01 degrees Rankine.
+    assert record["us"]["static_temperature_k"]["value"] == pytest.approx(268.338 * 1.8, rel=1e-6)
+    # 1 psi = 6894.757 Pa (NIST SP 811)
+    assert record["us"]["static_pressure_pa"]["value"] == pytest.approx(
+        record["freestream"]["static_pressure_pa"] / 6894.757, rel=1e-6)
+
+
+def test_units_us_check_gives_feet(capsys):
+    main(["check", str(FAILING)])
+    si = capsys.readouterr().out
+    main(["check", str(FAILING), "--units", "us"])
+    us = capsys.readouterr().out
+    assert "alt m" in si and "alt ft" in us
+    assert si.splitlines()[-1] == us.splitlines()[-1]  # same verdict
+
+
+def _hostile_copy(tmp_path, title, case):
+    text = FAILING.read_text(encoding="utf-8")
+    text = text.replace('title = "', f'title = "{title}', 1)
+    first_case = text.split("[[case]]")[1].split("name = ")[1].split("\n")[0]
+    text = text.replace(f"name = {first_case}", f'name = "{case}"', 1)
+    path = tmp_path / "hostile.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def test_terminal_text_is_escaped(tmp_path):
+    path = _hostile_copy(tmp_path, "\\u001b[2J\\u001b[HVERDICT: all limits hold ", "ISA\\u202e,\\u001b[31m max")
+    res = run("check", path)
+    assert res.returncode in (0, 1)
+    assert "\x1b" not in res.stdout and "\u202e" not in res.stdout
+    assert "\\x1b[2J" in res.stdout and "\\u202e" in res.stdout
+
+
+def test_non_utf8_path_is_a_clear_exit_2(tmp_path):
+    name = os.fsdecode(b"project-\xff.toml")
+    res = subprocess.run([sys.executable, "-m", "engine_air.cli", "check", os.fsencode(str(tmp_path)) + b"/" +
+                          os.fsencode(name)], capture_output=True)
+    err = res.stderr.decode("utf-8")
+    assert res.returncode == 2 and "Traceback" not in err and "internal error" not in err
+    assert "not valid UTF-8" in err and "\\xff" in err and len(err.strip().splitlines()) == 1
+
+
+def test_newline_in_path_stays_one_line(tmp_path):
+    res = run("check", tmp_path / "two\nlines.toml")
+    assert res.returncode == 2
+    assert len(res.stderr.strip().splitlines()) == 1 and "two\\x0alines" in res.stderr
+
+
+def test_options_checked_before_any_file_is_written(tmp_path):
+    out = tmp_path / "map.csv"
+    res = run("map", RAMP, "--csv", out, "--png", tmp_path / "m.png", "--quantity", "no_such_quantity")
+    assert res.returncode == 2 and not out.exists() and not (tmp_path / "m.png").exists()
+    res = run("map", RAMP, "--csv", out, "--parquet", tmp_path / "missing" / "m.parquet")
+    assert res.returncode == 2 and not out.exists() and "does not exist" in res.stderr
+    res = run("map", RAMP, "--csv", tmp_path)
+    assert res.returncode == 2 and "folder" in res.stderr
+
+
+def test_map_parquet_equals_csv(tmp_path, capsys):
+    import pyarrow.parquet as pq
+
+    csv_path, pq_path = tmp_path / "m.csv", tmp_path / "m.parquet"
+    assert main(["map", str(RAMP), "--csv", str(csv_path), "--parquet", str(pq_path)]) == 1
+    table = pq.read_table(pq_path)
+    with open(csv_path, newline="") as fh:
+        rows = list(csv.DictReader(fh))
+    assert table.num_rows == len(rows) and table.column_names == list(rows[0].keys())
+    face = table.column("face_mach").to_pylist()
+    assert all((r["face_mach"] == "" and f is None) or float(r["face_mach"]) == f for r, f in zip(rows, face))
+
+
+def test_map_csv_neutralises_formula_case_names(tmp_path, capsys):
+    path = _hostile_copy(tmp_path, "", "=HYPERLINK(\\\"http://x\\\")")
+    out = tmp_path / "m.csv"
+    main(["map", str(path), "--csv", str(out)])
+    with open(out, newline="") as fh:
+        cases = {r["case"] for r in csv.DictReader(fh)}
+    assert "'=HYPERLINK(\"http://x\")" in cases
+    assert not any(c[:1] in "=+-@\t\r" for c in cases)
+
+
+def test_point_worst_relative_margin_is_the_least_judged_margin(capsys):
+    code = main(["point", str(FAILING), "--mach", "0.8", "--altitude-m", "9000", "--json"])
+    record = json.loads(capsys.readouterr().out)
+    judged = [c for c in record["checks"] if c["holds"] is not None]
+    assert record["judged"] is True and judged
+    # relative margin = margin over the limit's magnitude; the face-Mach check's scale is face_mach_max
+    face = next(c for c in judged if c["name"] == "face-mach")
+    assert record["worst_relative_margin"] <= face["margin"] / float(face["limit"].split("<=")[1]) + 1e-15
+    assert (record["worst_relative_margin"] >= 0) == (code == 0)
+    main(["point", str(FAILING), "--mach", "0.3", "--altitude-m", "40000", "--json"])
+    outside = json.loads(capsys.readouterr().out)
+    assert outside["worst_relative_margin"] is None and outside["judged"] is False
+    assert {"outside-envelope", "outside-atmosphere"} & set(outside["flags"])

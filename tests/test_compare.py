@@ -12,7 +12,7 @@ from engine_air.studies.compare import DIFFERENCE_QUANTITIES, common_axes, compa
 from engine_air.envelope.polygon import grid_axes
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import WORST, evaluate_project
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.studies.sizing import with_design_value
 
@@ -104,3 +104,34 @@ def test_cli_compare_exit_codes_and_csv(tmp_path, capsys):
     assert "now fails" in capsys.readouterr().out
     assert main(["compare", str(PITOT), str(tmp_path / "missing.toml")]) == 2
     assert "missing.toml" in capsys.readouterr().err
+
+
+def test_default_quantity_shows_a_real_difference():
+    # A ramp-angle change leaves the face Mach (set by the engine's demand and the face area) unchanged, so a
+    # face-Mach-margin difference map is blank; the default quantity (least relative margin over every judged
+    # limit) moves with the recovery and stability checks and shows the change.
+    from dataclasses import replace
+    from engine_air.project.model import Grid
+
+    a = load_project(RAMP)
+    a = replace(a, grid=Grid(mach_points=41, altitude_points=31))
+    b = with_design_value(a, "ramp_angles_deg[1]", 10.0)
+    c = compare_projects(a, b)
+    default = DIFFERENCE_QUANTITIES[0]
+    assert default == "worst_relative_margin"
+    face = c.difference(WORST, "face_mach_margin")
+    assert np.nanmax(np.abs(face)) == 0.0  # the old default: blank
+    d = c.difference(WORST, default)
+    assert np.isfinite(d).sum() > 0.5 * c.both.sum()
+    assert np.nanmax(np.abs(d)) > 1e-3
+
+
+def test_compare_csv_has_every_quantity_and_neutral_text(tmp_path, capsys):
+    import csv
+
+    out = tmp_path / "c.csv"
+    main(["compare", str(RAMP), str(RAMP), "--csv", str(out)])
+    with open(out, newline="") as fh:
+        rows = list(csv.DictReader(fh))
+    assert rows and all(float(r["worst_relative_margin_delta"] or 0.0) == 0.0 for r in rows)
+    assert {"ISA, max", "worst of all cases"} <= {r["case"] for r in rows}

@@ -18,7 +18,7 @@ import scalar_model  # noqa: E402
 from engine_air.envelope import flags as F  # noqa: E402
 from engine_air.envelope.polygon import envelope_mask  # noqa: E402
 from engine_air.flow.match import REGIMES, evaluate_conditions  # noqa: E402
-from engine_air.project.toml_file import load_project  # noqa: E402
+from engine_air.project import load_project  # noqa: E402
 
 
 

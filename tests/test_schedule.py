@@ -134,7 +134,7 @@ def test_loader_reads_the_schedule_and_checks_each_scheduled_geometry():
     # ramp about 1.1); the fixed keys alone are sound
     bad["inlet"]["schedule"]["ramp_angles_deg"] = [[6.0, 5.0], [20.0, 15.0]]
     bad["inlet"]["schedule"]["shock_on_lip_mach"] = [1.8, 1.8]
-    with pytest.raises(ProjectError, match=r"schedule \(row 1"):
+    with pytest.raises(ProjectError, match=r"schedule row 1 \(mach = 2"):
         project_from_dict(bad)
 
 

@@ -10,7 +10,7 @@ import pytest
 from engine_air.cli import main
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, evaluate_project
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 from engine_air.flow.match import evaluate_conditions
 from engine_air.studies.sizing import with_design_values
 from engine_air.studies.sweep import MAX_POINT_EVALUATIONS, parse_vary, sweep, write_sweep_csv
@@ -169,3 +169,114 @@ def test_cli_sweep_exit_codes(tmp_path, capsys):
     assert main(["sweep", str(PITOT), "--vary", "wing_area=1:2:2"]) == 2
     assert main(["sweep", str(PITOT), "--vary", "face_area_m2=1:3:1000", "--vary", "capture_area_m2=2.3:3:20"]) == 2
     assert "at most" in capsys.readouterr().err
+
+
+# -- issue 9: the scheduler address is parsed first; every wait on the cluster has a time limit ----------------------
+
+@pytest.mark.parametrize("address", ["tcp://", "tcp://host", "tcp://host:99999", "http://host:8786", "host:port",
+                                     "tcp://a b:1", "::::"])
+def test_unparseable_scheduler_is_exit_2_before_any_work(address, capsys):
+    from engine_air.studies.sweep import parse_scheduler
+
+    with pytest.raises(ProjectError):
+        parse_scheduler(address)
+    code = main(["sweep", str(PITOT), "--vary", "face_area_m2=1.9:2.1:2", "--scheduler", address])
+    err = capsys.readouterr().err
+    assert code == 2 and "--scheduler" in err and "Traceback" not in err and len(err.strip().splitlines()) == 1
+    assert "sweep:" not in err  # no progress: nothing was evaluated
+
+
+def test_parse_scheduler_accepts_usual_forms():
+    from engine_air.studies.sweep import parse_scheduler
+
+    assert parse_scheduler("tcp://127.0.0.1:8786") == ("tcp", "127.0.0.1", 8786)
+    assert parse_scheduler("10.0.0.2:8786") == ("tcp", "10.0.0.2", 8786)
+    assert parse_scheduler("tls://[::1]:8786/") == ("tls", "::1", 8786)
+
+
+def _server(answer: bytes | None):
+    """A TCP server on 127.0.0.1 that accepts connections and then sends ``answer`` (None: never answers)."""
+    import socket
+    import threading
+
+    srv = socket.socket(socket.AF_INET, socket.SOCK_STREAM)
+    srv.bind(("127.0.0.1", 0))
+    srv.listen(8)
+    held = []
+    stop = threading.Event()
+
+    def serve():
+        srv.settimeout(0.1)
+        while not stop.is_set():
+            try:
+                conn, _ = srv.accept()
+            except OSError:
+                continue
+            held.append(conn)
+            if answer is not None:
+                try:
+                    conn.sendall(answer)
+                except OSError:
+                    pass
+
+    thread = threading.Thread(target=serve, daemon=True)
+    thread.start()
+
+    def close():
+        stop.set()
+        thread.join(2)
+        for c in held:
+            c.close()
+        srv.close()
+
+    return f"tcp://127.0.0.1:{srv.getsockname()[1]}", close
+
+
+def test_scheduler_that_never_answers_times_out(capsys):
+    address, close = _server(None)
+    try:
+        code = main(["sweep", str(PITOT), "--vary", "face_area_m2=1.9:2.1:2", "--scheduler", address,
+                     "--timeout", "0.5"])
+    finally:
+        close()
+    err = capsys.readouterr().err
+    assert code == 2
+    assert "no answer within 0.5 s" in err and len(err.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize("garbage", [b"HTTP/1.1 400 Bad Request\r\n\r\n", b"\xff" * 64, b"\x00" * 16,
+                                     b"\x40\x00\x00\x00\x00\x00\x00\x00" + b"\x01" * 20])
+def test_scheduler_answering_garbage_is_reported_as_such(garbage, capsys):
+    address, close = _server(garbage)
+    try:
+        code = main(["sweep", str(PITOT), "--vary", "face_area_m2=1.9:2.1:2", "--scheduler", address,
+                     "--timeout", "0.5"])
+    finally:
+        close()
+    err = capsys.readouterr().err
+    assert code == 2 and "memory" not in err
+    assert "not the dask.distributed protocol" in err
+    assert len(err.strip().splitlines()) == 1
+
+
+def test_refused_connection_is_one_line(capsys):
+    import socket
+
+    s = socket.socket()
+    s.bind(("127.0.0.1", 0))
+    port = s.getsockname()[1]
+    s.close()  # nothing listens there now
+    code = main(["sweep", str(PITOT), "--vary", "face_area_m2=1.9:2.1:2", "--scheduler", f"tcp://127.0.0.1:{port}",
+                 "--timeout", "1"])
+    err = capsys.readouterr().err
+    assert code == 2 and "cannot connect" in err and len(err.strip().splitlines()) == 1
+
+
+def test_invalid_rows_show_their_reason(small, capsys):
+    from engine_air.studies.sweep import format_rows
+
+    r = sweep(small, {"throat_area_m2": [0.26, small.inlet.capture_area_m2 * 1.5]}, workers=1)
+    lines = format_rows(r)
+    invalid = [ln for ln, row in zip(lines[2:], r.rows) if row.verdict == "invalid"]
+    assert invalid and all("throat_area_m2" in ln for ln in invalid)
+    assert "reason" in lines[0]

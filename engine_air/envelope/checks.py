@@ -163,13 +163,8 @@ def build_checks(limits: Limits, points) -> list[Check]:
 
 
 def limiting_index(checks: list[Check], bits) -> np.ndarray:
-    """Index into ``checks`` of the limiting check at each point; -1 where no check applies."""
-    if not checks:
-        return np.full(np.shape(bits), -1, dtype=np.int16)
-    rel = np.stack([np.where(c.applies, c.relative_margin, np.inf) for c in checks])
-    # A failing check outranks every holding one.
-    failing = np.stack([c.fails for c in checks])
-    rank = np.where(failing, rel - 1e6, rel)
-    index = np.argmin(rank, axis=0).astype(np.int16)
-    none = ~np.stack([c.applies for c in checks]).any(axis=0)
-    return np.where(none, -1, index).astype(np.int16)
+    """Index into ``checks`` of the limiting check at each point; -1 where no check applies
+    (the ranking of ``engine_air.envelope.ranking``)."""
+    from engine_air.envelope.ranking import limiting_index as _limiting
+
+    return _limiting(checks, np.shape(bits))

@@ -23,11 +23,12 @@ from typing import Callable
 import numpy as np
 
 from engine_air.envelope import flags as F
+from engine_air.envelope import ranking
 from engine_air.envelope.polygon import envelope_mask, grid_axes
 from engine_air.project.errors import ProjectError
 from engine_air.flow.match import OperatingPoints, evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project.toml_file import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
+from engine_air.project import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
 
 WORST = "worst of all cases"
 
@@ -92,9 +93,7 @@ class MapResult:
 
     def worst_case_index(self) -> np.ndarray:
         """(ny, nx) index of the case with the least limiting relative margin at each point."""
-        rel = np.stack([_limiting_relative_margin(c.points) for c in self.cases])
-        rel = np.where(np.isnan(rel), np.inf, rel)
-        return np.argmin(rel, axis=0)
+        return ranking.worst_case_index([c.points for c in self.cases], self.inside.shape)
 
     def _worst(self, key: str) -> np.ndarray:
         stack = np.stack([np.asarray(c.points.value(key), dtype=float) for c in self.cases])
@@ -129,13 +128,6 @@ class MapResult:
                 if check is None or chk.name == check:
                     out |= chk.fails
         return out & self.inside
-
-
-def _limiting_relative_margin(points: OperatingPoints) -> np.ndarray:
-    if not points.checks:
-        return np.full(points.mach.shape, np.nan)
-    rel = np.stack([np.where(c.fails, np.minimum(c.relative_margin, 0) - 1e6, np.where(c.applies, c.relative_margin, np.inf)) for c in points.checks])
-    return np.min(rel, axis=0)
 
 
 def check_grid_size(project: Project, n_cases: int | None = None) -> None:
@@ -213,7 +205,6 @@ def summarise(result: MapResult) -> list[LimitSummary]:
     mach_2d, alt_2d = np.meshgrid(result.mach, result.altitude_m)
     out = []
     for k, name in enumerate(names):
-        best = None
         judged = failing = 0
         label = limit_text = ""
         for cm in result.cases:
@@ -222,16 +213,12 @@ def summarise(result: MapResult) -> list[LimitSummary]:
             applies = chk.applies & result.inside
             judged += int(applies.sum())
             failing += int((chk.fails & applies).sum())
-            if not applies.any():
-                continue
-            rank = np.where(applies, np.where(chk.fails, np.minimum(chk.relative_margin, 0) - 1e6, chk.relative_margin), np.inf)
-            j = np.unravel_index(np.argmin(rank), rank.shape)
-            if best is None or rank[j] < best[0]:
-                best = (rank[j], cm.name, j, chk)
-        if best is None:
+        worst = ranking.worst_of_check([cm.points for cm in result.cases], k, result.inside)
+        if worst is None:
             out.append(LimitSummary(name, label, limit_text, True, np.nan, np.nan, np.nan, np.nan, "", 0.0, 0))
             continue
-        _, case_name, j, chk = best
+        case_name, j = result.cases[worst.case].name, worst.index
+        chk = result.cases[worst.case].points.checks[k]
         out.append(
             LimitSummary(
                 name=name,

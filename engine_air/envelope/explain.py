@@ -72,3 +72,26 @@ def mechanism(project: Project, points: OperatingPoints, index, check_name: str)
                     "captured: without bleed or bypass for the excess the terminal shock would be expelled")
         return f"started ({history})"
     return f"{regime} operation"
+
+
+QUIET_FLAGS = ("ok", "additive-drag-not-modelled", "no-tip-speed", "outside-envelope")
+"""Flags that say nothing about why a limit is reached (left out of a finding's flag list)."""
+
+
+def finding_mechanism(project: Project, result, summary) -> tuple[str, str, str]:
+    """(regime, flags, mechanism) of one finding (a ``LimitSummary`` of ``result``) at *its own* worst point.
+
+    The mechanism is ``mechanism(project, points, index, check)`` for that row's
+    check, case and point, so each row says what drives its own limit, with its
+    own numbers; a check judged nowhere gives ("–", "–", "the check applies at
+    no envelope point").
+    """
+    from engine_air.envelope.ranking import nearest_index
+
+    if not summary.worst_case:
+        return "–", "–", "the check applies at no envelope point"
+    points = result.case_map(summary.worst_case).points
+    j = nearest_index(result.mach, result.altitude_m, summary.worst_mach, summary.worst_altitude_m)
+    regime = REGIMES[int(np.asarray(points.regime)[j])]
+    names = [n for n in F.names_of(int(np.asarray(points.flags)[j])) if n not in QUIET_FLAGS]
+    return regime, ", ".join(names) or "ok", mechanism(project, points, j, summary.name)

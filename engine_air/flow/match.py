@@ -132,6 +132,13 @@ class OperatingPoints:
         return self.check("face-mach").margin
 
     @property
+    def worst_relative_margin(self) -> np.ndarray:
+        """Least relative margin over the checks judged at each point (NaN where none is judged)."""
+        from engine_air.envelope.ranking import worst_relative_margin
+
+        return worst_relative_margin(self.checks, np.shape(self.mach))
+
+    @property
     def recovery_minus_reference(self) -> np.ndarray:
         """What the MIL-E-5008B recovery check compares: the recovery of the shock system and its regime
         corrections (pi / pi_duct) less the reference, in supersonic flight only; NaN (not judged) at M0 <= 1."""

@@ -28,12 +28,13 @@ MAX_TOTAL_RAMP_DEG = 40.0
 
 RAMP_ANGLES = Field(
     "ramp_angles_deg", "inlet", "number list",
-    "deflection of each external ramp, first ramp first", unit="deg", lo=0.0, hi=MAX_RAMP_DEG, lo_open=True,
+    "deflection of each external ramp, first ramp first", unit="deg", lo=0.0, hi=MAX_RAMP_DEG, decimals=2, step=0.25,
     length=(1, MAX_RAMPS), default=REQUIRED, inlet_types=("external-ramp", "mixed-compression"))
 SHOCK_ON_LIP_MACH = Field(
     "shock_on_lip_mach", "inlet", "number",
     "design flight Mach number at which every ramp (or cone) shock meets the cowl lip", lo=1.0, hi=5.0,
-    lo_open=True, default=REQUIRED, inlet_types=("external-ramp", "mixed-compression", "axisymmetric-spike"))
+    lo_open=True, default=REQUIRED, inlet_types=("external-ramp", "mixed-compression", "axisymmetric-spike"),
+    decimals=3, step=0.05)
 
 
 def ramp_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
@@ -64,7 +65,7 @@ class ExternalRampInlet:
         return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:
-        return ["shock_on_lip_mach"] + [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))]
+        return [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))] + ["shock_on_lip_mach"]
 
 
 INLET = ExternalRampInlet()

@@ -333,7 +333,7 @@ class MixedCompressionInlet:
 
     def design_variables(self, inlet: Inlet) -> list[str]:
         # the internal contraction is the throat area, a design variable of every type
-        return ["shock_on_lip_mach"] + [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))]
+        return [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))] + ["shock_on_lip_mach"]
 
 
 INLET = MixedCompressionInlet()

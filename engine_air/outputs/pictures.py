@@ -154,16 +154,10 @@ def _contour(ax, x, y, field, level, **style) -> bool:
 
 def least_relative_margin(result: MapResult, case: str) -> np.ndarray:
     """(ny, nx) least relative margin over the checks that apply (and over cases for WORST); NaN where none
-    applies. Failing checks keep their value capped at 0, so the zero level bounds the failing region."""
-    cases = result.cases if case == WORST else [result.case_map(case)]
-    stack = [np.full(result.inside.shape, np.inf)]
-    for cm in cases:
-        for c in cm.points.checks:
-            rel = np.asarray(c.relative_margin, dtype=float)
-            with np.errstate(invalid="ignore"):
-                stack.append(np.where(c.applies, np.where(c.fails, np.minimum(rel, 0.0), rel), np.inf))
-    out = np.min(np.stack(stack), axis=0)
-    return np.where(np.isinf(out) | ~result.inside, np.nan, out)
+    applies. Failing checks rank first, so the zero level bounds the failing region (engine_air.envelope.ranking)."""
+    from engine_air.envelope.ranking import limiting_map
+
+    return limiting_map(result, case)[0]
 
 
 def _altitude_ticks(axis, unit: str) -> None:

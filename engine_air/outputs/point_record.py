@@ -18,6 +18,7 @@ from engine_air.physics.isentropic import pressure_ratio, temperature_ratio
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.flow.match import REGIMES, OperatingPoints
 from engine_air.project.model import Project
+from engine_air.outputs.quantities import JSON_KEYS, REGISTRY
 
 
 def _num(x) -> float | None:
@@ -30,8 +31,19 @@ def _at(array, index):
 
 
 def point_record(points: OperatingPoints, index, case_name: str) -> dict:
-    """The JSON-ready record of the point at ``index`` (a tuple or int into the points' arrays)."""
-    g = lambda name: _num(_at(getattr(points, name), index))  # noqa: E731
+    """The JSON-ready record of the point at ``index`` (a tuple or int into the points' arrays).
+
+    Keys come from ``engine_air.outputs.quantities`` (``JSON_KEYS``; those of group
+    "freestream" nested under ``"freestream"``), then ``regime``, ``flags``,
+    ``flag_descriptions``, ``limiting``, ``checks``, ``judged`` and ``holds``.
+    ``judged`` is false where no limit is judged: outside the envelope polygon
+    (flag ``outside-envelope``: the point is computed but never judged), outside
+    the case's region (``outside-case-region``) or where no check applies (e.g.
+    outside the atmosphere model). ``holds`` and
+    ``worst_relative_margin`` are null where the point is not judged (the flags
+    ``outside-envelope`` / ``outside-atmosphere`` say why); else whether every
+    judged check holds, and the least relative margin over them.
+    """
     bits = int(_at(points.flags, index))
     limiting = int(_at(points.limiting, index)) if points.limiting is not None else -1
     checks = []
@@ -48,68 +60,53 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
             }
         )
     names = F.names_of(bits)
-    return {
-        "mach": g("mach"),
-        "altitude_m": g("altitude_m"),
-        "case": case_name,
-        "freestream": {
-            "static_pressure_pa": g("static_pressure_pa"),
-            "static_temperature_k": g("static_temperature_k"),
-            "total_pressure_pa": g("total_pressure_pa"),
-            "total_temperature_k": g("total_temperature_k"),
-            "velocity_m_s": g("velocity_m_s"),
-            "density_kg_m3": g("density_kg_m3"),
-            "speed_of_sound_m_s": g("speed_of_sound_m_s"),
-        },
-        "theta2": g("theta2"),
-        "corrected_flow_kg_s": g("corrected_flow_kg_s"),
-        "mass_flow_kg_s": g("mass_flow_kg_s"),
-        "recovery": g("recovery"),
-        "external_recovery": g("external_recovery"),
-        "duct_recovery": g("duct_recovery"),
-        "reference_recovery": g("reference_recovery"),
-        "face_mach": g("face_mach"),
-        "face_mach_margin": _num(_at(points.face_mach_margin, index)),
-        "throat_mach": g("throat_mach"),
-        "capture_mach": g("capture_mach"),
-        "mass_flow_ratio": g("mass_flow_ratio"),
-        "max_mass_flow_ratio": g("max_mass_flow_ratio"),
-        "spillage_fraction": g("spillage_fraction"),
-        "additive_drag_n": g("additive_drag_n"),
-        "additive_drag_coefficient": g("additive_drag_coefficient"),
-        "spillage_drag_coefficient": g("spillage_drag_coefficient"),
-        "face_static_to_ambient": g("face_static_to_ambient"),
-        "relative_tip_mach": g("relative_tip_mach"),
-        # airflow management and the installation ledger (method sections 12-13), SI units
-        "captured_flow_kg_s": g("captured_flow_kg_s"),
-        "bleed_fraction": g("bleed_fraction"),
-        "bleed_flow_kg_s": g("bleed_flow_kg_s"),
-        "bypass_fraction": g("bypass_fraction"),
-        "bypass_flow_kg_s": g("bypass_flow_kg_s"),
-        "auxiliary_flow_kg_s": g("auxiliary_flow_kg_s"),
-        "bypass_shortfall_kg_s": g("bypass_shortfall_kg_s"),
-        "tip_speed_m_s": g("tip_speed_m_s"),
-        "ram_drag_n": g("ram_drag_n"),
-        "spillage_drag_n": g("spillage_drag_n"),
-        "bleed_drag_n": g("bleed_drag_n"),
-        "bypass_drag_n": g("bypass_drag_n"),
-        "net_thrust_n": g("net_thrust_n"),
-        "installed_thrust_n": g("installed_thrust_n"),
-        "installation_loss_fraction": g("installation_loss_fraction"),
-        "thrust_reference_recovery": g("thrust_reference_recovery"),
-        "judged": not (bits & (F.OUTSIDE_ENVELOPE | F.OUTSIDE_CASE_REGION)),
+    record: dict = {}
+    groups: dict[str, dict] = {}
+    for key in JSON_KEYS:
+        q = REGISTRY[key]
+        value = _num(_at(q.values(points), index))
+        if q.group:
+            if q.group not in groups:
+                groups[q.group] = record[q.group] = {}
+            groups[q.group][key] = value
+        else:
+            record[key] = value
+        if key == "altitude_m":
+            record["case"] = case_name
+    outside = bool(bits & (F.OUTSIDE_ENVELOPE | F.OUTSIDE_CASE_REGION))
+    judged = (not outside) and any(c["holds"] is not None for c in checks)
+    if not judged:
+        record["worst_relative_margin"] = None  # nothing is judged here; the flags say why
+    record.update({
         "regime": REGIMES[int(_at(points.regime, index))],
-        # mixed compression only (method §11); null for the other types
+        # mixed compression only (method §11); null for the other types (self_start_contraction likewise)
         "started": None if points.started is None else bool(_at(points.started, index)),
-        "self_start_contraction": None if points.self_start_contraction is None
-        else _num(_at(points.self_start_contraction, index)),
         "flags": names,
         "flag_descriptions": {n: F.DESCRIPTIONS[n] for n in names},
         "limiting": points.checks[limiting].name if limiting >= 0 else None,
         "checks": checks,
-        # None where no limit could be judged (e.g. outside the atmosphere model)
-        "holds": (not any(c["holds"] is False for c in checks)) if any(c["holds"] is not None for c in checks) else None,
-    }
+        "judged": judged,
+        # None where the point is not judged (outside the envelope, or no limit applies)
+        "holds": (not any(c["holds"] is False for c in checks)) if judged else None,
+    })
+    return record
+
+
+def record_in_us_units(record: dict) -> dict:
+    """A copy of a point record for ``--units us``: the SI keys and values are unchanged; ``"units": "us"`` and a
+    ``"us"`` block are added with every dimensional quantity of the registry in US customary units, as
+    ``{"altitude_m": {"value": 30000.0, "unit": "ft"}, ...}`` (keyed by the SI key it converts)."""
+    us = {}
+    for key in JSON_KEYS:
+        q = REGISTRY[key]
+        if not q.us_unit:
+            continue
+        value = record[q.group][key] if q.group else record.get(key)
+        us[key] = {"value": q.to_us(value), "unit": q.us_unit}
+    out = dict(record)
+    out["units"] = "us"
+    out["us"] = us
+    return out
 
 
 def station_table(project: Project, points: OperatingPoints, index) -> list[dict]:

@@ -57,7 +57,7 @@ import re
 import secrets
 import stat
 import sys
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 from dataclasses import dataclass, field
 from typing import Callable
 
@@ -65,12 +65,14 @@ import numpy as np
 
 from engine_air import CAUTION, __version__
 from engine_air.envelope import flags as F
+from engine_air.envelope import ranking
+from engine_air.envelope.explain import finding_mechanism
 from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project
 from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
 from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
 from engine_air.outputs.sections import check_of, cut
-from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
+from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.point_record import shock_table, station_table
 from engine_air.studies.sizing import worst_point
@@ -334,21 +336,6 @@ def _table(headers, rows, numeric=()) -> str:
     return "\n".join(out)
 
 
-def _index_of(result: MapResult, mach: float, alt: float) -> tuple[int, int]:
-    return (int(np.argmin(np.abs(result.altitude_m - alt))), int(np.argmin(np.abs(result.mach - mach))))
-
-
-_QUIET_FLAGS = ("additive-drag-not-modelled", "no-tip-speed")
-
-
-def _mechanism(points, index) -> tuple[str, str]:
-    names = [n for n in F.names_of(int(points.flags[index])) if n not in ("ok", "additive-drag-not-modelled",
-                                                                           "no-tip-speed", "outside-envelope")]
-    regime = REGIMES[int(points.regime[index])]
-    why = "; ".join(F.DESCRIPTIONS[n] for n in names) if names else "the limit is reached without a special regime"
-    return regime, why
-
-
 def _read_source(project_or_path, source_text):
     """(project, toml text, source name, notes)."""
     notes = []
@@ -523,13 +510,7 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
             e(s.label), e(s.limit_text), f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>',
             _num(s.worst_value), _num(s.worst_margin), f"{100 * s.failing_share:.1f} %", str(s.judged_points),
         ])
-        if s.worst_case:
-            pts = result.case_map(s.worst_case).points
-            j = _index_of(result, s.worst_mach, s.worst_altitude_m)
-            regime, why = _mechanism(pts, j)
-            flags = ", ".join(n for n in F.names_of(int(pts.flags[j])) if n not in _QUIET_FLAGS) or "ok"
-        else:
-            regime, why, flags = "–", "the check applies at no envelope point", "–"
+        regime, flags, why = finding_mechanism(project, result, s)
         finding_rows.append([
             e(s.label), f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>', _num(s.worst_value),
             _num(s.worst_margin), _num(s.worst_mach, 3), _num(s.worst_altitude_m, 0), e(s.worst_case or "–"),
@@ -560,17 +541,12 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
         targets = [("the worst point", worst.case, j, worst.mach)]
         if worst.mach <= 1.0:
             # the worst supersonic point, if the envelope has one
-            best = None
-            for cm in result.cases:
-                for chk in cm.points.checks:
-                    judged = chk.applies & result.inside & (cm.points.mach > 1.0)
-                    if judged.any():
-                        rel = np.where(judged, chk.relative_margin, np.inf)
-                        k = np.unravel_index(int(np.argmin(rel)), rel.shape)
-                        if best is None or rel[k] < best[0]:
-                            best = (rel[k], cm.name, (int(k[0]), int(k[1])))
+            supersonic = result.inside & (np.asarray(result.mach)[None, :] > 1.0)
+            best = ranking.worst_point([cm.points for cm in result.cases], supersonic)
             if best is not None:
-                targets.append(("the worst supersonic point", best[1], best[2], float(result.mach[best[2][1]])))
+                k = best.index
+                targets.append(("the worst supersonic point", result.cases[best.case].name, k,
+                                float(result.mach[k[1]])))
         for title, case, idx, m0 in targets:
             cpts = result.case_map(case).points
             rows = shock_table(project, cpts, idx)

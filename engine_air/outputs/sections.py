@@ -25,6 +25,7 @@ import numpy as np
 from engine_air.envelope.evaluate import WORST, MapResult
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.project.model import REFERENCE_RECOVERY_NAME
+from engine_air.envelope.ranking import nearest_index
 
 MACH = "mach"
 ALTITUDE = "altitude"
@@ -157,11 +158,11 @@ def cut(
         raise ValueError(f"the cut position must be a finite number, got {where!r}")
     names = section_cases(result) if cases is None else list(cases)
     if altitude_m is not None:
-        i = int(np.argmin(np.abs(np.asarray(result.altitude_m, float) - where)))
+        i = nearest_index(result.mach, result.altitude_m, 0.0, where)[0]
         axis, at, x, take = MACH, float(result.altitude_m[i]), np.asarray(result.mach, float), (lambda a: a[i, :])
         index = i
     else:
-        j = int(np.argmin(np.abs(np.asarray(result.mach, float) - where)))
+        j = nearest_index(result.mach, result.altitude_m, where, 0.0)[1]
         axis, at, x, take = ALTITUDE, float(result.mach[j]), np.asarray(result.altitude_m, float), (lambda a: a[:, j])
         index = j
     out = []

@@ -46,16 +46,21 @@ from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import WORST, CaseMap, LimitSummary, MapResult, summarise
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project import toml_file as _pf
-from engine_air.project.toml_file import MAX_AXIS_POINTS, MAX_GRID_POINTS
+from engine_air.project import schema as _pf
+from engine_air.project import MAX_AXIS_POINTS, MAX_GRID_POINTS
 from engine_air.outputs.quantities import QUANTITIES
 
 GRID_CHOICES = ("a", "b", "union")
 DIFFERENCE_QUANTITIES = (
-    "face_mach_margin", "recovery", "spillage_fraction", "mass_flow_ratio", "throat_mach", "face_mach",
+    "worst_relative_margin", "face_mach_margin", "recovery", "spillage_fraction", "mass_flow_ratio", "throat_mach",
+    "face_mach",
     "recovery_minus_reference", "additive_drag_coefficient",
 )
-"""Quantities whose difference maps and statistics ``compare_projects`` prepares."""
+"""Quantities whose difference maps and statistics ``compare_projects`` prepares; the first is the default.
+
+The default is the least relative margin over every judged limit: any design change that moves any limit shows in
+it, where a single quantity (e.g. the face Mach margin, which a ramp angle does not change) can be zero everywhere
+and give a blank difference map."""
 
 
 def evaluate_on_axes(project: Project, mach_1d, altitude_1d, case_names: list[str] | None = None) -> MapResult:
@@ -288,38 +293,34 @@ def compare_projects(
     return result
 
 
-def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES) -> int:
-    """Every common grid point inside either envelope, per shared case and WORST:
-    ``case, mach, altitude_m, inside_a, inside_b`` then ``<q>_a, <q>_b, <q>_delta`` per quantity.
-    Empty fields are values that are not defined. Returns the number of rows written."""
-    import csv
-
+def compare_columns(c: CompareResult, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES) -> dict:
+    """The compare table: every common grid point inside either envelope, per shared case and WORST:
+    ``case, mach, altitude_m, inside_a, inside_b`` then ``<q>_a, <q>_b, <q>_delta`` per quantity."""
     mach_2d, alt_2d = np.meshgrid(c.mach, c.altitude_m)
-    either = (c.inside_a | c.inside_b).ravel()
-    rows = 0
+    keep = np.nonzero((c.inside_a | c.inside_b).ravel())[0]
+    n = keep.size
+    cols: dict = {"case": [name for name in c.cases for _ in range(n)]}
+    cols["mach"] = np.tile(mach_2d.ravel()[keep], len(c.cases))
+    cols["altitude_m"] = np.tile(alt_2d.ravel()[keep], len(c.cases))
+    cols["inside_a"] = np.tile(c.inside_a.ravel()[keep].astype(np.int8), len(c.cases))
+    cols["inside_b"] = np.tile(c.inside_b.ravel()[keep].astype(np.int8), len(c.cases))
+    for q in quantities:
+        for suffix, get in (("a", lambda case: c.value("a", case, q)), ("b", lambda case: c.value("b", case, q)),
+                            ("delta", lambda case: c.difference(case, q))):
+            cols[f"{q}_{suffix}"] = np.concatenate([np.asarray(get(case), dtype=float).ravel()[keep]
+                                                    for case in c.cases]) if c.cases else np.zeros(0)
+    return cols
 
-    def cell(x: float) -> str:
-        return repr(float(x)) if math.isfinite(x) else ""
 
-    with open(path, "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        head = ["case", "mach", "altitude_m", "inside_a", "inside_b"]
-        for q in quantities:
-            head += [f"{q}_a", f"{q}_b", f"{q}_delta"]
-        w.writerow(head)
-        ia, ib = c.inside_a.ravel(), c.inside_b.ravel()
-        for case in c.cases:
-            cols = []
-            for q in quantities:
-                cols += [c.value("a", case, q).ravel(), c.value("b", case, q).ravel(), c.difference(case, q).ravel()]
-            m, h = mach_2d.ravel(), alt_2d.ravel()
-            for n in np.nonzero(either)[0]:
-                w.writerow([case, cell(m[n]), cell(h[n]), int(ia[n]), int(ib[n]), *(cell(col[n]) for col in cols)])
-                rows += 1
-    return rows
+def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES) -> int:
+    """``compare_columns`` written as CSV by ``engine_air.outputs.table``. Empty fields are values that are not
+    defined. Returns the number of rows written."""
+    from engine_air.outputs.table import write_table
+
+    return write_table(compare_columns(c, quantities), path, "csv")
 
 
 __all__ = [
     "DIFFERENCE_QUANTITIES", "GRID_CHOICES", "CompareResult", "DifferenceStats", "VerdictRow", "common_axes",
-    "compare_projects", "evaluate_on_axes", "write_compare_csv",
+    "compare_columns", "compare_projects", "evaluate_on_axes", "write_compare_csv",
 ]

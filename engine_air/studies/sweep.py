@@ -52,6 +52,7 @@ Example::
 
 from __future__ import annotations
 
+import asyncio
 import math
 import multiprocessing
 import os
@@ -66,8 +67,8 @@ from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project.toml_file import dumps_project, project_from_dict
-from engine_air.studies.sizing import _parse, _resolve_at, variable_unit, with_design_values, worst_point
+from engine_air.project import dumps_project, project_from_dict
+from engine_air.studies.sizing import parse_variable, resolve_point, variable_unit, with_design_values, worst_point
 
 MAX_VARIABLES = 4
 MAX_VALUES_PER_VARIABLE = 1001
@@ -177,7 +178,7 @@ def _axes(project: Project, variables) -> tuple[tuple[str, ...], tuple[tuple[flo
         raise ProjectError(None, "variables", [n for n, _ in items], f"a sweep varies 1 to {MAX_VARIABLES} design variables")
     names, axes = [], []
     for name, values in items:
-        _parse(project, name)
+        parse_variable(project, name)
         if name in names:
             raise ProjectError(None, "variables", name, "each design variable may be varied once")
         vals = np.asarray(values, dtype=float).ravel()
@@ -210,7 +211,7 @@ def cruise_spillage(project: Project, cruise) -> float:
     """Spillage fraction (-) at ``cruise = (mach, altitude_m, case)``; NaN without a point or where undefined."""
     if cruise is None:
         return math.nan
-    mach, alt, case = _resolve_at(project, cruise)
+    mach, alt, case = resolve_point(project, cruise)
     pts = evaluate_conditions(project, project.case(case), np.array([mach]), np.array([alt]))
     return float(pts.spillage_fraction[0])
 
@@ -244,7 +245,7 @@ _BASE: dict[str, Project] = {}
 
 
 def _base_project(project_toml: str) -> Project:
-    import tomllib
+    from engine_air.project.load import tomllib  # tomli on Python 3.10
 
     base = _BASE.get(project_toml)
     if base is None:
@@ -299,20 +300,150 @@ def _run_local(text, variables, chunks, cruise, case_names, workers, on_chunk, c
         ex.shutdown(wait=not stop, cancel_futures=True)
 
 
+class SchedulerError(RuntimeError):
+    """The dask.distributed scheduler cannot be used: unreachable, silent, not speaking the protocol, too slow.
+
+    The message is one line naming the address and what went wrong."""
+
+
+SCHEDULER_SCHEMES = ("tcp", "tls")
+MAX_HANDSHAKE_BYTES = 16 * 1024 * 1024
+
+
+def parse_scheduler(address: str) -> tuple[str, str, int]:
+    """``"tcp://HOST:PORT"`` (or ``tls://``, or ``HOST:PORT`` meaning tcp) -> (scheme, host, port).
+
+    Raises ``ProjectError`` for anything else, before any work is started.
+
+    >>> parse_scheduler("tcp://127.0.0.1:8786")
+    ('tcp', '127.0.0.1', 8786)
+    >>> parse_scheduler("[::1]:8786")
+    ('tcp', '::1', 8786)
+    """
+    allowed = "must be tcp://HOST:PORT (or tls://HOST:PORT, or HOST:PORT) with a port from 1 to 65535"
+    text = str(address).strip()
+    scheme, sep, rest = text.partition("://")
+    if not sep:
+        scheme, rest = "tcp", text
+    scheme = scheme.lower()
+    if scheme not in SCHEDULER_SCHEMES or not rest or any(ch.isspace() or not ch.isprintable() for ch in rest):
+        raise ProjectError(None, "--scheduler", address, allowed)
+    rest = rest.rstrip("/")
+    if rest.startswith("["):
+        host, bracket, port_text = rest[1:].partition("]")
+        if not bracket or not port_text.startswith(":"):
+            raise ProjectError(None, "--scheduler", address, allowed)
+        port_text = port_text[1:]
+    else:
+        host, colon, port_text = rest.rpartition(":")
+        if not colon or ":" in host or "/" in host or "/" in port_text:
+            raise ProjectError(None, "--scheduler", address, allowed)
+    if not host or not port_text.isdigit() or not 1 <= int(port_text) <= 65535:
+        raise ProjectError(None, "--scheduler", address, allowed)
+    return scheme, host, int(port_text)
+
+
+def _recv_exactly(sock, n: int, received: list) -> bytes:
+    """``n`` bytes from ``sock``; ``received[0]`` counts every byte received so far (kept on a timeout)."""
+    if not received:
+        received.append(0)
+    chunks, got = [], 0
+    while got < n:
+        part = sock.recv(min(n - got, 1 << 20))
+        if not part:
+            raise ConnectionError("closed the connection")
+        chunks.append(part)
+        got += len(part)
+        received[0] += len(part)
+    return b"".join(chunks)
+
+
+def probe_scheduler(address: str, timeout: float) -> None:
+    """Connect to a tcp:// scheduler and read its first message within ``timeout`` seconds each.
+
+    A dask.distributed server greets every new connection with a framed message
+    (8-byte little-endian length, then a frame count and frame lengths). Raises
+    ``SchedulerError`` when the connection is refused or times out, when nothing
+    arrives in time, or when what arrives is not such a message.
+    """
+    import socket
+    import struct
+
+    scheme, host, port = parse_scheduler(address)
+    if scheme != "tcp":
+        return
+    try:
+        sock = socket.create_connection((host, port), timeout=timeout)
+    except socket.timeout:
+        raise SchedulerError(f"scheduler {address}: no connection within {timeout:g} s") from None
+    except OSError as exc:
+        raise SchedulerError(f"scheduler {address}: cannot connect ({exc.strerror or exc})") from None
+    received = []
+    try:
+        sock.settimeout(timeout)
+        try:
+            head = _recv_exactly(sock, 8, received)
+            (size,) = struct.unpack("<Q", head)
+            if not 16 <= size <= MAX_HANDSHAKE_BYTES:
+                raise ValueError
+            body = _recv_exactly(sock, size, received)
+            (frames,) = struct.unpack("<Q", body[:8])
+            if not 1 <= frames <= 1000 or 8 * (frames + 1) > size:
+                raise ValueError
+        except socket.timeout:
+            if received and received[0]:
+                raise SchedulerError(f"scheduler {address}: answered with something that is not the dask.distributed "
+                                     f"protocol (an incomplete message, then nothing for {timeout:g} s)") from None
+            raise SchedulerError(f"scheduler {address}: connected, but no answer within {timeout:g} s "
+                                 "(is it a dask.distributed scheduler?)") from None
+        except (ValueError, struct.error):
+            raise SchedulerError(f"scheduler {address}: answered with something that is not the dask.distributed "
+                                 "protocol (garbage); check the address and port") from None
+        except OSError as exc:
+            what = "closed the connection" if isinstance(exc, ConnectionError) and not exc.errno else \
+                (exc.strerror or str(exc))
+            raise SchedulerError(f"scheduler {address}: the connection failed while waiting for its answer "
+                                 f"({what})") from None
+    finally:
+        sock.close()
+
+
 def _run_dask(text, variables, chunks, cruise, case_names, scheduler, on_chunk, cancelled, timeout) -> None:
-    from distributed import Client, as_completed
+    from distributed import Client, wait as dask_wait
 
     own = isinstance(scheduler, str)
-    client = Client(scheduler, timeout=timeout, set_as_default=False) if own else scheduler
+    if own:
+        probe_scheduler(scheduler, timeout)
+        try:
+            client = Client(scheduler, timeout=f"{timeout}s", set_as_default=False)
+        except (OSError, TimeoutError) as exc:
+            raise SchedulerError(f"scheduler {scheduler}: cannot open a client within {timeout:g} s "
+                                 f"({type(exc).__name__})") from None
+        except (MemoryError, ValueError, TypeError) as exc:
+            raise SchedulerError(f"scheduler {scheduler}: answered with something that is not the dask.distributed "
+                                 f"protocol ({type(exc).__name__})") from None
+    else:
+        client = scheduler
     try:
         futures = client.map(run_chunk, [text] * len(chunks), [variables] * len(chunks), list(chunks),
                              [cruise] * len(chunks), [case_names] * len(chunks), pure=False)
         order = {f.key: i for i, f in enumerate(futures)}
-        for fut in as_completed(futures, loop=client.loop):
-            if cancelled is not None and cancelled():
-                client.cancel(futures)
-                raise Cancelled()
-            on_chunk(order[fut.key], fut.result())
+        pending = set(futures)
+        while pending:
+            try:
+                with client.as_current():
+                    done, pending = dask_wait(list(pending), timeout=timeout, return_when="FIRST_COMPLETED")
+            except (TimeoutError, asyncio.TimeoutError):
+                client.cancel(list(pending))
+                raise SchedulerError(f"scheduler {getattr(client, 'scheduler', None) and client.scheduler.address}: "
+                                     f"no result within {timeout:g} s ({len(pending)} of {len(futures)} tasks "
+                                     "outstanding); raise --timeout or check the workers") from None
+            pending = set(pending)
+            for fut in done:
+                if cancelled is not None and cancelled():
+                    client.cancel(futures)
+                    raise Cancelled()
+                on_chunk(order[fut.key], fut.result())
     finally:
         if own:
             client.close()
@@ -329,7 +460,7 @@ def sweep(
     chunk_size: int | None = None,
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
-    connect_timeout: str = "10s",
+    timeout: float = 30.0,
 ) -> SweepResult:
     """Evaluate every combination of ``variables``' values over the envelope (see the module text).
 
@@ -347,8 +478,17 @@ def sweep(
         Run on this dask.distributed cluster instead.
     chunk_size : int, optional
         Variants per task (default: about four tasks per worker, at most 32).
+    timeout : float
+        Seconds allowed (cluster only) for connecting, for the scheduler's first
+        answer and for each result; past it ``SchedulerError`` says which.
+        A scheduler address is parsed before any work (``ProjectError``).
     """
     t0 = time.perf_counter()
+    if isinstance(scheduler, str):
+        parse_scheduler(scheduler)
+    if isinstance(timeout, bool) or not isinstance(timeout, (int, float)) or not (0 < timeout < math.inf):
+        raise ProjectError(None, "timeout", timeout, "must be a number of seconds above 0")
+    timeout = float(timeout)
     names, axes = _axes(project, variables)
     shape = tuple(len(a) for a in axes)
     n = math.prod(shape)
@@ -360,7 +500,7 @@ def sweep(
     grid_points = project.grid.mach_points * project.grid.altitude_points
     check_size(n, grid_points, n_cases)
     if cruise is not None:
-        cruise = _resolve_at(project, cruise)
+        cruise = resolve_point(project, cruise)
     if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int) or workers < 1):
         raise ProjectError(None, "workers", workers, "must be a whole number of 1 or more")
     cpu = os.cpu_count() or 1
@@ -383,7 +523,7 @@ def sweep(
 
     if scheduler is not None:
         mode, used = "dask", 0
-        _run_dask(text, names, chunks, cruise, case_names, scheduler, on_chunk, cancelled, connect_timeout)
+        _run_dask(text, names, chunks, cruise, case_names, scheduler, on_chunk, cancelled, timeout)
     else:
         used = max(1, min(want, len(chunks)))
         if used == 1:
@@ -403,22 +543,30 @@ CSV_FIELDS = ("verdict", "worst_relative_margin", "worst_check", "worst_mach", "
               "worst_face_mach_margin", "cruise_spillage_fraction")
 
 
+def sweep_columns(result: SweepResult) -> dict:
+    """The sweep table's columns: the variables' values, then ``CSV_FIELDS``, ``failing_limits`` (;-separated)
+    and ``message`` (why an invalid variant is invalid; empty otherwise)."""
+    rows = result.rows
+    cols: dict = {}
+    for k, v in enumerate(result.variables):
+        cols[v] = np.array([r.values[k] for r in rows], dtype=float)
+    for f in CSV_FIELDS:
+        values = [getattr(r, f) for r in rows]
+        if f in ("verdict", "worst_check", "worst_case"):
+            cols[f] = ["" if x is None else str(x) for x in values]
+        else:
+            cols[f] = np.array(values, dtype=float)
+    cols["failing_limits"] = [";".join(r.failing_limits) for r in rows]
+    cols["message"] = [r.message for r in rows]
+    return cols
+
+
 def write_sweep_csv(result: SweepResult, path) -> int:
-    """One row per variant: the variables' values, then ``CSV_FIELDS``, ``failing_limits`` (;-separated)
-    and ``message``. Undefined numbers are empty fields. Returns the number of rows."""
-    import csv
+    """One row per variant (``sweep_columns``), written by ``engine_air.outputs.table``. Undefined numbers are
+    empty fields. Returns the number of rows."""
+    from engine_air.outputs.table import write_table
 
-    def cell(x):
-        if isinstance(x, float):
-            return repr(x) if math.isfinite(x) else ""
-        return "" if x is None else str(x)
-
-    with open(path, "w", newline="", encoding="utf-8") as fh:
-        w = csv.writer(fh)
-        w.writerow([*result.variables, *CSV_FIELDS, "failing_limits", "message"])
-        for r in result.rows:
-            w.writerow([*(repr(v) for v in r.values), *(cell(getattr(r, f)) for f in CSV_FIELDS),
-                        ";".join(r.failing_limits), r.message])
+    write_table(sweep_columns(result), path, "csv")
     return len(result.rows)
 
 
@@ -427,7 +575,8 @@ def format_rows(result: SweepResult, limit: int | None = None) -> list[str]:
     heads = [f"{v} [{variable_unit(v)}]" if variable_unit(v) else v for v in result.variables]
     widths = [max(12, len(h)) for h in heads]
     head = "  ".join(h.rjust(w) for h, w in zip(heads, widths))
-    head += f"  {'verdict':<7}  {'worst rel':>9}  {'worst check':<18}  {'face M marg':>11}  {'cruise spill':>12}"
+    head += (f"  {'verdict':<7}  {'worst rel':>9}  {'worst check':<18}  {'face M marg':>11}  {'cruise spill':>12}"
+             f"  reason (invalid variants)")
     lines = [head, "-" * len(head)]
 
     def num(x, fmt):
@@ -437,11 +586,14 @@ def format_rows(result: SweepResult, limit: int | None = None) -> list[str]:
     for r in result.rows[:limit]:
         vals = "  ".join(f"{v:.6g}".rjust(w) for v, w in zip(r.values, widths))
         lines.append(f"{vals}  {r.verdict:<7}  {num(r.worst_relative_margin, '+9.4f')}  {(r.worst_check or '-'):<18}  "
-                     f"{num(r.worst_face_mach_margin, '+11.4f')}  {num(r.cruise_spillage_fraction, '12.4f')}")
+                     f"{num(r.worst_face_mach_margin, '+11.4f')}  {num(r.cruise_spillage_fraction, '12.4f')}"
+                     + (f"  {r.message}" if r.verdict == "invalid" else ""))
     return lines
 
 
 __all__ = [
-    "MAX_POINT_EVALUATIONS", "MAX_VARIABLES", "MAX_VARIANTS", "SweepResult", "SweepRow", "check_size",
-    "cruise_spillage", "format_rows", "parse_vary", "run_chunk", "sweep", "variant_row", "write_sweep_csv",
+    "MAX_POINT_EVALUATIONS", "MAX_VARIABLES", "MAX_VARIANTS", "SchedulerError", "SweepResult", "SweepRow", "check_size",
+    "parse_scheduler", "probe_scheduler",
+    "cruise_spillage", "format_rows", "parse_vary", "run_chunk", "sweep", "sweep_columns", "variant_row",
+    "write_sweep_csv",
 ]

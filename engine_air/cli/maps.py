@@ -1,0 +1,61 @@
+"""``engine-air map PROJECT [--case NAME] [--csv FILE] [--parquet FILE] [--png FILE]``: every grid point."""
+
+from __future__ import annotations
+
+from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, load, out,
+                                   path_text, write_error)
+
+
+def add_parser(sub) -> None:
+    m = sub.add_parser("map", help="every grid point of every case as CSV and/or Parquet (and a PNG picture)")
+    m.add_argument("project")
+    m.add_argument("--case", action="append", help="case name (repeatable); default every case")
+    m.add_argument("--csv", help="CSV file to write (one row per grid point and case)")
+    m.add_argument("--parquet", help="Parquet file to write (the same columns as the CSV)")
+    m.add_argument("--png", help="PNG picture of the map of --quantity to write")
+    m.add_argument("--quantity", default="face_mach_margin", help="quantity drawn in the PNG")
+    m.set_defaults(handler=run)
+
+
+def write_map_csv(result, path) -> int:
+    """Every grid point of every case of ``result`` as CSV rows; returns the number of rows."""
+    from engine_air.outputs.table import write_point_table
+
+    return write_point_table(result, path, "csv")
+
+
+def run(args) -> int:
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.outputs.quantities import QUANTITIES
+    from engine_air.outputs.table import point_table, write_table
+
+    if not (args.csv or args.parquet or args.png):
+        raise UsageError("map: give at least one of --csv FILE, --parquet FILE, --png FILE")
+    if args.quantity not in QUANTITIES:
+        raise UsageError(f"--quantity {args.quantity!r}: unknown quantity; choose from {', '.join(QUANTITIES)}")
+    targets = [(opt, p) for opt, p in (("--csv", args.csv), ("--parquet", args.parquet), ("--png", args.png)) if p]
+    for opt, p in targets:
+        check_output_path(p, opt)
+    if len({p for _, p in targets}) < len(targets):
+        raise UsageError("map: --csv, --parquet and --png must name different files")
+    project = load(args.project)
+    result = evaluate_project(project, cases(project, args.case))
+    if args.csv or args.parquet:
+        table = point_table(result)
+        for opt, fmt, p in (("--csv", "csv", args.csv), ("--parquet", "parquet", args.parquet)):
+            if not p:
+                continue
+            try:
+                rows = write_table(table, p, fmt)
+            except OSError as exc:
+                raise write_error(p, f"{fmt.upper() if fmt == 'csv' else 'Parquet'} file", exc) from None
+            out(f"wrote {rows} rows to {path_text(p)}")
+    if args.png:
+        from engine_air.outputs.pictures import write_map_png
+
+        try:
+            write_map_png(result, args.png, args.quantity)
+        except OSError as exc:
+            raise write_error(args.png, "PNG file", exc) from None
+        out(f"wrote {path_text(args.png)}")
+    return EXIT_HOLDS if result.holds else EXIT_FAILS

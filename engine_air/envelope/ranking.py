@@ -1,0 +1,167 @@
+"""The one worst-point ranking and the one nearest-grid-point lookup.
+
+Ranking rule (method §8): at a point, a check that is judged there (``applies``)
+has a *rank* equal to its relative margin; a failing check ranks below every
+holding one (its rank is min(relative margin, 0) - ``FAIL_OFFSET``); a check that
+is not judged has rank +inf. The *limiting* check at a point is the one of least
+rank; the *worst point* of a set of points (a map, a map over several cases) is
+the one of least rank. Relative margins of failing checks are negative and those
+of holding checks are 0 or more, so the offset only settles ties and NaN edge
+cases: it keeps "failing beats holding" explicit.
+
+Everything here works on whole arrays (no loop over points); loops run over the
+handful of checks and cases only.
+
+>>> import numpy as np
+>>> from engine_air.envelope.checks import Check
+>>> a = Check("a", "A", "", np.zeros(3), np.array([0.5, -0.1, 0.2]), np.array([0.5, -0.1, 0.2]),
+...           np.array([True, True, False]), np.array([False, True, False]))
+>>> worst_relative_margin([a]).tolist()
+[0.5, -0.1, nan]
+>>> limiting_index([a]).tolist()
+[0, 0, -1]
+>>> nearest_index(np.array([0.0, 0.5, 1.0]), np.array([0.0, 1000.0]), 0.6, 900.0)
+(1, 1)
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+FAIL_OFFSET = 1e6
+"""Subtracted from a failing check's rank so that it outranks every holding check."""
+
+
+def check_rank(check, mask=None) -> np.ndarray:
+    """Rank array of one check (see the module text); ``mask`` (bool) further restricts where it is judged."""
+    rel = np.asarray(check.relative_margin, dtype=float)
+    applies = np.asarray(check.applies, dtype=bool)
+    if mask is not None:
+        applies = applies & mask
+    with np.errstate(invalid="ignore"):
+        return np.where(applies, np.where(check.fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
+
+
+def _stack(checks, mask=None):
+    return np.stack([check_rank(c, mask) for c in checks])
+
+
+def limiting_index(checks, shape=None, mask=None) -> np.ndarray:
+    """Index into ``checks`` of the limiting check at each point (int16); -1 where no check is judged."""
+    if not checks:
+        return np.full(() if shape is None else shape, -1, dtype=np.int16)
+    rank = _stack(checks, mask)
+    index = np.argmin(rank, axis=0)
+    none = np.isposinf(np.min(rank, axis=0))
+    return np.where(none, -1, index).astype(np.int16)
+
+
+def worst_relative_margin(checks, shape=None, mask=None) -> np.ndarray:
+    """Least relative margin over the checks judged at each point (the limiting check's); NaN where none is."""
+    if not checks:
+        return np.full(() if shape is None else shape, np.nan)
+    rank = _stack(checks, mask)
+    index = np.argmin(rank, axis=0)
+    rel = np.stack([np.asarray(c.relative_margin, dtype=float) for c in checks])
+    rel = np.broadcast_to(rel, rank.shape)
+    out = np.take_along_axis(rel, index[None], axis=0)[0]
+    return np.where(np.isposinf(np.min(rank, axis=0)), np.nan, out)
+
+
+def limiting_rank(checks, shape=None, mask=None) -> np.ndarray:
+    """Least rank over the checks at each point (+inf where nothing is judged)."""
+    if not checks:
+        return np.full(() if shape is None else shape, np.inf)
+    return np.min(_stack(checks, mask), axis=0)
+
+
+def argworst(rank: np.ndarray) -> tuple[int, ...] | None:
+    """Index (tuple) of the least rank; None where every rank is +inf (nothing judged)."""
+    rank = np.asarray(rank, dtype=float)
+    if rank.size == 0:
+        return None
+    flat = int(np.argmin(rank))
+    if np.isposinf(rank.flat[flat]):
+        return None
+    return tuple(int(i) for i in np.unravel_index(flat, rank.shape))
+
+
+@dataclass(frozen=True)
+class Worst:
+    """The worst point of a ranking: which case (position), which check (position) and where."""
+
+    rank: float
+    case: int  # position in the sequence of point sets ranked
+    check: int  # position in that point set's checks
+    index: tuple[int, ...]
+
+
+def worst_of_check(point_sets, k: int, mask=None) -> Worst | None:
+    """Worst point of check number ``k`` over several point sets (e.g. one per case); ``mask`` restricts it."""
+    best = None
+    for n, pts in enumerate(point_sets):
+        rank = check_rank(pts.checks[k], mask)
+        j = argworst(rank)
+        if j is not None and (best is None or rank[j] < best.rank):
+            best = Worst(float(rank[j]), n, k, j)
+    return best
+
+
+def worst_point(point_sets, mask=None) -> Worst | None:
+    """Worst point over every check of several point sets (e.g. one per case); None when nothing is judged."""
+    best = None
+    for n, pts in enumerate(point_sets):
+        for k, chk in enumerate(pts.checks):
+            rank = check_rank(chk, mask)
+            j = argworst(rank)
+            if j is not None and (best is None or rank[j] < best.rank):
+                best = Worst(float(rank[j]), n, k, j)
+    return best
+
+
+def worst_case_index(point_sets, shape=None, mask=None) -> np.ndarray:
+    """At each point, the position of the point set (case) whose limiting check ranks least (ties: the first)."""
+    rank = np.stack([limiting_rank(p.checks, shape if shape is not None else np.shape(p.mach), mask)
+                     for p in point_sets])
+    return np.argmin(rank, axis=0)
+
+
+def limiting_map(result, case: str) -> tuple[np.ndarray, np.ndarray, list[str], list[str]]:
+    """The least-margin map of a ``MapResult`` for ``case`` (or ``WORST``) and what limits it.
+
+    Returns ``(margin, index, names, labels)``: ``margin`` (ny, nx) is the least
+    relative margin over every judged check (for WORST, over every case too), NaN
+    outside the envelope or where nothing is judged (flags ``outside-envelope`` /
+    ``outside-atmosphere`` say which); ``index`` (ny, nx) points into ``names``
+    and ``labels`` (the check's name and label), -1 where ``margin`` is NaN.
+    """
+    from engine_air.envelope.evaluate import WORST
+
+    cases = result.cases if case == WORST else [result.case_map(case)]
+    inside = np.asarray(result.inside, dtype=bool)
+    shape = inside.shape
+    if not cases or not cases[0].points.checks:
+        return np.full(shape, np.nan), np.full(shape, -1, dtype=np.int16), [], []
+    pick = worst_case_index([c.points for c in cases], shape) if len(cases) > 1 else np.zeros(shape, dtype=np.intp)
+    margins = np.stack([worst_relative_margin(c.points.checks, shape) for c in cases])
+    indices = np.stack([limiting_index(c.points.checks, shape) for c in cases])
+    margin = np.take_along_axis(margins, pick[None], axis=0)[0]
+    index = np.take_along_axis(indices, pick[None], axis=0)[0]
+    margin = np.where(inside, margin, np.nan)
+    index = np.where(np.isfinite(margin), index, -1).astype(np.int16)
+    checks = cases[0].points.checks
+    return margin, index, [c.name for c in checks], [c.label for c in checks]
+
+
+def nearest_index(mach_axis, altitude_axis, mach: float, altitude_m: float) -> tuple[int, int]:
+    """Grid (row i along the altitude axis, column j along the Mach axis) nearest to a flight condition."""
+    i = int(np.argmin(np.abs(np.asarray(altitude_axis, dtype=float) - altitude_m)))
+    j = int(np.argmin(np.abs(np.asarray(mach_axis, dtype=float) - mach)))
+    return i, j
+
+
+__all__ = ["FAIL_OFFSET", "Worst", "argworst", "check_rank", "limiting_index", "limiting_map", "limiting_rank",
+           "nearest_index",
+           "worst_case_index", "worst_of_check", "worst_point", "worst_relative_margin"]
