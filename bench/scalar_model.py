@@ -23,7 +23,7 @@ choice as the package (so that the two can be compared point by point):
   of maximum deflection from its leading edge, turning the flow by the maximum deflection (method section 10);
 - external-ramp inlets in supersonic flight: pre-entry drag = the pressure on the dividing stream line behind
   each ramp shock plus the momentum balance of the spillage behind the terminal shock (method section 13);
-  mixed compression: not computed (NaN);
+  mixed compression: its external ramps' as for external-ramp;
 - mixed compression (method section 11): the started state of a point at M0 is found by stepping from Mach 1
   to M0 every 0.0025 (then M0 itself): unstarted until a node self-starts (Kantrowitz), started while every
   node can run started; a started point has the supersonic throat Mach as its throat Mach and no throat
@@ -417,8 +417,7 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
             flags.add("shock-detached")
         if inside_cowl:
             flags.add("shock-inside-cowl")
-        if mixed:  # its pre-entry drag is not modelled yet (the external-ramp type's is, method §13)
-            flags.add("additive-drag-not-modelled")
+        if mixed:
             started = mixed_started(inlet, m0)
             if started:
                 _, _, m_th_started, pi_ramps_cowl, _ = mixed_node(inlet, m0)
@@ -521,8 +520,8 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
     pt1 = pi_ext * pt_in
     cap_mfp = w * math.sqrt(tt0) / (inlet.capture_area_m2 * pt1)
     m1 = 1.0 if cap_mfp >= MFP_STAR else subsonic_mach_from_mfp(cap_mfp)
-    ramp_supersonic = supersonic and inlet.type == "external-ramp"
-    if low or (supersonic and mixed):
+    ramp_supersonic = supersonic and inlet.type in ("external-ramp", "mixed-compression")
+    if low:
         d_add = c_add = c_spill = NAN
     elif ramp_supersonic:  # method §13: ramp regions plus the spillage behind the terminal shock
         integral, mn, pi_n, angle = drag_terms
