@@ -548,3 +548,35 @@ def test_random_projects_and_conditions_never_give_a_silent_nan(data, mach, alti
     assert unexplained_nans(points) == []
     record = point_record(points, (0, 0), "c")
     assert record_problems(record) == []
+
+
+def test_tiny_legal_limits_and_areas_give_flags_and_no_warnings(tmp_path):
+    """Issue reproduction: face_mach_max = 5e-324 printed a numpy overflow warning; areas of 5e-324 gave nulls.
+    A tiny limit fails everywhere with a finite relative margin; tiny areas choke the face (flag face-choked)."""
+    import re
+    import warnings
+
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.envelope.point import evaluate_point
+    from engine_air.project import load_project
+
+    text = (SAMPLES / "subsonic_transport_nacelle.toml").read_text(encoding="utf-8")
+    tiny_limit = tmp_path / "tiny_limit.toml"
+    tiny_limit.write_text(re.sub(r"(?m)^face_mach_max = .*$", "face_mach_max = 5e-324", text), encoding="utf-8")
+    tiny_areas = tmp_path / "tiny_areas.toml"
+    tiny_areas.write_text(re.sub(r"(?m)^(capture_area_m2|throat_area_m2|face_area_m2) = .*$", r"\1 = 5e-324", text),
+                          encoding="utf-8")
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        result = evaluate_project(load_project(tiny_limit))
+        face = [s for s in result.summary if s.name == "face-mach"][0]
+        assert not face.holds and np.isfinite(face.worst_margin)
+        for cm in result.cases:
+            rel = cm.points.check("face-mach").relative_margin
+            assert np.all(np.isfinite(rel[cm.points.check("face-mach").applies]))
+        record = evaluate_point(load_project(tiny_areas), 0.5, 3000.0)
+        assert "face-choked" in record["flags"]
+        for key, value in record.items():
+            if value is None:
+                assert key in ("net_thrust_n", "installed_thrust_n", "installation_loss_fraction", "started",
+                               "self_start_contraction", "relative_tip_mach"), key
