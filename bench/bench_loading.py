@@ -18,7 +18,7 @@ import os
 import sys
 import tempfile
 import time
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 from pathlib import Path
 
 import numpy as np

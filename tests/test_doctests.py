@@ -38,7 +38,7 @@ def _modules():
 
 
 def test_the_test_command_collects_doctests():
-    import tomllib
+    from engine_air.project.load import tomllib  # tomli on Python 3.10
 
     ini = tomllib.loads((ROOT / "pyproject.toml").read_text(encoding="utf-8"))["tool"]["pytest"]["ini_options"]
     assert "--doctest-modules" in ini["addopts"] and "engine_air" in ini["testpaths"]
