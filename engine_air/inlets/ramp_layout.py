@@ -26,7 +26,8 @@ the wave angle grows from 39.31 to 44.06 degrees and MFR_max = 0.9595.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
+from functools import lru_cache
 
 import numpy as np
 
@@ -211,8 +212,26 @@ def ramp_trace(ramp_angles_deg, design_mach, flight_mach) -> RampTrace:
     >>> print(np.round(t.captured_height, 4), np.round(t.pressure_integral, 4), t.detached)
     [0.9301 0.937  1.    ] [0.0247 0.0655 0.    ] [ True False False]
     """
+    m0 = np.asarray(flight_mach, dtype=float)
+    if m0.size and np.all(m0 == m0.flat[0]):
+        # one Mach number (a scheduled inlet's column): solved once per geometry and Mach, then broadcast
+        one = _ramp_trace_at(tuple(float(a) for a in ramp_angles_deg), float(design_mach), float(m0.flat[0]))
+        return RampTrace(**{f.name: _broadcast_trace_field(getattr(one, f.name), m0.shape) for f in fields(RampTrace)})
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        return _ramp_trace(ramp_angles_deg, design_mach, flight_mach)
+        return _ramp_trace(ramp_angles_deg, design_mach, m0)
+
+
+@lru_cache(maxsize=4096)
+def _ramp_trace_at(ramp_angles_deg: tuple, design_mach: float, mach: float) -> RampTrace:
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        return _ramp_trace(ramp_angles_deg, design_mach, np.array([mach]))
+
+
+def _broadcast_trace_field(value: np.ndarray, shape: tuple) -> np.ndarray:
+    """A field of a one-Mach trace (shape (1,) or (n, 1)) spread over ``shape`` (or (n, *shape))."""
+    value = np.asarray(value)
+    lead = value.shape[:-1]
+    return np.broadcast_to(value.reshape(lead + (1,) * len(shape)), lead + shape).copy()
 
 
 def _ramp_trace(ramp_angles_deg, design_mach, flight_mach) -> RampTrace:
