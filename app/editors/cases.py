@@ -1,0 +1,96 @@
+"""The "Cases" tab: case name, rating and ISA offset.
+
+A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
+``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtWidgets import (
+    QComboBox,
+    QHBoxLayout,
+    QPushButton,
+    QTableWidgetItem,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine_air.project.model import Case
+
+from .widgets import CellError, cell_si, make_table, number_item
+
+
+class CasesTab:
+    """The "Cases" tab: case name, rating and ISA offset."""
+
+    def _build_cases(self) -> None:
+        w = QWidget()
+        lay = QVBoxLayout(w)
+        self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT"])
+        self.case_table.cellChanged.connect(lambda _r, _c: self._cases_changed())
+        lay.addWidget(self.case_table, 1)
+        buttons = QHBoxLayout()
+        add, remove = QPushButton("Add case"), QPushButton("Remove case")
+        add.clicked.connect(self._add_case)
+        remove.clicked.connect(self._remove_case)
+        buttons.addWidget(add)
+        buttons.addWidget(remove)
+        lay.addLayout(buttons)
+        self.tabs.addTab(w, "Cases")
+
+    def _load_cases(self, p) -> None:
+        t, u = self.case_table, self._units
+        t.blockSignals(True)
+        t.setHorizontalHeaderLabels(["Case name", "Engine rating",
+                                     u.with_unit("ISA offset ΔT", "temperature_difference")])
+        t.setRowCount(len(p.cases))
+        names = [r.name for r in p.ratings]
+        for k, c in enumerate(p.cases):
+            t.setItem(k, 0, QTableWidgetItem(c.name))
+            combo = QComboBox()
+            combo.addItems(names)
+            combo.setCurrentText(c.rating)
+            combo.currentTextChanged.connect(lambda _t: self._cases_changed())
+            t.setCellWidget(k, 1, combo)
+            t.setItem(k, 2, number_item(c.isa_offset_K, "temperature_difference", u))
+        t.blockSignals(False)
+
+    def _cases_changed(self) -> None:
+        if self._loading:
+            return
+        t, u = self.case_table, self._units
+        try:
+            cases = []
+            for r in range(t.rowCount()):
+                name = t.item(r, 0).text().strip() if t.item(r, 0) is not None else ""
+                combo = t.cellWidget(r, 1)
+                rating = combo.currentText() if combo is not None else ""
+                dt = cell_si(t, r, 2, "temperature_difference", u, "ISA offset")
+                cases.append(Case(name=name, rating=rating, isa_offset_K=dt))
+        except CellError as exc:
+            self.show_error(str(exc))
+            return
+        self.apply_now(lambda p: replace(p, cases=tuple(cases)))
+
+    def _add_case(self) -> None:
+        def change(p):
+            names = {c.name for c in p.cases}
+            n = len(p.cases) + 1
+            while f"case {n}" in names:
+                n += 1
+            return replace(p, cases=p.cases + (Case(name=f"case {n}", rating=p.ratings[0].name, isa_offset_K=0.0),))
+
+        if self.apply_now(change):
+            self._load_cases(self._project)
+
+    def _remove_case(self) -> None:
+        row = self.case_table.currentRow()
+
+        def change(p):
+            k = row if 0 <= row < len(p.cases) else len(p.cases) - 1
+            return replace(p, cases=p.cases[:k] + p.cases[k + 1:])
+
+        if self.apply_now(change):
+            self._load_cases(self._project)
