@@ -1,4 +1,5 @@
-"""The "Cases" tab: case name, rating and ISA offset.
+"""The "Cases" tab: case name, rating, ISA offset and the optional region where the case is judged
+(``mach_range``, ``altitude_range_m``: two cells each, both blank for no bound).
 
 A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
 ``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
@@ -11,26 +12,57 @@ from dataclasses import replace
 from PySide6.QtWidgets import (
     QComboBox,
     QHBoxLayout,
+    QLabel,
     QPushButton,
     QTableWidgetItem,
     QVBoxLayout,
     QWidget,
 )
 
+from engine_air.project import schema as S
 from engine_air.project.model import Case
+
+from .fields import tooltip
 
 from .widgets import CellError, cell_si, make_table, number_item
 
 
+REGION_HEADERS = ("M0 from", "M0 to", "H from", "H to")
+
+
+def _blank(t, r, c) -> bool:
+    item = t.item(r, c)
+    return item is None or not item.text().strip()
+
+
+def _range(t, r, c, dim, u, what):
+    """The (low, high) pair in columns c, c+1 of row r; None when both cells are blank."""
+    if _blank(t, r, c) and _blank(t, r, c + 1):
+        return None
+    if _blank(t, r, c) or _blank(t, r, c + 1):
+        raise CellError(f"row {r + 1}, {what}: give both bounds, or leave both blank for no bound")
+    return (cell_si(t, r, c, dim, u, what), cell_si(t, r, c + 1, dim, u, what))
+
+
 class CasesTab:
-    """The "Cases" tab: case name, rating and ISA offset."""
+    """The "Cases" tab: case name, rating, ISA offset and the optional region (Mach and altitude ranges)."""
 
     def _build_cases(self) -> None:
         w = QWidget()
         lay = QVBoxLayout(w)
-        self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT"])
+        self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT", *REGION_HEADERS])
         self.case_table.cellChanged.connect(lambda _r, _c: self._cases_changed())
+        for c, key in ((3, "mach_range"), (4, "mach_range"), (5, "altitude_range_m"), (6, "altitude_range_m")):
+            self.case_table.horizontalHeaderItem(c).setToolTip(
+                tooltip(S.field(f"case.{key}")) + "\nLeave both cells blank for no limit on this axis.")
+        for c, key in ((0, "name"), (1, "rating"), (2, "isa_offset_K")):
+            self.case_table.horizontalHeaderItem(c).setToolTip(tooltip(S.field(f"case.{key}")))
         lay.addWidget(self.case_table, 1)
+        note = QLabel("Region (optional): the case is judged only for M0 and altitude inside these bounds "
+                      "(included); outside it its points are computed, shown grey and judged by no check. Blank "
+                      "cells: no bound on that axis.")
+        note.setWordWrap(True)
+        lay.addWidget(note)
         buttons = QHBoxLayout()
         add, remove = QPushButton("Add case"), QPushButton("Remove case")
         add.clicked.connect(self._add_case)
@@ -44,7 +76,8 @@ class CasesTab:
         t, u = self.case_table, self._units
         t.blockSignals(True)
         t.setHorizontalHeaderLabels(["Case name", "Engine rating",
-                                     u.with_unit("ISA offset ΔT", "temperature_difference")])
+                                     u.with_unit("ISA offset ΔT", "temperature_difference"), "M0 from", "M0 to",
+                                     u.with_unit("H from", "altitude"), u.with_unit("H to", "altitude")])
         t.setRowCount(len(p.cases))
         names = [r.name for r in p.ratings]
         for k, c in enumerate(p.cases):
@@ -55,6 +88,10 @@ class CasesTab:
             combo.currentTextChanged.connect(lambda _t: self._cases_changed())
             t.setCellWidget(k, 1, combo)
             t.setItem(k, 2, number_item(c.isa_offset_K, "temperature_difference", u))
+            for col, values, dim in ((3, c.mach_range, "none"), (5, c.altitude_range_m, "altitude")):
+                for j in range(2):
+                    t.setItem(k, col + j, number_item(values[j], dim, u) if values is not None
+                              else QTableWidgetItem(""))
         t.blockSignals(False)
 
     def _cases_changed(self) -> None:
@@ -68,7 +105,9 @@ class CasesTab:
                 combo = t.cellWidget(r, 1)
                 rating = combo.currentText() if combo is not None else ""
                 dt = cell_si(t, r, 2, "temperature_difference", u, "ISA offset")
-                cases.append(Case(name=name, rating=rating, isa_offset_K=dt))
+                mach = _range(t, r, 3, "none", u, "Mach range")
+                alt = _range(t, r, 5, "altitude", u, "altitude range")
+                cases.append(Case(name=name, rating=rating, isa_offset_K=dt, mach_range=mach, altitude_range_m=alt))
         except CellError as exc:
             self.show_error(str(exc))
             return

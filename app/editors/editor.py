@@ -22,14 +22,15 @@ from .inlet import InletTab
 from .limits import LimitsTab
 from .pipeline import DEBOUNCE_MS, EditPipeline
 from .ratings import RatingsTab
+from .schedule import ScheduleTab
 from .widgets import UnitSpin
 
-TABS = ("general", "inlet", "limits", "ratings", "envelope", "cases", "grid")
+TABS = ("general", "inlet", "schedule", "limits", "ratings", "envelope", "cases", "grid")
 """The tabs in order: each has ``_build_<name>()`` and ``_load_<name>(project)``."""
 
 
-class ProjectEditors(EditPipeline, GeneralTab, InletTab, LimitsTab, RatingsTab, EnvelopeTab, CasesTab, GridTab,
-                     QWidget):
+class ProjectEditors(EditPipeline, GeneralTab, InletTab, ScheduleTab, LimitsTab, RatingsTab, EnvelopeTab, CasesTab,
+                     GridTab, QWidget):
     """All project editors in tabs, with one error bar."""
 
     projectEdited = Signal(object)
@@ -65,3 +66,9 @@ class ProjectEditors(EditPipeline, GeneralTab, InletTab, LimitsTab, RatingsTab, 
                 getattr(self, f"_load_{name}")(p)
         finally:
             self._loading = False
+
+    def _accepted(self, old, new) -> None:
+        """After an accepted edit: rebuild the tables whose shape another tab's edit changed (the schedule's
+        columns follow the inlet type and ramp count)."""
+        if old is None or self._schedule_structure(old) != self._schedule_structure(new):
+            self._load_schedule(new)

@@ -29,7 +29,7 @@ class EditPipeline:
     """Mixin of ``ProjectEditors``: the current project, pending edits, validation and the error bar.
 
     The class using it provides ``_project``, ``_units``, ``_pending``, ``_timer``, ``_loading``, ``error``,
-    ``projectEdited`` and ``_load()``.
+    ``projectEdited``, ``_load()`` and ``_accepted(old, new)`` (called after an accepted edit).
     """
 
     @property
@@ -74,7 +74,8 @@ class EditPipeline:
         self.error.hide()
         self.error.setText("")
         checked = replace(checked, warnings=())
-        self._project = checked
+        old, self._project = self._project, checked
+        self._accepted(old, checked)
         self.projectEdited.emit(checked)
         return True
 

@@ -1,4 +1,5 @@
-"""The "Engine" tab: engine ratings (name, fan tip speed, corrected flow against theta2).
+"""The "Engine" tab: engine ratings: name, corrected flow against theta2, the fan tip speed (none, physical, or
+corrected against theta2) and the thrust table (``thrust``).
 
 A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
 ``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
@@ -8,14 +9,17 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+from PySide6.QtCore import Qt
+
 from PySide6.QtWidgets import (
-    QCheckBox,
     QComboBox,
     QFormLayout,
     QHBoxLayout,
     QLabel,
     QLineEdit,
     QPushButton,
+    QTabWidget,
     QVBoxLayout,
     QWidget,
 )
@@ -23,11 +27,14 @@ from PySide6.QtWidgets import (
 from engine_air.project import schema as S
 
 from .fields import tooltip as _tooltip
+from .thrust import ThrustEditor
 from .widgets import CellError, cell_si, make_table, number_item
 
+TIP_MODES = ("no tip speed", "physical U_tip", "corrected U_tip/√θ2 per θ2 row")
 
-class RatingsTab:
-    """The "Engine" tab: engine ratings (name, fan tip speed, corrected flow against theta2)."""
+
+class RatingsTab(ThrustEditor):
+    """The "Engine" tab: engine ratings (name, fan tip speed, corrected flow against theta2, thrust table)."""
 
     def _build_ratings(self) -> None:
         w = QWidget()
@@ -45,16 +52,27 @@ class RatingsTab:
         top.addWidget(add)
         top.addWidget(remove)
         lay.addLayout(top)
+        self.rating_parts = QTabWidget()
+        lay.addWidget(self.rating_parts, 1)
+        airflow = QWidget()
+        self.rating_parts.addTab(airflow, "Airflow and tip speed")
+        lay = QVBoxLayout(airflow)
         form = QFormLayout()
         form.addRow("Name", self.rating_name)
-        self.tip_box = QCheckBox("given")
+        self.tip_mode = QComboBox()
+        self.tip_mode.addItems(TIP_MODES)
+        corrected = S.field("engine.rating.corrected_tip_speed_m_s")
+        self.tip_mode.setItemData(2, _tooltip(corrected), Qt.ToolTipRole)
+        self.tip_mode.setToolTip("The fan tip speed for the blade relative tip Mach: none, one physical speed, "
+                                 "or a corrected speed U_tip/√θ2 at each θ2 row (the table's third column); "
+                                 "the file keys fan_tip_speed_m_s and corrected_tip_speed_m_s exclude each other.")
         self.tip_speed = self._field_spin(S.field("engine.rating.fan_tip_speed_m_s"), None)
-        self.tip_box.toggled.connect(lambda _on: self._tip_changed(True))
+        self.tip_mode.currentIndexChanged.connect(lambda _i: self._tip_mode_changed())
         self.tip_speed.valueChanged.connect(lambda _v: self._tip_changed(False))
         row = QHBoxLayout()
-        row.addWidget(self.tip_box)
+        row.addWidget(self.tip_mode)
         row.addWidget(self.tip_speed, 1)
-        form.addRow("Fan tip speed U_tip", row)
+        form.addRow("Fan tip speed", row)
         lay.addLayout(form)
         self.rating_table = make_table(["θ2 = T_t2/T_ref", "Corrected flow W_c2"])
         self.rating_table.cellChanged.connect(lambda _r, _c: self._rating_table_changed())
@@ -72,6 +90,7 @@ class RatingsTab:
         hint.setToolTip(_tooltip(theta))
         hint.setWordWrap(True)
         lay.addWidget(hint)
+        self._build_thrust(self.rating_parts)
         self.tabs.addTab(w, "Engine")
 
     def _rating_index(self) -> int:
@@ -94,17 +113,27 @@ class RatingsTab:
         try:
             r = self._project.ratings[min(self._rating_index(), len(self._project.ratings) - 1)]
             self.rating_name.setText(r.name)
-            self.tip_box.setChecked(r.fan_tip_speed_m_s is not None)
-            self.tip_speed.setEnabled(r.fan_tip_speed_m_s is not None)
+            mode = 2 if r.corrected_tip_speed_m_s is not None else (1 if r.fan_tip_speed_m_s is not None else 0)
+            self.tip_mode.setCurrentIndex(mode)
+            self.tip_speed.setEnabled(mode == 1)
             self.tip_speed.set_si(r.fan_tip_speed_m_s if r.fan_tip_speed_m_s is not None else 400.0)
             t = self.rating_table
             t.blockSignals(True)
-            t.setHorizontalHeaderLabels(["θ2 = T_t2/T_ref", self._units.with_unit("Corrected flow W_c2", "flow")])
+            t.setColumnCount(3 if mode == 2 else 2)
+            headers = ["θ2 = T_t2/T_ref", self._units.with_unit("Corrected flow W_c2", "flow")]
+            if mode == 2:
+                headers.append(self._units.with_unit("Corrected tip speed U_tip/√θ2", "blade_speed"))
+            t.setHorizontalHeaderLabels(headers)
+            for c, key in enumerate(("theta", "corrected_flow_kg_s", "corrected_tip_speed_m_s")[:len(headers)]):
+                t.horizontalHeaderItem(c).setToolTip(_tooltip(S.field(f"engine.rating.{key}")))
             t.setRowCount(len(r.theta))
             for k, (th, wc) in enumerate(zip(r.theta, r.corrected_flow_kg_s)):
                 t.setItem(k, 0, number_item(th, "none", self._units))
                 t.setItem(k, 1, number_item(wc, "flow", self._units))
+                if mode == 2:
+                    t.setItem(k, 2, number_item(r.corrected_tip_speed_m_s[k], "blade_speed", self._units))
             t.blockSignals(False)
+            self._show_thrust(r)
         finally:
             self._loading = was
 
@@ -125,18 +154,48 @@ class RatingsTab:
         try:
             theta = tuple(cell_si(t, r, 0, "none", u, "θ2") for r in range(t.rowCount()))
             flow = tuple(cell_si(t, r, 1, "flow", u, "corrected flow") for r in range(t.rowCount()))
+            tip = (tuple(cell_si(t, r, 2, "blade_speed", u, "corrected tip speed") for r in range(t.rowCount()))
+                   if t.columnCount() > 2 else None)
         except CellError as exc:
             self.show_error(str(exc))
             return
+        extra = {} if tip is None else {"corrected_tip_speed_m_s": tip}
         self.apply_now(lambda p: self._replace_rating(
-            p, k, replace(p.ratings[k], theta=theta, corrected_flow_kg_s=flow)))
+            p, k, replace(p.ratings[k], theta=theta, corrected_flow_kg_s=flow, **extra)))
 
-    def _tip_changed(self, immediate: bool) -> None:
-        self.tip_speed.setEnabled(self.tip_box.isChecked())
+    def _tip_mode_changed(self) -> None:
+        """None, physical or corrected tip speed; switching to corrected fills each θ2 row with the physical speed
+        over √θ2 (or 400 m/s), switching back takes the corrected speed at θ2 = 1."""
+        mode = self.tip_mode.currentIndex()
+        self.tip_speed.setEnabled(mode == 1)
         if self._loading:
             return
         k = self._rating_index()
-        value = self.tip_speed.si() if self.tip_box.isChecked() else None
+        physical = self.tip_speed.si()
+
+        def change(p):
+            r = p.ratings[k]
+            if mode == 0:
+                new = replace(r, fan_tip_speed_m_s=None, corrected_tip_speed_m_s=None)
+            elif mode == 1:
+                value = physical
+                if r.corrected_tip_speed_m_s is not None:
+                    value = float(np.interp(1.0, r.theta, r.corrected_tip_speed_m_s))
+                new = replace(r, fan_tip_speed_m_s=value, corrected_tip_speed_m_s=None)
+            else:
+                base = r.fan_tip_speed_m_s if r.fan_tip_speed_m_s is not None else physical
+                new = replace(r, fan_tip_speed_m_s=None,
+                              corrected_tip_speed_m_s=tuple(float(base / np.sqrt(th)) for th in r.theta))
+            return self._replace_rating(p, k, new)
+
+        self.apply_now(change)
+        self._show_rating()
+
+    def _tip_changed(self, immediate: bool) -> None:
+        if self._loading or self.tip_mode.currentIndex() != 1:
+            return
+        k = self._rating_index()
+        value = self.tip_speed.si()
         change = lambda p: self._replace_rating(p, k, replace(p.ratings[k], fan_tip_speed_m_s=value))  # noqa: E731
         self.apply_now(change) if immediate else self.queue(change)
 
@@ -186,9 +245,12 @@ class RatingsTab:
         def change(p):
             r = p.ratings[k]
             th = r.theta[-1] + 0.1
+            tip = r.corrected_tip_speed_m_s
             return self._replace_rating(p, k, replace(r, theta=r.theta + (th,),
                                                       corrected_flow_kg_s=r.corrected_flow_kg_s
-                                                      + (r.corrected_flow_kg_s[-1],)))
+                                                      + (r.corrected_flow_kg_s[-1],),
+                                                      corrected_tip_speed_m_s=None if tip is None
+                                                      else tip + (tip[-1],)))
 
         if self.apply_now(change):
             self._show_rating()
@@ -200,9 +262,11 @@ class RatingsTab:
         def change(p):
             r = p.ratings[k]
             j = row if 0 <= row < len(r.theta) else len(r.theta) - 1
+            tip = r.corrected_tip_speed_m_s
             return self._replace_rating(p, k, replace(
                 r, theta=r.theta[:j] + r.theta[j + 1:],
-                corrected_flow_kg_s=r.corrected_flow_kg_s[:j] + r.corrected_flow_kg_s[j + 1:]))
+                corrected_flow_kg_s=r.corrected_flow_kg_s[:j] + r.corrected_flow_kg_s[j + 1:],
+                corrected_tip_speed_m_s=None if tip is None else tip[:j] + tip[j + 1:]))
 
         if self.apply_now(change):
             self._show_rating()
