@@ -105,7 +105,7 @@ def test_schedule_follows_the_inlet_type(make):
 
 
 def test_schedule_in_the_main_window_reaches_the_document(qtbot, tmp_path):
-    from tests.gui_support import window_factory
+    from gui_support import window_factory
 
     with window_factory(qtbot, tmp_path, FIGHTER) as make_window:
         w = make_window(FIGHTER, wait=False)

@@ -12,6 +12,7 @@ from dataclasses import replace
 from PySide6.QtWidgets import (
     QComboBox,
     QHBoxLayout,
+    QHeaderView,
     QLabel,
     QPushButton,
     QTableWidgetItem,
@@ -52,6 +53,7 @@ class CasesTab:
         lay = QVBoxLayout(w)
         self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT", *REGION_HEADERS])
         self.case_table.cellChanged.connect(lambda _r, _c: self._cases_changed())
+        self.case_table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)  # long names wrap
         for c, key in ((3, "mach_range"), (4, "mach_range"), (5, "altitude_range_m"), (6, "altitude_range_m")):
             self.case_table.horizontalHeaderItem(c).setToolTip(
                 tooltip(S.field(f"case.{key}")) + "\nLeave both cells blank for no limit on this axis.")

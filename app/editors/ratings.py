@@ -122,7 +122,7 @@ class RatingsTab(ThrustEditor):
             t.setColumnCount(3 if mode == 2 else 2)
             headers = ["θ2 = T_t2/T_ref", self._units.with_unit("Corrected flow W_c2", "flow")]
             if mode == 2:
-                headers.append(self._units.with_unit("Corrected tip speed U_tip/√θ2", "blade_speed"))
+                headers.append(self._units.with_unit("U_tip/√θ2", "blade_speed"))
             t.setHorizontalHeaderLabels(headers)
             for c, key in enumerate(("theta", "corrected_flow_kg_s", "corrected_tip_speed_m_s")[:len(headers)]):
                 t.horizontalHeaderItem(c).setToolTip(_tooltip(S.field(f"engine.rating.{key}")))

@@ -22,6 +22,8 @@ from engine_air.project.model import Schedule
 from .fields import dimension, tooltip
 from .widgets import CellError, cell_si, make_table, number_item
 
+SCHEDULE_HEADERS = {"throat_area_m2": "A_th", "shock_on_lip_mach": "M_d", "bleed_fraction": "Bleed"}
+"""Short column headers (the header tooltip has the key's description)."""
 SCHEDULE_LABELS = {"throat_area_m2": "Throat area A_th", "shock_on_lip_mach": "Shock-on-lip Mach M_d",
                    "ramp_angles_deg": "Ramp angles", "bleed_fraction": "Bleed fraction"}
 
@@ -106,11 +108,11 @@ class ScheduleTab:
             t.blockSignals(True)
             t.clear()
             t.setColumnCount(1 + len(cols))
-            headers = ["Flight Mach M0"]
+            headers = ["M0"]
             for key, k in cols:
                 f = own[key]
                 if k is None:
-                    headers.append(u.with_unit(SCHEDULE_LABELS[key], dimension(f)))
+                    headers.append(u.with_unit(SCHEDULE_HEADERS[key], dimension(f)))
                 else:
                     headers.append(f"Ramp {k + 1} (°)")
             t.setHorizontalHeaderLabels(headers)
@@ -249,4 +251,4 @@ class ScheduleTab:
             self._load_schedule(self._project)
 
 
-__all__ = ["SCHEDULE_LABELS", "ScheduleTab"]
+__all__ = ["SCHEDULE_HEADERS", "SCHEDULE_LABELS", "ScheduleTab"]
