@@ -4,10 +4,10 @@ Edits replace the whole (frozen) project. "Unsaved" means the current
 project differs from the one last loaded or saved, so undoing back to the
 saved state makes the document clean again.
 
-``edit(project)`` checks the project by the file loader's rules first and
-raises ``ProjectError`` (leaving the document as it was) for one the loader
-would refuse, so no project that could not be saved and loaded back, or
-whose grid is beyond the limits, ever reaches the views or the worker.
+``edit(project)`` checks the project by the schema's rules first
+(``engine_air.project.load.validate_project``, the rules a file is loaded by) and raises ``ProjectError``
+(leaving the document as it was) for one that breaks them, so no project that could not be saved and
+loaded back, or whose grid is beyond the limits, ever reaches the views or the worker.
 
 ``has_unsaved_work`` is what autosave keeps: unsaved edits, or a project
 restored from a recovery file; not an untouched New project.
@@ -19,7 +19,8 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, Signal
 
-from engine_air.project.toml_file import load_project, save_project
+from engine_air.project.load import load_project
+from engine_air.project.save import save_project
 
 from .validation import validate
 
@@ -119,12 +120,15 @@ class ProjectDocument(QObject):
         project = load_project(path)
         self.reset(project, Path(path).resolve(), saved=True)
 
-    def save(self, path: str | Path | None = None) -> Path:
-        """Save atomically to ``path`` (or the current file); raises ``ProjectSaveError``, keeping the edits."""
+    def save(self, path: str | Path | None = None, overwrite_read_only: bool = False) -> Path:
+        """Save atomically to ``path`` (or the current file); raises ``ProjectSaveError``, keeping the edits.
+
+        A read-only file is not replaced (``ProjectSaveError``) unless ``overwrite_read_only`` (the user was asked).
+        """
         target = Path(path) if path is not None else self._path
         if target is None:
             raise ValueError("no file name given")
-        save_project(self._project, target)
+        save_project(self._project, target, overwrite_read_only=overwrite_read_only)
         self._path = target.resolve()
         self._saved = self._project
         self.stateChanged.emit()

@@ -31,7 +31,7 @@ def _parse(argv):
 def load_start_project(path: str | None):
     """(project, path, message) for start-up: the named file, or the sample if it is absent or bad."""
     from engine_air.project.errors import ProjectError
-    from engine_air.project.toml_file import load_project
+    from engine_air.project import load_project
 
     message = None
     if path:

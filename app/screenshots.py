@@ -35,7 +35,7 @@ def take(folder: str | Path) -> list[Path]:
     from .main import DEFAULT_SAMPLE
     from .main_window import MainWindow, apply_base_font
     from engine_air.envelope.evaluate import WORST
-    from engine_air.project.toml_file import load_project
+    from engine_air.project import load_project
 
     app = QApplication.instance() or QApplication([])
     apply_base_font(app)

@@ -1,16 +1,17 @@
-"""Checking an edited project by the loader's own rules.
+"""Checking an edited project by the schema's rules.
 
-``validate(project)`` round-trips the project through the file layout
-(``project_to_dict`` then ``project_from_dict``), so an edit is accepted only
-if the same values would load from a file; otherwise the loader's one-line
-``ProjectError`` says which key is wrong and what is allowed.
+``validate(project)`` checks the dataclasses directly (``engine_air.project.load.validate_project``): each
+key's type, bounds and shape, the rules between keys and the inlet type's design checks, the same rules a
+file is loaded by. A project that breaks one raises the loader's one-line ``ProjectError`` saying which key
+is wrong and what is allowed.
 """
 
 from __future__ import annotations
 
-from engine_air.project.toml_file import project_from_dict, project_to_dict
+from engine_air.project.load import validate_project
 
 
 def validate(project):
-    """The project as the loader would build it; raises ``engine_air.project.errors.ProjectError``."""
-    return project_from_dict(project_to_dict(project))
+    """``project`` itself when every rule holds; raises ``engine_air.project.errors.ProjectError`` otherwise."""
+    validate_project(project)
+    return project

@@ -32,7 +32,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
 from engine_air.project.errors import ProjectError  # noqa: E402
-from engine_air.project.toml_file import load_project  # noqa: E402
+from engine_air.project import load_project  # noqa: E402
 from engine_air.studies.sizing import feasible_range  # noqa: E402
 from engine_air.studies.sweep import sweep  # noqa: E402
 

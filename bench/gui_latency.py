@@ -36,7 +36,7 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 
 from app.main_window import MainWindow  # noqa: E402
 from engine_air.project.model import Grid  # noqa: E402
-from engine_air.project.toml_file import load_project  # noqa: E402
+from engine_air.project import load_project  # noqa: E402
 
 SAMPLE = Path(__file__).resolve().parents[1] / "sample_projects" / "supersonic_two_ramp.toml"
 

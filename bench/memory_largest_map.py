@@ -34,7 +34,7 @@ MB = 1e6
 
 def _project(path: str, nx: int, ny: int, n_cases: int):
     from engine_air.project.model import Case, Grid
-    from engine_air.project.toml_file import load_project
+    from engine_air.project import load_project
 
     project = load_project(path)
     cases = list(project.cases)

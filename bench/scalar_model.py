@@ -19,8 +19,11 @@ choice as the package (so that the two can be compared point by point):
   recovery scale down by the same factor;
 - subsonic flight: the reported MFR_max is the throat's choked flow over the
   capture flow rho0 V0 A_c;
-- a detached ramp shock takes no part in the dividing-streamline trace;
-- ramp inlets in supersonic flight: additive drag is not computed (NaN);
+- the first detached ramp (local Mach supersonic) stands behind a bow shock taken straight at the wave angle
+  of maximum deflection from its leading edge, turning the flow by the maximum deflection (method section 10);
+- external-ramp inlets in supersonic flight: pre-entry drag = the pressure on the dividing stream line behind
+  each ramp shock plus the momentum balance of the spillage behind the terminal shock (method section 13);
+  mixed compression: its external ramps' as for external-ramp;
 - mixed compression (method section 11): the started state of a point at M0 is found by stepping from Mach 1
   to M0 every 0.0025 (then M0 itself): unstarted until a node self-starts (Kantrowitz), started while every
   node can run started; a started point has the supersonic throat Mach as its throat Mach and no throat
@@ -211,41 +214,86 @@ def ramp_geometry(ramps_deg, design_mach):
     return lip, corners, flow
 
 
+SUPPORTED_TYPES = ("pitot", "external-ramp", "mixed-compression")
+
+
 def external_compression(inlet, m0):
-    """(pi_ext, MFR_max geometric, detached, inside_cowl) at flight Mach m0 > 1."""
+    """(pi_ext, MFR_max geometric, detached, inside_cowl, oblique ahead, drag terms) at flight Mach m0 > 1.
+
+    drag terms = (pressure integral over the regions behind the ramp shocks, entry Mach, entry p_t ratio,
+    entry flow angle): method §13. A detached ramp with supersonic flow ahead stands behind a bow shock
+    taken at its maximum-deflection wave angle from the ramp's leading edge (method §10)."""
     if inlet.type == "pitot" or not inlet.ramp_angles_deg:
-        return normal_shock(m0)[1], 1.0, False, False
+        return normal_shock(m0)[1], 1.0, False, False, False, (0.0, m0, 1.0, 0.0)
     m = m0
     pi = 1.0
-    betas = []
+    betas, p_ratios = [], []
     detached = False
-    for a in inlet.ramp_angles_deg:
+    bow = None  # (ramp index, beta_m, delta_max, p ratio)
+    lip, corners, flow = ramp_geometry(inlet.ramp_angles_deg, float(inlet.shock_on_lip_mach))
+    angle = 0.0
+    for k, a in enumerate(inlet.ramp_angles_deg):
         shock = oblique_shock(m, math.radians(a))
         if shock is None:
             detached = True
+            if m > 1.0:
+                b_m = beta_at_max_deflection(m)
+                bow = (k, b_m, deflection(m, b_m), normal_shock(m * math.sin(b_m))[2])
             break
-        beta, m, pt = shock
+        beta, m_next, pt = shock
+        p_ratios.append(normal_shock(m * math.sin(beta))[2])
+        m = m_next
         pi *= pt
         betas.append(beta)
+        angle = flow[k + 1]
+    pi_obl = pi
     pi *= normal_shock(m)[1]
     design = float(inlet.shock_on_lip_mach)
+    integral = 0.0
     if m0 >= design:
         mfr_max = 1.0
     else:
-        lip, corners, flow = ramp_geometry(inlet.ramp_angles_deg, design)
         px, py = lip
-        for k in range(len(betas) - 1, -1, -1):
-            phi = flow[k] + betas[k]
+        regions = [(k, flow[k] + betas[k], flow[k + 1], p_ratios[k]) for k in range(len(betas))]
+        if bow is not None:
+            k, b_m, d_m, pr = bow
+            regions.append((k, flow[k] + b_m, flow[k] + d_m, pr))
+        for k, phi, theta, pr in reversed(regions):
+            p_region = pr
+            for j in range(k):
+                p_region *= p_ratios[j]
             cx, cy = corners[k]
             ex, ey = math.cos(phi), math.sin(phi)
             # is the point downstream (below/behind) of shock line k?
             if ex * (py - cy) - ey * (px - cx) < 0.0:
-                tx, ty = math.cos(flow[k + 1]), math.sin(flow[k + 1])
+                tx, ty = math.cos(theta), math.sin(theta)
                 # walk back against the local flow direction to the shock
                 t = _intersect((px, py), (-tx, -ty), (cx, cy), (ex, ey))
+                integral += (p_region - 1.0) * t * ty
                 px, py = px - t * tx, py - t * ty
         mfr_max = min(max(py, 0.0), 1.0)
-    return pi, mfr_max, detached, m0 > design * (1.0 + 1e-9)
+    return (pi, mfr_max, detached, m0 > design * (1.0 + 1e-9), bool(betas),
+            (max(integral, 0.0), m, pi_obl, angle))
+
+
+def area_over_astar(m):
+    return (1.0 / m) * ((2.0 / (GAMMA + 1.0)) * _base(m)) ** ((GAMMA + 1.0) / (2.0 * (GAMMA - 1.0)))
+
+
+def spill_drag(m0, mn, pi_n, angle, mfr, mfr_max):
+    """Spillage behind the terminal shock over p0 A_c: the momentum balance of §7 from the entry state."""
+    if not mfr < mfr_max * (1.0 - 1e-12):
+        return 0.0
+    r = mfr / mfr_max
+    pt_ns = normal_shock(mn)[1]
+    a_e = mfr_max * area_over_astar(mn) / (area_over_astar(m0) * pi_n)
+    a_n = a_e * r
+    target = r / (area_over_astar(mn) * pt_ns)  # A*/A at the entry, behind the terminal shock
+    m1 = brentq(lambda x: 1.0 / area_over_astar(x) - target, 1e-9, 1.0, xtol=1e-15, rtol=8.9e-16, maxiter=200)
+    pn = pi_n * p_over_pt(mn) / p_over_pt(m0)
+    p1 = pi_n * pt_ns * p_over_pt(m1) / p_over_pt(m0)
+    d = math.cos(angle) * (p1 * (1.0 + GAMMA * m1 * m1) * a_e - pn * (1.0 + GAMMA * mn * mn) * a_n - (a_e - a_n))
+    return max(d, 0.0)
 
 
 def area_ratio(m):
@@ -364,13 +412,11 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
     started = False
     # the shock system depends on the flight Mach number alone (section 4)
     if supersonic:
-        pi_ext, mfr_max_geom, detached, inside_cowl = external_compression(inlet, m0)
+        pi_ext, mfr_max_geom, detached, inside_cowl, oblique, drag_terms = external_compression(inlet, m0)
         if detached:
             flags.add("shock-detached")
         if inside_cowl:
             flags.add("shock-inside-cowl")
-        if inlet.type in ("external-ramp", "mixed-compression"):
-            flags.add("additive-drag-not-modelled")
         if mixed:
             started = mixed_started(inlet, m0)
             if started:
@@ -379,7 +425,7 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
             else:
                 flags.add("unstarted")
     else:
-        pi_ext, mfr_max_geom = 1.0, NAN
+        pi_ext, mfr_max_geom, oblique = 1.0, NAN, False
     out["external_recovery"] = pi_ext
     atm = atmosphere(h, case.isa_offset_K)
     if atm is None:
@@ -467,7 +513,7 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
         else:
             mfr_max = a_th * pi_ext * pt_in * MFP_STAR / math.sqrt(tt0) / capture_flow
     sff = project.limits.stable_flow_fraction
-    if sff is not None and supersonic and not supercritical and not critical and mfr / mfr_max_geom < sff:
+    if sff is not None and supersonic and oblique and not supercritical and not critical and mfr / mfr_max_geom < sff:
         flags.add("buzz-risk")
 
     # additive drag (section 7)
@@ -475,8 +521,12 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
     cap_mfp = w * math.sqrt(tt0) / (inlet.capture_area_m2 * pt1)
     m1 = 1.0 if cap_mfp >= MFP_STAR else subsonic_mach_from_mfp(cap_mfp)
     ramp_supersonic = supersonic and inlet.type in ("external-ramp", "mixed-compression")
-    if low or ramp_supersonic:
+    if low:
         d_add = c_add = c_spill = NAN
+    elif ramp_supersonic:  # method §13: ramp regions plus the spillage behind the terminal shock
+        integral, mn, pi_n, angle = drag_terms
+        d_add = (integral + spill_drag(m0, mn, pi_n, angle, mfr, mfr_max_geom)) * p0 * inlet.capture_area_m2
+        c_add = c_spill = d_add / (0.5 * GAMMA * p0 * m0 * m0 * inlet.capture_area_m2)
     else:
         a_tube = w / (rho0 * v0)
         a1 = inlet.capture_area_m2

@@ -265,7 +265,7 @@ def final_check(window, timeout_s: float = WAIT_FINAL_S) -> dict:
     """Wait for the final map; assert it equals a fresh evaluation of the final project."""
     from app.validation import validate
     from engine_air.envelope.evaluate import evaluate_project
-    from engine_air.project.toml_file import load_project
+    from engine_air.project import load_project
 
     w = window
     w.editors.flush()
@@ -334,7 +334,7 @@ def main(argv=None) -> int:
 
     from app.main import SAMPLES
     from app.main_window import MainWindow, apply_base_font
-    from engine_air.project.toml_file import load_project
+    from engine_air.project import load_project
 
     app = QApplication.instance() or QApplication([])
     apply_base_font(app)

@@ -7,7 +7,7 @@ from contextlib import contextmanager
 from PySide6.QtCore import QSettings
 
 from app.main_window import MainWindow
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 
 WAIT_MS = 15000
 

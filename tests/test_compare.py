@@ -12,7 +12,7 @@ from engine_air.studies.compare import DIFFERENCE_QUANTITIES, common_axes, compa
 from engine_air.envelope.polygon import grid_axes
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import WORST, evaluate_project
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.studies.sizing import with_design_value
 

@@ -27,7 +27,7 @@ from app.dialogs import (  # noqa: E402
     add_design_menu,
 )
 from engine_air.project.model import Grid  # noqa: E402
-from engine_air.project.toml_file import load_project, project_from_dict  # noqa: E402
+from engine_air.project import load_project, project_from_dict  # noqa: E402
 from engine_air.studies.sizing import feasible_range  # noqa: E402
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"

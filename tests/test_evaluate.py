@@ -11,7 +11,7 @@ import pytest
 from engine_air.envelope.evaluate import WORST, evaluate_project
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Grid
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 

@@ -30,7 +30,7 @@ from app.main_window import MainWindow  # noqa: E402
 from app.worker import MapRunner  # noqa: E402
 from engine_air.outputs import point_record as report  # noqa: E402
 from engine_air.envelope.evaluate import WORST, evaluate_project  # noqa: E402
-from engine_air.project.toml_file import load_project  # noqa: E402
+from engine_air.project import load_project  # noqa: E402
 from engine_air.outputs.quantities import QUANTITIES  # noqa: E402
 from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
 

@@ -37,7 +37,7 @@ from engine_air.project import toml_file as pf  # noqa: E402
 from engine_air.project.errors import ProjectError  # noqa: E402
 from engine_air.envelope.evaluate import evaluate_project  # noqa: E402
 from engine_air.project.model import Grid  # noqa: E402
-from engine_air.project.toml_file import load_project, project_from_dict, project_to_dict  # noqa: E402
+from engine_air.project import load_project, project_from_dict, project_to_dict  # noqa: E402
 from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
 
 RAMP = SAMPLES / "supersonic_two_ramp.toml"

@@ -6,7 +6,7 @@ import copy
 import math
 import os
 import sys
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 import types
 from dataclasses import replace
 from pathlib import Path
@@ -19,7 +19,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import engine_air
-from engine_air.project import toml_file as pf
+from engine_air.project import load as load_module
+from engine_air import project as pf
 from engine_air.envelope.polygon import (
     envelope_mask,
     grid_axes,
@@ -30,7 +31,7 @@ from engine_air.envelope.polygon import (
     vertices_collinear,
 )
 from engine_air.project.errors import ProjectError, ProjectSaveError
-from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
+from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating, Schedule
 
 SAMPLES = sorted((Path(__file__).resolve().parent.parent / "sample_projects").glob("*.toml"))
 
@@ -324,7 +325,7 @@ RAMP_RULES = [
     ("inlet.ramp_angles_deg", [], "inlet.ramp_angles_deg"),
     ("inlet.ramp_angles_deg", 8.0, "inlet.ramp_angles_deg"),
     ("inlet.ramp_angles_deg", [5.0, 5.0, 5.0, 5.0], "inlet.ramp_angles_deg"),
-    ("inlet.ramp_angles_deg", [0.0, 7.0], "inlet.ramp_angles_deg[0]"),
+    ("inlet.ramp_angles_deg", [-0.5, 7.0], "inlet.ramp_angles_deg[0]"),
     ("inlet.ramp_angles_deg", [8.0, -7.0], "inlet.ramp_angles_deg[1]"),
     ("inlet.ramp_angles_deg", [8.0, 25.5], "inlet.ramp_angles_deg[1]"),
     ("inlet.ramp_angles_deg", [20.0, 15.0, 6.0], "inlet.ramp_angles_deg"),  # sum 41 > 40
@@ -413,7 +414,7 @@ def test_throat_equal_to_capture_is_allowed():
 def test_ramp_limits_at_edges():
     d = setpath(ramp_data(), "inlet.ramp_angles_deg", [25.0, 15.0])
     d["inlet"]["shock_on_lip_mach"] = 5
-    with mock.patch.object(pf, "_check_physics", lambda project, path: None):
+    with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
         p = pf.project_from_dict(d)
     assert p.inlet.ramp_angles_deg == (25.0, 15.0) and p.inlet.shock_on_lip_mach == 5.0
 
@@ -458,33 +459,65 @@ def test_non_table_top_level():
     assert info.value.key == "(file)"
 
 
-# -- warnings ---------------------------------------------------------------------
+# -- strict files: unknown keys are errors (issue 9) ---------------------------------
 
-def test_unknown_keys_give_warnings_not_errors(tmp_path):
+@pytest.mark.parametrize("where, name, key, hint", [
+    ("", "extras", "extras", None),
+    ("", "limit", "limit", "limits"),
+    ("inlet", "colour", "inlet.colour", None),
+    ("inlet", "capture_area", "inlet.capture_area", "capture_area_m2"),
+    ("engine.rating.1", "maker", "engine.rating[1].maker", None),
+    ("engine.rating.1", "fan_tip_speed", "engine.rating[1].fan_tip_speed", "fan_tip_speed_m_s"),
+    ("engine", "spare", "engine.spare", None),
+    ("case.0", "comment", "case[0].comment", None),
+    ("case.0", "isa_offset_k", "case[0].isa_offset_k", "isa_offset_K"),
+    ("grid", "refine", "grid.refine", None),
+    ("grid", "mach_point", "grid.mach_point", "mach_points"),
+    ("limits", "face_mach_maximum", "limits.face_mach_maximum", "face_mach_max"),
+    ("project", "titel", "project.titel", "title"),
+])
+def test_unknown_key_is_an_error_with_suggestion(where, name, key, hint, tmp_path):
     d = pitot_data()
-    d["extras"] = {"colour": "blue"}
-    d["inlet"]["colour"] = "red"
-    d["engine"]["rating"][1]["maker"] = "nobody"
-    d["engine"]["spare"] = 1
-    d["case"][0]["comment"] = "x"
-    d["grid"]["refine"] = True
-    path = write(tmp_path, d)
-    p = pf.load_project(path)
-    assert p == pf.project_from_dict(pitot_data())
-    keys = ["extras", "inlet.colour", "engine.rating[1].maker", "engine.spare", "case[0].comment", "grid.refine"]
-    assert len(p.warnings) == len(keys)
-    for key in keys:
-        assert any(w == f"{path}: {key}: unknown key, ignored" for w in p.warnings), key
+    node = d
+    for part in where.split(".") if where else []:
+        node = node[int(part)] if isinstance(node, list) else node[part]
+    node[name] = 15
+    err = load_error(tmp_path, d)
+    assert err.key == key and "unknown" in err.allowed
+    if hint is not None:
+        assert f"did you mean {hint}?" in err.allowed
+    else:
+        assert "did you mean" not in err.allowed
 
 
-def test_ramp_keys_on_pitot_warn(tmp_path):
+def test_mistyped_isa_offset_names_case_and_suggests(tmp_path):
+    # issue 9: `isa_offset_k = 15` in a case called "ISA+15" ran at ISA with a normal exit code
     d = pitot_data()
-    d["inlet"]["ramp_angles_deg"] = [8.0]
-    d["inlet"]["shock_on_lip_mach"] = "not even a number"
-    p = pf.load_project(write(tmp_path, d))
-    assert p.inlet.ramp_angles_deg == () and p.inlet.shock_on_lip_mach is None
-    assert any("inlet.ramp_angles_deg" in w and "ignored" in w for w in p.warnings)
-    assert any("inlet.shock_on_lip_mach" in w and "ignored" in w for w in p.warnings)
+    d["case"][0] = {"name": "ISA+15", "rating": "max", "isa_offset_k": 15}
+    err = load_error(tmp_path, d)
+    assert err.key == "case[0].isa_offset_k" and err.value == 15
+    assert "did you mean isa_offset_K?" in str(err)
+
+
+@pytest.mark.parametrize("key, value", [("ramp_angles_deg", [8.0]), ("shock_on_lip_mach", 2.0)])
+def test_ramp_keys_on_pitot_are_errors_naming_their_types(key, value, tmp_path):
+    d = pitot_data()
+    d["inlet"][key] = value
+    err = load_error(tmp_path, d)
+    assert err.key == f"inlet.{key}"
+    assert "'external-ramp'" in err.allowed and "'pitot'" in err.allowed
+
+
+def test_schedule_key_of_another_type_is_an_error(tmp_path):
+    d = pitot_data()
+    d["inlet"]["schedule"] = {"mach": [0.0, 1.0], "ramp_angles_deg": [[4.0], [6.0]]}
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.schedule.ramp_angles_deg" and "'external-ramp'" in err.allowed
+
+
+def test_unknown_inlet_type_suggests_a_known_one(tmp_path):
+    err = load_error(tmp_path, setpath(pitot_data(), "inlet.type", "external_ramp"))
+    assert err.key == "inlet.type" and 'did you mean "external-ramp"?' in err.allowed
 
 
 def test_tip_mach_limit_without_tip_speed_warns():
@@ -572,7 +605,7 @@ def test_failed_save_leaves_old_file_intact(broken, tmp_path, monkeypatch):
     def fail(*args, **kwargs):
         raise OSError(28, "No space left on device")
 
-    monkeypatch.setattr(pf.os, broken, fail)
+    monkeypatch.setattr(os, broken, fail)
     with pytest.raises(ProjectSaveError) as info:
         pf.save_project(pf.project_from_dict(ramp_data()), target)
     monkeypatch.undo()
@@ -778,11 +811,32 @@ def star_polygons(draw):
     return Envelope(mach=mach, altitude_m=alt)
 
 
+def _increasing(lo, hi, max_size=4):
+    return st.lists(_fl(lo, hi, False), min_size=1, max_size=max_size, unique=True).map(lambda v: tuple(sorted(v)))
+
+
 @st.composite
 def ratings(draw):
     theta = draw(st.lists(_fl(0.3, 3.0, True, True), min_size=1, max_size=6, unique=True).map(sorted))
     flow = draw(st.lists(_fl(0.0, 5000.0), min_size=len(theta), max_size=len(theta)))
-    return draw(names), tuple(theta), tuple(flow), draw(_opt(_fl(0.0, 1000.0)))
+    extra = {}
+    if draw(st.booleans()):
+        extra["corrected_tip_speed_m_s"] = tuple(draw(st.lists(_fl(0.0, 1000.0), min_size=len(theta),
+                                                                max_size=len(theta))))
+    else:
+        extra["fan_tip_speed_m_s"] = draw(_opt(_fl(0.0, 1000.0)))
+    if draw(st.booleans()):
+        mach, alt = draw(_increasing(0.0, 6.0)), draw(_increasing(-5000.0, 84000.0, 3))
+        extra.update(thrust_mach=mach, thrust_altitude_m=alt,
+                     net_thrust_n=tuple(tuple(draw(st.lists(_fl(0.0, 1e7), min_size=len(mach), max_size=len(mach))))
+                                        for _ in alt),
+                     thrust_reference_recovery=draw(st.none() | _fl(0.0, 1.0) | st.just("mil-e-5008b")),
+                     recovery_thrust_exchange=draw(_opt(_fl(0.0, 10.0, False))))
+    return draw(names), tuple(theta), tuple(flow), extra
+
+
+def _range(lo, hi):
+    return st.tuples(_fl(lo, hi, False), _fl(lo, hi, False)).map(lambda t: (min(t), max(t)))
 
 
 @st.composite
@@ -794,6 +848,8 @@ def projects(draw):
         stable_flow_fraction=draw(_opt(_fl(0.0, 1.0, True, True))),
         relative_tip_mach_max=draw(_opt(_fl(0.0, 3.0, True, True))),
         spillage_fraction_max=draw(_opt(_fl(0.0, 1.0, False, True))),
+        started_required=draw(st.none() | st.booleans()),
+        installation_loss_max=draw(_opt(_fl(0.0, 1.0, True, True))),
     )
     capture = draw(_fl(0.0, 100.0))
     kind = draw(st.sampled_from(["pitot", "external-ramp"]))
@@ -803,14 +859,31 @@ def projects(draw):
         lip = draw(_fl(1.0, 5.0))
     inlet = Inlet(type=kind, capture_area_m2=capture, throat_area_m2=draw(_fl(0.0, capture)),
                   face_area_m2=draw(_fl(0.0, 100.0)), duct_loss_coefficient=draw(_fl(0.0, 2.0, False)),
-                  lip_suction_factor=draw(_fl(0.0, 1.0, False)), ramp_angles_deg=ramps, shock_on_lip_mach=lip)
+                  lip_suction_factor=draw(_fl(0.0, 1.0, False)), ramp_angles_deg=ramps, shock_on_lip_mach=lip,
+                  supersonic_lip_suction_factor=draw(_fl(0.0, 1.0, False)), bleed_fraction=draw(_fl(0.0, 0.5, False, True)),
+                  bleed_exit_velocity_ratio=draw(_fl(0.0, 1.0, False)), bypass_area_m2=draw(_fl(0.0, 100.0, False)),
+                  bypass_discharge_coefficient=draw(_fl(0.0, 1.0)), bypass_exit_velocity_ratio=draw(_fl(0.0, 1.0, False)),
+                  auxiliary_inlet_area_m2=draw(_fl(0.0, 100.0, False)), auxiliary_door_mach_max=draw(_fl(0.0, 1.0)),
+                  auxiliary_loss_coefficient=draw(_fl(0.0, 2.0, False)))
+    if draw(st.booleans()):
+        mach = draw(_increasing(0.0, 6.0))
+        n = len(mach)
+        sched = dict(mach=mach, throat_area_m2=draw(_opt(st.lists(_fl(0.0, capture), min_size=n, max_size=n).map(tuple))),
+                     bleed_fraction=tuple(draw(st.lists(_fl(0.0, 0.5, False, True), min_size=n, max_size=n))))
+        if kind == "external-ramp":
+            sched["shock_on_lip_mach"] = draw(_opt(st.lists(_fl(1.0, 5.0), min_size=n, max_size=n).map(tuple)))
+            sched["ramp_angles_deg"] = draw(_opt(st.lists(
+                st.lists(_fl(0.0, 25.0 / len(ramps), False), min_size=len(ramps), max_size=len(ramps)).map(tuple),
+                min_size=n, max_size=n).map(tuple)))
+        inlet = replace(inlet, schedule=Schedule(**sched))
     raw = draw(st.lists(ratings(), min_size=1, max_size=3, unique_by=lambda r: r[0]))
-    rating_objs = tuple(Rating(name=n, theta=t, corrected_flow_kg_s=f, fan_tip_speed_m_s=u) for n, t, f, u in raw)
+    rating_objs = tuple(Rating(name=n, theta=t, corrected_flow_kg_s=f, **extra) for n, t, f, extra in raw)
     mp = draw(st.integers(2, 1001))
     ap = draw(st.integers(2, min(1001, pf.MAX_GRID_POINTS // mp)))
     case_names = draw(st.lists(names, min_size=1, max_size=3, unique=True))
     cases = tuple(Case(name=c, rating=draw(st.sampled_from([r.name for r in rating_objs])),
-                       isa_offset_K=draw(_fl(-100.0, 100.0, False))) for c in case_names)
+                       isa_offset_K=draw(_fl(-100.0, 100.0, False)), mach_range=draw(_opt(_range(0.0, 6.0))),
+                       altitude_range_m=draw(_opt(_range(-5000.0, 84000.0)))) for c in case_names)
     return Project(limits=limits, inlet=inlet, ratings=rating_objs, envelope=draw(star_polygons()),
                    grid=Grid(mp, ap), cases=cases, title=draw(st.text(max_size=40)),
                    notes=draw(st.text(max_size=80)), format=1)
@@ -819,7 +892,8 @@ def projects(draw):
 @settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(projects())
 def test_random_projects_round_trip_exactly(project):
-    with mock.patch.object(pf, "_check_physics", lambda p, path: None):
+    with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
+        load_module.validate_project(project)
         assert pf.project_from_dict(pf.project_to_dict(copy.deepcopy(project))) == project
         assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
         again = pf.project_from_dict(tomllib.loads(pf.dumps_project(project)))
@@ -830,3 +904,308 @@ def test_replace_keeps_round_trip():
     p = pf.project_from_dict(ramp_data())
     q = replace(p, inlet=replace(p.inlet, ramp_angles_deg=(6.0, 6.0, 6.0)), title="edited")
     assert pf.project_from_dict(tomllib.loads(pf.dumps_project(q))) == q
+
+
+# -- the keys of the interfaces "Additions" (issues 10 and 11): bounds and shapes ------------------------------
+
+def full_data() -> dict:
+    """A ramp project using every optional key of every type-independent table."""
+    d = ramp_data()
+    d["inlet"].update(supersonic_lip_suction_factor=0.3, bleed_fraction=0.03, bleed_exit_velocity_ratio=0.4,
+                      bypass_area_m2=0.05, bypass_discharge_coefficient=0.85, bypass_exit_velocity_ratio=0.2,
+                      auxiliary_inlet_area_m2=0.08, auxiliary_door_mach_max=0.35, auxiliary_loss_coefficient=0.5)
+    d["inlet"]["schedule"] = {"mach": [0.0, 1.5, 2.0, 2.5], "throat_area_m2": [0.40, 0.40, 0.34, 0.30],
+                              "shock_on_lip_mach": [2.0, 2.0, 2.0, 2.5],
+                              "ramp_angles_deg": [[4.0, 4.0], [4.0, 4.0], [6.0, 6.0], [8.0, 8.0]],
+                              "bleed_fraction": [0.0, 0.02, 0.04, 0.05]}
+    d["limits"].update(started_required=True, installation_loss_max=0.06)
+    r = d["engine"]["rating"][0]
+    del r["fan_tip_speed_m_s"]
+    r.update(corrected_tip_speed_m_s=[400.0, 420.0, 430.0, 430.0], thrust_mach=[0.0, 0.8, 1.6, 2.2],
+             thrust_altitude_m=[0.0, 11000.0],
+             net_thrust_n=[[90000.0, 80000.0, 95000.0, 110000.0], [40000.0, 38000.0, 52000.0, 60000.0]],
+             thrust_reference_recovery="mil-e-5008b", recovery_thrust_exchange=1.3)
+    d["engine"]["rating"][1].update(fan_tip_speed_m_s=400.0, thrust_mach=[0.5], thrust_altitude_m=[0.0],
+                                    net_thrust_n=[[20000.0]], thrust_reference_recovery=0.97)
+    d["case"][0].update(mach_range=[0.0, 0.4], altitude_range_m=[0.0, 3000.0])
+    return d
+
+
+def test_every_new_key_loads_and_round_trips_exactly(tmp_path):
+    p = pf.load_project(write(tmp_path, full_data()))
+    assert p.inlet.bypass_area_m2 == 0.05 and p.inlet.auxiliary_door_mach_max == 0.35
+    assert p.inlet.schedule.ramp_angles_deg[2] == (6.0, 6.0) and p.inlet.schedule.bleed_fraction[-1] == 0.05
+    assert p.limits.started_required is True and p.limits.installation_loss_max == 0.06
+    assert p.ratings[0].net_thrust_n[1] == (40000.0, 38000.0, 52000.0, 60000.0)
+    assert p.ratings[0].thrust_reference_recovery == "mil-e-5008b" and p.ratings[1].thrust_reference_recovery == 0.97
+    assert p.cases[0].mach_range == (0.0, 0.4) and p.cases[1].mach_range is None
+    text = pf.dumps_project(p)
+    assert "[inlet.schedule]" in text
+    assert load_module.loads_project(text) == p
+    target = tmp_path / "saved.toml"
+    pf.save_project(p, target)
+    assert pf.load_project(target) == p and pf.dumps_project(pf.load_project(target)) == text
+    load_module.validate_project(p)
+
+
+def test_keys_at_default_are_left_out_of_the_file():
+    text = pf.dumps_project(pf.project_from_dict(pitot_data()))
+    for key in ("bleed_fraction", "bypass_area_m2", "bypass_discharge_coefficient", "auxiliary_inlet_area_m2",
+                "internal_recovery_factor", "started_required", "mach_range", "schedule"):
+        assert key not in text, key
+    assert "[grid]" in text  # the resolution is always written
+
+
+NEW_KEY_RULES = [
+    # (dotted place, bad value, key of the error, words of the allowed text)
+    ("inlet.supersonic_lip_suction_factor", 1.01, "inlet.supersonic_lip_suction_factor", "<= 1"),
+    ("inlet.supersonic_lip_suction_factor", -0.01, "inlet.supersonic_lip_suction_factor", "0 <="),
+    ("inlet.bleed_fraction", 0.5, "inlet.bleed_fraction", "< 0.5"),
+    ("inlet.bleed_fraction", -0.01, "inlet.bleed_fraction", "0 <="),
+    ("inlet.bleed_exit_velocity_ratio", 1.5, "inlet.bleed_exit_velocity_ratio", "<= 1"),
+    ("inlet.bypass_area_m2", -0.1, "inlet.bypass_area_m2", "0 <="),
+    ("inlet.bypass_discharge_coefficient", 0.0, "inlet.bypass_discharge_coefficient", "0 <"),
+    ("inlet.bypass_discharge_coefficient", 1.1, "inlet.bypass_discharge_coefficient", "<= 1"),
+    ("inlet.bypass_exit_velocity_ratio", -0.1, "inlet.bypass_exit_velocity_ratio", "0 <="),
+    ("inlet.auxiliary_inlet_area_m2", -1.0, "inlet.auxiliary_inlet_area_m2", "0 <="),
+    ("inlet.auxiliary_door_mach_max", 0.0, "inlet.auxiliary_door_mach_max", "0 <"),
+    ("inlet.auxiliary_door_mach_max", DELETE, "inlet.auxiliary_door_mach_max", "auxiliary_inlet_area_m2 > 0"),
+    ("inlet.auxiliary_loss_coefficient", -0.5, "inlet.auxiliary_loss_coefficient", "0 <="),
+    ("limits.started_required", 1, "limits.started_required", "true or false"),
+    ("limits.installation_loss_max", 0.0, "limits.installation_loss_max", "0 <"),
+    ("limits.installation_loss_max", 1.0, "limits.installation_loss_max", "< 1"),
+    # the schedule
+    ("inlet.schedule.mach", [0.0, 1.5, 1.5, 2.5], "inlet.schedule.mach[2]", "increase strictly"),
+    ("inlet.schedule.mach", DELETE, "inlet.schedule.mach", "missing"),
+    ("inlet.schedule.throat_area_m2", [0.40, 0.40, 0.34], "inlet.schedule.throat_area_m2", "one entry per inlet.schedule.mach"),
+    ("inlet.schedule.throat_area_m2", [0.40, 0.60, 0.34, 0.30], "inlet.schedule.throat_area_m2[1]",
+     "must not exceed capture_area_m2"),
+    ("inlet.schedule.shock_on_lip_mach", [2.0, 2.0, 2.0, 1.0], "inlet.schedule.shock_on_lip_mach[3]", "1 <"),
+    ("inlet.schedule.ramp_angles_deg", [[4.0, 4.0], [4.0], [6.0, 6.0], [8.0, 8.0]],
+     "inlet.schedule.ramp_angles_deg[1]", "one value per inlet.ramp_angles_deg"),
+    ("inlet.schedule.ramp_angles_deg", [4.0, 4.0, 6.0, 8.0], "inlet.schedule.ramp_angles_deg[0]", "row of numbers"),
+    ("inlet.schedule.ramp_angles_deg", [[4.0, 4.0], [4.0, 4.0], [6.0, 26.0], [8.0, 8.0]],
+     "inlet.schedule.ramp_angles_deg[2][1]", "<= 25"),
+    ("inlet.schedule.bleed_fraction", [0.0, 0.02, 0.6, 0.05], "inlet.schedule.bleed_fraction[2]", "< 0.5"),
+    ("inlet.schedule.throat", [0.4, 0.4, 0.4, 0.4], "inlet.schedule.throat", "did you mean throat_area_m2?"),
+    # ratings
+    ("engine.rating.1.corrected_tip_speed_m_s", [400.0], "engine.rating[1].fan_tip_speed_m_s",
+     "not both"),
+    ("engine.rating.0.corrected_tip_speed_m_s", [400.0, 420.0], "engine.rating[0].corrected_tip_speed_m_s",
+     "one entry per theta"),
+    ("engine.rating.0.corrected_tip_speed_m_s", [400.0, 420.0, 0.0, 430.0],
+     "engine.rating[0].corrected_tip_speed_m_s[2]", "0 <"),
+    ("engine.rating.0.thrust_mach", [0.0, 0.8, 0.8, 2.2], "engine.rating[0].thrust_mach[2]", "increase strictly"),
+    ("engine.rating.0.thrust_altitude_m", [11000.0, 0.0], "engine.rating[0].thrust_altitude_m[1]",
+     "increase strictly"),
+    ("engine.rating.0.net_thrust_n", [[90000.0, 80000.0, 95000.0, 110000.0]], "engine.rating[0].net_thrust_n",
+     "one row per thrust_altitude_m"),
+    ("engine.rating.0.net_thrust_n", [[90000.0, 80000.0, 95000.0], [40000.0, 38000.0, 52000.0, 60000.0]],
+     "engine.rating[0].net_thrust_n[0]", "one value per thrust_mach"),
+    ("engine.rating.0.net_thrust_n", [[90000.0, 80000.0, 95000.0, 110000.0], [40000.0, -1.0, 52000.0, 60000.0]],
+     "engine.rating[0].net_thrust_n[1][1]", "0 <"),
+    ("engine.rating.0.net_thrust_n", DELETE, "engine.rating[0].thrust_mach", "needs net_thrust_n"),
+    ("engine.rating.0.thrust_reference_recovery", "mil-std", "engine.rating[0].thrust_reference_recovery",
+     '"mil-e-5008b"'),
+    ("engine.rating.0.thrust_reference_recovery", 1.2, "engine.rating[0].thrust_reference_recovery", "<= 1"),
+    ("engine.rating.0.recovery_thrust_exchange", -1.0, "engine.rating[0].recovery_thrust_exchange", "0 <="),
+    # case regions
+    ("case.0.mach_range", [0.4, 0.0], "case[0].mach_range[1]", "lower bound first"),
+    ("case.0.mach_range", [0.4], "case[0].mach_range", "exactly 2"),
+    ("case.0.mach_range", [0.0, 7.0], "case[0].mach_range[1]", "<= 6"),
+    ("case.0.altitude_range_m", [3000.0, 0.0], "case[0].altitude_range_m[1]", "lower bound first"),
+    ("case.0.altitude_range_m", [-6000.0, 0.0], "case[0].altitude_range_m[0]", "-5000 <="),
+]
+
+
+@pytest.mark.parametrize("where, value, key, allowed", NEW_KEY_RULES,
+                         ids=[f"{w}={v!r}"[:60] if v is not DELETE else f"{w}-missing" for w, v, *_ in NEW_KEY_RULES])
+def test_new_key_rule(where, value, key, allowed, tmp_path):
+    err = load_error(tmp_path, setpath(full_data(), where, value))
+    assert err.key == key, str(err)
+    assert allowed in err.allowed, str(err)
+
+
+def test_equal_bounds_of_a_case_region_are_allowed():
+    d = setpath(full_data(), "case.0.mach_range", [0.3, 0.3])
+    assert pf.project_from_dict(d).cases[0].mach_range == (0.3, 0.3)
+
+
+def test_scheduled_ramps_must_stay_attached_at_their_own_shock_on_lip_mach(tmp_path):
+    # 20 + 20 deg at a shock-on-lip Mach of 1.6: the first ramp's shock detaches (NACA Report 1135: at M = 1.6 an
+    # attached shock turns the flow by at most about 14.7 deg), at row 1 only.
+    d = full_data()
+    d["inlet"]["schedule"]["ramp_angles_deg"] = [[4.0, 4.0], [20.0, 20.0], [6.0, 6.0], [8.0, 8.0]]
+    d["inlet"]["schedule"]["shock_on_lip_mach"] = [2.0, 1.6, 2.0, 2.5]
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.schedule.ramp_angles_deg[1]" and "row 1" in err.allowed and "1.6" in err.allowed
+
+
+def test_empty_schedule_is_an_error(tmp_path):
+    d = pitot_data()
+    d["inlet"]["schedule"] = {"mach": [0.0, 1.0]}
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.schedule" and "throat_area_m2" in err.allowed
+
+
+# -- 0 deg ramps, numbers the parser cannot hold --------------------------------------------------------------
+
+def test_zero_degree_ramp_is_accepted_and_is_a_mach_wave(tmp_path):
+    # A 0 deg ramp turns nothing: its wave is the Mach wave, sin(mu) = 1/M (at M = 2, 30 deg exactly), with no
+    # loss of total pressure (relations worked by hand).
+    d = setpath(ramp_data(), "inlet.ramp_angles_deg", [0.0, 7.0])
+    p = pf.load_project(write(tmp_path, d))
+    assert p.inlet.ramp_angles_deg == (0.0, 7.0)
+    from engine_air.physics.shocks import oblique_shock
+
+    s = oblique_shock(np.array([2.0, 3.0]), 0.0)
+    assert np.allclose(s.wave_angle_rad, np.arcsin([1 / 2.0, 1 / 3.0]), rtol=1e-12)
+    assert np.allclose(s.total_pressure_ratio, 1.0) and np.allclose(s.downstream_mach, [2.0, 3.0])
+
+
+@pytest.mark.parametrize("angles", [(0.0,), (0.0, 7.0), (8.0, 0.0), (0.0, 0.0, 0.0)])
+def test_zero_degree_ramps_evaluate_without_warnings(angles):
+    import warnings
+
+    from engine_air.envelope.evaluate import evaluate_project
+
+    sample = Path(__file__).resolve().parent.parent / "sample_projects" / "supersonic_two_ramp.toml"  # to M 2.1
+    p = pf.load_project(sample)
+    p = replace(p, inlet=replace(p.inlet, ramp_angles_deg=angles))
+    load_module.validate_project(p)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        result = evaluate_project(replace(p, grid=Grid(9, 5)))
+    assert np.isfinite(result.cases[0].points.recovery).all()
+
+
+@pytest.mark.parametrize("old, new, key", [
+    ("format = 1", "format = " + "9" * 5000, "project.format"),
+    ("mach_points = 121", "mach_points = " + "1" * 4301, "grid.mach_points"),
+    ("isa_offset_K = 20", "isa_offset_K = -" + "2" * 6000, "case[1].isa_offset_K"),
+])
+def test_integer_too_long_for_the_parser_names_the_key(old, new, key, tmp_path):
+    # Python refuses to convert integers of more than 4300 digits from text (ValueError inside tomllib).
+    text = pf.dumps_project(pf.project_from_dict(pitot_data())).replace("isa_offset_K = 20.0", "isa_offset_K = 20")
+    assert old in text
+    path = tmp_path / "long.toml"
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+    with pytest.raises(ProjectError) as info:
+        pf.load_project(path)
+    err = info.value
+    assert err.key == key and "digits" in err.allowed and "\n" not in str(err)
+
+
+def test_long_digit_run_inside_text_is_just_text(tmp_path):
+    d = pitot_data()
+    d["project"]["notes"] = "9" * 5000
+    assert pf.load_project(write(tmp_path, d)).notes == "9" * 5000
+
+
+# -- validate_project works on the dataclasses ------------------------------------------------------------------
+
+def test_validate_project_checks_the_dataclasses_without_a_file_round_trip():
+    p = pf.project_from_dict(full_data())
+    load_module.validate_project(p)
+    bad = [
+        (replace(p, inlet=replace(p.inlet, bleed_fraction=0.5)), "inlet.bleed_fraction"),
+        (replace(p, inlet=replace(p.inlet, throat_area_m2=0.6)), "inlet.throat_area_m2"),
+        (replace(p, cases=(replace(p.cases[0], isa_offset_K=101.0),) + p.cases[1:]), "case[0].isa_offset_K"),
+        (replace(p, cases=(replace(p.cases[0], rating="nope"),) + p.cases[1:]), "case[0].rating"),
+        (replace(p, ratings=(replace(p.ratings[0], theta=(1.0, 0.9, 1.1, 1.2)),) + p.ratings[1:]),
+         "engine.rating[0].theta[1]"),
+        (replace(p, inlet=replace(p.inlet, type="pitot")), "inlet.ramp_angles_deg"),
+        (replace(p, inlet=replace(p.inlet, schedule=replace(p.inlet.schedule, mach=(0.0, 1.0)))),
+         "inlet.schedule.throat_area_m2"),
+        (replace(p, grid=Grid(1001, 1001)), "grid"),
+        (replace(p, limits=replace(p.limits, face_mach_max=float("nan"))), "limits.face_mach_max"),
+    ]
+    for project, key in bad:
+        with pytest.raises(ProjectError) as info:
+            load_module.validate_project(project)
+        assert info.value.key == key, str(info.value)
+
+
+# -- saving over a read-only file ---------------------------------------------------------------------------------
+
+def test_save_refuses_to_replace_a_read_only_file(tmp_path):
+    p = pf.project_from_dict(pitot_data())
+    target = tmp_path / "locked.toml"
+    pf.save_project(p, target)
+    before = target.read_bytes()
+    os.chmod(target, 0o444)
+    edited = replace(p, title="edited")
+    with pytest.raises(ProjectSaveError) as info:
+        pf.save_project(edited, target)
+    assert "read-only" in str(info.value) and str(target) in str(info.value)
+    assert target.read_bytes() == before and os.stat(target).st_mode & 0o777 == 0o444
+    pf.save_project(edited, target, overwrite_read_only=True)  # the program asked the user first
+    assert pf.load_project(target).title == "edited" and os.stat(target).st_mode & 0o777 == 0o444
+
+
+# -- the generated file reference and the schema -----------------------------------------------------------------
+
+def test_docs_project_file_reference_is_current():
+    from engine_air.project.reference_doc import DOC_PATH, reference_markdown
+
+    assert DOC_PATH.read_text(encoding="utf-8") == reference_markdown(), (
+        "docs/project-file.md is stale: run python -m engine_air.project.reference_doc")
+
+
+def test_every_key_of_the_interfaces_is_in_the_schema_and_documented():
+    from engine_air.project import schema
+    from engine_air.project.reference_doc import reference_markdown
+
+    keys = {f.path for f in schema.all_fields()}
+    interfaces = {  # every key of the interfaces document, "Project file" and "Additions"
+        "project": ["format", "title", "notes"],
+        "limits": ["face_mach_max", "throat_mach_max", "recovery_min", "stable_flow_fraction",
+                   "relative_tip_mach_max", "started_required", "installation_loss_max"],
+        "inlet": ["type", "capture_area_m2", "throat_area_m2", "face_area_m2", "duct_loss_coefficient",
+                  "lip_suction_factor", "ramp_angles_deg", "shock_on_lip_mach", "cone_half_angles_deg",
+                  "internal_recovery_factor", "supersonic_lip_suction_factor", "bleed_fraction",
+                  "bleed_exit_velocity_ratio", "bypass_area_m2", "bypass_discharge_coefficient",
+                  "bypass_exit_velocity_ratio", "auxiliary_inlet_area_m2", "auxiliary_door_mach_max",
+                  "auxiliary_loss_coefficient"],
+        "inlet.schedule": ["mach", "throat_area_m2", "shock_on_lip_mach", "ramp_angles_deg", "bleed_fraction"],
+        "engine.rating": ["name", "theta", "corrected_flow_kg_s", "fan_tip_speed_m_s", "corrected_tip_speed_m_s",
+                          "thrust_mach", "thrust_altitude_m", "net_thrust_n", "thrust_reference_recovery",
+                          "recovery_thrust_exchange"],
+        "envelope": ["mach", "altitude_m"],
+        "grid": ["mach_points", "altitude_points"],
+        "case": ["name", "rating", "isa_offset_K", "mach_range", "altitude_range_m"],
+    }
+    text = reference_markdown()
+    for table, names in interfaces.items():
+        for name in names:
+            assert f"{table}.{name}" in keys, f"{table}.{name}"
+        header = f"[[{table}]]" if table in ("engine.rating", "case") else f"[{table}]"
+        section = text.split(f"## `{header}`")[1].split("\n## ")[0]
+        for name in names:
+            assert f"| `{name}` |" in section, f"{table}.{name}"
+    assert len(keys) == len(schema.all_fields())  # each key once
+
+
+def test_a_new_inlet_type_brings_its_keys_without_editing_the_schema(monkeypatch, tmp_path):
+    from engine_air.inlets import pitot, registry
+    from engine_air.project import schema
+    from engine_air.project.reference_doc import reference_markdown
+    from engine_air.project.schema_field import REQUIRED, Field
+
+    class Funnel(type(pitot.INLET)):
+        name = "funnel"
+        label = "test funnel"
+        fields = (Field("funnel_angle_deg", "inlet", "number", "half-angle of the funnel", unit="deg", lo=0.0,
+                        hi=30.0, default=REQUIRED),)
+
+    monkeypatch.setitem(registry.INLET_TYPES, "funnel", Funnel())
+    assert "inlet.funnel_angle_deg" in {f.path for f in schema.all_fields()}
+    assert "`funnel_angle_deg`" in reference_markdown()
+    d = pitot_data()
+    d["inlet"]["type"] = "funnel"
+    err = load_error(tmp_path, d)
+    assert err.key == "inlet.funnel_angle_deg" and "missing" in err.allowed
+    d["inlet"]["funnel_angle_deg"] = 12.0
+    assert pf.load_project(write(tmp_path, d)).inlet.type == "funnel"
+    err = load_error(tmp_path, setpath(pitot_data(), "inlet.funnel_angle_deg", 12.0))
+    assert "'funnel'" in err.allowed

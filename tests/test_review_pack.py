@@ -18,7 +18,7 @@ import engine_air
 from engine_air.outputs import pictures as P
 from engine_air.cli import main
 from engine_air.envelope.evaluate import WORST, evaluate_project
-from engine_air.project.toml_file import load_project
+from engine_air.project import load_project
 from engine_air.outputs.review_pack import PACK_QUANTITIES, SECTION_IDS, SOURCES, write_review_pack
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"

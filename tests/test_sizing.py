@@ -19,7 +19,7 @@ import pytest
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, evaluate_project
 from scipy.optimize import brentq
-from engine_air.project.toml_file import load_project, project_from_dict
+from engine_air.project import load_project, project_from_dict
 from engine_air.studies import sizing as S
 
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
@@ -217,7 +217,7 @@ def test_cli_size_exit_codes(tmp_path, capsys):
 
     from engine_air.cli import main
     from engine_air.project.model import Grid
-    from engine_air.project.toml_file import save_project
+    from engine_air.project import save_project
 
     def coarse(name):
         path = tmp_path / f"{name}.toml"

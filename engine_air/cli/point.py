@@ -58,12 +58,9 @@ def altitude_m(args) -> float:
 
 
 def run(args) -> int:
-    import numpy as np
-
     from engine_air.envelope import flags as F
-    from engine_air.envelope.polygon import polygon_contains
-    from engine_air.flow.match import evaluate_conditions
-    from engine_air.outputs.point_record import point_record, record_in_us_units
+    from engine_air.envelope.point import evaluate_point
+    from engine_air.outputs.point_record import record_in_us_units
 
     if not math.isfinite(args.mach):
         raise UsageError(f"--mach {args.mach}: must be a finite number")
@@ -76,11 +73,7 @@ def run(args) -> int:
     else:
         cases(project, [args.case])
         case = project.case(args.case)
-    points = evaluate_conditions(project, case, np.array([args.mach]), np.array([alt]))
-    env = project.envelope
-    if not bool(polygon_contains(env.mach, env.altitude_m, np.array([args.mach]), np.array([alt]))[0]):
-        points.flags = points.flags | F.OUTSIDE_ENVELOPE
-    record = point_record(points, 0, case.name)
+    record = evaluate_point(project, args.mach, alt, case.name)
     if args.units == "us":
         record = record_in_us_units(record)
     json.dump(record, sys.stdout, indent=2, allow_nan=False)

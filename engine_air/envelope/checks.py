@@ -57,13 +57,18 @@ class Check:
         return np.where(self.applies, self.margin, np.nan)
 
 
+MAX_RELATIVE_MARGIN = 1e12
+"""Relative margins are held within +-1e12 (a limit near zero would otherwise give an infinite one)."""
+
+
 def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=None) -> Check:
-    with np.errstate(invalid="ignore"):
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         applies = np.asarray(applies, bool) & np.isfinite(margin)
         fails = applies & (margin < 0.0)
         if forced_fail is not None:
             fails = fails | (applies & forced_fail)
-        relative = np.where(applies, margin / abs(scale), np.nan)
+        # a limit as small as the file allows (e.g. 5e-324) must not overflow the ranking: keep it finite
+        relative = np.where(applies, np.clip(margin / abs(scale), -MAX_RELATIVE_MARGIN, MAX_RELATIVE_MARGIN), np.nan)
         if forced_fail is not None:
             relative = np.where(forced_fail & applies, np.minimum(relative, -1.0), relative)
     return Check(name, label, limit_text, value, margin, relative, applies, fails)
@@ -115,6 +120,8 @@ def build_checks(limits: Limits, points) -> list[Check]:
         with np.errstate(invalid="ignore", divide="ignore"):
             fraction = points.mass_flow_ratio / points.max_mass_flow_ratio
         subcritical = points.regime == 1
+        if getattr(points, "oblique_ahead_of_cowl", None) is not None:  # buzz needs an oblique shock (§10)
+            subcritical = subcritical & points.oblique_ahead_of_cowl
         checks.append(
             _check(
                 "stability", "Stable capture (buzz)", f"MFR/MFR_max >= {limits.stable_flow_fraction:g}",

@@ -28,7 +28,7 @@ from engine_air.envelope.polygon import envelope_mask, grid_axes
 from engine_air.project.errors import ProjectError
 from engine_air.flow.match import OperatingPoints, evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project.toml_file import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
+from engine_air.project import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
 
 WORST = "worst of all cases"
 

@@ -59,19 +59,19 @@ DESCRIPTIONS: dict[str, str] = {
     "value and recovery falls in proportion.",
     "supercritical": "The engine asks for more air than the shock system can capture: the terminal shock is swallowed "
     "into the duct and recovery falls below the critical value.",
-    "buzz-risk": "Subcritical operation with captured flow below the stable fraction of the maximum: shock "
-    "oscillation (buzz) is possible.",
-    "shock-detached": "A ramp deflection exceeds the maximum for the local Mach number: the rest of the compression "
-    "is taken as one normal shock.",
-    "shock-inside-cowl": "Flight Mach above the shock-on-lip design: the ramp shocks fall inside the cowl lip.",
+    "buzz-risk": "Subcritical operation with an oblique or conical shock ahead of the cowl and captured flow below "
+    "the stable fraction of the maximum: shock oscillation (buzz) is possible.",
+    "shock-detached": "A ramp or cone turns the flow more than an attached shock can at the local Mach number: a "
+    "bow shock stands ahead of it and the rest of the compression is taken as one normal shock.",
+    "shock-inside-cowl": "Flight Mach above the shock-on-lip design: the ramp or cone shocks fall inside the cowl lip.",
     "demand-extrapolated": "The face temperature ratio theta2 lies outside the rating's table: the end value of "
     "corrected flow is held.",
     "low-speed": "Flight Mach below 0.05: the captured stream tube, mass-flow ratio, spillage and drag coefficients "
     "are not defined (static suction); face and throat Mach use p_t0 = p0.",
     "outside-atmosphere": "Altitude outside the standard atmosphere model (-5 km to 84.852 km geopotential), or an "
     "ISA offset that leaves no positive temperature: nothing can be computed or judged.",
-    "additive-drag-not-modelled": "Supersonic ramp inlet: the ramp surface force is not in the stream-tube balance, "
-    "so additive drag is not computed.",
+    "additive-drag-not-modelled": "The inlet type gives no supersonic pre-entry drag here, so additive drag and the "
+    "thrust items that need it are not computed.",
     "no-tip-speed": "The rating gives no fan tip speed: blade relative tip Mach is not computed.",
     "unstarted": "Mixed-compression inlet not started: accelerating from Mach 1 it has not yet swallowed its "
     "starting shock (throat too small for the Kantrowitz self-start limit) or it cannot run started here; a "

@@ -123,6 +123,7 @@ class OperatingPoints:
     limiting: np.ndarray | None = None  # int index into checks, -1 where nothing is judged
     ramp_wave_angle_rad: np.ndarray | None = None  # (n_ramps, ...)
     ramp_downstream_mach: np.ndarray | None = None
+    oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
     started: np.ndarray | None = None  # bool, mixed compression only (method §11)
     self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
 
@@ -357,7 +358,11 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         mfr_max = np.where(supersonic, mfr_max_geom, np.where(low, np.nan, throat_choke_flow / capture_flow))
         stable_fraction = project.limits.stable_flow_fraction
         if stable_fraction is not None:
+            # buzz needs an oblique or conical shock ahead of the cowl (method §10); with only a normal
+            # shock ahead (pitot, or every ramp shock detached) subcritical spillage is stable
             buzz = supersonic & ~supercritical & ~critical & (mfr / mfr_max_geom < stable_fraction)
+            if shocks.oblique_ahead_of_cowl is not None:
+                buzz = buzz & shocks.oblique_ahead_of_cowl
             bits |= np.where(buzz, F.BUZZ_RISK, 0)
         spillage = np.where(low, np.nan, np.maximum(0.0, 1.0 - mfr))
 
@@ -467,6 +472,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         flags=bits,
         ramp_wave_angle_rad=_per_ramp(shocks.ramp_wave_angle_rad, shape),
         ramp_downstream_mach=_per_ramp(shocks.ramp_downstream_mach, shape),
+        oblique_ahead_of_cowl=None if shocks.oblique_ahead_of_cowl is None else full(shocks.oblique_ahead_of_cowl),
         started=None if started is None else full(started),
         self_start_contraction=None if shocks.self_start_contraction is None else full(shocks.self_start_contraction),
     )

@@ -10,6 +10,7 @@ starting depends on the whole schedule) is called once with the scheduled inlet 
 from __future__ import annotations
 
 from dataclasses import fields, replace
+from functools import lru_cache
 
 import numpy as np
 
@@ -30,7 +31,7 @@ def scheduled_shock_system(kind: InletType, inlet: Inlet, flight_mach: np.ndarra
         return kind.shock_system(inlet, m0)
     unique, inverse = np.unique(m0, return_inverse=True)
     inverse = inverse.reshape(m0.shape)
-    parts = [kind.shock_system(inlet_at(inlet, u), np.array([u])) for u in unique]
+    parts = [column_shock_system(kind, inlet_at(inlet, float(u)), float(u)) for u in unique]
     values = {}
     for f in fields(ShockSystem):
         items = [getattr(p, f.name) for p in parts]
@@ -42,6 +43,13 @@ def scheduled_shock_system(kind: InletType, inlet: Inlet, flight_mach: np.ndarra
     return ShockSystem(**values)
 
 
+@lru_cache(maxsize=4096)
+def column_shock_system(kind: InletType, fixed: Inlet, mach: float) -> ShockSystem:
+    """The shock system of the fixed inlet ``fixed`` at one flight Mach number (cached: every case of a map and
+    the pre-entry drag share the columns)."""
+    return kind.shock_system(fixed, np.array([mach]))
+
+
 def scheduled_pre_entry_drag(kind: InletType, inlet: Inlet, flight_mach: np.ndarray, state: CaptureState):
     """Supersonic pre-entry drag (N) with each Mach column's own geometry; ``None`` where the type models none.
 
@@ -51,9 +59,12 @@ def scheduled_pre_entry_drag(kind: InletType, inlet: Inlet, flight_mach: np.ndar
     out = np.full(m0.shape, np.nan)
     for u in np.unique(m0[m0 > 1.0]):
         mask = m0 == u
-        fixed = inlet_at(inlet, u)
+        fixed = inlet_at(inlet, float(u))
         m_sel = m0[mask]
-        shocks = kind.shock_system(fixed, m_sel)
+        one = column_shock_system(kind, fixed, float(u))
+        shocks = ShockSystem(**{f.name: None if getattr(one, f.name) is None else
+                                np.broadcast_to(getattr(one, f.name), np.shape(getattr(one, f.name))[:-1] + m_sel.shape)
+                                for f in fields(ShockSystem)})
         sub = replace(
             state,
             flight_mach=m_sel,

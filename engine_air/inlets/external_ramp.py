@@ -5,6 +5,10 @@ One to three ramps turn the flow through weak oblique shocks laid out shock-on-l
 the shock system and the dividing-streamline trace for the maximum capture are in
 ``engine_air.inlets.ramp_layout``.
 
+Pre-entry drag in supersonic flight (method §13): ``ramp_layout.ramp_pre_entry_drag``, the pressure on the
+dividing stream line behind each ramp shock plus the momentum balance of the spillage behind the terminal
+shock; zero at MFR = 1.
+
 Example (one 10 deg ramp, M_d = 2, NACA Report 1135 oblique-shock relations): at M0 = 1.8 the wave angle
 is 44.06 deg and MFR_max = 0.9595.
 """
@@ -14,7 +18,7 @@ from __future__ import annotations
 import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
-from engine_air.inlets.ramp_layout import ramp_design_problems, ramp_shock_system
+from engine_air.inlets.ramp_layout import ramp_design_problems, ramp_pre_entry_drag, ramp_shock_system
 from engine_air.project.model import Inlet
 from engine_air.project.schema_field import REQUIRED, Field
 
@@ -24,12 +28,13 @@ MAX_TOTAL_RAMP_DEG = 40.0
 
 RAMP_ANGLES = Field(
     "ramp_angles_deg", "inlet", "number list",
-    "deflection of each external ramp, first ramp first", unit="deg", lo=0.0, hi=MAX_RAMP_DEG, lo_open=True,
+    "deflection of each external ramp, first ramp first", unit="deg", lo=0.0, hi=MAX_RAMP_DEG, decimals=2, step=0.25,
     length=(1, MAX_RAMPS), default=REQUIRED, inlet_types=("external-ramp", "mixed-compression"))
 SHOCK_ON_LIP_MACH = Field(
     "shock_on_lip_mach", "inlet", "number",
     "design flight Mach number at which every ramp (or cone) shock meets the cowl lip", lo=1.0, hi=5.0,
-    lo_open=True, default=REQUIRED, inlet_types=("external-ramp", "mixed-compression", "axisymmetric-spike"))
+    lo_open=True, default=REQUIRED, inlet_types=("external-ramp", "mixed-compression", "axisymmetric-spike"),
+    decimals=3, step=0.05)
 
 
 def ramp_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
@@ -57,10 +62,10 @@ class ExternalRampInlet:
         return ramp_shock_system(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, flight_mach)
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
-        return None  # the ramp surface force is not yet taken out of the stream-tube balance
+        return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:
-        return ["shock_on_lip_mach"] + [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))]
+        return [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))] + ["shock_on_lip_mach"]
 
 
 INLET = ExternalRampInlet()

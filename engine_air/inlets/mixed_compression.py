@@ -44,7 +44,7 @@ import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import RAMP_ANGLES, SHOCK_ON_LIP_MACH, ramp_problems
-from engine_air.inlets.ramp_layout import ramp_shock_system
+from engine_air.inlets.ramp_layout import ramp_pre_entry_drag, ramp_shock_system
 from engine_air.inlets.schedule import is_scheduled, scheduled
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.physics.starting import self_start_contraction, started_throat_mach
@@ -329,11 +329,13 @@ class MixedCompressionInlet:
         )
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
-        return None  # as the external-ramp type: the ramp surface force is not yet in the balance
+        # the external ramps' pressure along the dividing stream line, and the spillage behind the normal shock
+        # at the cowl entrance (unstarted, or started with excess air): method section 13
+        return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:
         # the internal contraction is the throat area, a design variable of every type
-        return ["shock_on_lip_mach"] + [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))]
+        return [f"ramp_angles_deg[{k + 1}]" for k in range(len(inlet.ramp_angles_deg))] + ["shock_on_lip_mach"]
 
 
 INLET = MixedCompressionInlet()

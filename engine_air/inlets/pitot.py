@@ -1,8 +1,13 @@
 """Pitot (normal-shock) inlet: one normal shock at the flight Mach number M0 (method §4, §6).
 
 In supersonic flight a single normal shock stands at (subcritical: ahead of) the lip; the captured stream
-tube is the free-stream tube, so MFR_max = 1. Pre-entry drag is the stream-tube momentum balance of
-method §7 from the free stream to the capture plane, with the total pressure behind the normal shock.
+tube is the free-stream tube, so MFR_max = 1. Spilling, the shock is a detached bow shock (method §10);
+by Moeckel's construction (``engine_air.physics.detached_shock.moeckel_bow_shock``, body sonic point at the
+lip) the shock's sonic point lies above the lip radius, so the captured stream tube (radius <= r_lip)
+crosses the strong, nearly normal part of the bow shock. Its pre-entry (spillage) drag is therefore the
+stream-tube momentum balance of method §7 from the free stream to the capture plane, with the total
+pressure behind the normal shock (equal to ``ramp_layout.terminal_spill_drag`` with M_n = M0, tested);
+zero at MFR = 1.
 
 Example: at M0 = 2 the recovery of the shock system is 0.72087 (NACA Report 1135, normal-shock table).
 """

@@ -7,10 +7,11 @@ program's editor read the type's keys and behaviour from that object.
 
 from __future__ import annotations
 
-from engine_air.inlets import external_ramp, mixed_compression, pitot
+from engine_air.inlets import axisymmetric_spike, external_ramp, mixed_compression, pitot
 from engine_air.inlets.base import InletType
 
-INLET_TYPES: dict[str, InletType] = {module.INLET.name: module.INLET for module in (pitot, external_ramp, mixed_compression)}
+INLET_TYPES: dict[str, InletType] = {
+    module.INLET.name: module.INLET for module in (pitot, external_ramp, mixed_compression, axisymmetric_spike)}
 
 
 def inlet_type(name: str) -> InletType:

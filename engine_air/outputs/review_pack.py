@@ -9,7 +9,9 @@ envelope for every case and writes into ``folder``:
   limit and its mechanism (``findings``), the maps per case and quantity
   (``maps``: face Mach margin, recovery, spillage fraction and throat Mach by
   default, each case and the worst of all cases), the station table
-  (``stations``) and the shock table (``shocks``) at the worst point, the inputs
+  (``stations``), the shock table (``shocks``) and the installation ledger
+  (``ledger``: ram, pre-entry, spillage, bleed and bypass drag, net and installed
+  thrust, rows adding up to the installed thrust) at the worst point, the inputs
   as loaded (``inputs``: the project file's TOML text), the tool version
   (``version``), the method's sources (``sources``) and the caution
   (``caution``);
@@ -57,7 +59,7 @@ import re
 import secrets
 import stat
 import sys
-import tomllib
+from engine_air.project.load import tomllib  # tomli on Python 3.10
 from dataclasses import dataclass, field
 from typing import Callable
 
@@ -72,14 +74,15 @@ from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
 from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
 from engine_air.outputs.sections import check_of, cut
-from engine_air.project.toml_file import dumps_project, load_project, project_from_dict
+from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
-from engine_air.outputs.point_record import shock_table, station_table
+from engine_air.outputs.ledger_table import NO_THRUST_DATA, ledger_rows
+from engine_air.outputs.point_record import point_record, shock_table, station_table
 from engine_air.studies.sizing import worst_point
 
 PACK_QUANTITIES = ("face_mach_margin", "recovery", "spillage_fraction", "throat_mach")
 """Quantities mapped in a pack by default."""
-SECTION_IDS = ("verdict", "findings", "maps", "sections", "stations", "shocks", "inputs", "version", "sources", "caution")
+SECTION_IDS = ("verdict", "findings", "maps", "sections", "stations", "shocks", "ledger", "inputs", "version", "sources", "caution")
 """Element ids of the pack's sections, in page order."""
 SOURCES = (
     "U.S. Standard Atmosphere, 1976 (NOAA/NASA/USAF); ISO 2533:1975 — free-stream conditions.",
@@ -336,6 +339,39 @@ def _table(headers, rows, numeric=()) -> str:
     return "\n".join(out)
 
 
+def _ledger_html(project, result, worst) -> str:
+    """The ledger table (``engine_air.outputs.ledger_table``) at the worst point: + and − rows adding up to the
+    installed thrust, memo rows (ram drag, pre-entry drag, lip suction) apart; "no thrust data" without a table."""
+    pts = result.case_map(worst.case).points
+    record = point_record(pts, worst.index, worst.case)
+    rating = project.rating(project.case(worst.case).rating)
+    rows = ledger_rows(record, rating.recovery_thrust_exchange)
+    body = []
+    for r in rows:
+        v = r["value"]
+        sign = "=" if r["role"] == "total" else ""
+        if r["role"] == "share":
+            shown = _num(v, 4)
+        elif v is None:
+            shown = e(r["note"]) if r["note"] == NO_THRUST_DATA else "–"
+        else:
+            v = float(v) + 0.0  # no "-0.0"
+            if r["role"] == "term":  # the sign in its own column, the amount beside it: the column adds up
+                sign, v = ("+" if v >= 0.0 else "\u2212"), abs(v)
+            shown = f"{v:,.1f}".replace(",", "\u2009").replace("-", "\u2212")
+        label = f"<b>{e(r['label'])}</b>" if r["role"] == "total" else e(r["label"])
+        note = "" if r["note"] == NO_THRUST_DATA else e(r["note"])
+        body.append([label, sign, shown, note])
+    none = record.get("net_thrust_n") is None
+    head = (f"<p>Case <b>{e(worst.case)}</b>, rating <b>{e(rating.name)}</b>, Mach {worst.mach:.3f}, "
+            f"{worst.altitude_m:.0f} m. F_inst = F_n·(1 − X·(1 − π/π_ref)) − D_spill − D_bleed − D_bypass: the rows "
+            "marked + and − add up to the installed thrust (row =); the ram drag, pre-entry drag and lip suction are "
+            "shown for information (the ram drag is inside the net thrust).</p>")
+    if none:
+        head += f"<p>The rating gives {e(NO_THRUST_DATA)}: no net or installed thrust (drags only).</p>"
+    return head + _table(["item", "", "value (N)", "how"], body, numeric=(2,))
+
+
 def _read_source(project_or_path, source_text):
     """(project, toml text, source name, notes)."""
     notes = []
@@ -561,6 +597,11 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
                   _g(r["total_pressure_ratio"])] for r in rows], numeric=range(1, 5)))
         shock_html = "\n".join(shock_parts)
 
+    # -- installation ledger at the worst point
+    ledger_html = "<p>No check applies at any envelope point.</p>"
+    if worst.check is not None:
+        ledger_html = _ledger_html(project, result, worst)
+
     # -- inputs
     project_path = out.write("project.toml", text.encode("utf-8"))
     written.append("project.toml")
@@ -631,6 +672,10 @@ case (and the worst of all cases); thin dotted where the quantity is not judged.
 
 <section id="shocks"><h2>Shock table</h2>
 {shock_html}
+</section>
+
+<section id="ledger"><h2>Installation ledger at the worst point</h2>
+{ledger_html}
 </section>
 
 <section id="inputs"><h2>Inputs as loaded</h2>

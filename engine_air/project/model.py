@@ -1,7 +1,8 @@
 """The design variant as plain, immutable data (SI units throughout).
 
 These dataclasses mirror the project file of the interfaces document one to
-one; ``engine_air.project.toml_file`` loads, validates and saves them. Edits make a
+one; ``engine_air.project.load`` loads and validates them, ``engine_air.project.save`` saves them
+(every key is described once in ``engine_air.project.schema``). Edits make a
 new object with ``dataclasses.replace``.
 """
 
@@ -109,7 +110,7 @@ class Project:
     title: str = ""
     notes: str = ""
     format: int = 1
-    warnings: tuple[str, ...] = field(default=(), compare=False)  # e.g. unknown keys met on loading
+    warnings: tuple[str, ...] = field(default=(), compare=False)  # e.g. a limit no rating lets be checked
 
     def rating(self, name: str) -> Rating:
         for r in self.ratings:

@@ -46,8 +46,8 @@ from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import WORST, CaseMap, LimitSummary, MapResult, summarise
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project import toml_file as _pf
-from engine_air.project.toml_file import MAX_AXIS_POINTS, MAX_GRID_POINTS
+from engine_air.project import schema as _pf
+from engine_air.project import MAX_AXIS_POINTS, MAX_GRID_POINTS
 from engine_air.outputs.quantities import QUANTITIES
 
 GRID_CHOICES = ("a", "b", "union")

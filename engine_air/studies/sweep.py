@@ -67,8 +67,8 @@ from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
 from engine_air.flow.match import evaluate_conditions
 from engine_air.project.model import Project
-from engine_air.project.toml_file import dumps_project, project_from_dict
-from engine_air.studies.sizing import _parse, _resolve_at, variable_unit, with_design_values, worst_point
+from engine_air.project import dumps_project, project_from_dict
+from engine_air.studies.sizing import parse_variable, resolve_point, variable_unit, with_design_values, worst_point
 
 MAX_VARIABLES = 4
 MAX_VALUES_PER_VARIABLE = 1001
@@ -178,7 +178,7 @@ def _axes(project: Project, variables) -> tuple[tuple[str, ...], tuple[tuple[flo
         raise ProjectError(None, "variables", [n for n, _ in items], f"a sweep varies 1 to {MAX_VARIABLES} design variables")
     names, axes = [], []
     for name, values in items:
-        _parse(project, name)
+        parse_variable(project, name)
         if name in names:
             raise ProjectError(None, "variables", name, "each design variable may be varied once")
         vals = np.asarray(values, dtype=float).ravel()
@@ -211,7 +211,7 @@ def cruise_spillage(project: Project, cruise) -> float:
     """Spillage fraction (-) at ``cruise = (mach, altitude_m, case)``; NaN without a point or where undefined."""
     if cruise is None:
         return math.nan
-    mach, alt, case = _resolve_at(project, cruise)
+    mach, alt, case = resolve_point(project, cruise)
     pts = evaluate_conditions(project, project.case(case), np.array([mach]), np.array([alt]))
     return float(pts.spillage_fraction[0])
 
@@ -245,7 +245,7 @@ _BASE: dict[str, Project] = {}
 
 
 def _base_project(project_toml: str) -> Project:
-    import tomllib
+    from engine_air.project.load import tomllib  # tomli on Python 3.10
 
     base = _BASE.get(project_toml)
     if base is None:
@@ -500,7 +500,7 @@ def sweep(
     grid_points = project.grid.mach_points * project.grid.altitude_points
     check_size(n, grid_points, n_cases)
     if cruise is not None:
-        cruise = _resolve_at(project, cruise)
+        cruise = resolve_point(project, cruise)
     if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int) or workers < 1):
         raise ProjectError(None, "workers", workers, "must be a whole number of 1 or more")
     cpu = os.cpu_count() or 1

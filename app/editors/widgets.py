@@ -1,4 +1,5 @@
-"""Input widgets that know their SI range and display unit, shared by the project editors."""
+"""Input widgets that know their SI range and display unit, shared by the project editors: ``UnitSpin`` and
+the number cells of the editor tables."""
 
 from __future__ import annotations
 
@@ -7,7 +8,7 @@ import math
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QAbstractItemView, QDoubleSpinBox, QHeaderView, QTableWidget, QTableWidgetItem
 
-from .units import Units
+from ..units import Units
 
 SI_ROLE = Qt.UserRole + 1
 TEXT_ROLE = Qt.UserRole + 2

@@ -1,0 +1,137 @@
+"""The "Cases" tab: case name, rating, ISA offset and the optional region where the case is judged
+(``mach_range``, ``altitude_range_m``: two cells each, both blank for no bound).
+
+A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
+``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtWidgets import (
+    QComboBox,
+    QHBoxLayout,
+    QHeaderView,
+    QLabel,
+    QPushButton,
+    QTableWidgetItem,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine_air.project import schema as S
+from engine_air.project.model import Case
+
+from .fields import tooltip
+
+from .widgets import CellError, cell_si, make_table, number_item
+
+
+REGION_HEADERS = ("M0 from", "M0 to", "H from", "H to")
+
+
+def _blank(t, r, c) -> bool:
+    item = t.item(r, c)
+    return item is None or not item.text().strip()
+
+
+def _range(t, r, c, dim, u, what):
+    """The (low, high) pair in columns c, c+1 of row r; None when both cells are blank."""
+    if _blank(t, r, c) and _blank(t, r, c + 1):
+        return None
+    if _blank(t, r, c) or _blank(t, r, c + 1):
+        raise CellError(f"row {r + 1}, {what}: give both bounds, or leave both blank for no bound")
+    return (cell_si(t, r, c, dim, u, what), cell_si(t, r, c + 1, dim, u, what))
+
+
+class CasesTab:
+    """The "Cases" tab: case name, rating, ISA offset and the optional region (Mach and altitude ranges)."""
+
+    def _build_cases(self) -> None:
+        w = QWidget()
+        lay = QVBoxLayout(w)
+        self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT", *REGION_HEADERS])
+        self.case_table.cellChanged.connect(lambda _r, _c: self._cases_changed())
+        self.case_table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)  # long names wrap
+        for c, key in ((3, "mach_range"), (4, "mach_range"), (5, "altitude_range_m"), (6, "altitude_range_m")):
+            self.case_table.horizontalHeaderItem(c).setToolTip(
+                tooltip(S.field(f"case.{key}")) + "\nLeave both cells blank for no limit on this axis.")
+        for c, key in ((0, "name"), (1, "rating"), (2, "isa_offset_K")):
+            self.case_table.horizontalHeaderItem(c).setToolTip(tooltip(S.field(f"case.{key}")))
+        lay.addWidget(self.case_table, 1)
+        note = QLabel("Region (optional): the case is judged only for M0 and altitude inside these bounds "
+                      "(included); outside it its points are computed, shown grey and judged by no check. Blank "
+                      "cells: no bound on that axis.")
+        note.setWordWrap(True)
+        lay.addWidget(note)
+        buttons = QHBoxLayout()
+        add, remove = QPushButton("Add case"), QPushButton("Remove case")
+        add.clicked.connect(self._add_case)
+        remove.clicked.connect(self._remove_case)
+        buttons.addWidget(add)
+        buttons.addWidget(remove)
+        lay.addLayout(buttons)
+        self.tabs.addTab(w, "Cases")
+
+    def _load_cases(self, p) -> None:
+        t, u = self.case_table, self._units
+        t.blockSignals(True)
+        t.setHorizontalHeaderLabels(["Case name", "Engine rating",
+                                     u.with_unit("ISA offset ΔT", "temperature_difference"), "M0 from", "M0 to",
+                                     u.with_unit("H from", "altitude"), u.with_unit("H to", "altitude")])
+        t.setRowCount(len(p.cases))
+        names = [r.name for r in p.ratings]
+        for k, c in enumerate(p.cases):
+            t.setItem(k, 0, QTableWidgetItem(c.name))
+            combo = QComboBox()
+            combo.addItems(names)
+            combo.setCurrentText(c.rating)
+            combo.currentTextChanged.connect(lambda _t: self._cases_changed())
+            t.setCellWidget(k, 1, combo)
+            t.setItem(k, 2, number_item(c.isa_offset_K, "temperature_difference", u))
+            for col, values, dim in ((3, c.mach_range, "none"), (5, c.altitude_range_m, "altitude")):
+                for j in range(2):
+                    t.setItem(k, col + j, number_item(values[j], dim, u) if values is not None
+                              else QTableWidgetItem(""))
+        t.blockSignals(False)
+
+    def _cases_changed(self) -> None:
+        if self._loading:
+            return
+        t, u = self.case_table, self._units
+        try:
+            cases = []
+            for r in range(t.rowCount()):
+                name = t.item(r, 0).text().strip() if t.item(r, 0) is not None else ""
+                combo = t.cellWidget(r, 1)
+                rating = combo.currentText() if combo is not None else ""
+                dt = cell_si(t, r, 2, "temperature_difference", u, "ISA offset")
+                mach = _range(t, r, 3, "none", u, "Mach range")
+                alt = _range(t, r, 5, "altitude", u, "altitude range")
+                cases.append(Case(name=name, rating=rating, isa_offset_K=dt, mach_range=mach, altitude_range_m=alt))
+        except CellError as exc:
+            self.show_error(str(exc))
+            return
+        self.apply_now(lambda p: replace(p, cases=tuple(cases)))
+
+    def _add_case(self) -> None:
+        def change(p):
+            names = {c.name for c in p.cases}
+            n = len(p.cases) + 1
+            while f"case {n}" in names:
+                n += 1
+            return replace(p, cases=p.cases + (Case(name=f"case {n}", rating=p.ratings[0].name, isa_offset_K=0.0),))
+
+        if self.apply_now(change):
+            self._load_cases(self._project)
+
+    def _remove_case(self) -> None:
+        row = self.case_table.currentRow()
+
+        def change(p):
+            k = row if 0 <= row < len(p.cases) else len(p.cases) - 1
+            return replace(p, cases=p.cases[:k] + p.cases[k + 1:])
+
+        if self.apply_now(change):
+            self._load_cases(self._project)

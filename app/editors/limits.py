@@ -1,0 +1,118 @@
+"""The "Limits" tab: the face Mach limit, the optional limits behind a check box, started operation and
+the recovery limit (a number or the MIL-E-5008B reference).
+
+A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
+``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from PySide6.QtWidgets import (
+    QCheckBox,
+    QComboBox,
+    QFormLayout,
+    QHBoxLayout,
+    QWidget,
+)
+
+from engine_air.project import schema as S
+from engine_air.project.model import REFERENCE_RECOVERY_NAME
+
+from .fields import fallback as _fallback, scroll as _scroll, tooltip as _tooltip
+class LimitsTab:
+    """The "Limits" tab: the face Mach limit, the optional limits behind a check box, started operation and"""
+
+    def _build_limits(self) -> None:
+        w = QWidget()
+        form = QFormLayout(w)
+
+        def limit_field(name):
+            return lambda p, v: replace(p, limits=replace(p.limits, **{name: v}))
+
+        self.face_mach_max = self._field_spin(S.field("limits.face_mach_max"), limit_field("face_mach_max"))
+        form.addRow("Face Mach limit M2 max", self.face_mach_max)
+        self.optional_limits = {}
+        labels = {"throat_mach_max": "Throat Mach limit M_th max",
+                  "stable_flow_fraction": "Stable flow fraction MFR/MFR_max",
+                  "relative_tip_mach_max": "Blade relative tip Mach max", "spillage_fraction_max": "Spillage fraction max",
+                  "installation_loss_max": "Installation loss max (share of net thrust)"}
+        for f in S.LIMIT_FIELDS:
+            if f.kind != "number" or f.required:
+                continue
+            name = f.key
+            box = QCheckBox()
+            spin = self._field_spin(f, None)
+            spin.valueChanged.connect(lambda _v, n=name: self.queue(self._optional_from_widgets(n)))
+            box.toggled.connect(lambda on, n=name: self._on_optional_toggled(n, on))
+            row = QHBoxLayout()
+            row.addWidget(box)
+            row.addWidget(spin, 1)
+            form.addRow(labels.get(name, name), row)
+            self.optional_limits[name] = (box, spin)
+        self.started_required = QComboBox()
+        self.started_required.addItems(["inlet type's default", "required", "not required"])
+        self.started_required.setToolTip(_tooltip(S.field("limits.started_required")))
+        self.started_required.currentIndexChanged.connect(self._on_started_changed)
+        form.addRow("Started operation (mixed compression)", self.started_required)
+        self.recovery_mode = QComboBox()
+        self.recovery_mode.addItems(["no recovery limit", "number", "MIL-E-5008B reference"])
+        self.recovery_min = self._field_spin(S.field("limits.recovery_min"), None)
+        self.recovery_mode.setToolTip(_tooltip(S.field("limits.recovery_min")))
+        self.recovery_mode.currentIndexChanged.connect(lambda _i: self._on_recovery_changed(True))
+        self.recovery_min.valueChanged.connect(lambda _v: self._on_recovery_changed(False))
+        row = QHBoxLayout()
+        row.addWidget(self.recovery_mode)
+        row.addWidget(self.recovery_min, 1)
+        form.addRow("Recovery limit p_t2/p_t0 min", row)
+        self.tabs.addTab(_scroll(w), "Limits")
+
+    def _optional_from_widgets(self, name):
+        box, spin = self.optional_limits[name]
+        value = float(spin.value()) if box.isChecked() else None
+        return lambda p: replace(p, limits=replace(p.limits, **{name: value}))
+
+    def _on_optional_toggled(self, name, on) -> None:
+        self.optional_limits[name][1].setEnabled(on)
+        if not self._loading:
+            self.apply_now(self._optional_from_widgets(name))
+
+    def _on_started_changed(self, index: int) -> None:
+        if self._loading:
+            return
+        value = (None, True, False)[index]
+        self.apply_now(lambda p: replace(p, limits=replace(p.limits, started_required=value)))
+
+    def _on_recovery_changed(self, immediate: bool) -> None:
+        mode = self.recovery_mode.currentIndex()
+        self.recovery_min.setEnabled(mode == 1)
+        if self._loading:
+            return
+        value = None if mode == 0 else (float(self.recovery_min.value()) if mode == 1 else REFERENCE_RECOVERY_NAME)
+        change = lambda p: replace(p, limits=replace(p.limits, recovery_min=value))  # noqa: E731
+        if immediate:
+            self.apply_now(change)
+        else:
+            self.queue(change)
+
+    def _load_limits(self, p) -> None:
+        lim = p.limits
+        self.face_mach_max.set_si(lim.face_mach_max)
+        defaults = {"throat_mach_max": 0.8, "stable_flow_fraction": 0.85, "relative_tip_mach_max": 1.5,
+                    "spillage_fraction_max": 0.3, "installation_loss_max": 0.06}
+        self.started_required.setCurrentIndex({None: 0, True: 1, False: 2}[lim.started_required])
+        for name, (box, spin) in self.optional_limits.items():
+            value = getattr(lim, name, None)
+            box.setChecked(value is not None)
+            spin.setEnabled(value is not None)
+            spin.set_si(value if value is not None else defaults.get(name, _fallback(S.field(f"limits.{name}"))))
+        rec = lim.recovery_min
+        if rec is None:
+            self.recovery_mode.setCurrentIndex(0)
+        elif rec == REFERENCE_RECOVERY_NAME:
+            self.recovery_mode.setCurrentIndex(2)
+        else:
+            self.recovery_mode.setCurrentIndex(1)
+            self.recovery_min.set_si(float(rec))
+        self.recovery_min.setEnabled(self.recovery_mode.currentIndex() == 1)

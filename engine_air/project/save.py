@@ -1,0 +1,113 @@
+"""``Project`` → TOML text in the file layout, and saving it atomically.
+
+The text follows the schema (``engine_air.project.schema``): tables and keys in schema order, only the keys
+of the project's inlet type, and keys at their default value left out (the [grid] table is always written); loading it gives back an equal
+``Project`` (every float is written with the digits that read back to the same number).
+"""
+
+from __future__ import annotations
+
+import errno
+import os
+
+import tomli_w
+
+from engine_air.project import schema as S
+from engine_air.project.atomic import is_read_only, write_bytes_atomic
+from engine_air.project.errors import ProjectSaveError
+from engine_air.project.model import Project
+from engine_air.project.schema_field import REQUIRED, Field
+
+
+def _plain(value):
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    return value
+
+
+def _at_default(f: Field, value) -> bool:
+    if value is None:
+        return True
+    if f.default is REQUIRED or f.default is None:
+        return False
+    return value == f.default and type(value) is not bool or (isinstance(value, bool) and value is f.default)
+
+
+def _body(obj, flds, keep_defaults: bool = False) -> dict:
+    return {f.key: _plain(getattr(obj, f.key)) for f in flds
+            if getattr(obj, f.key) is not None and (keep_defaults or not _at_default(f, getattr(obj, f.key)))}
+
+
+def project_to_dict(project: Project) -> dict:
+    """The project as a plain dict in the file layout: only the inlet type's keys, keys at default left out
+    (the [grid] keys are always written)."""
+    kind = project.inlet.type
+    inlet = _body(project.inlet, S.inlet_fields(kind))
+    if project.inlet.schedule is not None:
+        inlet["schedule"] = _body(project.inlet.schedule, S.schedule_fields(kind))
+    out = {
+        "project": _body(project, S.PROJECT_FIELDS),
+        "limits": _body(project.limits, S.LIMIT_FIELDS),
+        "inlet": inlet,
+        "engine": {"rating": [_body(x, S.RATING_FIELDS) for x in project.ratings]},
+        "envelope": _body(project.envelope, S.ENVELOPE_FIELDS),
+        "grid": _body(project.grid, S.GRID_FIELDS, keep_defaults=True),  # the resolution is always shown
+        "case": [_body(c, S.CASE_FIELDS) for c in project.cases],
+    }
+    return out
+
+
+_HEADER = "# engine-air project file. SI units: m, m^2, kg/s, m/s, K; angles in degrees. Keys: docs/project-file.md"
+_ITEMS_PER_LINE = 8
+
+
+def _toml_value(value: object) -> str:
+    """One TOML value: scalars formatted by ``tomli_w``, lists written inline (wrapped when long)."""
+    if isinstance(value, (list, tuple)):
+        items = [_toml_value(v) for v in value]
+        if len(items) <= _ITEMS_PER_LINE and sum(len(x) for x in items) < 100:
+            return "[" + ", ".join(items) + "]"
+        per_line = 1 if any(isinstance(v, (list, tuple)) for v in value) else _ITEMS_PER_LINE
+        rows = [", ".join(items[i:i + per_line]) for i in range(0, len(items), per_line)]
+        return "[\n    " + ",\n    ".join(rows) + ",\n]"
+    return tomli_w.dumps({"v": value})[len("v = "):].rstrip("\n")
+
+
+def dumps_project(project: Project) -> str:
+    """The project as TOML text in the file layout; loads back to an equal ``Project``."""
+    d = project_to_dict(project)
+    out = [_HEADER, ""]
+
+    def table(header: str, body: dict) -> None:
+        out.append(header)
+        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items() if not isinstance(value, dict))
+        out.append("")
+
+    table("[project]", d["project"])
+    table("[limits]", d["limits"])
+    table("[inlet]", d["inlet"])
+    if "schedule" in d["inlet"]:
+        table("[inlet.schedule]", d["inlet"]["schedule"])
+    for item in d["engine"]["rating"]:
+        table("[[engine.rating]]", item)
+    table("[envelope]", d["envelope"])
+    table("[grid]", d["grid"])
+    for item in d["case"]:
+        table("[[case]]", item)
+    return "\n".join(out)
+
+
+def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False) -> None:
+    """Write ``project`` to ``path`` atomically (``write_bytes_atomic``).
+
+    A read-only file at ``path`` is not replaced: ``ProjectSaveError`` says so, unless
+    ``overwrite_read_only=True`` (the program asks the user first); the new file keeps the old permissions.
+    On any ``OSError`` the previous file is left as it was and ``ProjectSaveError`` is raised.
+    """
+    if not overwrite_read_only and is_read_only(path):
+        raise ProjectSaveError(os.fspath(path), "the file is read-only; it was not replaced (save under another "
+                                                "name, or make the file writable first)", errno.EACCES)
+    try:
+        write_bytes_atomic(path, dumps_project(project).encode("utf-8"))
+    except OSError as exc:
+        raise ProjectSaveError(os.fspath(path), exc.strerror or str(exc), exc.errno) from exc
