@@ -25,6 +25,7 @@ from PySide6.QtWidgets import (
 
 from engine_air.envelope import flags as F
 from engine_air.outputs import point_record as report
+from engine_air.outputs.ledger_table import NO_THRUST_DATA, has_thrust, ledger_rows
 
 from .units import Units, group_digits
 
@@ -356,7 +357,9 @@ class DetailPanel(QScrollArea):
         self._record = report.point_record(points, self._index, case_name)
         self._stations_si = report.station_table(result.project, points, self._index)
         self._shocks = report.shock_table(result.project, points, self._index)
-        self._ledger = report.ledger_table(result.project, points, self._index, case_name)
+        case = next((c for c in result.project.cases if c.name == case_name), None)
+        rating = result.project.rating(case.rating) if case is not None else None
+        self._ledger = ledger_rows(self._record, getattr(rating, "recovery_thrust_exchange", None))
         self._contraction = None
         if self._record.get("started") is not None:  # the throat's contraction A_th/A_c at this Mach number
             from engine_air.inlets.schedule import inlet_at
@@ -454,43 +457,42 @@ class DetailPanel(QScrollArea):
             _set_text(t, r, 2, u.label(dim) if dim != "none" else "–")
 
     def _fill_ledger(self) -> None:
-        """Drags, then net thrust less each loss down to the installed thrust (the rows add up visibly)."""
+        """``engine_air.outputs.ledger_table.ledger_rows``: memo drags, then + / − terms down to the installed
+        thrust (= the sum of the terms), then the installation loss; "no thrust data" when the rating has none."""
         u, t, led = self._units, self.ledger, self._ledger
         if led is None:
             return
-        rows: list[dict] = []
-        for d in led["drags"]:
-            rows.append({"key": d["key"], "label": d["label"], "value": d["value"], "sign": None})
-        if led["has_thrust"]:
-            for r in led["rows"]:
-                sign = {1: "+ ", -1: "− ", 0: "= "}[r["sign"]]
-                rows.append({"key": r["key"], "label": sign + r["label"], "value": r["value"], "sign": r["sign"]})
-            loss = led["installation_loss_fraction"]
-            undefined = any(r["value"] is None for r in led["rows"])
-            self.ledger_note.setText("Drags of the captured and spilled flow, then the thrust bookkeeping: "
-                                     "net thrust less each loss gives the installed thrust"
-                                     + ("" if loss is None else f" (installation loss {100 * loss:.2f} %)") + "."
-                                     + (" A value shown as — is not defined here (see the flags)."
-                                        if undefined else ""))
-        else:
-            rows.append({"key": "net_thrust_n", "label": "Net / installed thrust: no thrust data", "value": None,
-                         "sign": None})
-            self.ledger_note.setText("No thrust data for this case's rating (flag no-thrust-data): the drags are "
-                                     "shown, the installed thrust is not.")
+        complete = has_thrust(self._record)
+        rows = []
+        for r in led:
+            prefix = {"term": "+ " if (r["value"] or 0.0) >= 0 else "− ", "total": "= "}.get(r["role"], "")
+            if not complete and r["role"] in ("term", "total"):
+                prefix = ""
+            rows.append(dict(r, shown=prefix + r["label"]))
         self._ledger_rows = rows
+        undefined = complete and any(r["value"] is None for r in led if r["role"] in ("term", "total"))
+        self.ledger_note.setText(
+            ("Memo items (not summed), then the terms marked + and − that add up to the installed thrust."
+             + (" A value shown as — is not defined here (see the flags)." if undefined else ""))
+            if complete else
+            "No thrust data for this case's rating (flag no-thrust-data): the drags are shown, the installed "
+            "thrust is not.")
         _set_rows(t, len(rows))
-        for r, row in enumerate(rows):
+        for k, row in enumerate(rows):
             si = row["value"]
-            disp = u.to_display("force", si) if si is not None else None
-            _set_text(t, r, 0, row["label"])
-            if si is None and row["key"] == "net_thrust_n":
-                _set_text(t, r, 1, "no thrust data")
+            dim = "none" if row["role"] == "share" else "force"
+            _set_text(t, k, 0, row["shown"])
+            if si is None and row.get("note") == NO_THRUST_DATA:
+                _set_text(t, k, 1, NO_THRUST_DATA)
             else:
-                item = _set_num(t, r, 1, disp, si)
+                disp = None if si is None else (u.to_display(dim, si) if dim != "none" else si)
+                item = _set_num(t, k, 1, disp, si)
                 f = item.font()
-                f.setBold(row["sign"] == 0)
+                f.setBold(row["role"] == "total")
                 item.setFont(f)
-            _set_text(t, r, 2, u.label("force"))
+            _set_text(t, k, 2, u.label(dim) if dim != "none" else "–")
+            if row.get("note"):
+                t.item(k, 0).setToolTip(row["note"])
 
     def _fill_shocks(self, rec) -> None:
         started = rec.get("started")

@@ -170,17 +170,21 @@ def test_ledger_rows_sum_to_the_installed_thrust(make_window):
     i, j = map(int, np.argwhere(defined)[len(np.argwhere(defined)) // 2])
     w.select_point(i, j)
     rows = w.detail.ledger_rows()
-    items = [r for r in rows if r["sign"] in (1, -1)]
-    total = next(r for r in rows if r["sign"] == 0)
+    items = [r for r in rows if r["role"] == "term"]
+    total = next(r for r in rows if r["role"] == "total")
     points = case.points
     assert total["value"] == pytest.approx(float(points.installed_thrust_n[i, j]), rel=1e-12)
-    assert sum(r["sign"] * r["value"] for r in items) == pytest.approx(total["value"], rel=1e-9)
+    assert sum(r["value"] for r in items) == pytest.approx(total["value"], rel=1e-9)
+    # the table shows them with their signs: + F_n, − each loss, = F_inst
+    shown = [w.detail.ledger.item(k, 0).text() for k in range(w.detail.ledger.rowCount())]
+    assert any(text.startswith("= Installed thrust") for text in shown)
+    assert any(text.startswith("+ Net thrust") for text in shown)
     # the recovery term worked from the file's exchange rate and the point's recovery
     rating = w.result.project.rating(w.result.project.cases[0].rating)
     f_n, pi, ref = (float(points.net_thrust_n[i, j]), float(points.recovery[i, j]),
                     float(points.thrust_reference_recovery[i, j]))
-    rec = next(r for r in items if r["key"] == "recovery_thrust_loss_n")
-    assert rec["value"] == pytest.approx(f_n * rating.recovery_thrust_exchange * (1 - pi / ref), rel=1e-12)
+    rec = next(r for r in items if r["key"] == "recovery_term_n")
+    assert rec["value"] == pytest.approx(-f_n * rating.recovery_thrust_exchange * (1 - pi / ref), rel=1e-12)
     for key in ("ram_drag_n", "additive_drag_n", "spillage_drag_n", "bleed_drag_n", "bypass_drag_n"):
         assert any(r["key"] == key for r in rows)
     # the take-off rating has no thrust table
