@@ -35,6 +35,7 @@ from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import WORST
 from engine_air.envelope.ranking import limiting_map, nearest_index
+from engine_air.outputs.marks import marked_points
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.sections import judged_map
 
@@ -48,7 +49,6 @@ LEAST_MARGIN = "worst_relative_margin"
 UNSTARTED_COLOUR = (200, 0, 200)  # the unstarted region's hatch and outline (magenta: seen on both arms)
 START_COLOUR = (0, 130, 130)  # the self-start Mach line (teal)
 UNSTART_COLOUR = (180, 110, 0)  # the unstart Mach line
-MAX_MARKER_AXIS = 40  # failing-point markers: at most about this many along either axis
 
 
 def _hatch_symbol():
@@ -439,11 +439,7 @@ class EnvelopeMap(QWidget):
         self.unstarted_outline.setData(xs, ys)
         self.unstarted_outline.setPen(self._pen(UNSTARTED_COLOUR, 2.4))
         # hatch: a slanted stroke on a regular subset of the unstarted points
-        ny, nx = unstarted.shape
-        stride = max(1, math.ceil(max(nx, ny) / MAX_MARKER_AXIS))
-        pattern = np.zeros_like(unstarted)
-        pattern[::stride, (stride // 2)::stride] = True
-        ii, jj = np.nonzero(unstarted & pattern)
+        ii, jj = marked_points(unstarted, half_step=True)
         self.unstarted_hatch.setData(self._x[jj], self._y[ii], symbol=_HATCH, size=12 * self._scale,
                                      pen=pg.mkPen(UNSTARTED_COLOUR, width=2.2 * self._scale), brush=None)
         # self-start and unstart Mach numbers (the same on every altitude row)
@@ -497,14 +493,7 @@ class EnvelopeMap(QWidget):
 
     def _draw_fail_marks(self, result, case) -> None:
         failing = np.asarray(result.failing(case), dtype=bool)
-        ny, nx = failing.shape
-        stride = max(1, math.ceil(max(nx, ny) / MAX_MARKER_AXIS))
-        pattern = np.zeros_like(failing)
-        pattern[::stride, ::stride] = True
-        shown = failing & pattern
-        if failing.any() and not shown.any():
-            shown = failing
-        ii, jj = np.nonzero(shown)
+        ii, jj = marked_points(failing)
         if ii.size > 4000:
             keep = np.linspace(0, ii.size - 1, 4000).astype(int)
             ii, jj = ii[keep], jj[keep]

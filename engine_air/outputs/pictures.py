@@ -36,6 +36,7 @@ import numpy as np
 
 from engine_air.envelope.evaluate import WORST, MapResult
 from engine_air.outputs import colours as C
+from engine_air.outputs.marks import marked_points
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.sections import (
     ALTITUDE,
@@ -64,7 +65,6 @@ def __getattr__(name: str):
 DPI = 100
 MAP_SIZE_IN = (8.0, 6.4)
 SECTION_SIZE_IN = (8.0, 5.2)
-MAX_MARKER_AXIS = 40  # failing-point marks: at most about this many along either axis
 MAX_NAME = 60  # characters of a case or project name shown in a title
 
 SI, US = "si", "us"
@@ -270,14 +270,7 @@ def map_figure(
     ram = _contour(ax, x, y, ratio, 1.0, colors=[_rgb(C.RAM_LINE)], linewidths=2.2, linestyles="--",
                    halo=4.5, zorder=5)
 
-    ny, nx = failing.shape
-    stride = max(1, math.ceil(max(nx, ny) / MAX_MARKER_AXIS))
-    pattern = np.zeros_like(failing)
-    pattern[::stride, ::stride] = True
-    marks = failing & pattern
-    if failing.any() and not marks.any():
-        marks = failing
-    ii, jj = np.nonzero(marks)
+    ii, jj = marked_points(failing)
     ax.scatter(x[jj], y[ii], marker="x", s=22, c=[_rgb(C.FAIL_MARK)], linewidths=1.1, zorder=6)
 
     ax.set_xlim(xe[0], xe[-1])
