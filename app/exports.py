@@ -10,7 +10,7 @@ import pyqtgraph.exporters as pgx
 import engine_air
 from engine_air.outputs.table import point_table_columns, write_point_table
 
-from .findings import finding_lines, mechanisms
+from .views.findings import finding_lines, mechanisms
 from .units import Units
 
 CSV_HEADER = point_table_columns()

@@ -40,16 +40,17 @@ from PySide6.QtWidgets import (
 from engine_air.envelope.evaluate import WORST
 from engine_air.outputs.quantities import DEFAULT_QUANTITY, QUANTITIES
 
-from . import APPLICATION, ORGANISATION, analysis, style
+from . import APPLICATION, ORGANISATION, style
+from .views import analysis
 from .about import about_html
-from .detail_panel import DetailPanel
+from .views.detail_panel import DetailPanel
 from .document import ProjectDocument
 from .editors import ProjectEditors
-from .findings import FindingsList, mechanisms
-from .inlet_sketch_view import InletSketchView
-from .map_view import EnvelopeMap
+from .views.findings import FindingsList, mechanisms
+from .views.inlet_sketch_view import InletSketchView
+from .views.map_view import EnvelopeMap
 from .recovery import AUTOSAVE_MS, RecoveryStore
-from .section_plots_view import SectionPlots
+from .views.section_plots_view import SectionPlots
 from .template import new_project
 from .units import SI, SYSTEM_LABELS, US, Units
 from .window.autosave import AutosaveActions

@@ -7,8 +7,8 @@ import pytest
 
 pytest.importorskip("pyqtgraph")
 
-from app.colour_maps import colour_map_for, levels_for  # noqa: E402
-from app.map_view import iso_line  # noqa: E402
+from app.views.colour_maps import colour_map_for, levels_for  # noqa: E402
+from app.views.map_view import iso_line  # noqa: E402
 from engine_air.outputs import colours as C  # noqa: E402
 
 

@@ -51,7 +51,7 @@ def test_findings_text_has_a_mechanism_per_row():
 
 
 def test_findings_rows_carry_their_own_mechanism_as_tooltip(qtbot):
-    from app.findings import FindingsList, mechanisms
+    from app.views.findings import FindingsList, mechanisms
 
     result = evaluate_project(_coarse(SAMPLES / "undersized_business_jet.toml"))
     view = FindingsList()

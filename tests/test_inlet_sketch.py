@@ -82,7 +82,7 @@ def test_detached_ramp_draws_a_bow_shock_normal_at_its_nose():
 
 
 def test_sketch_widget_draws_the_computed_angles(qtbot):
-    from app.inlet_sketch_view import InletSketchView
+    from app.views.inlet_sketch_view import InletSketchView
 
     project, points = _point("supersonic_two_ramp", 1.9)
     view = InletSketchView()

@@ -20,7 +20,7 @@ SAMPLES = Path(__file__).resolve().parents[1] / "sample_projects"
 
 
 def test_sections_draw_the_map_row_and_column_for_every_case(qtbot, tmp_path):
-    from app.section_plots_view import SectionPlots
+    from app.views.section_plots_view import SectionPlots
 
     project = load_project(SAMPLES / "undersized_business_jet.toml")
     result = evaluate_project(project)

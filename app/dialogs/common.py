@@ -4,21 +4,17 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QColor
 from PySide6.QtWidgets import QDoubleSpinBox, QTableWidgetItem
 
-from engine_air.outputs.pictures import DIVERGING_ANCHORS, SEQUENTIAL_ANCHORS
+from ..views.colour_maps import colour_map_for
 
 
 def colour_map(kind: str) -> pg.ColorMap:
-    """The analysis package's ramps as a pyqtgraph ColorMap (diverging for margins)."""
-    anchors = DIVERGING_ANCHORS if kind == "margin" else SEQUENTIAL_ANCHORS
-    pos = np.array([p for p, _ in anchors])
-    colours = np.array([c + (255,) for _, c in anchors], dtype=np.ubyte)
-    return pg.ColorMap(pos, colours)
+    """The map's own colour scales (one colour module for the package and the program): diverging for margins."""
+    return colour_map_for(kind)
 
 
 def plain_axes(plot) -> None:

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import QComboBox, QHBoxLayout, QHeaderView, QLabel, QTabl
 
 from engine_air.studies.compare import DIFFERENCE_QUANTITIES, compare_projects
 from engine_air.envelope.evaluate import Cancelled
-from engine_air.outputs.pictures import OUTSIDE_GREY, levels_for
+from engine_air.outputs.colours import OUTSIDE_GREY, levels_for
 from engine_air.project.toml_file import load_project
 from engine_air.outputs.quantities import QUANTITIES
 

@@ -21,7 +21,7 @@ from PySide6.QtWidgets import (
     QVBoxLayout,
 )
 
-from engine_air.outputs.pictures import levels_for
+from engine_air.outputs.colours import levels_for
 from engine_air.studies.sizing import default_search_range, design_variables, variable_label, variable_unit
 from engine_air.studies.sweep import MAX_VALUES_PER_VARIABLE, MAX_VARIABLES, sweep
 

@@ -7,7 +7,8 @@ import html
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QLabel
 
-from .. import analysis, style
+from .. import style
+from ..views import analysis
 
 STATES = ("holds", "fails", "busy", "stale")
 

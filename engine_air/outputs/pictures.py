@@ -47,21 +47,6 @@ from engine_air.outputs.sections import (
     stretches,
 )
 
-# Names kept for callers of the former raster writer; the scales themselves live in ``colours``.
-levels_for = C.levels_for
-OUTSIDE_GREY = C.OUTSIDE_GREY
-UNDEFINED_GREY = C.NOT_JUDGED_GREY
-NOT_JUDGED_GREY = C.NOT_JUDGED_GREY
-
-
-def __getattr__(name: str):
-    """``DIVERGING_ANCHORS`` / ``SEQUENTIAL_ANCHORS``: the scales as (position, (r, g, b)) stops, made on first use."""
-    if name == "DIVERGING_ANCHORS":
-        return C.anchors(C.MARGIN)
-    if name == "SEQUENTIAL_ANCHORS":
-        return C.anchors(C.LEVEL)
-    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-
 DPI = 100
 MAP_SIZE_IN = (8.0, 6.4)
 SECTION_SIZE_IN = (8.0, 5.2)

@@ -205,7 +205,7 @@ class CompareResult:
 
     def shared_levels(self, case: str, key: str) -> tuple[float, float]:
         """One colour scale for A's and B's maps of ``key`` (symmetric about 0 for margins)."""
-        from engine_air.outputs.pictures import levels_for
+        from engine_air.outputs.colours import levels_for
 
         both = np.concatenate([self.value("a", case, key).ravel(), self.value("b", case, key).ravel()])
         return levels_for(QUANTITIES[key].kind if key in QUANTITIES else "level", both)

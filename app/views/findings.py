@@ -12,7 +12,7 @@ import math
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTreeWidget, QTreeWidgetItem
 
-from .units import Units, group_digits
+from ..units import Units, group_digits
 
 COLUMNS = ["Limit", "Rule", "Verdict", "Worst value", "Worst margin", "Where (worst)", "Failing share"]
 

@@ -27,7 +27,7 @@ from engine_air.envelope import flags as F
 from engine_air.outputs import point_record as report
 from engine_air.outputs.ledger_table import NO_THRUST_DATA, has_thrust, ledger_rows
 
-from .units import Units, group_digits
+from ..units import Units, group_digits
 
 SI_ROLE = Qt.UserRole + 1
 

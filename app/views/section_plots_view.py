@@ -18,7 +18,7 @@ from engine_air.envelope.evaluate import WORST
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.sections import cut
 
-from .units import Units, dimension_of_si_unit
+from ..units import Units, dimension_of_si_unit
 
 _CASE_COLOURS = [(31, 119, 180), (214, 39, 40), (44, 160, 44), (148, 103, 189), (140, 86, 75), (23, 190, 207),
                  (188, 189, 34), (127, 127, 127)]
@@ -104,7 +104,7 @@ class SectionPlots(pg.GraphicsLayoutWidget):
 
     def export(self, path: str) -> None:
         """Write both plots to ``path`` (PNG, or SVG by the file's ending), as the map is written."""
-        from .exports import write_graphics_svg
+        from ..exports import write_graphics_svg
 
         if str(path).lower().endswith(".svg"):
             write_graphics_svg(self, path, "Sections")

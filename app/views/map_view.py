@@ -42,7 +42,7 @@ from engine_air.outputs.sections import judged_map
 from . import analysis
 from .colour_maps import NOT_JUDGED_GREY, colour_map_for, levels_for
 from .colour_maps import OUTSIDE_GREY as _OUTSIDE_RGB
-from .units import Units, dimension_of_si_unit, group_digits
+from ..units import Units, dimension_of_si_unit, group_digits
 
 OUTSIDE_GREY = "#%02x%02x%02x" % tuple(_OUTSIDE_RGB[:3])
 LEAST_MARGIN = "worst_relative_margin"
