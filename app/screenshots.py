@@ -33,23 +33,15 @@ def take(folder: str | Path) -> list[Path]:
     from PySide6.QtWidgets import QApplication
 
     from .main import DEFAULT_SAMPLE
-    from .main_window import MainWindow, apply_base_font
+    from .main_window import apply_base_font
     from engine_air.envelope.evaluate import WORST
-    from engine_air.project import load_project
 
     app = QApplication.instance() or QApplication([])
     apply_base_font(app)
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
     settings = QSettings(str(Path(tempfile.gettempdir()) / "engine_air_screenshots.ini"), QSettings.IniFormat)
-    w = MainWindow(load_project(DEFAULT_SAMPLE), DEFAULT_SAMPLE, settings=settings)
-    w.resize(1600, 1000)
-    w.show()
-    end = time.perf_counter() + 20
-    while not w.up_to_date and time.perf_counter() < end:
-        app.processEvents()
-        time.sleep(0.01)
-    _settle(app)
+    w = _open(app, DEFAULT_SAMPLE.stem, settings)
     w.set_quantity("face_mach_margin")
     w.set_case(w.result.cases[0].name)
     w.select_condition(1.8, 12000.0)
