@@ -17,7 +17,6 @@ import argparse
 import os
 import sys
 import tempfile
-import time
 from pathlib import Path
 
 import numpy as np
@@ -26,21 +25,13 @@ import tomli_w
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+from timing import best_time  # noqa: E402
 from engine_air.project import toml_file as pf  # noqa: E402
 from engine_air.project.errors import ProjectError  # noqa: E402
 from engine_air.project.load import tomllib  # noqa: E402  (tomli on Python 3.10)
 
 SAMPLES = ROOT / "sample_projects"
 PITOT = SAMPLES / "subsonic_transport_nacelle.toml"
-
-
-def _best(fn, repeats: int) -> float:
-    best = float("inf")
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t0)
-    return best
 
 
 def main(argv=None) -> int:
@@ -61,7 +52,7 @@ def main(argv=None) -> int:
             except ProjectError:
                 pass
 
-        t = _best(parse_and_refuse, repeats)
+        t = best_time(parse_and_refuse, repeats)
         print(f"worst dotted-key file   {os.path.getsize(dotted) / 1024:7.0f} KiB  {len(lines):6d} keys of "
               f"{pf.MAX_KEY_PARTS} parts  parsed and refused {t:7.3f} s")
 
@@ -73,11 +64,11 @@ def main(argv=None) -> int:
         data["envelope"] = {"mach": list(0.5 + 0.3 * np.cos(a)), "altitude_m": list(6000.0 + 5000.0 * np.sin(a))}
         circle = tmp / "circle.toml"
         circle.write_text(tomli_w.dumps(data), encoding="utf-8")
-        t = _best(lambda: pf.load_project(circle), repeats)
+        t = best_time(lambda: pf.load_project(circle), repeats)
         print(f"largest envelope        {n:7d} vertices                       load {t:7.3f} s")
 
     for path in sorted(SAMPLES.glob("*.toml")):
-        t = _best(lambda: pf.load_project(path), repeats)
+        t = best_time(lambda: pf.load_project(path), repeats)
         print(f"sample {path.stem:<28}                          load {t:7.3f} s")
     return 0
 

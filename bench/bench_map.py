@@ -33,6 +33,7 @@ sys.path.insert(0, str(HERE))
 
 import scalar_model  # noqa: E402
 
+from timing import best_time  # noqa: E402
 from engine_air.envelope.polygon import grid_axes  # noqa: E402
 from engine_air.envelope.evaluate import evaluate_project  # noqa: E402
 from engine_air.project.model import Grid  # noqa: E402
@@ -51,15 +52,6 @@ def clear_caches():
     conical.clear_cache()
     axisymmetric_spike._column.cache_clear()
     axisymmetric_spike._detached_values.cache_clear()
-
-
-def best_time(fn, repeats):
-    best = float("inf")
-    for _ in range(repeats):
-        t = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t)
-    return best
 
 
 def main(argv=None):

@@ -15,12 +15,12 @@ import argparse
 import dataclasses
 import pathlib
 import sys
-import time
 
 
 ROOT = pathlib.Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
+from timing import best_time  # noqa: E402
 from engine_air.envelope.evaluate import evaluate_project  # noqa: E402
 from engine_air.envelope.polygon import grid_axes  # noqa: E402
 from engine_air.inlets.mixed_compression import started_accelerating  # noqa: E402
@@ -28,15 +28,6 @@ from engine_air.project.model import Case, Grid  # noqa: E402
 from engine_air.project.toml_file import load_project  # noqa: E402
 
 GOAL = 3.0
-
-
-def best_time(fn, repeats):
-    best = float("inf")
-    for _ in range(repeats):
-        t = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t)
-    return best
 
 
 def main(argv=None):
