@@ -213,7 +213,7 @@ def _bypass(inlet, open_, needed, throat_room, duct_total_pressure, total_temper
     return flow, bits | np.where(open_ & short, F.BYPASS_INSUFFICIENT, 0)
 
 
-def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> OperatingPoints:
+def evaluate_conditions(project: Project, case: Case, mach, altitude_m, corrected_flow=None) -> OperatingPoints:
     """Evaluate the inlet-engine match of ``project`` for ``case`` at flight Mach ``mach`` and
     geopotential altitude ``altitude_m`` (m). Arrays broadcast; returns arrays of the common shape.
 
@@ -255,7 +255,11 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
 
         # 2. demand
         theta2 = tt0 / T_REF
-        wc2, extrapolated = corrected_flow_demand(rating, theta2)
+        if corrected_flow is None:
+            wc2, extrapolated = corrected_flow_demand(rating, theta2)
+        else:  # a demand swept by the caller (the characteristic, method §16)
+            wc2 = np.broadcast_to(np.asarray(corrected_flow, float), np.broadcast_shapes(np.shape(corrected_flow), shape))
+            extrapolated = np.zeros(np.shape(wc2), bool)
         bits |= np.where(extrapolated & atm.inside_model, F.DEMAND_EXTRAPOLATED, 0)
 
         # 3. face Mach from corrected flow per unit area
