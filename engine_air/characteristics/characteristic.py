@@ -78,24 +78,41 @@ def model_sweep(project, case, mach: float, altitude_m: float, points: int = SWE
     return evaluate_conditions(project, case, m, np.float64(altitude_m), corrected_flow=wc2)
 
 
-def _critical(mfr: np.ndarray, rec: np.ndarray, mfr_max: float) -> float:
-    """The highest recovery within 0.5 % of MFR_max (the same rule as for data, §17)."""
-    near = np.isfinite(mfr) & (mfr >= 0.995 * mfr_max)
-    return float(rec[near].max()) if near.any() else float("nan")
+def subcritical_branch(ops) -> tuple[np.ndarray, np.ndarray, float, float]:
+    """(MFR, π) along the sweep below the critical point, closed by the critical point itself, and
+    (MFR_max, π_crit).
+
+    Points where the captured flow is held (supercritical, or a choked throat) are left out; the critical
+    recovery is the branch carried on linearly from its last two points to MFR_max (the sweep is dense: the
+    last point lies within about 1 % of it)."""
+    from engine_air.envelope import flags as F
+
+    mfr, rec = np.asarray(ops.mass_flow_ratio, float), np.asarray(ops.recovery, float)
+    held = (np.asarray(ops.regime) == 3) | ((np.asarray(ops.flags) & F.THROAT_CHOKED) != 0)
+    finite_max = np.asarray(ops.max_mass_flow_ratio, float)
+    mfr_max = float(np.nanmax(finite_max)) if np.isfinite(finite_max).any() else float("nan")
+    keep = np.isfinite(mfr) & np.isfinite(rec) & ~held & (mfr < mfr_max * (1.0 - 1e-9))  # held at MFR_max: out
+    x, y = mfr[keep], rec[keep]
+    if len(x) >= 2 and np.isfinite(mfr_max):
+        slope = (y[-1] - y[-2]) / (x[-1] - x[-2])
+        crit = float(y[-1] + slope * (mfr_max - x[-1]))
+        x, y = np.append(x, mfr_max), np.append(y, crit)
+    else:
+        crit = float(y[-1]) if len(y) else float("nan")
+    return x, y, mfr_max, crit
 
 
 def model_curve(project, case, mach: float, altitude_m: float, points: int = SWEEP_POINTS) -> Curve:
     """The model's characteristic at one condition, in the order of the sweep (demand rising)."""
     ops = model_sweep(project, case, mach, altitude_m, points)
     mfr, rec = np.asarray(ops.mass_flow_ratio, float), np.asarray(ops.recovery, float)
-    mfr_max = float(np.nanmax(ops.max_mass_flow_ratio)) if np.isfinite(ops.max_mass_flow_ratio).any() else np.nan
+    _, _, mfr_max, crit = subcritical_branch(ops)
     stability = None
     fraction = project.limits.stable_flow_fraction
     oblique = getattr(ops, "oblique_ahead_of_cowl", None)
     if mach > 1.0 and fraction is not None and oblique is not None and bool(np.any(oblique)):
         stability = fraction * mfr_max
-    return Curve(float(mach), float(altitude_m), case.name, "model", mfr, rec, mfr_max,
-                 _critical(mfr, rec, mfr_max), stability)
+    return Curve(float(mach), float(altitude_m), case.name, "model", mfr, rec, mfr_max, crit, stability)
 
 
 def data_curve(curves, mach: float, alpha_deg: float, beta_deg: float, altitude_m: float, case_name: str):

@@ -187,7 +187,7 @@ def _check_bounds(path: str, name: str, values: np.ndarray) -> None:
 
 
 def _check_duplicates(path: str, columns: dict[str, np.ndarray], n: int) -> None:
-    keys = np.stack([columns.get(c, np.zeros(n)) for c in ("mach", "alpha_deg", "beta_deg", "mass_flow_ratio")],
+    keys = np.stack([columns.get(c, np.zeros(n)) for c in ("mach", "alpha_deg", "beta_deg", "mass_flow_ratio", "recovery")],
                     axis=1)
     order = np.lexsort(keys.T[::-1])
     same = np.all(keys[order][1:] == keys[order][:-1], axis=1)
@@ -195,7 +195,7 @@ def _check_duplicates(path: str, columns: dict[str, np.ndarray], n: int) -> None
         i = int(np.flatnonzero(same)[0])
         first, second = sorted((int(order[i]) + 1, int(order[i + 1]) + 1))
         raise ProjectError(path, f"row {second}", None,
-                           f"repeats row {first} (same mach, alpha_deg, beta_deg and mass_flow_ratio): "
+                           f"repeats row {first} (same mach, alpha_deg, beta_deg, mass_flow_ratio and recovery): "
                            "each point of a curve must appear once")
 
 
