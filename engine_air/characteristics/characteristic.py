@@ -125,7 +125,9 @@ def data_curve(curves, mach: float, alpha_deg: float, beta_deg: float, altitude_
     at = locate(curves, np.array([mach]), alpha_deg, beta_deg)
     if not bool(at.covered[0]):
         return None
-    grid = curves.fraction_grid[curves.fraction_grid >= at.min_fraction[0] - 1e-12]
+    neighbours = at.index[0][at.weight[0] > 0.0]
+    grid = np.unique(np.concatenate([curves.nodes[i] for i in neighbours]))
+    grid = grid[grid >= at.min_fraction[0] - 1e-12]  # the neighbours' own points: every kink of the blend
     rec = recovery_at(at, grid)  # the one located condition broadcast along the fraction grid
     crit_mfr, crit_rec = float(at.critical_mass_flow_ratio[0]), float(at.critical_recovery[0])
     tail = np.linspace(crit_rec, 0.7 * crit_rec, 8)[1:]

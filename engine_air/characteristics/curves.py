@@ -52,6 +52,8 @@ class Curves:
     recovery: np.ndarray  # (n_curves, k), NaN below min_fraction
     extra: dict[str, np.ndarray] = field(default_factory=dict)  # other columns on the grid, same shape
     rows: tuple[np.ndarray, ...] = ()  # the table's row indices of each curve
+    table: object = field(default=None, repr=False, compare=False)  # the CharacteristicsTable read
+    nodes: tuple[np.ndarray, ...] = ()  # each curve's own branch fractions, closed by 1 (for display)
 
     @property
     def count(self) -> int:
@@ -122,4 +124,5 @@ def find_curves(table) -> Curves:
             column = table.columns[name]
             extra[name][i, inside] = np.interp(grid[inside], f, np.append(column[orders[i]], column[best]))
     return Curves(keys[:, 0], keys[:, 1], keys[:, 2], np.array(crit), np.array(crit_rec), np.array(stab),
-                  np.array(fmin), grid, recovery, extra, tuple(rows))
+                  np.array(fmin), grid, recovery, extra, tuple(rows), table,
+                  tuple(np.append(f, 1.0) for f in fracs))

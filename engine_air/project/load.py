@@ -169,6 +169,8 @@ def check_value(r: _Reader, f: Field, value: object, keypath: str):
         if too_low or too_high:
             r.fail(keypath, value, f"must be {f.allowed_text()}")
         return x
+    if k == "number or Mach table":
+        return _number_or_mach_table(r, f, value, keypath)
     if k == "number list":
         items = _sequence(r, f, value, keypath, "a list of numbers")
         out = tuple(_number(r, f, v, f"{keypath}[{i}]", f.key) for i, v in enumerate(items))
@@ -185,6 +187,27 @@ def check_value(r: _Reader, f: Field, value: object, keypath: str):
             out.append(tuple(_number(r, f, v, f"{keypath}[{i}][{j}]", f.key) for j, v in enumerate(row)))
         return tuple(out)
     raise AssertionError(f"unknown kind {k!r} of {f.path}")
+
+
+def _number_or_mach_table(r: _Reader, f: Field, value: object, keypath: str):
+    """A number, or ``{ mach = [...], deg = [...] }`` (two lists, or the pair of tuples a Project holds)."""
+    if isinstance(value, tuple) and len(value) == 2 and all(isinstance(v, (list, tuple)) for v in value):
+        value = {"mach": list(value[0]), "deg": list(value[1])}
+    if not isinstance(value, dict):
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            r.fail(keypath, value, f"must be {f.allowed_text()}, not {_kind(value)}")
+        return _number(r, f, value, keypath, f.key)
+    if set(value) != {"mach", "deg"}:
+        r.fail(keypath, value, f"must be {f.allowed_text()}; the table has the keys {', '.join(map(str, value))}")
+    machs = _sequence(r, f, value["mach"], f"{keypath}.mach", "a list of numbers")
+    degs = _sequence(r, f, value["deg"], f"{keypath}.deg", "a list of numbers")
+    mach_field = Field("mach", f.table, "number list", "", lo=0.0, hi=S.MAX_MACH, order="increasing")
+    m = tuple(_number(r, mach_field, v, f"{keypath}.mach[{i}]", "mach") for i, v in enumerate(machs))
+    d = tuple(_number(r, f, v, f"{keypath}.deg[{i}]", "deg") for i, v in enumerate(degs))
+    _ordered(r, mach_field, m, f"{keypath}.mach")
+    if len(m) < 2 or len(m) != len(d):
+        r.fail(keypath, value, f"must be {f.allowed_text()}")
+    return (m, d)
 
 
 def _format(r: _Reader, fmt: object) -> int:
@@ -382,7 +405,7 @@ def project_from_dict(data: dict, path: str | os.PathLike | None = None) -> Proj
     r = _Reader(path)
     if not isinstance(data, dict):
         r.fail("(file)", data, f"must be a table of project tables, not {_kind(data)}")
-    top = ("project", "limits", "inlet", "engine", "envelope", "grid", "case")
+    top = ("project", "limits", "inlet", "engine", "envelope", "grid", "case", "characteristics")
     for name in data:
         if name not in top:
             hint = S.suggestion(name, top)
@@ -400,8 +423,10 @@ def project_from_dict(data: dict, path: str | os.PathLike | None = None) -> Proj
     items = _table_array(r, data, "case", "case")
     _case_count(r, len(items), grid)
     cases = _read_rows(r, items, "case", Case)
+    data_table = _read_plain(r, data, "characteristics", None, False)
     project = Project(limits=limits, inlet=inlet, ratings=ratings, envelope=envelope, grid=grid, cases=cases,
-                      title=meta["title"], notes=meta["notes"], format=meta["format"])
+                      title=meta["title"], notes=meta["notes"], format=meta["format"],
+                      characteristics_file=None if data_table is None else data_table["file"])
     _project_rules(r, project)
     return dataclasses.replace(project, warnings=tuple(r.warnings))
 
@@ -665,4 +690,17 @@ def load_project(path: str | os.PathLike) -> Project:
         line = raw[: exc.start].count(b"\n") + 1
         raise ProjectError(p, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
                                               "cannot be decoded; save the file as UTF-8") from exc
-    return loads_project(text, p)
+    return with_characteristics(loads_project(text, p), p)
+
+
+def with_characteristics(project: Project, path: str | os.PathLike) -> Project:
+    """The project with its characteristics table read (``[characteristics] file``, relative to ``path``'s
+    folder); unchanged without one. ``ProjectError`` names the table file, row and column of a bad cell."""
+    if project.characteristics_file is None:
+        return project
+    from engine_air.characteristics.curves import find_curves
+    from engine_air.characteristics.table import read_characteristics
+
+    folder = os.path.dirname(os.path.abspath(os.fspath(path)))
+    table_path = os.path.join(folder, project.characteristics_file)
+    return dataclasses.replace(project, characteristics=find_curves(read_characteristics(table_path)))

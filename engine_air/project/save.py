@@ -52,9 +52,20 @@ def project_to_dict(project: Project) -> dict:
         "engine": {"rating": [_body(x, S.RATING_FIELDS) for x in project.ratings]},
         "envelope": _body(project.envelope, S.ENVELOPE_FIELDS),
         "grid": _body(project.grid, S.GRID_FIELDS, keep_defaults=True),  # the resolution is always shown
-        "case": [_body(c, S.CASE_FIELDS) for c in project.cases],
+        "case": [_incidence_tables(_body(c, S.CASE_FIELDS)) for c in project.cases],
     }
+    if project.characteristics_file is not None:
+        out["characteristics"] = {"file": project.characteristics_file}
     return out
+
+
+def _incidence_tables(body: dict) -> dict:
+    """An incidence held as (mach list, deg list) is written as the inline table { mach = [...], deg = [...] }."""
+    for key in ("angle_of_attack_deg", "sideslip_deg"):
+        value = body.get(key)
+        if isinstance(value, list):
+            body[key] = {"mach": value[0], "deg": value[1]}
+    return body
 
 
 _HEADER = "# engine-air project file. SI units: m, m^2, kg/s, m/s, K; angles in degrees. Keys: docs/project-file.md"
@@ -63,6 +74,8 @@ _ITEMS_PER_LINE = 8
 
 def _toml_value(value: object) -> str:
     """One TOML value: scalars formatted by ``tomli_w``, lists written inline (wrapped when long)."""
+    if isinstance(value, dict):
+        return "{ " + ", ".join(f"{k} = {_toml_value(v)}" for k, v in value.items()) + " }"
     if isinstance(value, (list, tuple)):
         items = [_toml_value(v) for v in value]
         if len(items) <= _ITEMS_PER_LINE and sum(len(x) for x in items) < 100:
@@ -80,7 +93,8 @@ def dumps_project(project: Project) -> str:
 
     def table(header: str, body: dict) -> None:
         out.append(header)
-        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items() if not isinstance(value, dict))
+        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items()
+                   if not isinstance(value, dict) or header == "[[case]]")
         out.append("")
 
     table("[project]", d["project"])
@@ -94,6 +108,8 @@ def dumps_project(project: Project) -> str:
     table("[grid]", d["grid"])
     for item in d["case"]:
         table("[[case]]", item)
+    if "characteristics" in d:
+        table("[characteristics]", d["characteristics"])
     return "\n".join(out)
 
 

@@ -13,7 +13,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-KINDS = ("number", "integer", "text", "boolean", "number list", "number table", "number or name", "choice")
+KINDS = ("number", "integer", "text", "boolean", "number list", "number table", "number or name", "choice",
+         "number or Mach table")
 
 
 @dataclass(frozen=True)
@@ -108,6 +109,10 @@ class Field:
         if k == "number or name":
             names = " or ".join(f'"{n}"' for n in self.names)
             return f"a finite number with {self.bounds_text()}, or the name {names}"
+        if k == "number or Mach table":
+            return (f"a finite number with {self.bounds_text()}, or a table {{ mach = [...], deg = [...] }} of at "
+                    "least 2 entries each, as many deg as mach, mach from 0 to 6 strictly increasing, each deg with "
+                    f"{self.bounds_text('deg')}")
         entries = self.bounds_text("each entry" if k == "number list" else "each value")
         shape = ""
         if self.length is not None:
