@@ -340,3 +340,57 @@ def test_optimum_judges_the_named_limits_too():
     assert best.value is not None and best.success
     assert best.worst.check in ("face-mach", "spillage")
     assert math.isfinite(best.objective_value)
+
+
+# -- the program: the limits editor and the sizing dialog -----------------------------------------------------------
+
+def test_the_limits_editor_sets_a_region_per_limit(qtbot):
+    from app.editors import ProjectEditors
+    from engine_air.envelope.check_names import CHECK_NAMES
+
+    e = ProjectEditors()
+    qtbot.addWidget(e)
+    e.set_project(project([tip_region(altitude_range_m=LOW)]))
+    t = e.region_table
+    row = CHECK_NAMES.index("relative-tip-mach")
+    assert t.rowCount() == len(CHECK_NAMES) and t.item(row, 0).text() == "relative-tip-mach"
+    assert t.item(row, 1).text() == "" and float(t.item(row, 4).text()) == pytest.approx(3000.0)
+    face = CHECK_NAMES.index("face-mach")
+    t.item(face, 1).setText("0.3")
+    assert "give both bounds" in e.last_error()  # one bound alone is refused, the project is kept
+    assert e.project.limits.region("face-mach") is None
+    t.item(face, 2).setText("0.8")
+    assert e.project.limits.region("face-mach") == LimitRegion("face-mach", mach_range=(0.3, 0.8))
+    assert e.project.limits.region("relative-tip-mach").altitude_range_m == LOW  # the other row kept exactly
+    t.item(face, 2).setText("0.2")  # lower above upper: refused by the file's rules
+    assert "must not be less than" in e.last_error()
+    assert e.project.limits.region("face-mach").mach_range == (0.3, 0.8)
+    t.item(face, 2).setText("0.8")  # every row is read: the refused cell is put right first
+    for c in (3, 4):
+        t.item(row, c).setText("")
+    assert e.project.limits.region("relative-tip-mach") is None  # both blank: judged everywhere
+
+
+def test_the_sizing_dialog_judges_the_limits_ticked(qtbot):
+    from app.dialogs.sizing import SizingDialog
+
+    d = SizingDialog(tip_bound_project())
+    qtbot.addWidget(d)
+    assert list(d.limit_checks) == list(S.project_check_names(tip_bound_project()))
+    assert d.chosen_limits() is None  # all ticked: every limit
+    d.variable.setCurrentIndex(d.variable.findData("capture_area_m2"))
+    d.lower.setValue(0.6)
+    d.upper.setValue(2.0)
+    d.scan.setValue(5)
+    for name, box in d.limit_checks.items():
+        box.setChecked(name == "face-mach")
+    assert d.chosen_limits() == ("face-mach",)
+    d.start()
+    qtbot.waitUntil(lambda: not d.running, timeout=30000)
+    sizing, _best = d.result
+    assert d.last_error == "" and sizing.feasible and sizing.limits == ("face-mach",)
+    assert "Limits judged: only face-mach." in d.text.toPlainText()
+    for box in d.limit_checks.values():
+        box.setChecked(False)
+    d.start()
+    assert "tick at least one limit" in d.last_error
