@@ -139,13 +139,28 @@ def test_a_region_covering_nothing_is_not_judged_anywhere_never_holds(tmp_path, 
     assert main(["check", str(path)]) == 0
     out = capsys.readouterr().out
     tip_line = next(line for line in out.splitlines() if line.startswith("Blade relative tip Mach"))
-    assert "not judged anywhere" in tip_line and "holds" not in tip_line
+    assert "not judged anywhere: outside its region (limits.region.relative-tip-mach)" in tip_line
+    assert "holds" not in tip_line
     verdict = next(line for line in out.splitlines() if line.startswith("VERDICT"))
     assert f"all {len(result.summary)} limits" not in verdict
     assert f"all {len(result.summary) - 1} limits hold" in verdict and "not judged anywhere" in verdict
     # without the region the same project fails: exit 1
     save_project(project(), tmp_path / "everywhere.toml")
     assert main(["check", str(tmp_path / "everywhere.toml")]) == 1
+
+
+def test_a_check_that_applies_nowhere_without_a_region_is_not_judged_anywhere_either(tmp_path, capsys):
+    # the MIL-E-5008B recovery check applies in supersonic flight only (method section 8); this envelope ends at
+    # Mach 0.9, so it is judged nowhere: that is said, with the reason, and it is not counted as holding
+    p = project(recovery_min="mil-e-5008b", relative_tip_mach_max=None)
+    result = evaluate_project(p)
+    rec = next(s for s in result.summary if s.name == "recovery")
+    assert rec.holds is None and rec.verdict == NOT_JUDGED
+    save_project(p, tmp_path / "subsonic.toml")
+    assert main(["check", str(tmp_path / "subsonic.toml")]) == 0
+    out = capsys.readouterr().out
+    line = next(x for x in out.splitlines() if x.startswith("Recovery"))
+    assert "not judged anywhere: the check applies at no envelope point" in line
 
 
 def test_the_review_pack_names_a_limit_judged_nowhere(tmp_path):

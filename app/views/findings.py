@@ -43,7 +43,7 @@ def finding_lines(summary, units: Units, mechanism_texts=None) -> list[str]:
         line = (f"{s.label} [{s.limit_text}]: {verdict}; worst value {value} (margin {margin}) at "
                 f"{where_text(s, units)}; fails at {100 * s.failing_share:.1f} % of envelope points")
         if not s.judged:
-            line = f"{s.label} [{s.limit_text}]: {verdict} (outside its region at every envelope point)"
+            line = f"{s.label} [{s.limit_text}]: {verdict} (judged at no envelope point)"
         if mechanism_texts is not None and k < len(mechanism_texts) and mechanism_texts[k]:
             line += f"; mechanism: {mechanism_texts[k]}"
         lines.append(line)
@@ -86,8 +86,8 @@ class FindingsList(QTreeWidget):
                 f.setItalic(True)
                 item.setFont(2, f)
                 item.setForeground(2, Qt.darkGray)
-                item.setToolTip(2, "Outside its region (limits.region) at every envelope point: judged nowhere, "
-                                   "so neither holding nor failing")
+                item.setToolTip(2, "Judged at no envelope point (outside its region, limits.region, or where the "
+                                   "check never applies): neither holding nor failing")
             if s.fails:
                 f = item.font(2)
                 f.setBold(True)

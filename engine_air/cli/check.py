@@ -16,7 +16,7 @@ def add_parser(sub) -> None:
 
 
 def run(args) -> int:
-    from engine_air.envelope.evaluate import evaluate_project, verdict_text
+    from engine_air.envelope.evaluate import evaluate_project, not_judged_reason, verdict_text
     from engine_air.envelope.explain import mechanism
     from engine_air.envelope.ranking import nearest_index
     from engine_air.flow.match import REGIMES
@@ -40,7 +40,7 @@ def run(args) -> int:
     failing = []
     for s in result.summary:
         if not s.judged:
-            out(f"{s.label:<40} {s.limit_text:<28} {s.verdict}: outside its region at every envelope point")
+            out(f"{s.label:<40} {s.limit_text:<28} {s.verdict}: {not_judged_reason(project, s)}")
             continue
         out(
             f"{s.label:<40} {s.limit_text:<28} {s.verdict:<7} {fmt(s.worst_value):>8} "

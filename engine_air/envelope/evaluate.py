@@ -177,10 +177,19 @@ def verdict_text(result: MapResult, names: str = "label") -> str:
         text = "no limit is judged anywhere in the envelope."
     if unjudged:
         one = len(unjudged) == 1
-        text += (f" {len(unjudged)} limit{' is' if one else 's are'} not judged anywhere (outside "
-                 f"{'its region' if one else 'their regions'} at every envelope point): "
-                 + ", ".join(getattr(s, names) for s in unjudged) + ".")
+        text += (f" {len(unjudged)} limit{' is' if one else 's are'} not judged anywhere (at no envelope point "
+                 f"does {'it' if one else 'any of them'} apply): " + ", ".join(getattr(s, names) for s in unjudged)
+                 + ".")
     return text
+
+
+def not_judged_reason(project: Project, summary: LimitSummary) -> str:
+    """Why a limit is judged nowhere: outside its region (``[limits.region.NAME]``) at every envelope point, or
+    nowhere in the envelope where the check applies at all (e.g. a supersonic-only check over a subsonic
+    envelope)."""
+    if project.limits.region(summary.name) is not None:
+        return "outside its region (limits.region." + summary.name + ") at every envelope point"
+    return "the check applies at no envelope point"
 
 
 def check_grid_size(project: Project, n_cases: int | None = None) -> None:
