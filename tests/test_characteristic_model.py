@@ -78,10 +78,10 @@ def test_stability_boundary_where_buzz_is_judged():
 
 def test_calibration_recovers_the_known_parameters():
     """The invented sample table was made from the model with duct_loss_coefficient 0.07 and stable_flow_fraction
-    0.80 plus noise of 0.002 on recovery (sample_projects/make_tunnel_characteristics.py): the fit starts from the
+    0.80 plus noise of 0.002 on recovery (sample_projects/tunnel_data/make_tunnel_characteristics.py): the fit starts from the
     project's 0.04 and 0.65 and must come back within three standard errors, with residuals at the noise level."""
     project = load_project(SAMPLES / "supersonic_two_ramp.toml")
-    table = read_characteristics(SAMPLES / "tunnel_characteristics.csv")
+    table = read_characteristics(SAMPLES / "tunnel_data" / "tunnel_characteristics.csv")
     result = calibrate(project, table, ["duct_loss_coefficient", "stable_flow_fraction"])
     k, k_err = result.fitted["duct_loss_coefficient"]
     f, f_err = result.fitted["stable_flow_fraction"]

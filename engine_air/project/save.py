@@ -118,6 +118,19 @@ def dumps_project(project: Project) -> str:
     return "\n".join(out)
 
 
+def table_path_from(project: Project, path: str | os.PathLike) -> Project:
+    """The project with its characteristics table named relative to ``path``'s folder (Save As to another
+    folder keeps pointing at the same table); unchanged when no table was read."""
+    table = getattr(project.characteristics, "table", None)
+    if project.characteristics_file is None or table is None:
+        return project
+    import dataclasses
+
+    folder = os.path.dirname(os.path.abspath(os.fspath(path)))
+    relative = os.path.relpath(os.path.abspath(table.path), folder).replace(os.sep, "/")
+    return dataclasses.replace(project, characteristics_file=relative)
+
+
 def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False) -> None:
     """Write ``project`` to ``path`` atomically (``write_bytes_atomic``).
 
@@ -129,6 +142,6 @@ def save_project(project: Project, path: str | os.PathLike, overwrite_read_only:
         raise ProjectSaveError(os.fspath(path), "the file is read-only; it was not replaced (save under another "
                                                 "name, or make the file writable first)", errno.EACCES)
     try:
-        write_bytes_atomic(path, dumps_project(project).encode("utf-8"))
+        write_bytes_atomic(path, dumps_project(table_path_from(project, path)).encode("utf-8"))
     except OSError as exc:
         raise ProjectSaveError(os.fspath(path), exc.strerror or str(exc), exc.errno) from exc

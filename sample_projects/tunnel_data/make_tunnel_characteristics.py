@@ -1,14 +1,14 @@
-"""Make the invented characteristics table of ``tunnel_data_two_ramp.toml`` (run from the repo root).
+"""Make the invented characteristics table of ``two_ramp_with_tunnel_data.toml`` (run from the repo root).
 
 Invented data, documented as such: no wind tunnel produced them. They come from engine_air's own model of the
-two-ramp inlet of ``supersonic_two_ramp.toml`` with *known* parameters that differ from the project's
+two-ramp inlet of ``../supersonic_two_ramp.toml`` with *known* parameters that differ from the project's
 (duct_loss_coefficient 0.07 instead of 0.04, stable_flow_fraction 0.80 instead of 0.65), sampled along each
 characteristic at fractions 0.50-1.00 of the critical mass-flow ratio, then three supercritical points, plus
 Gaussian noise of standard deviation 0.002 on recovery (seed 20261203). Two curves at 4 deg angle of attack have
 their recovery lowered by an invented 0.6 % per degree. A test calibrates the table back and must recover the
 known parameters within the noise.
 
-    python sample_projects/make_tunnel_characteristics.py
+    python sample_projects/tunnel_data/make_tunnel_characteristics.py
 """
 
 from __future__ import annotations
@@ -20,7 +20,7 @@ import sys
 import numpy as np
 
 HERE = pathlib.Path(__file__).resolve().parent
-sys.path.insert(0, str(HERE.parent))
+sys.path.insert(0, str(HERE.parent.parent))
 
 TRUE_DUCT_LOSS = 0.07
 TRUE_STABLE_FRACTION = 0.80
@@ -56,7 +56,7 @@ def rows(project, rng):
 def main() -> None:
     from engine_air.project.toml_file import load_project
 
-    project = load_project(HERE / "supersonic_two_ramp.toml")
+    project = load_project(HERE.parent / "supersonic_two_ramp.toml")
     rng = np.random.default_rng(SEED)
     lines = ["mach,alpha_deg,mass_flow_ratio,recovery,stable"]
     for mach, alpha, mfr, rec, stable in rows(project, rng):
