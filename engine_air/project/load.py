@@ -37,6 +37,7 @@ from engine_air.project.model import (
     Project,
     Rating,
     Schedule,
+    Stability,
 )
 from engine_air.project.schema_field import Field, finite_float
 
@@ -184,7 +185,30 @@ def check_value(r: _Reader, f: Field, value: object, keypath: str):
                 r.fail(f"{keypath}[{i}]", list(row), "must have at least 1 entry; it has 0")
             out.append(tuple(_number(r, f, v, f"{keypath}[{i}][{j}]", f.key) for j, v in enumerate(row)))
         return tuple(out)
+    if k == "named numbers":
+        return _named_numbers(r, f, value, keypath)
     raise AssertionError(f"unknown kind {k!r} of {f.path}")
+
+
+def _named_numbers(r: _Reader, f: Field, value: object, keypath: str) -> tuple[tuple[str, float], ...]:
+    """A TOML table of name = number (or the (name, number) pairs of a ``Project``) as pairs in order."""
+    if isinstance(value, dict):
+        items = list(value.items())
+    elif isinstance(value, (list, tuple)) and all(isinstance(x, (list, tuple)) and len(x) == 2 for x in value):
+        items = [tuple(x) for x in value]
+    else:
+        r.fail(keypath, value, f"must be {f.allowed_text()}, not {_kind(value)}")
+    most = f.length[1] if f.length else None
+    if most is not None and len(items) > most:
+        r.fail(keypath, len(items), f"must have at most {most} names; it has {len(items)}")
+    seen = set()
+    for name, _x in items:
+        if not isinstance(name, str) or not name.strip():
+            r.fail(keypath, name, "each name must be non-empty text")
+        if name in seen:
+            r.fail(f"{keypath}.{name}", name, "each name once")
+        seen.add(name)
+    return tuple((name, _number(r, f, x, f"{keypath}.{name}", name)) for name, x in items)
 
 
 def _format(r: _Reader, fmt: object) -> int:
@@ -358,10 +382,22 @@ def _read_rows(r: _Reader, items: list[dict], table_name: str, cls):
     out = []
     for i, t in enumerate(items):
         kp = f"{table_name}[{i}]"
-        _unknown(r, t, kp, [f.key for f in flds], header=f"[[{table_name}]]")
+        _unknown(r, t, kp, [f.key for f in flds], S.subtables(table_name), header=f"[[{table_name}]]")
         values, _given = _read_fields(r, t, flds, kp)
+        if "stability" in S.subtables(table_name) and "stability" in t:
+            values["stability"] = _read_stability(r, t, f"{kp}.stability")
         out.append(cls(**_dataclass_kwargs(cls, values)))
     return tuple(out)
+
+
+def _read_stability(r: _Reader, t: dict, keypath: str) -> Stability:
+    """``[engine.rating.stability]`` below one rating (method §18)."""
+    s = _table(r, t, "stability", keypath, False)
+    flds = S.fields("engine.rating.stability")
+    _unknown(r, s, keypath, [f.key for f in flds], header="[engine.rating.stability]")
+    values, _given = _read_fields(r, s, flds, keypath)
+    values["other_losses"] = values["other_losses"] or ()
+    return Stability(**_dataclass_kwargs(Stability, values))
 
 
 def _read_plain(r: _Reader, data: dict, table_name: str, cls, required: bool):
@@ -462,6 +498,8 @@ def validate_project(project: Project, path: str | os.PathLike | None = None) ->
         r.fail("engine.rating", [], "at least one [[engine.rating]] table is required")
     for i, rating in enumerate(project.ratings):
         _check_object(r, rating, S.RATING_FIELDS, f"engine.rating[{i}]")
+        if rating.stability is not None:
+            _check_object(r, rating.stability, S.fields("engine.rating.stability"), f"engine.rating[{i}].stability")
     _check_object(r, project.envelope, S.ENVELOPE_FIELDS, "envelope")
     _check_object(r, project.grid, S.GRID_FIELDS, "grid")
     if not project.cases:
