@@ -75,9 +75,14 @@ def _write(args, assessment) -> None:
         from engine_air.distortion.pictures import write_distortion_png
 
         try:
-            write_distortion_png(assessment, args.png)
+            write_distortion_png(assessment, args.png, _minimum(args))
         except OSError as exc:
             raise write_error(args.png, "picture", exc) from exc
+
+
+def _minimum(args):
+    project = getattr(args, "loaded_project", None)
+    return None if project is None else project.limits.surge_margin_min
 
 
 def run(args) -> int:
@@ -95,6 +100,7 @@ def run(args) -> int:
         if getattr(args, option):
             check_output_path(getattr(args, option), "--" + option.replace("_", "-"))
     project = load(args.project) if args.project is not None else None
+    args.loaded_project = project
     rakes = read_rake_set(args.rakes)
     assessment = assess(reduce_rakes(rakes, args.sector_deg), project, args.rating, args.project)
     _write(args, assessment)
