@@ -105,7 +105,7 @@ def draw_stack_up(ax, available: float, loss: float, other: tuple[tuple[str, flo
         ax.legend(loc="upper right", fontsize=8)
     ax.set_xticks(x)
     ax.set_xticklabels(names, fontsize=8)
-    ax.set_ylabel("surge margin (fraction of surge pressure ratio)", fontsize=8)
+    ax.set_ylabel("surge margin\n(fraction of PR_surge)", fontsize=8)
     ax.set_title(title, fontsize=9)
 
 
