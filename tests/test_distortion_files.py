@@ -122,3 +122,13 @@ def test_rows_in_any_order_give_the_same_descriptors(tmp_path):
     a = read_rake_set(write(tmp_path, [HEADER] + rows, "a.csv"))
     b = read_rake_set(write(tmp_path, [HEADER] + rows[::-1], "b.csv"))
     assert np.array_equal(a.groups[0].pressure_pa, b.groups[0].pressure_pa)
+
+
+def test_the_fast_and_the_careful_csv_paths_agree(tmp_path):
+    rows = good_rows(rings=3, n=8, extra=",0.5")
+    fast = read_rake_set(write(tmp_path, [HEADER + ",face_mach"] + rows, "fast.csv"))  # contiguous rows
+    careful = read_rake_set(write(tmp_path, [HEADER + ",face_mach"] + rows[:5] + ["# a comment", ""] + rows[5:],
+                                  "careful.csv"))
+    assert fast.labels == careful.labels
+    assert np.array_equal(fast.groups[0].pressure_pa, careful.groups[0].pressure_pa)
+    assert np.array_equal(fast.point_columns["face_mach"], careful.point_columns["face_mach"])

@@ -101,8 +101,8 @@ def _check_columns(raw: RawColumns) -> None:
 
 
 def _check_values(raw: RawColumns) -> None:
-    labels = raw.columns["point"]
-    blank = np.asarray([not str(x).strip() for x in labels], bool)
+    labels = raw.columns["point"].astype(str)
+    blank = labels == ""
     if blank.any():
         raise ProjectError(raw.path, raw.where(int(np.argmax(blank)), "point"), None, "is empty; a point label is needed")
     for name, values in raw.columns.items():
@@ -229,4 +229,4 @@ def rake_set_from_columns(raw: RawColumns) -> RakeSet:
 
 def read_rake_set(path) -> RakeSet:
     """Read and check the rake file at ``path`` (CSV or Parquet); ``ProjectError`` on any broken rule."""
-    return rake_set_from_columns(read_rake_columns(path))
+    return rake_set_from_columns(read_rake_columns(path, tuple(COLUMNS)))

@@ -27,7 +27,7 @@ PARQUET_MAGIC = b"PAR1"
 
 @dataclass(frozen=True)
 class RawColumns:
-    """The columns of a rake file: text column ``point`` as str objects, every other column as float64."""
+    """The columns of a rake file: the numeric columns as float64, every other column as str objects."""
 
     path: str
     columns: dict[str, np.ndarray]
@@ -43,7 +43,6 @@ class RawColumns:
         return f"{self.row_word} {int(self.row_numbers[index])}, column {column}"
 
 
-TEXT_COLUMNS = ("point",)
 
 
 def _open_bytes(path: str) -> bytes:
@@ -81,42 +80,91 @@ def _numbers(path: str, texts: list[str], column: str, where) -> np.ndarray:
     raise AssertionError("unreachable")
 
 
-def _read_csv(path: str, raw: bytes) -> RawColumns:
+def _decode(path: str, raw: bytes) -> str:
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         line = raw[: exc.start].count(b"\n") + 1
         raise ProjectError(path, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
                                                  "cannot be decoded; save the file as UTF-8 CSV") from exc
+    return text
+
+
+def _read_csv(path: str, raw: bytes, numeric: tuple[str, ...]) -> RawColumns:
+    text = _decode(path, raw)
+    del raw
     lines = text.splitlines()
-    kept = [k for k, line in enumerate(lines) if line.strip() and not line.lstrip().startswith("#")]
+    del text
+    kept = _kept_lines(lines)
     if not kept:
         raise ProjectError(path, "(file)", None, "is empty: a header row and at least one probe row are needed")
     if len(kept) - 1 > MAX_RAKE_ROWS:
         raise ProjectError(path, "(file)", len(kept) - 1, f"too many rows; at most {MAX_RAKE_ROWS} probes")
-    try:
-        rows = list(csv.reader(lines[k] for k in kept))
-    except csv.Error as exc:
-        raise ProjectError(path, "(file)", None, f"is not valid CSV: {exc}") from exc
-    header = [h.strip() for h in rows[0]]
+    header = [h.strip() for h in _csv_rows(path, [lines[kept[0]]])[0]]
+    _check_header(path, header, f"line {kept[0] + 1}")
+    if len(kept) < 2:
+        raise ProjectError(path, "(file)", None, "has a header but no probe rows")
     line_numbers = np.asarray(kept[1:], dtype=np.int64) + 1
-    for k, row in enumerate(rows[1:]):
+    fast = _arrow_columns(lines, kept, header, numeric)
+    if fast is not None:
+        return RawColumns(path, fast, line_numbers, "line")
+    rows = _csv_rows(path, (lines[k] for k in kept[1:]))
+    for k, row in enumerate(rows):
         if len(row) != len(header):
             raise ProjectError(path, f"line {line_numbers[k]}", None,
                                f"has {len(row)} fields; the header (line {kept[0] + 1}) has {len(header)}")
-    if len(rows) < 2:
-        raise ProjectError(path, "(file)", None, "has a header but no probe rows")
-    _check_header(path, header, f"line {kept[0] + 1}")
-    cells = list(zip(*rows[1:]))
+    cells = list(zip(*rows))
     columns: dict[str, np.ndarray] = {}
     raw_cols = RawColumns(path, columns, line_numbers, "line")
     for c, name in enumerate(header):
         texts = [t.strip() for t in cells[c]]
-        if name in TEXT_COLUMNS:
-            columns[name] = np.asarray(texts, dtype=object)
-        else:
+        if name in numeric:
             columns[name] = _numbers(path, texts, name, raw_cols.where)
+        else:
+            columns[name] = np.asarray(texts, dtype=object)
     return raw_cols
+
+
+def _csv_rows(path: str, lines) -> list[list[str]]:
+    try:
+        return list(csv.reader(lines))
+    except csv.Error as exc:
+        raise ProjectError(path, "(file)", None, f"is not valid CSV: {exc}") from exc
+
+
+def _kept_lines(lines: list[str]) -> list[int]:
+    """Indices of the lines that are neither blank nor comments."""
+    return [k for k, line in enumerate(lines) if line.strip() and not line.lstrip().startswith("#")]
+
+
+def _arrow_columns(lines: list[str], kept: list[int], header: list[str], numeric) -> dict | None:
+    """The fast path: the data rows parsed by ``pyarrow.csv`` when they are contiguous lines and every numeric
+    cell parses; None otherwise (the caller then reads cell by cell and names the first bad one)."""
+    if len(kept) < 2 or kept[-1] - kept[1] + 1 != len(kept) - 1:
+        return None
+    try:
+        import io
+
+        import pyarrow as pa
+        import pyarrow.compute as pc
+        import pyarrow.csv as pacsv
+
+        body = "\n".join(lines[kept[1]: kept[-1] + 1]).encode("utf-8")
+        types = {h: (pa.float64() if h in numeric else pa.string()) for h in header}
+        table = pacsv.read_csv(io.BytesIO(body), read_options=pacsv.ReadOptions(column_names=header),
+                               convert_options=pacsv.ConvertOptions(column_types=types, strings_can_be_null=False,
+                                                                    quoted_strings_can_be_null=False))
+    except Exception:  # noqa: BLE001 - any trouble: the careful path says what it is
+        return None
+    if table.num_rows != len(kept) - 1 or any(col.null_count for col in table.columns):
+        return None
+    out = {}
+    for name, col in zip(header, table.columns):
+        if name in numeric:
+            out[name] = col.to_numpy()
+        else:
+            out[name] = pc.utf8_trim_whitespace(col).to_numpy(zero_copy_only=False).astype(object)
+    return out
 
 
 def _check_header(path: str, header: list[str], where: str) -> None:
@@ -129,7 +177,7 @@ def _check_header(path: str, header: list[str], where: str) -> None:
         seen.add(name)
 
 
-def _read_parquet(path: str) -> RawColumns:
+def _read_parquet(path: str, numeric: tuple[str, ...]) -> RawColumns:
     try:
         import pyarrow.parquet as pq
 
@@ -149,8 +197,8 @@ def _read_parquet(path: str) -> RawColumns:
         nulls = np.asarray(col.is_null().to_numpy(zero_copy_only=False), bool)
         if nulls.any():
             raise ProjectError(path, raw_cols.where(int(np.argmax(nulls)), name), None, "is empty; a value is required")
-        values = col.to_pylist() if name in TEXT_COLUMNS else col.to_numpy(zero_copy_only=False)
-        if name in TEXT_COLUMNS:
+        values = col.to_pylist() if name not in numeric else col.to_numpy(zero_copy_only=False)
+        if name not in numeric:
             columns[name] = np.asarray([str(v) for v in values], dtype=object)
         elif values.dtype.kind in "iufb":
             columns[name] = values.astype(float)
@@ -159,12 +207,12 @@ def _read_parquet(path: str) -> RawColumns:
     return raw_cols
 
 
-def read_rake_columns(path) -> RawColumns:
-    """The columns of the rake file at ``path``: Parquet when it starts with the Parquet magic bytes (or is
-    named ``*.parquet``/``*.pq``), CSV otherwise."""
+def read_rake_columns(path, numeric: tuple[str, ...]) -> RawColumns:
+    """The columns of the rake file at ``path``, those named in ``numeric`` as numbers: Parquet when it starts
+    with the Parquet magic bytes (or is named ``*.parquet``/``*.pq``), CSV otherwise."""
     p = os.fspath(path)
     raw = _open_bytes(p)
     if raw[:4] == PARQUET_MAGIC or p.lower().endswith((".parquet", ".pq")):
         del raw
-        return _read_parquet(p)
-    return _read_csv(p, raw)
+        return _read_parquet(p, numeric)
+    return _read_csv(p, raw, numeric)

@@ -8,7 +8,8 @@ mean of the rings):
 with F_i the exact primitive of ring i's linear profile (``engine_air.distortion.profile``). G' is
 continuous and linear between the angles where φ or φ + θ meets a probe of any ring, so G is piecewise
 quadratic: its least value is at one of those breakpoints or where G' crosses zero upwards inside a
-segment. Both are evaluated exactly: no grid.
+segment. Both are evaluated exactly (G at one breakpoint by the primitives, then segment by segment from
+the slopes): no grid.
 
 DC(θ) = (PFAV − min G)/q2, q2 = (γ/2)·p2·M2² the face mean dynamic pressure at the point's face Mach number
 M2, p2 = PFAV·(p/p_t)(M2) (isentropic, NACA Report 1135 eq. 44). The descriptor follows SAE ARP1420 as
@@ -53,6 +54,10 @@ def _sector_slope(prof: RingProfiles, phi: np.ndarray, width: float) -> np.ndarr
 def worst_sector(prof: RingProfiles, width_deg: float = DEFAULT_SECTOR_DEG) -> WorstSector:
     """The exact least mean total pressure of any ``width_deg`` sector of each point, and where it starts.
 
+    G is evaluated exactly at the first breakpoint; across each segment of length L between breakpoints, where
+    G' runs linearly from g_k to g_k+1, G grows by L (g_k + g_k+1)/2 and, where G' crosses zero upwards, its
+    least value inside is G_k − g_k² L / (2 (g_k+1 − g_k)) (the vertex of the parabola).
+
     >>> import numpy as np
     >>> p = np.ones((1, 2, 8)); p[:, :, 0:3] = 0.8          # 90° low on both rings, probes 0°, 45°, 90°
     >>> w = worst_sector(RingProfiles(p, np.arange(8.0) * 45.0), 60.0)
@@ -60,20 +65,27 @@ def worst_sector(prof: RingProfiles, width_deg: float = DEFAULT_SECTOR_DEG) -> W
     (0.8, 0.0)
     """
     points, rings, n = prof.pressure.shape
-    angles = prof.angle_deg.reshape(points, rings * n)
+    if np.all(prof.angle_deg == prof.angle_deg[:, :1, :]):  # rings not clocked apart: one ring's angles do
+        angles = prof.angle_deg[:, 0, :]
+    else:
+        angles = prof.angle_deg.reshape(points, rings * n)
     breaks = np.sort(np.concatenate([angles, angles - width_deg], -1) % 360.0, -1)  # (P, K)
-    following = np.concatenate([breaks[:, 1:], breaks[:, :1] + 360.0], -1)
-    g_here = _sector_slope(prof, breaks, width_deg)
-    g_next = np.concatenate([g_here[:, 1:], g_here[:, :1]], -1)
-    upward = (g_here < 0.0) & (g_next > 0.0)
+    length = np.diff(breaks, axis=-1, append=breaks[:, :1] + 360.0)
+    g = _sector_slope(prof, breaks, width_deg)
+    g_next = np.roll(g, -1, axis=-1)
+    first = _sector_mean(prof, breaks[:, :1], width_deg)  # (P, 1)
+    rise = 0.5 * length * (g + g_next)
+    at_breaks = first + np.concatenate([np.zeros((points, 1)), np.cumsum(rise[:, :-1], -1)], -1)
+    upward = (g < 0.0) & (g_next > 0.0)
     with np.errstate(invalid="ignore", divide="ignore"):
-        fraction = np.where(upward, -g_here / (g_next - g_here), 0.0)
-    inside = breaks + (following - breaks) * fraction
-    candidates = np.concatenate([breaks, np.where(upward, inside, breaks)], -1)
-    means = _sector_mean(prof, candidates, width_deg)
+        curvature = np.where(upward, g_next - g, 1.0)
+        inside = np.where(upward, at_breaks - 0.5 * g * g * length / curvature, np.inf)
+        offset = np.where(upward, -g * length / curvature, 0.0)
+    means = np.concatenate([at_breaks, inside], -1)
+    starts = np.concatenate([breaks, breaks + offset], -1)
     best = np.argmin(means, -1)
     rows = np.arange(points)
-    return WorstSector(means[rows, best], candidates[rows, best] % 360.0)
+    return WorstSector(means[rows, best], starts[rows, best] % 360.0)
 
 
 def face_dynamic_pressure(face_average_pa, face_mach, gamma: float = GAMMA) -> np.ndarray:
