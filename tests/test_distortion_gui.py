@@ -65,3 +65,22 @@ def test_project_without_stability_shows_the_faces_without_a_stack_up(qtbot):
     dialog = open_distortion(w, load_project(SAMPLES / "subsonic_transport_nacelle.toml"), RAKES)
     qtbot.addWidget(dialog)
     assert not dialog.rating_box.isEnabled() and dialog.assessment.stability is None
+
+
+def test_a_rating_whose_stack_up_does_not_fit_gets_a_message(qtbot, monkeypatch):
+    from dataclasses import replace
+
+    from engine_air.project.model import Stability
+
+    project = load_project(PROJECT)
+    second = replace(project.ratings[0], name="other", stability=Stability(0.2, (1.0,) * 3, (0.1,) * 3))
+    project = replace(project, ratings=project.ratings + (second,))
+    shown = []
+    monkeypatch.setattr(QMessageBox, "warning", lambda *a, **k: shown.append(a[2]))
+    w = QMainWindow()
+    qtbot.addWidget(w)
+    dialog = open_distortion(w, project, RAKES)
+    qtbot.addWidget(dialog)
+    before = dialog.assessment
+    dialog.rating_box.setCurrentIndex(1)
+    assert shown and "3 entries" in shown[0] and dialog.assessment is before

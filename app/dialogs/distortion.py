@@ -12,14 +12,15 @@ from __future__ import annotations
 import os
 
 import numpy as np
-from PySide6.QtWidgets import (QComboBox, QDialog, QHBoxLayout, QHeaderView, QLabel, QSplitter, QTableWidget,
-                               QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QComboBox, QDialog, QHBoxLayout, QHeaderView, QLabel, QMessageBox, QSplitter,
+                               QTableWidget, QVBoxLayout, QWidget)
 from PySide6.QtCore import Qt
 
 from engine_air.distortion.assessment import assess
 from engine_air.distortion.descriptors import reduce_rakes
 from engine_air.distortion.pictures import draw_face, draw_stack_up
 from engine_air.distortion.rake import read_rake_set
+from engine_air.project.errors import ProjectError
 
 from .common import fmt, table_item, verdict_item
 
@@ -108,11 +109,16 @@ class DistortionDialog(QDialog):
 
     def _rating_changed(self) -> None:
         names = stability_ratings(self.project)
-        if names:
-            d = self.assessment.descriptors
-            self.assessment = assess(d, self.project, names[self.rating_box.currentIndex()])
-            self._show_verdicts()
-            self.show_point()
+        if not names:
+            return
+        try:
+            assessment = assess(self.assessment.descriptors, self.project, names[self.rating_box.currentIndex()])
+        except ProjectError as exc:  # e.g. that rating's sensitivities are for another number of rings
+            QMessageBox.warning(self, "Engine-face distortion", f"The stack-up of this rating cannot be used:\n{exc}")
+            return
+        self.assessment = assessment
+        self._show_verdicts()
+        self.show_point()
 
     def _show_verdicts(self) -> None:
         labels = self.assessment.descriptors.rakes.labels
