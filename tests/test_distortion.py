@@ -225,3 +225,31 @@ def test_many_points_reduce_like_one_at_a_time():
 def test_dc60_is_null_without_face_mach():
     g = one([0.9] + [1.0] * 7)
     assert math.isnan(g.dc60[0])
+
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.integers(3, 24), st.integers(1, 4), st.integers(0, 2**32 - 1), st.floats(5.0, 180.0))
+def test_any_pattern_gives_finite_descriptors_within_their_ranges(n, rings, seed, width):
+    # from the definitions: on an arc that is not merged P < PAV, so its intensity is > 0; a merged arc includes
+    # its high gaps and may come out negative only if some probe inside it is above PAV; extents in (0, 360];
+    # MPR >= 1 where every arc of a ring has a weight >= 0 and one > 0; the worst sector mean never above PFAV (the sectors
+    # average to PFAV), so DC >= 0
+    rng = np.random.default_rng(seed)
+    p = 1.0 + 0.2 * rng.random((3, rings, n)) * (rng.random((3, rings, n)) < 0.5)
+    g = one(p, face_mach=0.5, sector=width)
+    a = g.arcs
+    present = ~np.isnan(a.start_deg)
+    assert np.all((a.extent_deg[present] > 0) & (a.extent_deg[present] <= 360))
+    angles = np.arange(n) * 360.0 / n
+    for pt, r, k in zip(*np.nonzero(present & (a.intensity < 0))):
+        inside = ((angles - a.start_deg[pt, r, k]) % 360.0) < a.extent_deg[pt, r, k]
+        assert np.any(p[pt, r, inside] > g.ring_average_pa[pt, r]), "a negative intensity needs a high gap inside"
+    weight = np.where(present, a.intensity * a.extent_deg, 0.0)
+    positive = (weight.max(-1) > 0) & (weight.min(-1) >= 0)
+    assert np.all(g.multiple_per_rev[positive] >= 1.0 - 1e-12)
+    assert np.all(g.sector_mean_pa <= g.face_average_pa * (1 + 1e-12))
+    assert np.all(np.isfinite(g.dc)) and np.all(g.dc >= -1e-12)

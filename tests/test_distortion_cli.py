@@ -164,3 +164,18 @@ def test_map_checks_are_judged_only_where_data_back_them():
     assert sm.value[:2] == pytest.approx([0.06, -0.09]) and sm.fails.tolist() == [False, True, False]
     no_stack = {c.name: c for c in build_checks(project.limits, with_data)}["surge-margin"]
     assert not no_stack.applies.any()
+
+
+def test_without_face_mach_dc60_is_null(tmp_path, capsys):
+    path = tmp_path / "r.csv"
+    path.write_text("point,ring,angle_deg,total_pressure_pa\n" + "".join(
+        f"A,1,{k * 45},{9e4 if k == 0 else 1e5}\n" for k in range(8)), encoding="utf-8")
+    code, doc = run_json(capsys, path)
+    assert code == 0 and doc["points"][0]["dc60"] is None
+    ring = doc["points"][0]["rings"][0]
+    # method.md check value, scaled by 1e5: PAV 98750 Pa, extent 78.75 deg, intensity 0.044304
+    assert ring["average_pa"] == pytest.approx(98750.0) and ring["extent_deg"] == pytest.approx(78.75)
+    assert ring["arcs"][0]["start_deg"] == pytest.approx(320.625) and ring["arcs"][0]["end_deg"] == pytest.approx(39.375)
+    assert ring["circumferential_intensity"] == pytest.approx(0.044304, abs=5e-7)
+    assert main(["distortion", str(path), "--characteristics-out", str(tmp_path / "c.csv")]) == 2
+    assert "column mach" in capsys.readouterr().err

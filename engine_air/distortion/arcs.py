@@ -6,7 +6,8 @@ method §18, not copied from the document: check them against ARP1420 before rel
 A low arc of ring i is where the linear profile P_i(θ) is below the ring average PAV_i; its ends are the
 crossings of the linear profile with PAV_i. Two arcs separated by a high arc shorter than ``MERGE_GAP_DEG``
 (25°) are one arc spanning both, the gap included. If every gap of a ring is shorter, the ring is one low
-arc of 360° (its mean is PAV_i, so its intensity is zero).
+arc of 360° (its mean is PAV_i, so its intensity is zero). A merged arc's mean includes its high gaps, so
+its intensity can come out negative (and the ring's MPR below 1): the definitions are applied as written.
 
 Arcs are kept in arrays of the probes' shape (P, R, N), indexed by the probe interval in which the arc
 starts (at most one arc starts in an interval), NaN where no arc starts: no Python loop over points,
