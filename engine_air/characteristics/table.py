@@ -4,7 +4,7 @@ A characteristics table holds points on characteristic curves from wind-tunnel t
 ``mach``, ``mass_flow_ratio``, ``recovery`` (total, face over free stream, p_t2/p_t0), and optionally
 ``alpha_deg``, ``beta_deg`` (default 0), ``stable`` (1 a stable operating point, 0 buzz or unstable),
 ``additive_drag_coefficient`` and the distortion columns of method §18 (``dc60``, ``surge_margin_loss``,
-``ring<N>_circumferential_intensity``, ``ring<N>_radial_intensity``).
+``circumferential_intensity_ring_<N>``, ``radial_intensity_ring_<N>``).
 
 The file is CSV (UTF-8, comma separated, one header row) or Parquet, read with pyarrow. Every cell is
 checked like a project key: a bad one raises ``ProjectError`` naming the file, the data row (1 = the first row
@@ -41,7 +41,8 @@ MAX_TABLE_ROWS = 500_000
 
 REQUIRED_COLUMNS = ("mach", "mass_flow_ratio", "recovery")
 OPTIONAL_COLUMNS = ("alpha_deg", "beta_deg", "stable", "additive_drag_coefficient", "dc60", "surge_margin_loss")
-RING_COLUMN = re.compile(r"^ring([1-9][0-9]?)_(circumferential|radial)_intensity$")
+RING_COLUMN = re.compile(r"^(circumferential|radial)_intensity_ring_([1-9][0-9]?)$")
+"""The per-ring distortion columns ``engine-air distortion --characteristics-out`` writes (method §18)."""
 
 # column -> (low, high, low open, high open, words)
 _BOUNDS = {
@@ -87,7 +88,7 @@ def allowed_column(name: str) -> bool:
 
 def _allowed_words() -> str:
     return ("columns " + ", ".join(REQUIRED_COLUMNS) + " (required); " + ", ".join(OPTIONAL_COLUMNS)
-            + ", ring<N>_circumferential_intensity, ring<N>_radial_intensity (optional)")
+            + ", circumferential_intensity_ring_<N>, radial_intensity_ring_<N> (optional)")
 
 
 def _read_bounded(path: str) -> bytes:

@@ -126,6 +126,8 @@ class OperatingPoints:
     oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
     started: np.ndarray | None = None  # bool, mixed compression only (method §11)
     self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
+    dc60: np.ndarray | None = None  # distortion DC(60) from data (method §18); None: no data, not judged
+    surge_margin_loss: np.ndarray | None = None  # ΔPRS from data (method §18); None: no data, not judged
 
     @property
     def face_mach_margin(self) -> np.ndarray:

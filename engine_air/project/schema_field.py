@@ -14,7 +14,7 @@ import math
 from dataclasses import dataclass
 
 KINDS = ("number", "integer", "text", "boolean", "number list", "number table", "number or name", "choice",
-         "number or Mach table")
+         "number or Mach table", "named numbers")
 
 
 @dataclass(frozen=True)
@@ -22,7 +22,8 @@ class Field:
     """A key of the project file.
 
     ``kind``: "number", "integer", "text", "boolean", "number list", "number table" (a list of number lists),
-    "number or name" (a number, or one of ``names``, case-insensitive) or "choice" (one of ``names``).
+    "number or name" (a number, or one of ``names``, case-insensitive), "choice" (one of ``names``) or "named
+    numbers" (a TOML table of name = number, kept as (name, value) pairs in file order).
     ``lo``/``hi`` bound numbers (and list entries); ``lo_open``/``hi_open`` say whether the bound itself is
     excluded. ``length`` is (least, most) entries of a list (rows of a table), ``None`` for unbounded; for text,
     ``length=(1, None)`` means it must not be blank. ``order`` is "" (any), "increasing" (strictly) or
@@ -113,6 +114,9 @@ class Field:
             return (f"a finite number with {self.bounds_text()}, or a table {{ mach = [...], deg = [...] }} of at "
                     "least 2 entries each, as many deg as mach, mach from 0 to 6 strictly increasing, each deg with "
                     f"{self.bounds_text('deg')}")
+        if k == "named numbers":
+            return ("a table of name = number, e.g. { tolerances = 0.04 }, with " + self.bounds_text("each value")
+                    + (f", at most {self.length[1]} names" if self.length and self.length[1] else ""))
         entries = self.bounds_text("each entry" if k == "number list" else "each value")
         shape = ""
         if self.length is not None:
