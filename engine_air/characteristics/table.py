@@ -152,16 +152,29 @@ def _arrow_table(path: str, data: bytes):
         raise ProjectError(path, "(file)", None, f"is not a readable CSV table ({' '.join(str(exc).split())})") from None
 
 
+MAY_BE_EMPTY = ("additive_drag_coefficient", "dc60", "surge_margin_loss")
+"""Optional measured columns whose cells may be left empty where a point has no such measurement (NaN)."""
+
+
+def _may_be_empty(name: str) -> bool:
+    return name in MAY_BE_EMPTY or RING_COLUMN.match(name) is not None
+
+
 def _float_column(path: str, name: str, array) -> np.ndarray:
-    """A pyarrow column as float64, with the first cell that is not a number named."""
+    """A pyarrow column as float64, with the first cell that is not a number named; an empty cell is NaN in the
+    columns that may be empty (``MAY_BE_EMPTY``, ring intensities) and an error elsewhere."""
     import pyarrow as pa
 
+    empty_ok = _may_be_empty(name)
     kind = array.type
     if pa.types.is_string(kind) or pa.types.is_large_string(kind):
         texts = array.to_pylist()
         out = np.empty(len(texts))
         for row, text in enumerate(texts):  # only text cells: a CSV column, converted once
             if text is None or not text.strip():
+                if empty_ok:
+                    out[row] = np.nan
+                    continue
                 raise ProjectError(path, f"row {row + 1}, column {name}", None, "is empty: every cell needs a number")
             try:
                 out[row] = float(text)
@@ -170,16 +183,19 @@ def _float_column(path: str, name: str, array) -> np.ndarray:
         return out
     if not (pa.types.is_integer(kind) or pa.types.is_floating(kind) or pa.types.is_boolean(kind)):
         raise ProjectError(path, f"column {name}", str(kind), "must hold numbers (integer or floating point)")
-    if array.null_count:
+    if array.null_count and not empty_ok:
         row = int(np.flatnonzero(np.asarray(array.is_null()))[0])
         raise ProjectError(path, f"row {row + 1}, column {name}", None, "is empty: every cell needs a number")
-    return np.asarray(array.cast(pa.float64()), dtype=float)
+    return np.asarray(array.cast(pa.float64()).fill_null(np.nan), dtype=float)
 
 
 def _check_bounds(path: str, name: str, values: np.ndarray) -> None:
     lo, hi, lo_open, hi_open, words = _BOUNDS.get(name, _RING_BOUNDS)
     with np.errstate(invalid="ignore"):
-        bad = ~np.isfinite(values) | (values <= lo if lo_open else values < lo) | (values >= hi if hi_open else values > hi)
+        missing = np.isnan(values) if _may_be_empty(name) else np.zeros(values.shape, bool)
+        too_low = values <= lo if lo_open else values < lo
+        too_high = values >= hi if hi_open else values > hi
+        bad = (~np.isfinite(values) | too_low | too_high) & ~missing  # an allowed empty cell is not judged
         if name == "stable":
             bad |= (values != 0.0) & (values != 1.0)
     if bad.any():
