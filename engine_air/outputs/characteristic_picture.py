@@ -70,7 +70,7 @@ def calibration_figure(calibration, title: str = ""):
     """Measured recovery against the fitted model's, per zero-incidence curve."""
     from matplotlib.figure import Figure
 
-    fig = Figure(figsize=FIGURE_SIZE_IN, dpi=DPI)
+    fig = Figure(figsize=(12.0, 6.0), dpi=DPI)
     ax = fig.add_subplot(1, 1, 1)
     colours = ["#1f5fa8", "#c8501e", "#2e8b57", "#7a3fa0", "#b8860b", "#444444", "#008b8b", "#8b0000"]
     for k, ((mach, mfr, rec), (x, y), info) in enumerate(zip(calibration.measured, calibration.fitted_model,
@@ -81,7 +81,7 @@ def calibration_figure(calibration, title: str = ""):
     ax.set_xlabel("captured mass-flow ratio A0/Ac")
     ax.set_ylabel("total-pressure recovery p_t2/p_t0")
     ax.grid(True, alpha=0.3)
-    ax.legend(fontsize=8, ncol=2, loc="lower left")
+    ax.legend(fontsize=8, loc="upper left", bbox_to_anchor=(1.01, 1.0), borderaxespad=0.0)  # beside the data
     fitted = ", ".join(f"{k} = {v:.4g} ± {e:.2g}" for k, (v, e) in calibration.fitted.items())
     ax.set_title((title + "\n" if title else "") + fitted, fontsize=11)
     fig.tight_layout()
