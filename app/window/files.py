@@ -14,6 +14,7 @@ from pathlib import Path
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QApplication, QFileDialog, QMessageBox
 
+from engine_air.outputs.writer import OutputIsInputError, check_not_input
 from engine_air.project.errors import ProjectError, ProjectSaveError
 
 from .. import exports
@@ -174,6 +175,10 @@ class FileActions:
             a.triggered.connect(lambda _c=False, f=f: self.open_file(f))
 
     # -- export --------------------------------------------------------------------
+    def input_files(self) -> tuple:
+        """Every file this window reads: an export may never be written over one of them."""
+        return tuple(p for p in (self.document.path,) if p is not None)
+
     def _export_dialog(self, kind: str) -> None:
         if self.result is None:
             QMessageBox.information(self, "Nothing to export", "There is no computed map yet.")
@@ -191,17 +196,23 @@ class FileActions:
 
     def export(self, kind: str, path) -> bool:
         """Write ``kind`` ("png", "svg", "csv", "txt", "sections-png", "sections-svg") to ``path``; a failure is reported, never raised."""
+        inputs = self.input_files()
         writers = {
-            "png": lambda: exports.write_map_png(self.map, path),
-            "svg": lambda: exports.write_map_svg(self.map, path),
-            "csv": lambda: exports.write_grid_csv(self.result, path),
-            "sections-png": lambda: self.sections.export(str(path)),
-            "sections-svg": lambda: self.sections.export(str(path)),
+            "png": lambda: exports.write_map_png(self.map, path, inputs=inputs),
+            "svg": lambda: exports.write_map_svg(self.map, path, inputs),
+            "csv": lambda: exports.write_grid_csv(self.result, path, inputs),
+            "sections-png": lambda: self.sections.export(str(path), inputs),
+            "sections-svg": lambda: self.sections.export(str(path), inputs),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
-                                                       self.document.display_name),
+                                                       self.document.display_name, inputs),
         }
         if kind not in writers:
             raise ValueError(f"unknown export kind {kind!r}")
+        try:
+            check_not_input(path, inputs)
+        except OutputIsInputError as exc:
+            QMessageBox.critical(self, "Export refused", f"{exc}.")
+            return False
         QApplication.setOverrideCursor(Qt.WaitCursor)
         try:
             writers[kind]()
