@@ -1,4 +1,5 @@
-"""The main window's files: New, Open, Save (asking before replacing a read-only file), recent files, exports.
+"""The main window's files: New, Open, Save (asking before replacing a read-only file or one changed on disk since
+it was opened or saved), recent files, exports (never over the project's own file).
 
 ``FileActions`` is mixed into ``app.main_window.MainWindow``; it uses the window's ``document``, ``editors``,
 ``map``, ``result``, ``units``, ``settings`` and status bar.
@@ -16,8 +17,10 @@ from PySide6.QtWidgets import QApplication, QFileDialog, QMessageBox
 
 from engine_air.outputs.writer import OutputIsInputError, check_not_input
 from engine_air.project.errors import ProjectError, ProjectSaveError
+from engine_air.project.fingerprint import FileChangedError
 
 from .. import exports
+from . import changed_on_disk
 from ..recovery import reason_of
 from ..template import new_project
 
@@ -130,12 +133,14 @@ class FileActions:
             return False
         return True
 
-    def save_to(self, path) -> bool:
+    def save_to(self, path, overwrite: bool = False) -> bool:
         self.editors.flush()
         if not self._allow_read_only_target(path):
             return False
         try:
-            saved = self.document.save(path)
+            saved = self.document.save(path, overwrite=overwrite)
+        except FileChangedError as exc:
+            return self._changed_on_disk(path, exc)
         except (ProjectSaveError, OSError) as exc:
             QMessageBox.critical(self, "Could not save",
                                  f"{exc}\n\nYour edits are kept in the window; try another folder or name.")
@@ -149,6 +154,21 @@ class FileActions:
         self._add_recent(saved)
         self.statusBar().showMessage(f"Saved {saved}", 5000)
         return True
+
+    def _changed_on_disk(self, path, exc: FileChangedError) -> bool:
+        """The file was saved by someone else since this window opened or saved it: ask, never overwrite."""
+        choice = changed_on_disk.ask_changed_on_disk(self, path, exc.found)
+        if choice == changed_on_disk.OVERWRITE:
+            return self.save_to(path, overwrite=True)
+        if choice == changed_on_disk.SAVE_AS:
+            return self.save_as_dialog()
+        if choice == changed_on_disk.RELOAD:
+            if exc.found is not None and self.open_file(path, ask=False):
+                self.statusBar().showMessage(f"Reloaded {Path(path).name} from disk; nothing was saved.", 10000)
+            return False
+        self.statusBar().showMessage(f"Not saved: {Path(path).name} was changed on disk; your edits are kept.",
+                                     10000)
+        return False
 
     def recent_files(self) -> list[str]:
         value = self.settings.value("recent_files", [])
