@@ -23,7 +23,6 @@ from engine_air.cli.common import EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_
 from engine_air.cli.maps import write_map_csv
 from engine_air.cli.size import SIZE_OBJECTIVES
 from engine_air.outputs.safe_text import safe_path, safe_text
-from engine_air.outputs.writer import OutputIsInputError
 from engine_air.project.errors import ProjectError
 
 EPILOG = ("exit codes: 0 every limit holds; 1 some limit fails; 2 the input is unusable (one line on stderr); "
@@ -107,7 +106,7 @@ def main(argv=None) -> int:
         return args.handler(args)
     except ProjectError as exc:
         err(f"engine-air: {exc}")
-    except (UsageError, OutputIsInputError) as exc:
+    except UsageError as exc:
         err(f"engine-air: {exc}")
     except UnicodeError as exc:
         err(f"engine-air: a file name or text is not valid UTF-8 ({safe_text(exc.reason)}); rename the file")
@@ -117,6 +116,10 @@ def main(argv=None) -> int:
     except MemoryError:
         err("engine-air: not enough memory for this grid; reduce grid.mach_points or grid.altitude_points")
     except Exception as exc:  # last resort: never a traceback
+        writer = sys.modules.get("engine_air.outputs.writer")  # imported only by commands that write
+        if writer is not None and isinstance(exc, writer.OutputIsInputError):
+            err(f"engine-air: {exc}")
+            return EXIT_UNUSABLE
         err(f"engine-air: internal error ({type(exc).__name__}: {exc}); please report it with the project file")
     return EXIT_UNUSABLE
 

@@ -9,15 +9,18 @@ from __future__ import annotations
 
 import errno
 import os
+from typing import TYPE_CHECKING
 
 import tomli_w
 
 from engine_air.project import schema as S
 from engine_air.project.atomic import is_read_only, write_bytes_atomic
 from engine_air.project.errors import ProjectSaveError
-from engine_air.project.fingerprint import Fingerprint, bytes_fingerprint, check_unchanged
 from engine_air.project.model import Project
 from engine_air.project.schema_field import REQUIRED, Field
+
+if TYPE_CHECKING:
+    from engine_air.project.fingerprint import Fingerprint
 
 
 def _plain(value):
@@ -110,6 +113,8 @@ def save_project(project: Project, path: str | os.PathLike, overwrite_read_only:
     unless ``overwrite=True``. Without ``expected`` the file is not compared.
     On any ``OSError`` the previous file is left as it was and ``ProjectSaveError`` is raised.
     """
+    from engine_air.project.fingerprint import bytes_fingerprint, check_unchanged  # only when saving
+
     if expected is not None and not overwrite:
         check_unchanged(path, expected)
     if not overwrite_read_only and is_read_only(path):
