@@ -69,7 +69,7 @@ from engine_air import CAUTION, __version__
 from engine_air.envelope import flags as F
 from engine_air.envelope import ranking
 from engine_air.envelope.explain import finding_mechanism
-from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project
+from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project, verdict_text
 from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
 from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
@@ -315,7 +315,7 @@ h1 { font-size: 22px; margin-bottom: 4px; } h2 { font-size: 18px; border-bottom:
 h3 { font-size: 15px; margin: 18px 0 6px; }
 table { border-collapse: collapse; margin: 8px 0; } th, td { border: 1px solid #c8c8c8; padding: 3px 7px; }
 th { background: #efefef; text-align: left; } td.n { text-align: right; font-variant-numeric: tabular-nums; }
-.holds { color: #0b4f8a; font-weight: bold; } .fails { color: #8a3b00; font-weight: bold; }
+.holds { color: #0b4f8a; font-weight: bold; } .fails { color: #8a3b00; font-weight: bold; } .unjudged { color: #555; font-style: italic; }
 .banner { padding: 8px 12px; border: 2px solid; display: inline-block; margin: 8px 0; font-weight: bold; }
 .banner.holds { border-color: #0b4f8a; background: #eaf2fa; } .banner.fails { border-color: #b35806; background: #fdf0e3; }
 .meta { color: #555; } .maps { display: flex; flex-wrap: wrap; gap: 18px; }
@@ -541,14 +541,14 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
     verdict_rows = []
     finding_rows = []
     for s in result.summary:
-        cls = "holds" if s.holds else "fails"
+        cls = "fails" if s.fails else "holds" if s.judged else "unjudged"
         verdict_rows.append([
-            e(s.label), e(s.limit_text), f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>',
+            e(s.label), e(s.limit_text), f'<span class="{cls}">{e(s.verdict)}</span>',
             _num(s.worst_value), _num(s.worst_margin), f"{100 * s.failing_share:.1f} %", str(s.judged_points),
         ])
         regime, flags, why = finding_mechanism(project, result, s)
         finding_rows.append([
-            e(s.label), f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>', _num(s.worst_value),
+            e(s.label), f'<span class="{cls}">{e(s.verdict)}</span>', _num(s.worst_value),
             _num(s.worst_margin), _num(s.worst_mach, 3), _num(s.worst_altitude_m, 0), e(s.worst_case or "–"),
             e(regime), e(flags), e(why),
         ])
@@ -611,10 +611,7 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
     now = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
     title = project.title or os.path.basename(source_name)
     banner_cls = "holds" if holds else "fails"
-    failing = [s for s in result.summary if not s.holds]
-    banner = (f"VERDICT: all {len(result.summary)} limits hold at every envelope point of every case."
-              if holds else f"VERDICT: {len(failing)} of {len(result.summary)} limits FAIL somewhere in the envelope: "
-              + ", ".join(s.label for s in failing) + ".")
+    banner = "VERDICT: " + verdict_text(result)
     inside = int(result.inside.sum())
     maps_html = "".join(
         f"<h3>{e(QUANTITIES[q].label)}</h3><div class=\"maps\">{''.join(figures[q])}</div>" for q in quantities)
