@@ -71,7 +71,15 @@ def starting_text(rec: dict, units) -> str:
     if cr is not None:
         parts.append(f"internal contraction A_th/A_e = {cr:.4f}")
     if k is not None:
-        verdict = "" if cr is None else (" (reached: it starts itself)" if cr >= k else " (not reached)")
+        started = rec.get("started")
+        if cr is None:
+            verdict = ""
+        elif cr >= k:
+            verdict = " (reached: it starts itself here)"
+        elif started:
+            verdict = " (not reached: it runs started because it started at a lower Mach number)"
+        else:
+            verdict = " (not reached: it cannot swallow its starting shock here)"
         parts.append(f"self-start limit K(M_e) = {k:.4f} on A_th/A_e{verdict}")
     return "; ".join(parts)
 
