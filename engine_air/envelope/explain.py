@@ -70,6 +70,9 @@ def mechanism(project: Project, points: OperatingPoints, index, check_name: str)
             return (f"started, but the engine takes MFR {v('mass_flow_ratio'):.3f} of the {v('max_mass_flow_ratio'):.3f} "
                     "captured: without bleed or bypass for the excess the terminal shock would be expelled")
         return f"started ({history})"
+    if check_name in ("dc60", "surge-margin"):
+        return (f"engine-face distortion from the characteristics data at mass-flow ratio {v('mass_flow_ratio'):.3f} "
+                f"({regime} operation): DC(60) and the ring intensities load the engine's surge-margin stack-up")
     return f"{regime} operation"
 
 

@@ -128,6 +128,8 @@ class OperatingPoints:
     self_start_contraction: np.ndarray | None = None  # Kantrowitz limit K(M_e) on A_th/A_e, mixed compression only
     entrance_area_m2: np.ndarray | None = None  # cowl entrance area A_e, mixed compression only (method §11)
     internal_contraction_ratio: np.ndarray | None = None  # CR = A_th/A_e, mixed compression only
+    dc60: np.ndarray | None = None  # distortion DC(60) from data (method §18); None: no data, not judged
+    surge_margin_loss: np.ndarray | None = None  # ΔPRS from data (method §18); None: no data, not judged
 
     @property
     def face_mach_margin(self) -> np.ndarray:
