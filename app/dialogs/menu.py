@@ -69,7 +69,8 @@ def add_design_menu(main_window, get_project: Callable[[], object]):
             return
         folder = QFileDialog.getExistingDirectory(main_window, "Write review pack into folder")
         if folder:
-            keep(ReviewPackDialog(p, folder, main_window))
+            inputs = main_window.input_files() if hasattr(main_window, "input_files") else ()
+            keep(ReviewPackDialog(p, folder, main_window, inputs=inputs))
 
     def distortion():
         p = project_or_warn()

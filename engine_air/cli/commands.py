@@ -117,6 +117,10 @@ def main(argv=None) -> int:
     except MemoryError:
         err("engine-air: not enough memory for this grid; reduce grid.mach_points or grid.altitude_points")
     except Exception as exc:  # last resort: never a traceback
+        writer = sys.modules.get("engine_air.outputs.writer")  # imported only by commands that write
+        if writer is not None and isinstance(exc, writer.OutputIsInputError):
+            err(f"engine-air: {exc}")
+            return EXIT_UNUSABLE
         err(f"engine-air: internal error ({type(exc).__name__}: {exc}); please report it with the project file")
     return EXIT_UNUSABLE
 

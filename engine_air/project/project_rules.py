@@ -10,6 +10,7 @@ import dataclasses
 from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
 from engine_air.project import schema as S
 from engine_air.project.key_checks import Reader, number_text
+from engine_air.project.limit_data import limit_data_rules
 from engine_air.envelope.check_names import CHECK_NAMES
 from engine_air.project.model import Envelope, Grid, Inlet, Limits, Project
 
@@ -65,12 +66,8 @@ def project_rules(r: Reader, p: Project) -> None:
                    "must name one of the engine ratings: " + ", ".join(repr(x) for x in names))
     _envelope_rules(r, p.envelope)
     lim = p.limits
-    if lim.relative_tip_mach_max is not None and all(
-            x.fan_tip_speed_m_s is None and x.corrected_tip_speed_m_s is None for x in p.ratings):
-        r.warn("limits.relative_tip_mach_max",
-               "no rating gives fan_tip_speed_m_s or corrected_tip_speed_m_s, so this limit cannot be checked")
-    if lim.installation_loss_max is not None and all(x.net_thrust_n is None for x in p.ratings):
-        r.warn("limits.installation_loss_max", "no rating gives net_thrust_n, so this limit cannot be checked")
+    for key, text in limit_data_rules(p, r.path):  # every limit has the data it is judged by
+        r.warn(key, text)
     _region_rules(r, lim, inlet.type)
 
 

@@ -107,7 +107,9 @@ def main(argv: list[str] | None = None) -> int:
             return 1
         return 0
     DOC_PATH.parent.mkdir(parents=True, exist_ok=True)
-    DOC_PATH.write_text(text, encoding="utf-8")
+    from engine_air.outputs.writer import write_output_text
+
+    write_output_text(DOC_PATH, text)  # whole or not at all
     print(f"wrote {DOC_PATH}")
     return 0
 

@@ -11,6 +11,7 @@ import errno
 import json
 import os
 import re
+from typing import TYPE_CHECKING
 
 import tomli_w
 
@@ -19,6 +20,9 @@ from engine_air.project.atomic import is_read_only, write_bytes_atomic
 from engine_air.project.errors import ProjectSaveError
 from engine_air.project.model import Project
 from engine_air.project.schema_field import REQUIRED, Field
+
+if TYPE_CHECKING:
+    from engine_air.project.fingerprint import Fingerprint
 
 
 def _plain(value):
@@ -148,17 +152,28 @@ def table_path_from(project: Project, path: str | os.PathLike) -> Project:
     return dataclasses.replace(project, characteristics_file=relative)
 
 
-def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False) -> None:
-    """Write ``project`` to ``path`` atomically (``write_bytes_atomic``).
+def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False, *,
+                 expected: Fingerprint | None = None, overwrite: bool = False) -> Fingerprint | None:
+    """Write ``project`` to ``path`` atomically (``write_bytes_atomic``); returns the new file's ``Fingerprint``.
 
     A read-only file at ``path`` is not replaced: ``ProjectSaveError`` says so, unless
     ``overwrite_read_only=True`` (the program asks the user first); the new file keeps the old permissions.
+    ``expected``: the fingerprint of the file when it was opened or last saved (``file_fingerprint``, or what
+    the last ``save_project`` returned); when the file on disk is no longer that file (another program or
+    window saved it since), ``FileChangedError`` (a ``ProjectSaveError``) is raised and nothing is written,
+    unless ``overwrite=True``. Without ``expected`` the file is not compared.
     On any ``OSError`` the previous file is left as it was and ``ProjectSaveError`` is raised.
     """
+    from engine_air.project.fingerprint import bytes_fingerprint, check_unchanged  # only when saving
+
+    if expected is not None and not overwrite:
+        check_unchanged(path, expected)
     if not overwrite_read_only and is_read_only(path):
         raise ProjectSaveError(os.fspath(path), "the file is read-only; it was not replaced (save under another "
                                                 "name, or make the file writable first)", errno.EACCES)
+    data = dumps_project(table_path_from(project, path)).encode("utf-8")
     try:
-        write_bytes_atomic(path, dumps_project(table_path_from(project, path)).encode("utf-8"))
+        write_bytes_atomic(path, data)
     except OSError as exc:
         raise ProjectSaveError(os.fspath(path), exc.strerror or str(exc), exc.errno) from exc
+    return bytes_fingerprint(path, data)

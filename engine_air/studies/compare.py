@@ -316,12 +316,14 @@ def compare_columns(c: CompareResult, quantities: tuple[str, ...] = DIFFERENCE_Q
     return cols
 
 
-def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES) -> int:
-    """``compare_columns`` written as CSV by ``engine_air.outputs.table``. Empty fields are values that are not
-    defined. Returns the number of rows written."""
+def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES,
+                      inputs=()) -> int:
+    """``compare_columns`` written as CSV by ``engine_air.outputs.table`` (whole or not at all; never over one of
+    ``inputs``, e.g. the two project files). Empty fields are values that are not defined. Returns the number of
+    rows written."""
     from engine_air.outputs.table import write_table
 
-    return write_table(compare_columns(c, quantities), path, "csv")
+    return write_table(compare_columns(c, quantities), path, "csv", inputs)
 
 
 __all__ = [

@@ -561,12 +561,12 @@ def sweep_columns(result: SweepResult) -> dict:
     return cols
 
 
-def write_sweep_csv(result: SweepResult, path) -> int:
-    """One row per variant (``sweep_columns``), written by ``engine_air.outputs.table``. Undefined numbers are
-    empty fields. Returns the number of rows."""
+def write_sweep_csv(result: SweepResult, path, inputs=()) -> int:
+    """One row per variant (``sweep_columns``), written by ``engine_air.outputs.table`` (whole or not at all;
+    never over one of ``inputs``). Undefined numbers are empty fields. Returns the number of rows."""
     from engine_air.outputs.table import write_table
 
-    write_table(sweep_columns(result), path, "csv")
+    write_table(sweep_columns(result), path, "csv", inputs)
     return len(result.rows)
 
 
