@@ -9,10 +9,10 @@ from __future__ import annotations
 
 import io
 import json
-import os
 import sys
 
-from engine_air.cli.common import EXIT_HOLDS, UsageError, check_output_path, load, out, path_text
+from engine_air.cli.common import (EXIT_HOLDS, UsageError, check_output_path, load, out, path_text, recheck_outputs,
+                                   with_tables)
 
 
 def add_parser(sub) -> None:
@@ -29,30 +29,23 @@ def add_parser(sub) -> None:
 
 def run(args) -> int:
     from engine_air.characteristics.calibrate import FITTABLE, calibrate
-    from engine_air.cli.inputs import refuse_inputs
-
     for key in args.fit:
         if key not in FITTABLE:
             raise UsageError(f"--fit {key}: cannot be fitted; choose from {', '.join(FITTABLE)}")
     targets = [(o, p) for o, p in (("--out", args.out), ("--png", args.png)) if p]
+    inputs = (args.project,)  # every file this run reads; the calibrated project is always a new file
     for option, path in targets:
-        check_output_path(path, option)
-    if os.path.realpath(args.out) == os.path.realpath(args.project):
-        raise UsageError(f"--out {path_text(args.out)}: is the project itself; the calibrated project is always "
-                         "written as a new file")
+        check_output_path(path, option, inputs)
     project = load(args.project)
-    refuse_inputs(project, args.project, targets)
+    inputs = with_tables(inputs, project)
+    recheck_outputs(targets, inputs)
     if project.characteristics is None:
         raise UsageError(f"{path_text(args.project)}: names no characteristics table ([characteristics] file) "
                          "to calibrate against")
     result = calibrate(project, project.characteristics.table, list(args.fit))
     from engine_air.project.save import save_project
 
-    table_path = os.path.abspath(project.characteristics.table.path)
-    relative = os.path.relpath(table_path, os.path.dirname(os.path.abspath(args.out)))
-    import dataclasses
-
-    save_project(dataclasses.replace(result.project, characteristics_file=relative), args.out)
+    save_project(result.project, args.out)  # names the table relative to the new file's folder
     if args.json:
         json.dump(result.as_json(), sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
@@ -63,9 +56,9 @@ def run(args) -> int:
         out(f"wrote {path_text(args.out)}")
     if args.png:
         from engine_air.outputs.characteristic_picture import calibration_figure
-        from engine_air.project.atomic import write_bytes_atomic
+        from engine_air.outputs.writer import write_output_bytes
 
         buffer = io.BytesIO()
         calibration_figure(result, project.title).savefig(buffer, format="png")
-        write_bytes_atomic(args.png, buffer.getvalue())
+        write_output_bytes(args.png, buffer.getvalue(), inputs)
     return EXIT_HOLDS

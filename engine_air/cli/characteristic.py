@@ -11,7 +11,8 @@ import json
 import math
 import sys
 
-from engine_air.cli.common import EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, err, load, out, path_text
+from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, err, load, out,
+                                   path_text, recheck_outputs, with_tables)
 from engine_air.cli.point import altitude_m
 
 EPILOG = ("The characteristic: recovery against captured mass-flow ratio as the engine's corrected flow is swept "
@@ -46,10 +47,10 @@ def curves_csv(curves) -> str:
     return "\n".join(lines) + "\n"
 
 
-def _write(path, data: bytes) -> None:
-    from engine_air.project.atomic import write_bytes_atomic
+def _write(path, data: bytes, inputs) -> None:
+    from engine_air.outputs.writer import write_output_bytes
 
-    write_bytes_atomic(path, data)
+    write_output_bytes(path, data, inputs)
 
 
 def run(args) -> int:
@@ -60,12 +61,12 @@ def run(args) -> int:
             raise UsageError(f"--mach {m}: must be a finite number, 0 or more")
     alt = altitude_m(args)
     targets = [(o, p) for o, p in (("--csv", args.csv), ("--png", args.png)) if p]
+    inputs = (args.project,)  # every file this run reads
     for option, path in targets:
-        check_output_path(path, option)
+        check_output_path(path, option, inputs)
     project = load(args.project)
-    from engine_air.cli.inputs import refuse_inputs
-
-    refuse_inputs(project, args.project, targets)
+    inputs = with_tables(inputs, project)
+    recheck_outputs(targets, inputs)
     case = project.cases[0] if args.case is None else project.case(cases(project, [args.case])[0])
     curves = [characteristic_at(project, case, m, alt) for m in args.mach]
     say = err if (args.json or not targets) else out  # stdout carries only the JSON when JSON is written
@@ -73,7 +74,7 @@ def run(args) -> int:
         json.dump({"curves": [c.as_json() for c in curves]}, sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
     if args.csv:
-        _write(args.csv, curves_csv(curves).encode("utf-8"))
+        _write(args.csv, curves_csv(curves).encode("utf-8"), inputs)
         say(f"wrote {sum(len(c.recovery) for c in curves)} rows to {path_text(args.csv)}")
     if args.png:
         from engine_air.outputs.characteristic_picture import characteristic_figure
@@ -82,7 +83,7 @@ def run(args) -> int:
         fig = characteristic_figure(curves, [measured_rows(project, c.mach, case) for c in curves], title)
         buffer = io.BytesIO()
         fig.savefig(buffer, format="png")
-        _write(args.png, buffer.getvalue())
+        _write(args.png, buffer.getvalue(), inputs)
         say(f"wrote {path_text(args.png)}")
     verdicts = [c.holds for c in curves if c.holds is not None]
     return EXIT_FAILS if verdicts and not all(verdicts) else EXIT_HOLDS
