@@ -295,8 +295,9 @@ def _map_data(result, quantity_key, case, units, levels) -> _MapData:
     alt_unit, alt_f = altitude_scale(units)
     q_unit, q_f = quantity_scale(quantity_key, units)
     values = np.asarray(result.quantity(name, quantity_key), float)
-    judged = judged_map(result, name, quantity_key) if q.kind == C.MARGIN else (result.inside & np.isfinite(values))
-    judged &= result.judged(name)  # a point outside its case's region is judged by nothing
+    # judged: inside the envelope and the case's region, defined, and where the quantity's own check applies (e.g.
+    # "started" only in supersonic flight)
+    judged = judged_map(result, name, quantity_key) & result.judged(name)
     shown = np.where(judged, values, np.nan)
     check = check_of(result, quantity_key)
     # the marks and counts are the failures of the quantity shown (its own check); any limit's for the least margin

@@ -109,6 +109,13 @@ def record_in_us_units(record: dict) -> dict:
     return out
 
 
+def _throat_area(inlet, flight_mach: float) -> float:
+    """The throat area at the point: the schedule's value at its flight Mach number (method §12), else the fixed one."""
+    from engine_air.inlets.schedule import scheduled
+
+    return float(scheduled(inlet, "throat_area_m2", flight_mach))
+
+
 def station_table(project: Project, points: OperatingPoints, index) -> list[dict]:
     """Stations 0, 1, th, 2 at one point: dicts with station, name, mach, p_pa, t_k, pt_pa, tt_k, v_m_s, area_m2."""
     inlet = project.inlet
@@ -129,7 +136,7 @@ def station_table(project: Project, points: OperatingPoints, index) -> list[dict
     return [
         row("0", "free stream", m0, pt0, at("stream_tube_area_m2")),
         row("1", "capture plane", at("capture_mach"), pi_ext * pt_inlet, inlet.capture_area_m2),
-        row("th", "throat", at("throat_mach"), pi_ext * pt_inlet, inlet.throat_area_m2),
+        row("th", "throat", at("throat_mach"), pi_ext * pt_inlet, _throat_area(inlet, m0)),
         row("2", "engine face", at("face_mach"), pi * pt_inlet, inlet.face_area_m2),
     ]
 
