@@ -393,3 +393,17 @@ def test_default_pack_quantities_follow_the_failing_limits():
     result = evaluate_project(tight)
     assert "installation_loss_max" in text and not result.holds
     assert pack_quantities(result)[:2] == ("worst_relative_margin", "installation_loss_fraction")
+
+
+def test_review_output_modules_keep_the_shape_rule():
+    # Issue 15's shape rule for these modules: no module over 600 lines, no function over 100.
+    import ast
+
+    root = Path(__file__).resolve().parents[1] / "engine_air"
+    for rel in ("outputs/review_pack.py", "outputs/pack_folder.py", "outputs/pack_html.py", "outputs/pack_pictures.py",
+                "outputs/pictures.py", "envelope/explain.py", "studies/compare.py"):
+        text = (root / rel).read_text(encoding="utf-8")
+        assert text.count("\n") <= 600, rel
+        for node in ast.walk(ast.parse(text)):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                assert node.end_lineno - node.lineno + 1 <= 100, f"{rel}: {node.name}"
