@@ -10,8 +10,9 @@
   margin for a limit without one) against Mach and against altitude through that
   limit's own worst point, as ``sections/<check>__along-mach.png`` and
   ``..__along-altitude.png``.
-- ``Book``: the same pictures, after text pages with the verdict, the findings and
-  the tables at the worst point, as one PDF (matplotlib's multi-page ``PdfPages``).
+- ``Book``: the same pictures (the PNG images, each on a page of its own size, so
+  nothing is drawn twice), after text pages with the verdict, the findings and the
+  tables at the worst point, as one PDF (matplotlib's multi-page ``PdfPages``).
 """
 
 from __future__ import annotations
@@ -89,6 +90,17 @@ class Book:
     def add(self, figure) -> None:
         self.pdf.savefig(figure)
 
+    def picture(self, png: bytes, dpi: float = 100.0) -> None:
+        """A page holding the picture ``png`` at its own size (the PNG already drawn: nothing is drawn twice)."""
+        from matplotlib import image
+        from matplotlib.figure import Figure
+
+        pixels = image.imread(io.BytesIO(png), format="png")
+        height, width = pixels.shape[:2]
+        fig = Figure(figsize=(width / dpi, height / dpi), dpi=dpi)
+        fig.figimage(pixels, resize=False)
+        self.pdf.savefig(fig, dpi=dpi)
+
     def text(self, lines: list[str]) -> None:
         """``lines`` (plain text, wrapped to the page) on as many pages as they need."""
         import textwrap
@@ -145,7 +157,7 @@ def write_maps(out, result, quantities, cases, stems, units, book: Book, steps: 
             steps.check()
             m = map_figure(result, q, None if case == WORST else case, units=units)
             pic = picture_of(m, q)
-            book.add(m.figure)
+            book.picture(pic.png)
             name = f"{stems[case]}__{q}.png"
             paths.append(out.write(f"maps/{name}", pic.png))
             written.append(f"maps/{name}")
@@ -197,7 +209,7 @@ def write_sections(out, project, result, targets, cases, units, book: Book, step
             sec = cut(result, t.quantity, cases=cases, **kw)
             fig = section_figure(sec, units=units, project_title=project.title).figure
             png = figure_png(fig)
-            book.add(fig)
+            book.picture(png)
             name = f"{t.tag}__{tag}.png"
             paths.append(out.write(f"sections/{name}", png))
             written.append(f"sections/{name}")
