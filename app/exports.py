@@ -23,8 +23,11 @@ def write_grid_csv(result, path: str | Path) -> int:
 
 
 def findings_text(result, units: Units, title: str = "", file_name: str = "") -> str:
-    failing = [s for s in result.summary if not s.holds]
-    verdict = "ALL LIMITS HOLD" if not failing else f"{len(failing)} OF {len(result.summary)} LIMITS FAIL"
+    judged = result.judged_summary
+    failing = [s for s in judged if s.fails]
+    verdict = f"ALL {len(judged)} LIMITS HOLD" if not failing else f"{len(failing)} OF {len(judged)} LIMITS FAIL"
+    if result.not_judged:
+        verdict += "; NOT JUDGED ANYWHERE: " + ", ".join(s.label for s in result.not_judged)
     head = [
         f"Inlet operability findings — {title or file_name}",
         f"File: {file_name}" if file_name else "",

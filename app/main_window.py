@@ -458,7 +458,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         r = self.result
         if self._pending_selection == "worst":
             self._pending_selection = None
-            target = next((s for s in r.summary if not s.holds), r.summary[0] if r.summary else None)
+            target = next((s for s in r.summary if s.fails), r.summary[0] if r.summary else None)
             if target is not None and math.isfinite(target.worst_mach):
                 self.select_condition(target.worst_mach, target.worst_altitude_m)
                 return

@@ -46,8 +46,8 @@ def run(args) -> int:
     out(head)
     out("-" * len(head))
     for row in c.verdicts:
-        va = "-" if row.a is None else ("holds" if row.a.holds else "FAILS")
-        vb = "-" if row.b is None else ("holds" if row.b.holds else "FAILS")
+        va = "-" if row.a is None else row.a.verdict
+        vb = "-" if row.b is None else row.b.verdict
         ma = None if row.a is None else row.a.worst_margin
         mb = None if row.b is None else row.b.worst_margin
         out(f"{row.label[:40]:<40} {va:<6} {fmt(ma):>9} {vb:<6} {fmt(mb):>9}  {row.change}")

@@ -26,7 +26,10 @@ Checks, in order:
 - ``installation-loss``: limit - installation loss 1 - F_inst/F_n (method section 13), where thrust data give it.
 
 No check applies outside the atmosphere model or outside the case's region (``outside-case-region``, method
-section 14): such points are computed but judged by no limit.
+section 14): such points are computed but judged by no limit. A check with a region of its own
+(``[limits.region.NAME]``, method section 15: ``mach_range``, ``altitude_range_m``, bounds included) applies
+only inside it: outside, it has no verdict and no margin (``applies`` false), so it is in no least margin and
+no failing share.
 """
 
 from __future__ import annotations
@@ -36,8 +39,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine_air.envelope import flags as F
+from engine_air.envelope.check_names import CHECK_NAMES
 from engine_air.physics.shocks import normal_shock
-from engine_air.project.model import REFERENCE_RECOVERY_NAME, Limits
+from engine_air.project.model import REFERENCE_RECOVERY_NAME, LimitRegion, Limits
 
 
 @dataclass
@@ -62,6 +66,8 @@ MAX_RELATIVE_MARGIN = 1e12
 
 
 def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=None) -> Check:
+    if name not in CHECK_NAMES:  # a [limits.region.NAME] table must be able to name every check
+        raise AssertionError(f"check {name!r} is not listed in engine_air.envelope.check_names.CHECK_NAMES")
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         applies = np.asarray(applies, bool) & np.isfinite(margin)
         fails = applies & (margin < 0.0)
@@ -74,8 +80,38 @@ def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=N
     return Check(name, label, limit_text, value, margin, relative, applies, fails)
 
 
+def in_region(region: LimitRegion | None, mach, altitude_m) -> np.ndarray:
+    """Bool: inside ``region`` (bounds included; everywhere when ``region`` is None), at the broadcast shape of
+    ``mach`` and ``altitude_m``."""
+    mach, altitude_m = np.asarray(mach, float), np.asarray(altitude_m, float)
+    inside = np.ones(np.broadcast_shapes(mach.shape, altitude_m.shape), bool)
+    if region is not None and region.mach_range is not None:
+        lo, hi = region.mach_range
+        inside &= (mach >= lo) & (mach <= hi)
+    if region is not None and region.altitude_range_m is not None:
+        lo, hi = region.altitude_range_m
+        inside &= (altitude_m >= lo) & (altitude_m <= hi)
+    return inside
+
+
+def _restrict(check: Check, region: LimitRegion | None, points) -> Check:
+    """``check`` judged only inside its region (method section 15): no verdict and no margin outside."""
+    if region is None:
+        return check
+    inside = in_region(region, points.mach, points.altitude_m)
+    check.applies = check.applies & inside
+    check.fails = check.fails & inside
+    check.relative_margin = np.where(inside, check.relative_margin, np.nan)
+    return check
+
+
 def build_checks(limits: Limits, points) -> list[Check]:
-    """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints)."""
+    """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints), each judged only
+    inside its region when ``limits`` gives one."""
+    return [_restrict(c, limits.region(c.name), points) for c in _every_check(limits, points)]
+
+
+def _every_check(limits: Limits, points) -> list[Check]:
     inside = (points.flags & (F.OUTSIDE_ATMOSPHERE | F.OUTSIDE_CASE_REGION)) == 0
     bits = points.flags
     checks = [

@@ -210,13 +210,15 @@ def finding_mechanism(project: Project, result, summary, units: str = "si") -> t
 
     The mechanism is ``mechanism(project, points, index, check, units)`` for that
     row's check, case and point, so each row says what drives its own limit, with
-    its own numbers; a check judged nowhere gives ("–", "–", "the check applies at
-    no envelope point").
+    its own numbers; a check judged nowhere gives ("–", "–", "not judged anywhere:
+    " and why: outside its region, or the check applies at no envelope point).
     """
     from engine_air.envelope.ranking import nearest_index
 
     if not summary.worst_case:
-        return "–", "–", "the check applies at no envelope point"
+        from engine_air.envelope.evaluate import not_judged_reason
+
+        return "–", "–", "not judged anywhere: " + not_judged_reason(project, summary)
     points = result.case_map(summary.worst_case).points
     j = nearest_index(result.mach, result.altitude_m, summary.worst_mach, summary.worst_altitude_m)
     regime = REGIMES[int(np.asarray(points.regime)[j])]

@@ -50,7 +50,7 @@ h1 { font-size: 22px; margin-bottom: 4px; } h2 { font-size: 18px; border-bottom:
 h3 { font-size: 15px; margin: 18px 0 6px; }
 table { border-collapse: collapse; margin: 8px 0; } th, td { border: 1px solid #c8c8c8; padding: 3px 7px; }
 th { background: #efefef; text-align: left; } td.n { text-align: right; font-variant-numeric: tabular-nums; }
-.holds { color: #0b4f8a; font-weight: bold; } .fails { color: #8a3b00; font-weight: bold; }
+.holds { color: #0b4f8a; font-weight: bold; } .fails { color: #8a3b00; font-weight: bold; } .unjudged { color: #555; font-style: italic; }
 .banner { padding: 8px 12px; border: 2px solid; display: inline-block; margin: 8px 0; font-weight: bold; }
 .banner.holds { border-color: #0b4f8a; background: #eaf2fa; } .banner.fails { border-color: #b35806; background: #fdf0e3; }
 .meta { color: #555; } .maps { display: flex; flex-wrap: wrap; gap: 18px; }
@@ -206,8 +206,8 @@ def verdict_and_findings(project, result, units: str = "si") -> tuple[str, str]:
     """The verdict table and the findings table (each limit at its own worst point, with its mechanism)."""
     verdict_rows, finding_rows = [], []
     for s in result.summary:
-        cls = "holds" if s.holds else "fails"
-        word = f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>'
+        cls = "fails" if s.fails else "holds" if s.judged else "unjudged"
+        word = f'<span class="{cls}">{e(s.verdict)}</span>'
         verdict_rows.append([e(s.label), e(s.limit_text), word, num(s.worst_value), num(s.worst_margin),
                              f"{100 * s.failing_share:.1f} %", str(s.judged_points)])
         regime, flags, why = finding_mechanism(project, result, s, units)
@@ -221,11 +221,10 @@ def verdict_and_findings(project, result, units: str = "si") -> tuple[str, str]:
 
 
 def banner_text(result) -> str:
-    failing = [s for s in result.summary if not s.holds]
-    if not failing:
-        return f"VERDICT: all {len(result.summary)} limits hold at every envelope point of every case."
-    return (f"VERDICT: {len(failing)} of {len(result.summary)} limits FAIL somewhere in the envelope: "
-            + ", ".join(s.label for s in failing) + ".")
+    """The overall verdict (``engine_air.envelope.evaluate.verdict_text``): limits judged nowhere named apart."""
+    from engine_air.envelope.evaluate import verdict_text
+
+    return "VERDICT: " + verdict_text(result)
 
 
 def _header(project, result, source_name) -> str:

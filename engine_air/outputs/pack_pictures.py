@@ -48,7 +48,7 @@ def pack_quantities(result) -> tuple[str, ...]:
     if result.summary and not result.holds:
         keys.append(LEAST_MARGIN)
         for s in result.summary:
-            own = None if s.holds else limit_quantity(result, s.name)
+            own = limit_quantity(result, s.name) if s.fails else None
             if own is not None and own not in keys:
                 keys.append(own)
     return tuple(keys + [k for k in PACK_QUANTITIES if k not in keys])

@@ -119,13 +119,16 @@ def summary_lines(project, result, worst, source_name: str, units: str = "si") -
              "", banner_text(result), "", f"{'limit':<40} {'rule':<30} {'verdict':<7} {'worst':>9} {'margin':>9} "
              f"{'Mach':>6} {'alt m':>7} {'failing':>8}  case"]
     for s in result.summary:
-        lines.append(f"{s.label[:40]:<40} {s.limit_text[:30]:<30} {'holds' if s.holds else 'FAILS':<7} "
+        if not s.judged:
+            lines.append(f"{s.label[:40]:<40} {s.limit_text[:30]:<30} {s.verdict}")
+            continue
+        lines.append(f"{s.label[:40]:<40} {s.limit_text[:30]:<30} {s.verdict:<7} "
                      f"{s.worst_value:>9.4f} {s.worst_margin:>9.4f} {s.worst_mach:>6.3f} {s.worst_altitude_m:>7.0f} "
                      f"{100 * s.failing_share:>7.1f}%  {s.worst_case or '-'}")
     lines += ["", "Findings: what drives each limit at its own worst point"]
     for s in result.summary:
         regime, flags, why = finding_mechanism(project, result, s, units)
-        lines.append(f"- {s.label} ({'holds' if s.holds else 'FAILS'}; {regime}; flags {flags}): {why}.")
+        lines.append(f"- {s.label} ({s.verdict}; {regime}; flags {flags}): {why}.")
     if worst.check is not None:
         pts = result.case_map(worst.case).points
         lines += ["", f"Overall worst point: {worst.label} at {worst.where()}, relative margin "

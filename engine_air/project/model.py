@@ -15,6 +15,16 @@ REFERENCE_RECOVERY_NAME = "mil-e-5008b"
 
 
 @dataclass(frozen=True)
+class LimitRegion:
+    """Where one check is judged (method section 15): ``check`` is a check name (``point --json``
+    ``checks[].name``); bounds included, ``None`` for no bound on that axis."""
+
+    check: str
+    mach_range: tuple[float, float] | None = None
+    altitude_range_m: tuple[float, float] | None = None
+
+
+@dataclass(frozen=True)
 class Limits:
     face_mach_max: float
     throat_mach_max: float | None = None
@@ -24,6 +34,14 @@ class Limits:
     spillage_fraction_max: float | None = None  # extension: optional limit on spillage
     started_required: bool | None = None  # mixed-compression: None means the type's default (true)
     installation_loss_max: float | None = None  # needs thrust data in the ratings
+    regions: tuple[LimitRegion, ...] = ()  # [limits.region.NAME]: where a check is judged (default everywhere)
+
+    def region(self, check: str) -> LimitRegion | None:
+        """The region of the check named ``check``; None when it is judged everywhere."""
+        for r in self.regions:
+            if r.check == check:
+                return r
+        return None
 
 
 @dataclass(frozen=True)

@@ -45,9 +45,12 @@ def project_to_dict(project: Project) -> dict:
     inlet = _body(project.inlet, S.inlet_fields(kind))
     if project.inlet.schedule is not None:
         inlet["schedule"] = _body(project.inlet.schedule, S.schedule_fields(kind))
+    limits = _body(project.limits, S.LIMIT_FIELDS)
+    if project.limits.regions:
+        limits["region"] = {r.check: _body(r, S.LIMIT_REGION_FIELDS) for r in project.limits.regions}
     out = {
         "project": _body(project, S.PROJECT_FIELDS),
-        "limits": _body(project.limits, S.LIMIT_FIELDS),
+        "limits": limits,
         "inlet": inlet,
         "engine": {"rating": [_body(x, S.RATING_FIELDS) for x in project.ratings]},
         "envelope": _body(project.envelope, S.ENVELOPE_FIELDS),
@@ -85,6 +88,8 @@ def dumps_project(project: Project) -> str:
 
     table("[project]", d["project"])
     table("[limits]", d["limits"])
+    for name, body in d["limits"].get("region", {}).items():
+        table(f"[limits.region.{name}]", body)
     table("[inlet]", d["inlet"])
     if "schedule" in d["inlet"]:
         table("[inlet.schedule]", d["inlet"]["schedule"])

@@ -16,6 +16,7 @@ from __future__ import annotations
 import difflib
 from dataclasses import dataclass, replace
 
+from engine_air.envelope.check_names import CHECK_NAMES
 from engine_air.project.inlet_keys import DECLARED
 from engine_air.project.model import REFERENCE_RECOVERY_NAME
 from engine_air.project.schema_field import REQUIRED, Field
@@ -76,6 +77,11 @@ class Table:
 TABLES: tuple[Table, ...] = (
     Table("project", False, True, "the file itself: format number, title and notes"),
     Table("limits", False, True, "the limits every point of the envelope is judged against"),
+    Table("limits.region.<check>", False, False,
+          "where one check is judged (method section 15): one table per check that has a region, the last part of "
+          "its name the check's name, one of " + ", ".join(CHECK_NAMES) + " (the names of `engine-air point --json` "
+          "checks[].name). Outside the region the check is not judged at that point: no verdict, no margin, "
+          "not in the least margin and not in the failing share; give mach_range, altitude_range_m or both"),
     Table("inlet", False, True, "inlet geometry and airflow management; which keys apply depends on inlet.type"),
     Table("inlet.schedule", False, False,
           "geometry scheduled against flight Mach number M0: linear between the listed Mach numbers, end values "
@@ -140,6 +146,19 @@ LIMIT_FIELDS = (
     _num("installation_loss_max", "limits",
          "largest installation loss (1 - installed thrust / net thrust) allowed; needs thrust data in the ratings",
          lo=0.0, hi=1.0, lo_open=True, hi_open=True, decimals=3, step=0.01),
+)
+
+REGION_TABLE = "limits.region.<check>"
+"""The schema's name of a ``[limits.region.NAME]`` table (``NAME`` a check name)."""
+
+LIMIT_REGION_FIELDS = (
+    Field("mach_range", REGION_TABLE, "number list",
+          "[lowest, highest] flight Mach number where the check is judged (bounds included); absent: every Mach",
+          lo=0.0, hi=MAX_MACH, length=(2, 2), order="non-decreasing", decimals=3),
+    Field("altitude_range_m", REGION_TABLE, "number list",
+          "[lowest, highest] geopotential altitude where the check is judged (bounds included); absent: every "
+          "altitude", unit="m", lo=MIN_ALTITUDE_M, hi=MAX_ALTITUDE_M, length=(2, 2), order="non-decreasing",
+          decimals=0),
 )
 
 INLET_COMMON_FIELDS = (
@@ -321,6 +340,7 @@ def fields(table_name: str, inlet_type: str | None = None) -> tuple[Field, ...]:
     return {
         "project": PROJECT_FIELDS,
         "limits": LIMIT_FIELDS,
+        REGION_TABLE: LIMIT_REGION_FIELDS,
         "engine.rating": RATING_FIELDS,
         "envelope": ENVELOPE_FIELDS,
         "grid": GRID_FIELDS,
@@ -343,9 +363,10 @@ def field(path: str, inlet_type: str | None = None) -> Field:
 
 
 def subtables(table_name: str) -> tuple[str, ...]:
-    """Names of the tables directly below ``table_name`` (``inlet`` → ``schedule``)."""
+    """Names of the tables directly below ``table_name`` (``inlet`` → ``schedule``, ``limits`` → ``region``)."""
     prefix = table_name + "."
-    return tuple(t.name[len(prefix):] for t in TABLES if t.name.startswith(prefix) and "." not in t.name[len(prefix):])
+    below = (t.name[len(prefix):].partition(".")[0] for t in TABLES if t.name.startswith(prefix))
+    return tuple(dict.fromkeys(below))
 
 
 def suggestion(name: str, candidates) -> str | None:

@@ -163,9 +163,13 @@ class VerdictRow:
     @property
     def change(self) -> str:
         if self.a is None:
-            return "only in B" + (" (holds)" if self.b.holds else " (fails)")
+            return f"only in B ({self.b.verdict.lower()})"
         if self.b is None:
-            return "only in A" + (" (holds)" if self.a.holds else " (fails)")
+            return f"only in A ({self.a.verdict.lower()})"
+        if not self.a.judged or not self.b.judged:
+            if self.a.judged == self.b.judged:
+                return "not judged anywhere in either"
+            return "not judged anywhere in " + ("A" if not self.a.judged else "B")
         if self.a.holds and self.b.holds:
             return "holds in both"
         if not self.a.holds and not self.b.holds:

@@ -225,7 +225,7 @@ def variant_row(result: MapResult, index: tuple[int, ...], values: tuple[float, 
         judged = chk.applies & result.inside
         if judged.any():
             face = min(face, float(np.min(chk.margin[judged])))
-    failing = tuple(s.name for s in result.summary if not s.holds)
+    failing = tuple(s.name for s in result.summary if s.fails)
     return SweepRow(
         index=tuple(int(i) for i in index), values=tuple(float(v) for v in values),
         verdict="holds" if result.holds else "fails", worst_relative_margin=w.relative_margin,
