@@ -2,20 +2,25 @@
 
 Maps (``map_figure``, ``render_map``, ``write_map_png``): one quantity of an
 envelope evaluation (``engine_air.envelope.evaluate.MapResult``) for one case,
-or the worst of all cases when ``case`` is None, over flight Mach number (x)
-and pressure altitude (y: km in SI, ft in US units), with
+or the worst of the evaluated cases when ``case`` is None (the only case when
+one was evaluated), over flight Mach number (x) and pressure altitude (y: km in
+SI, ft in US units); ``default_quantity(result)`` is the one shown when none is
+asked for (the least margin when a limit fails, else the face Mach margin), with
 
-- a title naming the quantity and the case (and the project);
+- a title naming the quantity and the case shown (and the project), wrapped to fit;
 - a colour bar labelled with the quantity and its unit. Margins use the
   diverging scale centred on zero (orange where the limit fails, blue where it
   holds), levels the sequential one (``engine_air.outputs.colours``, the same
   scales as the program);
 - points where the quantity is not judged (not defined, or its check does not
   apply there) in neutral grey, points outside the envelope in light grey;
-- the envelope outline, an ``x`` on failing points (thinned to a regular
-  pattern when dense), the margin = 0 line (of the quantity shown, or of the
+- the envelope outline, an ``x`` where the limit of the quantity shown fails
+  (any limit's for the least margin and for a quantity no limit judges; thinned
+  to a regular pattern when dense), the margin = 0 line (of the quantity shown, or of the
   least relative margin over all limits for a level quantity) and the dashed
-  face static = ambient line (p2/p0 = 1), each named in a legend below.
+  face static = ambient line (p2/p0 = 1), each named in a legend below;
+- for a quantity defined nowhere (e.g. the installation loss without thrust
+  data) no colour bar, and the reason written on the picture.
 
 Section plots (``section_figure``, ``write_section_png``): a cut from
 ``engine_air.outputs.sections.cut``, one line per case, the limit line (zero
@@ -445,7 +450,8 @@ def write_map_png(
     *,
     units: str = SI,
 ) -> MapPicture:
-    """Write the map of ``quantity_key`` for ``case`` (None: worst of all cases) to ``path`` as PNG.
+    """Write the map of ``quantity_key`` for ``case`` (None: the worst of the evaluated cases, or the only one) to
+    ``path`` as PNG (960 x 680 px).
 
     Returns the ``MapPicture``. Raises KeyError for an unknown quantity or case and OSError when the
     file cannot be written.
