@@ -493,6 +493,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self.units_combo.blockSignals(False)
         self.detail.set_units(self.units)
         self.editors.set_units(self.units)
+        self.sketch.set_units(self.units)
         if self.result is not None:
             self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result, self.units))
             self._redraw()

@@ -50,7 +50,8 @@ class LimitsTab:
         labels = {"throat_mach_max": "Throat Mach limit M_th max",
                   "stable_flow_fraction": "Stable flow fraction MFR/MFR_max",
                   "relative_tip_mach_max": "Blade relative tip Mach max", "spillage_fraction_max": "Spillage fraction max",
-                  "installation_loss_max": "Installation loss max (share of net thrust)"}
+                  "installation_loss_max": "Installation loss max (share of net thrust)",
+                  "dc60_max": "Distortion DC(60) max", "surge_margin_min": "Remaining surge margin min"}
         for f in S.LIMIT_FIELDS:
             if f.kind != "number" or f.required:
                 continue

@@ -1,7 +1,8 @@
 """Command line ``engine-air``: the parser and ``main``; each command lives in its own module.
 
 Commands: ``check`` (engine_air.cli.check), ``map`` (maps), ``point`` (point),
-``size`` (size), ``compare`` (compare), ``sweep`` (sweep), ``pack`` (pack).
+``size`` (size), ``compare`` (compare), ``sweep`` (sweep), ``pack`` (pack), ``distortion``
+(distortion).
 
 Exit codes: 0 every limit holds, 1 some limit fails, 2 the input is unusable
 (one-line message on stderr, never a traceback), 3 (``point`` only) the point
@@ -18,7 +19,7 @@ import argparse
 import sys
 
 from engine_air import __version__
-from engine_air.cli import check, compare, maps, pack, point, size, sweep
+from engine_air.cli import check, compare, distortion, maps, pack, point, size, sweep
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err,
                                    quiet_stdout)
 from engine_air.cli.maps import write_map_csv
@@ -47,7 +48,7 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--version", action="version", version=f"engine-air {__version__}")
     sub = p.add_subparsers(dest="command", required=True)
-    for module in (check, maps, point, size, compare, sweep, pack):
+    for module in (check, maps, point, size, compare, sweep, pack, distortion):
         module.add_parser(sub)
     return p
 

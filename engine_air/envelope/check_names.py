@@ -8,4 +8,4 @@ schema can name them: a ``[limits.region.NAME]`` table must name one of these. A
 from __future__ import annotations
 
 CHECK_NAMES = ("face-mach", "throat-mach", "recovery", "stability", "relative-tip-mach", "spillage", "started",
-               "installation-loss")
+               "installation-loss", "dc60", "surge-margin")

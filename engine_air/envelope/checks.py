@@ -24,6 +24,13 @@ Checks, in order:
   points only: fails where the inlet is ``unstarted`` or, started, at ``unstart-risk`` (method §11).
   Margin +1 where it holds, -1 where it fails (a yes/no check).
 - ``installation-loss``: limit - installation loss 1 - F_inst/F_n (method section 13), where thrust data give it.
+- ``dc60``: ``limits.dc60_max`` - DC(60) (method section 18), where ``points.dc60`` is finite.
+- ``surge-margin``: remaining surge margin - ``limits.surge_margin_min``, the remaining margin being the rating's
+  available margin - ``points.surge_margin_loss`` - its other stack-up items (``[engine.rating.stability]``,
+  passed as ``stability``), where the loss is finite.
+  Both are added only when the points carry the data (``points.dc60`` / ``points.surge_margin_loss`` not None:
+  a characteristics table with distortion columns, method sections 17-18); until data back them the limits are
+  judged by ``engine-air distortion`` on rake files only.
 
 No check applies outside the atmosphere model or outside the case's region (``outside-case-region``, method
 section 14): such points are computed but judged by no limit. A check with a region of its own
@@ -105,13 +112,14 @@ def _restrict(check: Check, region: LimitRegion | None, points) -> Check:
     return check
 
 
-def build_checks(limits: Limits, points) -> list[Check]:
+def build_checks(limits: Limits, points, stability=None) -> list[Check]:
     """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints), each judged only
-    inside its region when ``limits`` gives one."""
-    return [_restrict(c, limits.region(c.name), points) for c in _every_check(limits, points)]
+    inside its region when ``limits`` gives one; ``stability`` the case's rating's ``Stability`` (the
+    surge-margin stack-up), or None."""
+    return [_restrict(c, limits.region(c.name), points) for c in _every_check(limits, points, stability)]
 
 
-def _every_check(limits: Limits, points) -> list[Check]:
+def _every_check(limits: Limits, points, stability=None) -> list[Check]:
     inside = (points.flags & (F.OUTSIDE_ATMOSPHERE | F.OUTSIDE_CASE_REGION)) == 0
     bits = points.flags
     checks = [
@@ -200,7 +208,31 @@ def _every_check(limits: Limits, points) -> list[Check]:
                 loss, cap - loss, max(cap, 0.01), inside & np.isfinite(loss),
             )
         )
+    checks.extend(distortion_checks(limits, points, inside, stability))
     return checks
+
+
+def distortion_checks(limits: Limits, points, inside, stability=None) -> list[Check]:
+    """``dc60`` and ``surge-margin`` (method §18) where the points carry distortion data (finite values)."""
+    out = []
+    dc60 = getattr(points, "dc60", None)
+    if limits.dc60_max is not None and dc60 is not None:
+        cap = limits.dc60_max
+        dc60 = np.asarray(dc60, float)
+        out.append(_check("dc60", "Distortion DC(60)", f"DC(60) <= {cap:g}", dc60, cap - dc60, max(cap, 0.01),
+                          inside & np.isfinite(dc60)))
+    loss = getattr(points, "surge_margin_loss", None)
+    if limits.surge_margin_min is not None and loss is not None:
+        floor = limits.surge_margin_min
+        loss = np.asarray(loss, float)
+        if stability is None:
+            remaining = np.full(np.shape(loss), np.nan)
+        else:
+            other = sum(v for _n, v in stability.other_losses)
+            remaining = stability.available_surge_margin - loss - other
+        out.append(_check("surge-margin", "Remaining surge margin", f"remaining surge margin >= {floor:g}",
+                          remaining, remaining - floor, max(abs(floor), 0.01), inside & np.isfinite(remaining)))
+    return out
 
 
 def limiting_index(checks: list[Check], bits) -> np.ndarray:

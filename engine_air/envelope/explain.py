@@ -129,7 +129,6 @@ def _started(at: _At) -> str:
     from engine_air.inlets.mixed_compression import starting_machs
 
     m0 = at("mach")
-    contraction = at.throat_area() / at.project.inlet.capture_area_m2
     start, unstart = starting_machs(at.project.inlet)
     if start is None:
         history = "it does not self-start below Mach 5 at any point of its schedule"
@@ -137,8 +136,9 @@ def _started(at: _At) -> str:
         history = (f"accelerating it self-starts at Mach {start:.3f}, decelerating it stays started down to "
                    f"Mach {unstart:.3f}")
     if at.has(F.UNSTARTED):
-        kantrowitz = (f"A_th/A_c = {contraction:.4f} against the self-start (Kantrowitz) limit "
-                      f"{at('self_start_contraction'):.4f} at the post-ramp Mach")
+        kantrowitz = (f"internal contraction A_th/A_e = {at('internal_contraction_ratio'):.4f} (cowl entrance A_e = "
+                      f"{at.q(at('entrance_area_m2'), 'm^2', 4)}) against the self-start (Kantrowitz) limit "
+                      f"{at('self_start_contraction'):.4f} on A_th/A_e at the post-ramp Mach")
         if start is not None and m0 < unstart:
             return (f"unstarted by design at Mach {m0:.3f}, below the unstart Mach {unstart:.3f}: no started flow "
                     f"exists here ({kantrowitz}); {history}, so the started check means something only above "
@@ -172,6 +172,11 @@ def _installation(at: _At) -> str:
             + ", ".join(items) + f"; installed thrust {at.q(f_inst, 'N')}")
 
 
+def _distortion(at: _At) -> str:
+    return (f"engine-face distortion from the characteristics data at mass-flow ratio {at('mass_flow_ratio'):.3f} "
+            f"({at.regime} operation): DC(60) and the ring intensities load the engine's surge-margin stack-up")
+
+
 def _generic(at: _At, check_name: str) -> str:
     try:
         chk = at.points.check(check_name)
@@ -183,7 +188,7 @@ def _generic(at: _At, check_name: str) -> str:
 
 
 _TEXTS = {"face-mach": _face, "throat-mach": _throat, "recovery": _recovery, "stability": _stability,
-          "started": _started, "installation-loss": _installation}
+          "started": _started, "installation-loss": _installation, "dc60": _distortion, "surge-margin": _distortion}
 
 
 def mechanism(project: Project, points: OperatingPoints, index, check_name: str, units: str = "si") -> str:

@@ -15,6 +15,7 @@ import importlib
 
 _EXPORTS = {
     "Project": "model", "Inlet": "model", "Schedule": "model", "Limits": "model", "LimitRegion": "model", "Rating": "model",
+    "Stability": "model",
     "Envelope": "model", "Grid": "model", "Case": "model",
     "ProjectError": "errors", "ProjectSaveError": "errors",
     "load_project": "load", "loads_project": "load", "project_from_dict": "load", "validate_project": "load",

@@ -154,7 +154,30 @@ def check_value(r: Reader, f: Field, value: object, keypath: str):
                 r.fail(f"{keypath}[{i}]", list(row), "must have at least 1 entry; it has 0")
             out.append(tuple(_number(r, f, v, f"{keypath}[{i}][{j}]", f.key) for j, v in enumerate(row)))
         return tuple(out)
+    if k == "named numbers":
+        return _named_numbers(r, f, value, keypath)
     raise AssertionError(f"unknown kind {k!r} of {f.path}")
+
+
+def _named_numbers(r: Reader, f: Field, value: object, keypath: str) -> tuple[tuple[str, float], ...]:
+    """A TOML table of name = number (or the (name, number) pairs of a ``Project``) as pairs in order."""
+    if isinstance(value, dict):
+        items = list(value.items())
+    elif isinstance(value, (list, tuple)) and all(isinstance(x, (list, tuple)) and len(x) == 2 for x in value):
+        items = [tuple(x) for x in value]
+    else:
+        r.fail(keypath, value, f"must be {f.allowed_text()}, not {kind_name(value)}")
+    most = f.length[1] if f.length else None
+    if most is not None and len(items) > most:
+        r.fail(keypath, len(items), f"must have at most {most} names; it has {len(items)}")
+    seen = set()
+    for name, _x in items:
+        if not isinstance(name, str) or not name.strip():
+            r.fail(keypath, name, "each name must be non-empty text")
+        if name in seen:
+            r.fail(f"{keypath}.{name}", name, "each name once")
+        seen.add(name)
+    return tuple((name, _number(r, f, x, f"{keypath}.{name}", name)) for name, x in items)
 
 
 def _format(r: Reader, fmt: object) -> int:

@@ -15,7 +15,8 @@ from engine_air.project.model import Envelope, Grid, Inlet, Limits, Project
 
 REGION_LIMIT_KEYS = {"recovery": "recovery_min", "stability": "stable_flow_fraction",
                      "relative-tip-mach": "relative_tip_mach_max", "spillage": "spillage_fraction_max",
-                     "installation-loss": "installation_loss_max"}
+                     "installation-loss": "installation_loss_max", "dc60": "dc60_max",
+                     "surge-margin": "surge_margin_min"}
 """Checks that exist only when their [limits] key is given (a region for them alone is warned about)."""
 
 

@@ -13,7 +13,8 @@ import os
 
 from engine_air.project import schema as S
 from engine_air.project.key_checks import MISSING, Reader, check_relations, check_value, kind_name
-from engine_air.project.model import Case, Envelope, Grid, Inlet, LimitRegion, Limits, Project, Rating, Schedule
+from engine_air.project.model import (Case, Envelope, Grid, Inlet, LimitRegion, Limits, Project, Rating, Schedule,
+                                      Stability)
 from engine_air.project.project_rules import case_count, check_region_name, project_rules
 from engine_air.project.schema_field import Field
 
@@ -159,10 +160,22 @@ def _read_rows(r: Reader, items: list[dict], table_name: str, cls):
     out = []
     for i, t in enumerate(items):
         kp = f"{table_name}[{i}]"
-        refuse_unknown(r, t, kp, [f.key for f in flds], header=f"[[{table_name}]]")
+        refuse_unknown(r, t, kp, [f.key for f in flds], S.subtables(table_name), header=f"[[{table_name}]]")
         values, _given = read_fields(r, t, flds, kp)
+        if "stability" in S.subtables(table_name) and "stability" in t:
+            values["stability"] = _read_stability(r, t, f"{kp}.stability")
         out.append(cls(**dataclass_kwargs(cls, values)))
     return tuple(out)
+
+
+def _read_stability(r: Reader, t: dict, keypath: str) -> Stability:
+    """``[engine.rating.stability]`` below one rating (method §18)."""
+    s = _table(r, t, "stability", keypath, False)
+    flds = S.fields("engine.rating.stability")
+    refuse_unknown(r, s, keypath, [f.key for f in flds], header="[engine.rating.stability]")
+    values, _given = read_fields(r, s, flds, keypath)
+    values["other_losses"] = values["other_losses"] or ()
+    return Stability(**dataclass_kwargs(Stability, values))
 
 
 def _read_plain(r: Reader, data: dict, table_name: str, cls, required: bool):

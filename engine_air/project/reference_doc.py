@@ -48,7 +48,8 @@ def _allowed(f: Field) -> str:
 
 
 def _kind(f: Field) -> str:
-    return {"number or name": "number or text", "choice": "text", "number table": "list of number lists"}.get(
+    return {"number or name": "number or text", "choice": "text", "number table": "list of number lists",
+                   "named numbers": "table of numbers"}.get(
         f.kind, f.kind)
 
 

@@ -8,7 +8,9 @@ of the project's inlet type, and keys at their default value left out (the [grid
 from __future__ import annotations
 
 import errno
+import json
 import os
+import re
 
 import tomli_w
 
@@ -52,12 +54,21 @@ def project_to_dict(project: Project) -> dict:
         "project": _body(project, S.PROJECT_FIELDS),
         "limits": limits,
         "inlet": inlet,
-        "engine": {"rating": [_body(x, S.RATING_FIELDS) for x in project.ratings]},
+        "engine": {"rating": [_rating_body(x) for x in project.ratings]},
         "envelope": _body(project.envelope, S.ENVELOPE_FIELDS),
         "grid": _body(project.grid, S.GRID_FIELDS, keep_defaults=True),  # the resolution is always shown
         "case": [_body(c, S.CASE_FIELDS) for c in project.cases],
     }
     return out
+
+
+def _rating_body(rating) -> dict:
+    body = _body(rating, S.RATING_FIELDS)
+    if rating.stability is not None:
+        stability = _body(rating.stability, S.fields("engine.rating.stability"))
+        stability["other_losses"] = dict(rating.stability.other_losses)
+        body["stability"] = stability
+    return body
 
 
 _HEADER = "# engine-air project file. SI units: m, m^2, kg/s, m/s, K; angles in degrees. Keys: docs/project-file.md"
@@ -73,7 +84,13 @@ def _toml_value(value: object) -> str:
         per_line = 1 if any(isinstance(v, (list, tuple)) for v in value) else _ITEMS_PER_LINE
         rows = [", ".join(items[i:i + per_line]) for i in range(0, len(items), per_line)]
         return "[\n    " + ",\n    ".join(rows) + ",\n]"
+    if isinstance(value, dict):  # a small table of name = number, written inline
+        return "{ " + ", ".join(f"{_toml_key(k)} = {_toml_value(v)}" for k, v in value.items()) + " }"
     return tomli_w.dumps({"v": value})[len("v = "):].rstrip("\n")
+
+
+def _toml_key(key: str) -> str:
+    return key if re.fullmatch(r"[A-Za-z0-9_-]+", key) else json.dumps(key)
 
 
 def dumps_project(project: Project) -> str:
@@ -81,9 +98,10 @@ def dumps_project(project: Project) -> str:
     d = project_to_dict(project)
     out = [_HEADER, ""]
 
-    def table(header: str, body: dict) -> None:
+    def table(header: str, body: dict, inline_tables: bool = False) -> None:
         out.append(header)
-        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items() if not isinstance(value, dict))
+        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items()
+                   if inline_tables or not isinstance(value, dict))
         out.append("")
 
     table("[project]", d["project"])
@@ -95,6 +113,8 @@ def dumps_project(project: Project) -> str:
         table("[inlet.schedule]", d["inlet"]["schedule"])
     for item in d["engine"]["rating"]:
         table("[[engine.rating]]", item)
+        if "stability" in item:
+            table("[engine.rating.stability]", item["stability"], inline_tables=True)
     table("[envelope]", d["envelope"])
     table("[grid]", d["grid"])
     for item in d["case"]:

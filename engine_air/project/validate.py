@@ -84,6 +84,8 @@ def validate_project(project: Project, path: str | os.PathLike | None = None) ->
         r.fail("engine.rating", [], "at least one [[engine.rating]] table is required")
     for i, rating in enumerate(project.ratings):
         _check_object(r, rating, S.RATING_FIELDS, f"engine.rating[{i}]")
+        if rating.stability is not None:
+            _check_object(r, rating.stability, S.fields("engine.rating.stability"), f"engine.rating[{i}].stability")
     _check_object(r, project.envelope, S.ENVELOPE_FIELDS, "envelope")
     _check_object(r, project.grid, S.GRID_FIELDS, "grid")
     if not project.cases:
