@@ -34,9 +34,12 @@ def draw_characteristics(ax, curves, measured=None) -> None:
         if rows is not None:
             ax.plot(rows["mass_flow_ratio"], rows["recovery"], "o", mfc="none", color=colour, ms=6,
                     label=f"M {curve.mach:g} measured")
+        right = max(np.nanmax(np.asarray(curve.mass_flow_ratio, float)), 1e-9)
         for (x, y), names in _coincident(curve.operating_points).items():
             ax.plot([x], [y], "D", color=colour, mec="black", ms=8)
-            ax.annotate(" / ".join(names), (x, y), xytext=(6, 6), textcoords="offset points", fontsize=9)
+            left = x > 0.75 * right  # near the right edge: the label goes to the left of the marker
+            ax.annotate(" / ".join(names), (x, y), xytext=(-8 if left else 8, 6), textcoords="offset points",
+                        fontsize=9, ha="right" if left else "left")
     ax.set_xlabel("captured mass-flow ratio A0/Ac")
     ax.set_ylabel("total-pressure recovery p_t2/p_t0")
     ax.grid(True, alpha=0.3)
@@ -61,7 +64,9 @@ def characteristic_figure(curves, measured=None, title: str = ""):
     ax = fig.add_subplot(1, 1, 1)
     draw_characteristics(ax, curves, measured)
     if title:
-        ax.set_title(title, fontsize=12)
+        import textwrap
+
+        ax.set_title("\n".join(textwrap.wrap(title, 90)), fontsize=12)
     fig.tight_layout()
     return fig
 
