@@ -84,10 +84,11 @@ class ReviewPack:
     manifest_path: str = ""
     pdf_path: str = ""
     quantities: tuple[str, ...] = ()  # the quantities mapped
+    characteristic_pictures: list[str] = field(default_factory=list)  # one per supersonic Mach of interest
 
     @property
     def all_pictures(self) -> list[str]:
-        return self.pictures + self.section_pictures
+        return self.pictures + self.section_pictures + self.characteristic_pictures
 
 
 def _slug(text: str, limit: int = SLUG_CHARS) -> str:
@@ -253,7 +254,7 @@ def _write(out: StagingFolder, project, text, source_name, notes, result, quanti
                                               steps)
     section_pictures, names, sections_html = write_sections(out, project, result, targets, cases, units, book, steps)
     written += names
-    _, names, characteristics_html = write_characteristics(out, project, result, book, steps)
+    characteristic_pictures, names, characteristics_html = write_characteristics(out, project, result, book, steps)
     written += names
     steps.check()
     project_path = out.write("project.toml", text.encode("utf-8"))
@@ -274,7 +275,7 @@ def _write(out: StagingFolder, project, text, source_name, notes, result, quanti
     out.manifest(sorted(keep), complete=True)
     steps.tick(finished=True)
     return ReviewPack(folder, index_path, project_path, pictures, result.holds, result, notes, section_pictures,
-                      os.path.join(folder, MANIFEST), pdf_path, tuple(quantities))
+                      os.path.join(folder, MANIFEST), pdf_path, tuple(quantities), characteristic_pictures)
 
 
 def _copy_table(out, project) -> list[str]:
