@@ -6,7 +6,7 @@ oblique-shock wave angle from the theta-beta-M relation) and the project's
 ``engine_air.project.model`` dataclasses (inlet, rating table, limits, case).
 
 It is the reference that ``tests/test_scalar_agreement.py`` holds the
-vectorised ``engine_air.flow.match.evaluate_conditions`` against, and the slow
+vectorised ``engine_air.evaluate_conditions`` against, and the slow
 baseline of ``bench/bench_map.py``.
 
 Where the method leaves a detail open, this model makes the same documented

@@ -20,7 +20,7 @@ from pygasflow import isentropic_solver, normal_shockwave_solver, oblique_shockw
 
 from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.inlets.mixed_compression import INLET, started_accelerating, started_along, starting_machs
 from engine_air.inlets.registry import inlet_type
 from engine_air.outputs.point_record import point_record

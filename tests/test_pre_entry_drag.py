@@ -17,7 +17,7 @@ from pygasflow.shockwave import beta_from_mach_theta
 from scipy.optimize import brentq
 
 from engine_air.envelope import flags as F
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.inlets.base import CaptureState
 from engine_air.inlets.registry import INLET_TYPES, inlet_type
 from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating

@@ -12,7 +12,7 @@ import numpy as np
 
 from engine_air.envelope import flags as F
 from engine_air.envelope.polygon import polygon_contains
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.outputs.point_record import point_record
 from engine_air.project.model import Project
 

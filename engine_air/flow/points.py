@@ -1,0 +1,110 @@
+"""The result of the match at a set of flight conditions: ``OperatingPoints`` (the public result, no checks).
+
+Built by ``engine_air.flow.chain.assemble`` from the stages' states; judged by ``engine_air.envelope``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from engine_air.flow import flags as F
+from engine_air.flow.throat import CRITICAL, REGIMES, SUBCRITICAL, SUBSONIC, SUPERCRITICAL  # noqa: F401
+
+
+@dataclass
+class OperatingPoints:
+    """Every computed quantity at a set of flight conditions (arrays of one shape, SI units).
+
+    Arrays may be read-only broadcast views: a quantity that is one value at every point (a bypass flow of an
+    inlet without doors, the tip speed of a rating without one) is kept as that value, and a quantity of the
+    altitude or the Mach number only is kept on its own axis, so a map costs memory only for what varies over
+    it. Write ``np.array(points.x)`` (or ``value(key)``) for an array of one's own. The limits are judged by
+    ``engine_air.envelope`` (``engine_air.envelope.conditions.JudgedPoints`` adds the checks)."""
+
+    mach: np.ndarray
+    altitude_m: np.ndarray
+    # free stream, station 0
+    static_pressure_pa: np.ndarray
+    static_temperature_k: np.ndarray
+    total_pressure_pa: np.ndarray
+    total_temperature_k: np.ndarray
+    velocity_m_s: np.ndarray
+    density_kg_m3: np.ndarray
+    speed_of_sound_m_s: np.ndarray
+    # demand and flow
+    theta2: np.ndarray
+    corrected_flow_kg_s: np.ndarray  # W_c2 demanded by the engine
+    mass_flow_kg_s: np.ndarray  # W delivered
+    stream_tube_area_m2: np.ndarray  # A0
+    # recovery
+    external_recovery: np.ndarray  # after the external shock system
+    duct_recovery: np.ndarray  # 1 - K q2/p_t2
+    recovery: np.ndarray  # p_t2/p_t0 delivered
+    reference_recovery: np.ndarray  # MIL-E-5008B
+    # stations
+    capture_mach: np.ndarray  # M1 (subsonic side of the capture plane)
+    throat_mach: np.ndarray
+    face_mach: np.ndarray
+    terminal_shock_mach: np.ndarray  # Mach ahead of the terminal normal shock (NaN when subsonic)
+    # capture and spillage
+    mass_flow_ratio: np.ndarray
+    max_mass_flow_ratio: np.ndarray
+    spillage_fraction: np.ndarray
+    additive_drag_n: np.ndarray
+    additive_drag_coefficient: np.ndarray
+    spillage_drag_coefficient: np.ndarray
+    face_static_to_ambient: np.ndarray
+    relative_tip_mach: np.ndarray
+    # airflow management (method section 12); fractions are of the captured flow
+    captured_flow_kg_s: np.ndarray  # through the capture plane (what MFR counts)
+    bleed_fraction: np.ndarray
+    bleed_flow_kg_s: np.ndarray
+    bypass_fraction: np.ndarray
+    bypass_flow_kg_s: np.ndarray
+    auxiliary_flow_kg_s: np.ndarray  # through the auxiliary doors (not through the capture plane)
+    bypass_shortfall_kg_s: np.ndarray  # critical capture (x (1 - b)) that engine and doors do not take; M0 > 1
+    tip_speed_m_s: np.ndarray  # physical fan tip speed used for the relative tip Mach (NaN without one)
+    # the ledger (method section 13), newtons
+    ram_drag_n: np.ndarray
+    spillage_drag_n: np.ndarray
+    bleed_drag_n: np.ndarray
+    bypass_drag_n: np.ndarray
+    net_thrust_n: np.ndarray
+    installed_thrust_n: np.ndarray
+    installation_loss_fraction: np.ndarray
+    thrust_reference_recovery: np.ndarray
+    # status
+    regime: np.ndarray  # int index into REGIMES
+    flags: np.ndarray  # int bits (FLAG_DTYPE), see engine_air.flow.flags
+    ramp_wave_angle_rad: np.ndarray | None = None  # (n_ramps, ...)
+    ramp_downstream_mach: np.ndarray | None = None
+    oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
+    started: np.ndarray | None = None  # bool, mixed compression only (method §11)
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
+
+    @property
+    def recovery_minus_reference(self) -> np.ndarray:
+        """What the MIL-E-5008B recovery check compares: the recovery of the shock system and its regime
+        corrections (pi / pi_duct) less the reference, in supersonic flight only; NaN (not judged) at M0 <= 1."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            shock_recovery = self.recovery / self.duct_recovery
+        return np.where(self.mach > 1.0, shock_recovery - self.reference_recovery, np.nan)
+
+    @property
+    def judged(self) -> np.ndarray:
+        """Bool: the point is judged (inside the envelope and inside its case's region, method section 14)."""
+        return (self.flags & (F.OUTSIDE_ENVELOPE | F.OUTSIDE_CASE_REGION)) == 0
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return np.shape(self.flags)
+
+    def value(self, key: str) -> np.ndarray:
+        """A quantity by its key (attribute name); NaN everywhere for one this inlet type does not carry (e.g.
+        ``started`` of a pitot inlet)."""
+        value = getattr(self, key)
+        if value is None:
+            return np.full(np.shape(self.flags), np.nan)
+        return np.asarray(value)
