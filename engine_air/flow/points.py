@@ -10,6 +10,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine_air.flow import flags as F
+from engine_air.physics.constants import GAMMA, LOW_SPEED_MACH, T_REF
 from engine_air.flow.throat import CRITICAL, REGIMES, SUBCRITICAL, SUBSONIC, SUPERCRITICAL  # noqa: F401
 
 
@@ -20,7 +21,9 @@ class OperatingPoints:
     Arrays may be read-only broadcast views: a quantity that is one value at every point (a bypass flow of an
     inlet without doors, the tip speed of a rating without one) is kept as that value, and a quantity of the
     altitude or the Mach number only is kept on its own axis, so a map costs memory only for what varies over
-    it. Write ``np.array(points.x)`` (or ``value(key)``) for an array of one's own. The limits are judged by
+    it. Write ``np.array(points.x)`` (or ``value(key)``) for an array of one's own. Quantities that are one
+    elementwise relation of kept ones (the totals, V0, theta2, A0, the spillage fraction, the ram drag) are
+    computed when read, by the chain's own relations, to the same bits. The limits are judged by
     ``engine_air.envelope`` (``engine_air.envelope.conditions.JudgedPoints`` adds the checks)."""
 
     mach: np.ndarray
@@ -28,16 +31,11 @@ class OperatingPoints:
     # free stream, station 0
     static_pressure_pa: np.ndarray
     static_temperature_k: np.ndarray
-    total_pressure_pa: np.ndarray
-    total_temperature_k: np.ndarray
-    velocity_m_s: np.ndarray
     density_kg_m3: np.ndarray
     speed_of_sound_m_s: np.ndarray
     # demand and flow
-    theta2: np.ndarray
     corrected_flow_kg_s: np.ndarray  # W_c2 demanded by the engine
     mass_flow_kg_s: np.ndarray  # W delivered
-    stream_tube_area_m2: np.ndarray  # A0
     # recovery
     external_recovery: np.ndarray  # after the external shock system
     duct_recovery: np.ndarray  # 1 - K q2/p_t2
@@ -51,7 +49,6 @@ class OperatingPoints:
     # capture and spillage
     mass_flow_ratio: np.ndarray
     max_mass_flow_ratio: np.ndarray
-    spillage_fraction: np.ndarray
     additive_drag_n: np.ndarray
     additive_drag_coefficient: np.ndarray
     spillage_drag_coefficient: np.ndarray
@@ -67,7 +64,6 @@ class OperatingPoints:
     bypass_shortfall_kg_s: np.ndarray  # critical capture (x (1 - b)) that engine and doors do not take; M0 > 1
     tip_speed_m_s: np.ndarray  # physical fan tip speed used for the relative tip Mach (NaN without one)
     # the ledger (method section 13), newtons
-    ram_drag_n: np.ndarray
     spillage_drag_n: np.ndarray
     bleed_drag_n: np.ndarray
     bypass_drag_n: np.ndarray
@@ -83,6 +79,49 @@ class OperatingPoints:
     oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
     started: np.ndarray | None = None  # bool, mixed compression only (method §11)
     self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
+
+    # quantities computed when read (the same relations, in the same order, as the chain's stages)
+    @property
+    def _total_ratio(self) -> np.ndarray:
+        return 1.0 + 0.5 * (GAMMA - 1.0) * self.mach * self.mach
+
+    @property
+    def total_temperature_k(self) -> np.ndarray:
+        """T_t0 = T0 (1 + (g-1)/2 M0^2) (K)."""
+        return self.static_temperature_k * self._total_ratio
+
+    @property
+    def total_pressure_pa(self) -> np.ndarray:
+        """p_t0 = p0 (1 + (g-1)/2 M0^2)^(g/(g-1)) (Pa)."""
+        return self.static_pressure_pa * self._total_ratio ** (GAMMA / (GAMMA - 1.0))
+
+    @property
+    def velocity_m_s(self) -> np.ndarray:
+        """V0 = M0 a0 (m/s)."""
+        return self.mach * self.speed_of_sound_m_s
+
+    @property
+    def theta2(self) -> np.ndarray:
+        """theta2 = T_t0/T_ref."""
+        return self.total_temperature_k / T_REF
+
+    @property
+    def stream_tube_area_m2(self) -> np.ndarray:
+        """A0 = captured flow/(rho0 V0) (m^2); NaN at low speed."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.where(self.mach < LOW_SPEED_MACH, np.nan,
+                            self.captured_flow_kg_s / (self.density_kg_m3 * self.velocity_m_s))
+
+    @property
+    def spillage_fraction(self) -> np.ndarray:
+        """max(0, 1 - MFR); NaN at low speed."""
+        with np.errstate(invalid="ignore"):
+            return np.where(self.mach < LOW_SPEED_MACH, np.nan, np.maximum(0.0, 1.0 - self.mass_flow_ratio))
+
+    @property
+    def ram_drag_n(self) -> np.ndarray:
+        """D_ram = W V0 (N)."""
+        return self.mass_flow_kg_s * self.velocity_m_s
 
     @property
     def recovery_minus_reference(self) -> np.ndarray:
