@@ -46,7 +46,7 @@ _EXPORTS = {
     "evaluate_project": "engine_air.envelope.evaluate",
     "MapResult": "engine_air.envelope.evaluate",
     "WORST": "engine_air.envelope.evaluate",
-    "evaluate_point": "engine_air.envelope.point",
+    "evaluate_point": "engine_air.outputs.point",
     "evaluate_conditions": "engine_air.envelope.conditions",
     "OperatingPoints": "engine_air.flow.points",
     "run_chain": "engine_air.flow.chain",

@@ -558,7 +558,7 @@ def test_tiny_legal_limits_and_areas_give_flags_and_no_warnings(tmp_path):
     import warnings
 
     from engine_air.envelope.evaluate import evaluate_project
-    from engine_air.envelope.point import evaluate_point
+    from engine_air.outputs.point import evaluate_point
     from engine_air.project import load_project
 
     text = (SAMPLES / "subsonic_transport_nacelle.toml").read_text(encoding="utf-8")

@@ -24,6 +24,7 @@ KNOWN_LONG_MODULES = {
     "engine_air/project/load.py",
 }
 KNOWN_LONG_FUNCTIONS = {
+    "engine_air/outputs/review_pack.py:_write",
     "engine_air/studies/sizing/optimum.py:optimise",
     "engine_air/studies/sizing/feasible.py:feasible_range",
 }

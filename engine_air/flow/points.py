@@ -13,6 +13,8 @@ from engine_air.flow import flags as F
 from engine_air.physics.constants import GAMMA, LOW_SPEED_MACH, T_REF
 from engine_air.flow.throat import CRITICAL, REGIMES, SUBCRITICAL, SUBSONIC, SUPERCRITICAL  # noqa: F401
 
+_QUIET = dict(divide="ignore", invalid="ignore", over="ignore")  # NaN with a flag that says why, no warning
+
 
 @dataclass
 class OperatingPoints:
@@ -83,45 +85,51 @@ class OperatingPoints:
     # quantities computed when read (the same relations, in the same order, as the chain's stages)
     @property
     def _total_ratio(self) -> np.ndarray:
-        return 1.0 + 0.5 * (GAMMA - 1.0) * self.mach * self.mach
+        with np.errstate(**_QUIET):
+            return 1.0 + 0.5 * (GAMMA - 1.0) * self.mach * self.mach
 
     @property
     def total_temperature_k(self) -> np.ndarray:
         """T_t0 = T0 (1 + (g-1)/2 M0^2) (K)."""
-        return self.static_temperature_k * self._total_ratio
+        with np.errstate(**_QUIET):
+            return self.static_temperature_k * self._total_ratio
 
     @property
     def total_pressure_pa(self) -> np.ndarray:
         """p_t0 = p0 (1 + (g-1)/2 M0^2)^(g/(g-1)) (Pa)."""
-        return self.static_pressure_pa * self._total_ratio ** (GAMMA / (GAMMA - 1.0))
+        with np.errstate(**_QUIET):
+            return self.static_pressure_pa * self._total_ratio ** (GAMMA / (GAMMA - 1.0))
 
     @property
     def velocity_m_s(self) -> np.ndarray:
         """V0 = M0 a0 (m/s)."""
-        return self.mach * self.speed_of_sound_m_s
+        with np.errstate(**_QUIET):
+            return self.mach * self.speed_of_sound_m_s
 
     @property
     def theta2(self) -> np.ndarray:
         """theta2 = T_t0/T_ref."""
-        return self.total_temperature_k / T_REF
+        with np.errstate(**_QUIET):
+            return self.total_temperature_k / T_REF
 
     @property
     def stream_tube_area_m2(self) -> np.ndarray:
         """A0 = captured flow/(rho0 V0) (m^2); NaN at low speed."""
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(**_QUIET):
             return np.where(self.mach < LOW_SPEED_MACH, np.nan,
                             self.captured_flow_kg_s / (self.density_kg_m3 * self.velocity_m_s))
 
     @property
     def spillage_fraction(self) -> np.ndarray:
         """max(0, 1 - MFR); NaN at low speed."""
-        with np.errstate(invalid="ignore"):
+        with np.errstate(**_QUIET):
             return np.where(self.mach < LOW_SPEED_MACH, np.nan, np.maximum(0.0, 1.0 - self.mass_flow_ratio))
 
     @property
     def ram_drag_n(self) -> np.ndarray:
         """D_ram = W V0 (N)."""
-        return self.mass_flow_kg_s * self.velocity_m_s
+        with np.errstate(**_QUIET):
+            return self.mass_flow_kg_s * self.velocity_m_s
 
     @property
     def recovery_minus_reference(self) -> np.ndarray:

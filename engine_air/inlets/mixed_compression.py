@@ -48,8 +48,8 @@ from engine_air.inlets.ramp_layout import ramp_pre_entry_drag, ramp_shock_system
 from engine_air.inlets.schedule import is_scheduled, scheduled
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.physics.starting import self_start_contraction, started_throat_mach
-from engine_air.project.model import Inlet
-from engine_air.project.schema_field import Field
+from engine_air.spec.project import Inlet
+from engine_air.spec.field import Field
 
 SCAN_START = 1.0
 """Mach number at which every history starts (unstarted): supersonic flight begins here."""
@@ -106,7 +106,7 @@ def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
     Two 5 deg ramps at M0 = 2.5 turn the flow to M_e = 2.097 (two NACA 1135 oblique shocks); the Kantrowitz
     limit there is 0.8078 and the scheduled contraction 0.8333 is above it: it can run started and starts itself.
 
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
@@ -170,7 +170,7 @@ def started_along(inlet: Inlet, mach_history) -> np.ndarray:
     --------
     The throat schedule below self-starts the inlet at M0 2.413 and keeps it started, decelerating, to 2.328:
 
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
@@ -210,7 +210,7 @@ def started_accelerating(inlet: Inlet, flight_mach) -> np.ndarray:
 
     Examples
     --------
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
@@ -261,7 +261,7 @@ def starting_machs(inlet: Inlet, top_mach: float = TOP_MACH) -> tuple[float | No
 
     Examples
     --------
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))

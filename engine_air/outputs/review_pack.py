@@ -78,7 +78,7 @@ from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.ledger_table import NO_THRUST_DATA, ledger_rows
 from engine_air.outputs.point_record import point_record, shock_table, station_table
-from engine_air.studies.sizing import worst_point
+from engine_air.envelope.worst import worst_point
 
 PACK_QUANTITIES = ("face_mach_margin", "recovery", "spillage_fraction", "throat_mach")
 """Quantities mapped in a pack by default."""

@@ -25,7 +25,7 @@ except ModuleNotFoundError:  # Python 3.10
 
 from datetime import date, datetime, time
 
-from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
+from engine_air.project.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
 from engine_air.project import schema as S
 from engine_air.project.errors import ProjectError
 from engine_air.project.model import (
