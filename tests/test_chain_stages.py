@@ -293,3 +293,21 @@ def test_each_stage_is_short():
         for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
             if isinstance(node, ast.FunctionDef):
                 assert node.end_lineno - node.lineno + 1 <= 80, f"{module}.{node.name}"
+
+
+def test_one_point_is_the_map_at_that_point():
+    # OperatingPoints.at (what the point record reads) gives every quantity, kept or computed when read, and
+    # every check exactly as the whole map has it at that point
+    from engine_air.envelope.evaluate import evaluate_project
+
+    result = evaluate_project(dataclasses.replace(RAMP, grid=dataclasses.replace(RAMP.grid, mach_points=9,
+                                                                                 altitude_points=7)))
+    pts = result.cases[0].points
+    one = pts.at((3, 5))
+    names = [f.name for f in dataclasses.fields(pts) if isinstance(getattr(pts, f.name), np.ndarray)]
+    names += [n for n in dir(type(pts)) if isinstance(getattr(type(pts), n), property) and not n.startswith("_")]
+    for name in set(names) - {"shape", "ramp_wave_angle_rad", "ramp_downstream_mach"}:
+        np.testing.assert_array_equal(np.asarray(getattr(one, name)), np.asarray(getattr(pts, name))[3, 5], name)
+    np.testing.assert_array_equal(one.ramp_wave_angle_rad, pts.ramp_wave_angle_rad[:, 3, 5])
+    for a, b in zip(one.checks, pts.checks):
+        assert (a.name, float(a.margin), bool(a.fails)) == (b.name, float(b.margin[3, 5]), bool(b.fails[3, 5]))

@@ -11,7 +11,7 @@ total-pressure ratio.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field, fields, replace
 
 import numpy as np
 
@@ -20,6 +20,8 @@ from engine_air.envelope.ranking import worst_relative_margin
 from engine_air.flow.chain import run_chain
 from engine_air.flow.points import OperatingPoints
 from engine_air.project.model import Case, Project
+
+CHECK_ARRAYS = ("value", "margin", "relative_margin", "applies", "fails")
 
 
 @dataclass
@@ -37,6 +39,13 @@ class JudgedPoints(OperatingPoints):
     def worst_relative_margin(self) -> np.ndarray:
         """Least relative margin over the checks judged at each point (NaN where none is judged)."""
         return worst_relative_margin(self.checks, np.shape(self.mach))
+
+    def at(self, index) -> "JudgedPoints":
+        """The points and their checks at ``index`` alone (see ``OperatingPoints.at``)."""
+        one = super().at(index)
+        idx = index if isinstance(index, tuple) else (index,)
+        one.checks = [replace(c, **{k: np.asarray(getattr(c, k))[idx] for k in CHECK_ARRAYS}) for c in self.checks]
+        return one
 
     def check(self, name: str) -> Check:
         for c in self.checks:

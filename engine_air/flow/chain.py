@@ -53,7 +53,6 @@ from engine_air.flow.stages import (
 )
 from engine_air.flow.throat import Throat, throat_and_doors
 from engine_air.inlets.registry import inlet_type
-from engine_air.physics.isentropic import pressure_ratio
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
 from engine_air.project.model import Case, Project
 
@@ -139,14 +138,10 @@ def assemble(fs: FreeStream, dem: Demand, fc: Face, comp: Compression, cap: Capt
             duct_recovery=cap.duct_recovery, recovery=thr.recovery,
             reference_recovery=mil_e_5008b_recovery(fs.mach), capture_mach=drag.capture_mach,
             throat_mach=thr.throat_mach, face_mach=fc.mach, terminal_shock_mach=terminal,
-            mass_flow_ratio=thr.mass_flow_ratio, max_mass_flow_ratio=thr.max_mass_flow_ratio,
-            additive_drag_n=drag.additive_drag_n,
-            additive_drag_coefficient=drag.additive_drag_coefficient,
-            spillage_drag_coefficient=drag.spillage_drag_coefficient,
-            face_static_to_ambient=(thr.recovery * fs.inlet_total_pressure_pa * pressure_ratio(fc.mach)
-                                    / fs.static_pressure_pa),
-            relative_tip_mach=fc.relative_tip_mach, captured_flow_kg_s=thr.captured_flow_kg_s,
-            bleed_fraction=comp.bleed_fraction, bleed_flow_kg_s=thr.bleed_flow_kg_s, bypass_fraction=thr.bypass_fraction,
+            max_mass_flow_ratio=thr.max_mass_flow_ratio, additive_drag_n=drag.additive_drag_n,
+            relative_tip_mach=fc.relative_tip_mach, capture_area_m2=drag.capture_area_m2,
+            lip_suction_factor=drag.lip_suction_factor,
+            bleed_fraction=comp.bleed_fraction,
             bypass_flow_kg_s=thr.bypass_flow_kg_s, auxiliary_flow_kg_s=thr.auxiliary_flow_kg_s,
             bypass_shortfall_kg_s=thr.bypass_shortfall_kg_s, tip_speed_m_s=fc.tip_speed_m_s,
             spillage_drag_n=drag.spillage_drag_n, bleed_drag_n=led.bleed_drag_n,

@@ -37,6 +37,8 @@ class Drag:
     additive_drag_coefficient: np.ndarray
     spillage_drag_coefficient: np.ndarray
     spillage_drag_n: np.ndarray
+    capture_area_m2: float  # A_c
+    lip_suction_factor: np.ndarray  # the factor that applies: supersonic or subsonic (Mach only)
     flags: np.ndarray | int
 
 
@@ -74,5 +76,6 @@ def pre_entry_drag(kind: InletType, inlet: Inlet, fs: FreeStream, comp: Compress
             stream_tube_area_m2=np.where(low, np.nan, a0_tube), capture_mach=m1, additive_drag_n=d_add,
             additive_drag_coefficient=c_add, spillage_drag_coefficient=(1.0 - suction) * c_add,
             # 0 at MFR >= 1 and below M0 0.05 (q0 < 0.2 % of p0)
-            spillage_drag_n=np.where(low | (mfr >= 1.0), 0.0, (1.0 - suction) * d_add), flags=bits,
+            spillage_drag_n=np.where(low | (mfr >= 1.0), 0.0, (1.0 - suction) * d_add),
+            capture_area_m2=inlet.capture_area_m2, lip_suction_factor=suction, flags=bits,
         )

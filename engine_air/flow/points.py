@@ -5,12 +5,13 @@ Built by ``engine_air.flow.chain.assemble`` from the stages' states; judged by `
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 
 import numpy as np
 
 from engine_air.flow import flags as F
 from engine_air.physics.constants import GAMMA, LOW_SPEED_MACH, T_REF
+from engine_air.physics.isentropic import pressure_ratio
 from engine_air.flow.throat import CRITICAL, REGIMES, SUBCRITICAL, SUBSONIC, SUPERCRITICAL  # noqa: F401
 
 _QUIET = dict(divide="ignore", invalid="ignore", over="ignore")  # NaN with a flag that says why, no warning
@@ -24,8 +25,9 @@ class OperatingPoints:
     inlet without doors, the tip speed of a rating without one) is kept as that value, and a quantity of the
     altitude or the Mach number only is kept on its own axis, so a map costs memory only for what varies over
     it. Write ``np.array(points.x)`` (or ``value(key)``) for an array of one's own. Quantities that are one
-    elementwise relation of kept ones (the totals, V0, theta2, A0, the spillage fraction, the ram drag) are
-    computed when read, by the chain's own relations, to the same bits. The limits are judged by
+    elementwise relation of kept ones (the totals, V0, theta2, captured flow, MFR, A0, the spillage fraction,
+    the drag coefficients, p2/p0, bleed flow, bypass fraction, the ram drag) are computed when read, by the
+    chain's own relations in the same order, to the same bits. The limits are judged by
     ``engine_air.envelope`` (``engine_air.envelope.conditions.JudgedPoints`` adds the checks)."""
 
     mach: np.ndarray
@@ -49,18 +51,13 @@ class OperatingPoints:
     face_mach: np.ndarray
     terminal_shock_mach: np.ndarray  # Mach ahead of the terminal normal shock (NaN when subsonic)
     # capture and spillage
-    mass_flow_ratio: np.ndarray
     max_mass_flow_ratio: np.ndarray
     additive_drag_n: np.ndarray
-    additive_drag_coefficient: np.ndarray
-    spillage_drag_coefficient: np.ndarray
-    face_static_to_ambient: np.ndarray
     relative_tip_mach: np.ndarray
+    capture_area_m2: np.ndarray  # A_c (one value)
+    lip_suction_factor: np.ndarray  # the lip suction factor that applies: supersonic or subsonic (Mach only)
     # airflow management (method section 12); fractions are of the captured flow
-    captured_flow_kg_s: np.ndarray  # through the capture plane (what MFR counts)
     bleed_fraction: np.ndarray
-    bleed_flow_kg_s: np.ndarray
-    bypass_fraction: np.ndarray
     bypass_flow_kg_s: np.ndarray
     auxiliary_flow_kg_s: np.ndarray  # through the auxiliary doors (not through the capture plane)
     bypass_shortfall_kg_s: np.ndarray  # critical capture (x (1 - b)) that engine and doors do not take; M0 > 1
@@ -113,6 +110,55 @@ class OperatingPoints:
             return self.total_temperature_k / T_REF
 
     @property
+    def inlet_total_pressure_pa(self) -> np.ndarray:
+        """p_t0, or p0 at low speed (static suction): what the inlet's stations refer to (Pa)."""
+        return np.where(self.mach < LOW_SPEED_MACH, self.static_pressure_pa, self.total_pressure_pa)
+
+    @property
+    def captured_flow_kg_s(self) -> np.ndarray:
+        """Through the capture plane (what MFR counts): (W + W_bypass - W_auxiliary)/(1 - bleed fraction) (kg/s)."""
+        with np.errstate(**_QUIET):
+            return (self.mass_flow_kg_s + self.bypass_flow_kg_s - self.auxiliary_flow_kg_s) / (1.0 - self.bleed_fraction)
+
+    @property
+    def mass_flow_ratio(self) -> np.ndarray:
+        """MFR = captured flow/(rho0 V0 A_c); NaN at low speed."""
+        with np.errstate(**_QUIET):
+            return np.where(self.mach < LOW_SPEED_MACH, np.nan, self.captured_flow_kg_s
+                            / (self.density_kg_m3 * self.velocity_m_s * self.capture_area_m2))
+
+    @property
+    def bleed_flow_kg_s(self) -> np.ndarray:
+        """Bleed fraction x captured flow (kg/s)."""
+        with np.errstate(**_QUIET):
+            return self.bleed_fraction * self.captured_flow_kg_s
+
+    @property
+    def bypass_fraction(self) -> np.ndarray:
+        """Bypass flow over the captured flow (0 where the doors pass nothing)."""
+        with np.errstate(**_QUIET):
+            return np.where(self.bypass_flow_kg_s > 0.0, self.bypass_flow_kg_s / self.captured_flow_kg_s, 0.0)
+
+    @property
+    def additive_drag_coefficient(self) -> np.ndarray:
+        """C_add = D_add/(q0 A_c), q0 = g/2 p0 M0^2."""
+        with np.errstate(**_QUIET):
+            q0 = 0.5 * GAMMA * self.static_pressure_pa * self.mach * self.mach
+            return self.additive_drag_n / (q0 * self.capture_area_m2)
+
+    @property
+    def spillage_drag_coefficient(self) -> np.ndarray:
+        """(1 - lip suction factor) C_add."""
+        with np.errstate(**_QUIET):
+            return (1.0 - self.lip_suction_factor) * self.additive_drag_coefficient
+
+    @property
+    def face_static_to_ambient(self) -> np.ndarray:
+        """p2/p0 = pi p_t0 (p/p_t)(M2)/p0."""
+        with np.errstate(**_QUIET):
+            return self.recovery * self.inlet_total_pressure_pa * pressure_ratio(self.face_mach) / self.static_pressure_pa
+
+    @property
     def stream_tube_area_m2(self) -> np.ndarray:
         """A0 = captured flow/(rho0 V0) (m^2); NaN at low speed."""
         with np.errstate(**_QUIET):
@@ -147,6 +193,18 @@ class OperatingPoints:
     @property
     def shape(self) -> tuple[int, ...]:
         return np.shape(self.flags)
+
+    def at(self, index) -> "OperatingPoints":
+        """The points at ``index`` alone (a tuple, or an int for 1-D points), of the same type: what a point
+        record reads, so that the quantities computed when read cost one point, not the whole map."""
+        idx = index if isinstance(index, tuple) else (index,)
+        values = {}
+        for f in fields(self):
+            v = getattr(self, f.name)
+            if isinstance(v, np.ndarray):
+                v = v[(slice(None),) + idx] if f.name.startswith("ramp_") else v[idx]
+            values[f.name] = v
+        return replace(self, **values)
 
     def value(self, key: str) -> np.ndarray:
         """A quantity by its key (attribute name); NaN everywhere for one this inlet type does not carry (e.g.
