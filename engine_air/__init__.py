@@ -18,7 +18,7 @@ Public API (the names below; everything else is reached through its package):
   stages unjudged, and with the engine's demand swept along a new axis (the inlet characteristic, method §16);
 - ``Project`` and its parts, ``MapResult``, ``OperatingPoints``, ``ProjectError``.
 
-Packages: ``physics`` (air and gas dynamics), ``inlets`` (one module per inlet type and the registry),
+Packages: ``spec`` (the project's dataclasses and file keys), ``physics`` (air and gas dynamics), ``inlets`` (one module per inlet type and the registry),
 ``flow`` (the match as a chain of stages, airflow management, the thrust ledger, the flags), ``project`` (model, schema, files),
 ``envelope`` (grid, evaluation, checks, flags, ranking), ``studies`` (sizing, sweep, compare),
 ``outputs`` (quantities, tables, pictures, review pack), ``cli``.
