@@ -78,7 +78,8 @@ def free_stream(case: Case, mach, altitude_m) -> FreeStream:
 
     A negative Mach number is taken as 0; one that is NaN or infinite raises ``ValueError`` (no flag could
     explain the result). An altitude outside the atmosphere model (NaN included) is flagged
-    ``outside-atmosphere``. T_t0 = T0 (1 + (g-1)/2 M0^2), p_t0 = p0 (1 + (g-1)/2 M0^2)^(g/(g-1)) [NACA 1135 eq. 43, 44].
+    ``outside-atmosphere``. T_t0 = T0 (1 + (g-1)/2 M0^2), p_t0 = p0 (1 + (g-1)/2 M0^2)^(g/(g-1)) (NACA Report
+    1135, isentropic relations; method §1).
     """
     m_in = np.asarray(mach, dtype=float)
     if not np.isfinite(m_in).all():
@@ -149,8 +150,8 @@ def _tip_speed(rating: Rating, theta2):
 
 
 def face(inlet: Inlet, rating: Rating, fs: FreeStream, dem: Demand) -> Face:
-    """Face Mach from W_c2 sqrt(T_ref)/(p_ref A2) = MFP(M2), the subsonic root [NACA 1135 eq. 29 in flow-function
-    form]; at or above the choking value (241.24 kg/(s m^2)) the face is choked and M2 taken as 1.
+    """Face Mach from W_c2 sqrt(T_ref)/(p_ref A2) = MFP(M2), the subsonic root (the mass-flow function
+    of method §3); at or above the choking value (241.24 kg/(s m^2)) the face is choked and M2 taken as 1.
     Relative tip Mach M_rel = sqrt(M2^2 + (U/a2)^2), a2 = sqrt(g R T2), T2 = T_t0/(1 + (g-1)/2 M2^2)."""
     with np.errstate(**ERRSTATE):
         wc2 = dem.corrected_flow_kg_s
