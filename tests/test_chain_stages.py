@@ -148,7 +148,7 @@ def test_capture_supercritical_rule():
 
 def test_capture_takes_a_pluggable_recovery_law():
     fs, dem, fc, comp = _supersonic_stages(60.0)
-    cap = capture(PITOT.inlet, fs, dem, fc, comp, recovery_law=lambda inlet, c, f: (1.0, 0.5))
+    cap = capture(PITOT.inlet, fs, dem, fc, comp, recovery_law=lambda inlet, f, d, fc, c: (1.0, 0.5))
     assert float(cap.recovery) == 0.5 and cap.duct_recovery == 1.0
 
 

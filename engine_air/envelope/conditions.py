@@ -62,12 +62,13 @@ def judge(project: Project, points: OperatingPoints) -> JudgedPoints:
     return judged
 
 
-def evaluate_conditions(project: Project, case: Case, mach, altitude_m, demand=None) -> JudgedPoints:
+def evaluate_conditions(project: Project, case: Case, mach, altitude_m, demand=None, **sources) -> JudgedPoints:
     """Evaluate and judge the inlet-engine match of ``project`` for ``case`` at flight Mach ``mach`` and
     geopotential altitude ``altitude_m`` (m). Arrays broadcast; returns arrays of the common shape.
 
     A negative Mach number is taken as 0. A Mach number that is NaN or infinite raises ``ValueError`` (there is
     no flag for it and every result would be an unexplained NaN); an altitude outside the atmosphere model, NaN
     or infinite included, and an ISA offset that leaves no positive temperature are flagged
-    ``outside-atmosphere`` instead. ``demand``: corrected flow W_c2 (kg/s) in place of the rating's table."""
-    return judge(project, run_chain(project, case, mach, altitude_m, demand))
+    ``outside-atmosphere`` instead. ``demand``: corrected flow W_c2 (kg/s) in place of the rating's table;
+    ``sources``: ``compression_source`` and ``recovery_law`` of ``engine_air.flow.chain.run_chain``."""
+    return judge(project, run_chain(project, case, mach, altitude_m, demand, **sources))

@@ -204,10 +204,12 @@ def compression(project: Project, fs: FreeStream, source: CompressionSource | No
     return (source or model_compression)(project, fs)
 
 
-RecoveryLaw = Callable[[Inlet, "Compression", Face], tuple[np.ndarray, np.ndarray]]
+RecoveryLaw = Callable[[Inlet, FreeStream, Demand, Face, "Compression"], tuple[np.ndarray, np.ndarray]]
+"""(inlet, free stream, demand, face, compression) -> (pi_duct, pi) ahead of the supercritical rule. A law from
+measured pi(MFR) (method §17) solves MFR = W(pi(MFR))/(rho0 V0 A_c) here, from the same states."""
 
 
-def model_recovery(inlet: Inlet, comp: Compression, fc: Face) -> tuple[np.ndarray, np.ndarray]:
+def model_recovery(inlet: Inlet, fs: FreeStream, dem: Demand, fc: Face, comp: Compression):
     """(pi_duct, pi) ahead of any regime correction (method §4): pi = pi_ext pi_duct, pi_duct = 1 - K q2/p_t2."""
     pi_duct = 1.0 - inlet.duct_loss_coefficient * dynamic_to_total_pressure(fc.mach)
     return pi_duct, comp.shocks.external_recovery * pi_duct
@@ -232,7 +234,7 @@ def capture(inlet: Inlet, fs: FreeStream, dem: Demand, fc: Face, comp: Compressi
     """W = W_c2 (pi p_t0/p_ref)/sqrt(theta2) [method §5]; MFR = W/((1 - b) rho0 V0 A_c). Supersonic, above MFR_max
     (supercritical beyond the critical band): captured flow held at MFR_max, pi and W scaled by MFR_max/MFR [§6]."""
     with np.errstate(**ERRSTATE):
-        pi_duct, pi = (recovery_law or model_recovery)(inlet, comp, fc)
+        pi_duct, pi = (recovery_law or model_recovery)(inlet, fs, dem, fc, comp)
         w = fc.corrected_flow_kg_s * (pi * fs.inlet_total_pressure_pa / P_REF) / np.sqrt(dem.theta2)
         capture_flow = fs.density_kg_m3 * fs.velocity_m_s * inlet.capture_area_m2
         mfr_demand = np.where(fs.low_speed, np.nan, w / (1.0 - comp.bleed_fraction) / capture_flow)
