@@ -21,6 +21,7 @@ Public API (the names below; everything else is reached through its package):
 Packages: ``spec`` (the project's dataclasses and file keys), ``physics`` (air and gas dynamics), ``inlets`` (one module per inlet type and the registry),
 ``flow`` (the match as a chain of stages, airflow management, the thrust ledger, the flags), ``project`` (model, schema, files),
 ``envelope`` (grid, evaluation, checks, flags, ranking), ``studies`` (sizing, sweep, compare),
+``distortion`` (engine-face distortion from rake files, method §18),
 ``outputs`` (quantities, tables, pictures, review pack), ``cli``.
 """
 

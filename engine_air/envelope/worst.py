@@ -39,7 +39,7 @@ class WorstPoint:
 def worst_point(result: MapResult) -> WorstPoint:
     """The worst relative margin of an envelope evaluation and where it occurs."""
     best = _worst([cm.points for cm in result.cases], result.inside)
-    holds = all(s.holds for s in result.summary)
+    holds = result.holds  # a limit judged nowhere (outside its region everywhere) does not fail
     if best is None:
         return WorstPoint(math.inf, math.nan, math.nan, None, "", "", math.nan, math.nan, "", holds)
     cm = result.cases[best.case]

@@ -150,7 +150,8 @@ def assemble(fs: FreeStream, dem: Demand, fc: Face, comp: Compression, cap: Capt
             thrust_reference_recovery=led.thrust_reference_recovery, regime=thr.regime,
         )
     optional = {"oblique_ahead_of_cowl": shocks.oblique_ahead_of_cowl, "started": comp.started,
-                "self_start_contraction": shocks.self_start_contraction}
+                "self_start_contraction": shocks.self_start_contraction, "entrance_area_m2": shocks.entrance_area_m2,
+                "internal_contraction_ratio": shocks.internal_contraction_ratio}
     values.update({k: None if v is None else lean(v, shape) for k, v in optional.items()})
     values = {k: v if k in optional else lean(v, shape) for k, v in values.items()}
     return OperatingPoints(**values, flags=bits, ramp_wave_angle_rad=_per_ramp(shocks.ramp_wave_angle_rad, shape),

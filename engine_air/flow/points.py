@@ -77,7 +77,11 @@ class OperatingPoints:
     ramp_downstream_mach: np.ndarray | None = None
     oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
     started: np.ndarray | None = None  # bool, mixed compression only (method §11)
-    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz limit K(M_e) on A_th/A_e, mixed compression only
+    entrance_area_m2: np.ndarray | None = None  # cowl entrance area A_e, mixed compression only (method §11)
+    internal_contraction_ratio: np.ndarray | None = None  # CR = A_th/A_e, mixed compression only
+    dc60: np.ndarray | None = None  # distortion DC(60) from data (method §18); None: no data, not judged
+    surge_margin_loss: np.ndarray | None = None  # ΔPRS from data (method §18); None: no data, not judged
 
     # quantities computed when read (the same relations, in the same order, as the chain's stages)
     @property

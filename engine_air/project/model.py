@@ -8,9 +8,11 @@ from engine_air.spec.project import (  # noqa: F401
     Grid,
     INLET_TYPES,
     Inlet,
+    LimitRegion,
     Limits,
     Project,
     REFERENCE_RECOVERY_NAME,
     Rating,
     Schedule,
+    Stability,
 )

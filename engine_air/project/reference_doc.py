@@ -10,6 +10,7 @@ import sys
 from pathlib import Path
 
 from engine_air.project import schema as S
+from engine_air.project.atomic import write_bytes_atomic
 from engine_air.project.schema_field import REQUIRED, Field
 
 DOC_PATH = Path(__file__).resolve().parents[2] / "docs" / "project-file.md"
@@ -48,7 +49,8 @@ def _allowed(f: Field) -> str:
 
 
 def _kind(f: Field) -> str:
-    return {"number or name": "number or text", "choice": "text", "number table": "list of number lists"}.get(
+    return {"number or name": "number or text", "choice": "text", "number table": "list of number lists",
+                   "named numbers": "table of numbers"}.get(
         f.kind, f.kind)
 
 
@@ -105,7 +107,9 @@ def main(argv: list[str] | None = None) -> int:
             return 1
         return 0
     DOC_PATH.parent.mkdir(parents=True, exist_ok=True)
-    DOC_PATH.write_text(text, encoding="utf-8")
+    # whole or not at all: what the output writer (engine_air.outputs.writer) does for a file that no run reads;
+    # called directly, since the project package sits below the outputs and never imports them
+    write_bytes_atomic(DOC_PATH, text.encode("utf-8"))
     print(f"wrote {DOC_PATH}")
     return 0
 
