@@ -8,7 +8,8 @@ p_t1 = pi_ext p_t0, M1 the subsonic root of the captured flow):
 Supersonic flight: the inlet type's own pre-entry drag (ramp or cone pressure on the dividing streamline plus the
 spillage behind the terminal shock, method §13), per Mach column when the geometry is scheduled; a type that
 models none flags ``additive-drag-not-modelled``. C_add = D_add/(q0 A_c); the spillage drag is the part the lip
-suction does not recover: (1 - K_lip) D_add, zero at MFR >= 1 and below M0 0.05.
+suction does not recover: (1 - K_lip) D_add, zero at MFR >= 1 and below M0 0.05 (its coefficient zero at
+MFR >= 1 likewise).
 """
 
 from __future__ import annotations
@@ -74,7 +75,8 @@ def pre_entry_drag(kind: InletType, inlet: Inlet, fs: FreeStream, comp: Compress
         suction = np.where(supersonic, inlet.supersonic_lip_suction_factor, inlet.lip_suction_factor)
         return Drag(
             stream_tube_area_m2=np.where(low, np.nan, a0_tube), capture_mach=m1, additive_drag_n=d_add,
-            additive_drag_coefficient=c_add, spillage_drag_coefficient=(1.0 - suction) * c_add,
+            additive_drag_coefficient=c_add,
+            spillage_drag_coefficient=np.where(mfr >= 1.0, 0.0, (1.0 - suction) * c_add),  # as the drag (§12)
             # 0 at MFR >= 1 and below M0 0.05 (q0 < 0.2 % of p0)
             spillage_drag_n=np.where(low | (mfr >= 1.0), 0.0, (1.0 - suction) * d_add),
             capture_area_m2=inlet.capture_area_m2, lip_suction_factor=suction, flags=bits,

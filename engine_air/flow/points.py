@@ -152,9 +152,10 @@ class OperatingPoints:
 
     @property
     def spillage_drag_coefficient(self) -> np.ndarray:
-        """(1 - lip suction factor) C_add."""
+        """(1 - lip suction factor) C_add; 0 at MFR >= 1, as the spillage drag (method §12)."""
         with np.errstate(**_QUIET):
-            return (1.0 - self.lip_suction_factor) * self.additive_drag_coefficient
+            return np.where(self.mass_flow_ratio >= 1.0, 0.0,
+                            (1.0 - self.lip_suction_factor) * self.additive_drag_coefficient)
 
     @property
     def face_static_to_ambient(self) -> np.ndarray:
