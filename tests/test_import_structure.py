@@ -17,17 +17,11 @@ PACKAGE = Path(__file__).resolve().parents[1] / "engine_air"
 MAX_FUNCTION_LINES = 100
 MAX_MODULE_LINES = 600
 
-# Known exceptions that other branches are splitting at the time of writing; the integrator empties these
-# lists when those branches are merged. Nothing may be added here to make a new function or module fit.
-KNOWN_LONG_MODULES = {
-    "engine_air/outputs/review_pack.py",
-    "engine_air/project/load.py",
-}
-KNOWN_LONG_FUNCTIONS = {
-    "engine_air/outputs/review_pack.py:_write",
-    "engine_air/studies/sizing/optimum.py:optimise",
-    "engine_air/studies/sizing/feasible.py:feasible_range",
-}
+# Known exceptions, each with the branch that is splitting it, while such a branch is under way; empty when
+# none is (review_pack, the loader and sizing's optimise/feasible_range were split before this test landed).
+# Nothing may be added here to make a new function or module fit.
+KNOWN_LONG_MODULES: set[str] = set()
+KNOWN_LONG_FUNCTIONS: set[str] = set()
 
 
 def _modules():
