@@ -14,7 +14,7 @@ from engine_air.project.model import incidence_at
 def operating_points(project, mach: float, altitude_m: float) -> tuple[list[dict], bool | None]:
     """Each case's operating point at one condition: rating, case, MFR, recovery; and whether every judged limit
     holds at them (None where no limit is judged at any)."""
-    from engine_air.envelope.point import evaluate_point
+    from engine_air.outputs.point import evaluate_point
 
     points, verdicts = [], []
     for case in project.cases:

@@ -71,11 +71,10 @@ def demand_sweep(project, points: int = SWEEP_POINTS) -> np.ndarray:
 
 def model_sweep(project, case, mach: float, altitude_m: float, points: int = SWEEP_POINTS):
     """The chain's operating points along the demand sweep at one condition (arrays of length ``points``)."""
-    from engine_air.flow.match import evaluate_conditions
+    from engine_air.flow.chain import characteristic
 
-    wc2 = demand_sweep(project, points)
-    m = np.full(wc2.shape, float(mach))
-    return evaluate_conditions(project, case, m, np.float64(altitude_m), corrected_flow=wc2)
+    return characteristic(project, case, np.float64(mach), np.float64(altitude_m), demand_sweep(project, points),
+                          data=False)
 
 
 def subcritical_branch(ops) -> tuple[np.ndarray, np.ndarray, float, float]:

@@ -43,8 +43,8 @@ from engine_air.inlets.ramp_layout import terminal_spill_drag
 from engine_air.physics.conical import cone_solution, detachment_mach, solve_columns
 from engine_air.physics.detached_shock import detached_cone_capture_blend
 from engine_air.physics.shocks import normal_shock, oblique_shock
-from engine_air.project.model import Inlet
-from engine_air.project.schema_field import REQUIRED, Field
+from engine_air.spec.project import Inlet
+from engine_air.spec.field import REQUIRED, Field
 
 MAX_CONES = 2
 MAX_CONE_DEG = 40.0
