@@ -14,8 +14,8 @@ import pathlib
 import numpy as np
 import pytest
 
-from engine_air.characteristics.calibrate import calibrate
-from engine_air.characteristics.characteristic import demand_sweep, model_curve
+from engine_air.studies.calibrate import calibrate
+from engine_air.envelope.characteristic import demand_sweep, model_curve
 from engine_air.characteristics.table import read_characteristics
 from engine_air.project.toml_file import load_project
 

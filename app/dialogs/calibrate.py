@@ -14,7 +14,7 @@ from PySide6.QtGui import QPixmap
 from PySide6.QtWidgets import (QCheckBox, QFileDialog, QHBoxLayout, QLabel, QMessageBox, QPushButton, QTableWidget,
                                QTableWidgetItem, QVBoxLayout)
 
-from engine_air.characteristics.calibrate import FITTABLE, calibrate
+from engine_air.studies.calibrate import FITTABLE, calibrate
 from engine_air.project.errors import ProjectError
 
 from .task import TaskDialog

@@ -28,7 +28,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from engine_air.project.errors import ProjectError
+from engine_air.spec.errors import ProjectError
 
 CRITICAL_BAND = 0.005
 """Rows within 0.5 % of a curve's largest MFR belong to its critical point (method §17)."""

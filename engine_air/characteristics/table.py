@@ -32,7 +32,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from engine_air.project.errors import ProjectError
+from engine_air.spec.errors import ProjectError
 
 MAX_TABLE_BYTES = 64 * 1024 * 1024
 """Largest characteristics file read (64 MiB: some hundred thousand rows); a larger file is refused unread."""

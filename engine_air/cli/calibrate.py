@@ -28,7 +28,7 @@ def add_parser(sub) -> None:
 
 
 def run(args) -> int:
-    from engine_air.characteristics.calibrate import FITTABLE, calibrate
+    from engine_air.studies.calibrate import FITTABLE, calibrate
     for key in args.fit:
         if key not in FITTABLE:
             raise UsageError(f"--fit {key}: cannot be fitted; choose from {', '.join(FITTABLE)}")

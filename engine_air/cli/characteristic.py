@@ -54,7 +54,7 @@ def _write(path, data: bytes, inputs) -> None:
 
 
 def run(args) -> int:
-    from engine_air.characteristics.at_condition import characteristic_at, measured_rows
+    from engine_air.envelope.characteristic import characteristic_at, measured_rows
 
     for m in args.mach:
         if not math.isfinite(m) or m < 0.0:

@@ -48,7 +48,7 @@ def machs_of_interest(project, result) -> list[tuple[float, float, str]]:
 
 def write_characteristics(out, project, result, book, steps):
     """The characteristic figures; returns (paths, relative names written, HTML)."""
-    from engine_air.characteristics.at_condition import characteristic_at, measured_rows
+    from engine_air.envelope.characteristic import characteristic_at, measured_rows
     from engine_air.outputs.characteristic_picture import characteristic_figure
     from engine_air.outputs.pictures import figure_png
 

@@ -33,7 +33,7 @@ LOSS_PER_DEG = 0.006
 
 
 def rows(project, rng):
-    from engine_air.characteristics.characteristic import model_sweep, subcritical_branch
+    from engine_air.envelope.characteristic import model_sweep, subcritical_branch
 
     true = dataclasses.replace(
         project, inlet=dataclasses.replace(project.inlet, duct_loss_coefficient=TRUE_DUCT_LOSS),

@@ -62,7 +62,7 @@ def _with(project, keys, values):
 
 def _model_at(project, case, mach, mfr):
     """The model's π at each (mach, mfr) along the subcritical branch, and its MFR_max at each Mach."""
-    from engine_air.characteristics.characteristic import model_sweep, subcritical_branch
+    from engine_air.envelope.characteristic import model_sweep, subcritical_branch
 
     rec = np.full(len(mach), np.nan)
     mfr_max = {}

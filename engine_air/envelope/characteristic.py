@@ -22,6 +22,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from engine_air.physics.isentropic import choked_mass_flow_parameter
+from engine_air.project.model import incidence_at
 from engine_air.physics.constants import P_REF, T_REF
 
 SWEEP_POINTS = 200
@@ -84,7 +85,7 @@ def subcritical_branch(ops) -> tuple[np.ndarray, np.ndarray, float, float]:
     Points where the captured flow is held (supercritical, or a choked throat) are left out; the critical
     recovery is the branch carried on linearly from its last two points to MFR_max (the sweep is dense: the
     last point lies within about 1 % of it)."""
-    from engine_air.envelope import flags as F
+    from engine_air.flow import flags as F
 
     mfr, rec = np.asarray(ops.mass_flow_ratio, float), np.asarray(ops.recovery, float)
     held = (np.asarray(ops.regime) == 3) | ((np.asarray(ops.flags) & F.THROAT_CHOKED) != 0)
@@ -134,3 +135,56 @@ def data_curve(curves, mach: float, alpha_deg: float, beta_deg: float, altitude_
     return Curve(float(mach), float(altitude_m), case_name, "data",
                  np.concatenate([grid * crit_mfr, np.full(len(tail), crit_mfr)]), np.concatenate([rec, tail]),
                  crit_mfr, crit_rec, stab if np.isfinite(stab) else None)
+
+def operating_points(project, mach: float, altitude_m: float) -> tuple[list[dict], bool | None]:
+    """Each case's operating point at one condition: rating, case, MFR, recovery; and whether every judged limit
+    holds at them (None where no limit is judged at any; a point outside the envelope polygon is not judged)."""
+    from engine_air.envelope.conditions import evaluate_conditions
+    from engine_air.envelope.polygon import polygon_contains
+
+    m, h = np.array([float(mach)]), np.array([float(altitude_m)])
+    inside = bool(polygon_contains(project.envelope.mach, project.envelope.altitude_m, m, h)[0])
+    points, verdicts = [], []
+    for case in project.cases:
+        judged = evaluate_conditions(project, case, m, h)
+        applies = [bool(np.asarray(c.applies)[0]) for c in judged.checks]
+        holds = None
+        if inside and any(applies):
+            holds = not any(bool(np.asarray(c.fails)[0]) for c in judged.checks)
+            verdicts.append(holds)
+        mfr, rec = float(np.asarray(judged.mass_flow_ratio)[0]), float(np.asarray(judged.recovery)[0])
+        points.append({"rating": case.rating, "case": case.name,
+                       "mass_flow_ratio": mfr if np.isfinite(mfr) else None,
+                       "recovery": rec if np.isfinite(rec) else None, "judged": holds is not None, "holds": holds})
+    return points, (all(verdicts) if verdicts else None)
+
+
+def characteristic_at(project, case, mach: float, altitude_m: float) -> Curve:
+    """The characteristic shown at one condition for ``case`` (its incidence picks the data curve)."""
+    model = model_curve(project, case, mach, altitude_m)
+    curve = model
+    if project.characteristics is not None:
+        alpha = float(incidence_at(case.angle_of_attack_deg, np.float64(mach)))
+        beta = float(incidence_at(case.sideslip_deg, np.float64(mach)))
+        data = data_curve(project.characteristics, mach, alpha, beta, altitude_m, case.name)
+        if data is not None:
+            data.model_mass_flow_ratio, data.model_recovery = model.mass_flow_ratio, model.recovery
+            curve = data
+    curve.operating_points, curve.holds = operating_points(project, mach, altitude_m)
+    return curve
+
+
+def measured_rows(project, mach: float, case=None, tolerance: float = 1e-9) -> dict[str, np.ndarray] | None:
+    """The characteristics table's rows at exactly this Mach number and the case's incidence there (for
+    overlay), or None."""
+    curves = project.characteristics
+    if curves is None or getattr(curves, "table", None) is None:
+        return None
+    table = curves.table
+    alpha = 0.0 if case is None else float(incidence_at(case.angle_of_attack_deg, np.float64(mach)))
+    beta = 0.0 if case is None else float(incidence_at(case.sideslip_deg, np.float64(mach)))
+    sel = ((np.abs(table.column("mach") - mach) <= tolerance) & (np.abs(table.column("alpha_deg") - alpha) <= 1e-9)
+           & (np.abs(table.column("beta_deg") - beta) <= 1e-9))
+    if not sel.any():
+        return None
+    return {name: table.column(name)[sel] for name in ("mass_flow_ratio", "recovery", "alpha_deg", "beta_deg")}
