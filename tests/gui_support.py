@@ -50,7 +50,9 @@ def window_factory(qtbot, tmp_path, default_path):
 # -- what a reader cannot see: clipped or elided text, cut table columns -------------------------------------
 
 def _shown(widget, window) -> bool:
-    return widget.isVisible() and widget.isVisibleTo(window) and widget.width() > 0 and widget.height() > 0
+    """On screen: visible, with a size, and not in a dock tab behind another (Qt moves those off screen)."""
+    return (widget.isVisible() and widget.isVisibleTo(window) and widget.width() > 0 and widget.height() > 0
+            and not widget.visibleRegion().isEmpty())
 
 
 def _clipped_by_ancestor(widget, window) -> bool:

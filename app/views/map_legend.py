@@ -121,15 +121,13 @@ class MapLegend:
 
 
     def _fit_legend(self) -> None:
-        """As many legend columns as the style asks (4, or 2 in presentation) and the width allows; in a
-        narrow window the legend's type first shrinks (to 75 %), then it drops columns."""
+        """Four legend columns when the width allows (few rows leave the plot its height); in a narrow
+        window the legend's type first shrinks (to 75 %), then it drops columns."""
         if not getattr(self, "_legend_labels", None):
             return
         room = self.canvas.width() - 30
         full = 11 * self._scale
-        wanted = 2 if self._scale > 1.2 else 4
-        tries = [(wanted, full), (wanted, 0.85 * full), (wanted, 0.75 * full)]
-        tries += [(n, 0.75 * full) for n in range(wanted - 1, 0, -1)]
+        tries = [(4, full), (4, 0.85 * full), (4, 0.75 * full)] + [(n, 0.75 * full) for n in (3, 2, 1)]
         before = getattr(self, "_legend_shown", None)
         moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
         for n, pt in tries:
@@ -144,17 +142,21 @@ class MapLegend:
             self._schedule_canvas_fit()
 
     def _fit_title(self) -> None:
-        """The title on one line when it fits beside the colour bar, else on two (quantity / case), so a
-        narrow window never widens the map beyond its place; the title row is as high as its lines."""
+        """The title on one line when it fits beside the colour bar (its type shrinking to 80 % first),
+        else on two (quantity / case), so a narrow window never widens the map beyond its place; the title
+        row is as high as its lines."""
         parts = getattr(self, "_title_parts", None)
         if parts is None:
             return
-        font = QFont()
-        font.setPointSizeF(15 * self._scale)
-        fm = QFontMetrics(font)
         one = f"{parts[0]} — {parts[1]}"
         room = (self.canvas.width() - self.colour_bar.maximumWidth()
                 - self.plot.getAxis("left").width() - 40)
+        font = QFont()
+        for factor in (1.0, 0.9, 0.8):
+            font.setPointSizeF(15 * self._scale * factor)
+            fm = QFontMetrics(font)
+            if fm.horizontalAdvance(one) <= room:
+                break
         lines = [one] if fm.horizontalAdvance(one) <= room else []
         if not lines:  # one line per part, each part wrapped at its words when it is still too wide
             for part in parts:
@@ -168,11 +170,26 @@ class MapLegend:
                         line = trial
                 lines.append(line)
         text = "<br>".join(html.escape(line) for line in lines)
-        if (text, self._scale) == getattr(self, "_title_shown", None):
+        if (text, font.pointSizeF()) == getattr(self, "_title_shown", None):
             return
-        self._title_shown = (text, self._scale)
-        self.plot.setTitle(text)
+        self._title_shown = (text, font.pointSizeF())
+        self.plot.setTitle(text, size=f"{font.pointSizeF():.1f}pt", color="#000")
         height = len(lines) * fm.lineSpacing() + 12
         self.plot.titleLabel.setMaximumHeight(height)
         self.plot.layout.setRowFixedHeight(0, height)
         self._schedule_canvas_fit()
+
+    def _fit_bar_label(self) -> None:
+        """The colour bar's label in full when it fits along the bar, else its unit alone (the title above
+        the map names the quantity), so the label is never cut at the bar's ends."""
+        labels = getattr(self, "_bar_labels", None)
+        if labels is None:
+            return
+        axis = self.colour_bar.getAxis("right")
+        font = QFont(axis.label.font())
+        font.setPointSizeF(13 * self._scale)
+        room = self.colour_bar.boundingRect().height() - 8
+        text = labels[0] if QFontMetrics(font).horizontalAdvance(labels[0]) <= room else labels[1]
+        if text != axis.labelText:
+            axis.setLabel(text)
+            axis.resizeEvent(None)  # places the new label along the bar

@@ -230,7 +230,10 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         self.image.setRect(self._image_rect())
         self.colour_bar.setColorMap(cmap)
         self.colour_bar.setLevels(values=(lo, hi))
-        self.colour_bar.getAxis("right").setLabel(quantity_axis_label(key, units))
+        label = quantity_axis_label(key, units)
+        unit = label[len(q.label):].strip()
+        self._bar_labels = (label, "" if unit == "(–)" else unit)  # the whole label, or its unit alone
+        self._fit_bar_label()
         self.plot.setLabel("bottom", "Flight Mach number M0")
         self.plot.setLabel("left", units.with_unit("Pressure altitude", "altitude"))
         case_text = "worst of all cases" if case == WORST else f"case “{case}”"
@@ -294,8 +297,8 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
     def state(self) -> str:
         return self._state
 
-    def set_presentation(self, on: bool) -> None:
-        self._scale = 1.45 if on else 1.0
+    def set_presentation(self, on: bool, small_window: bool = False) -> None:
+        self._scale = (1.25 if small_window else 1.45) if on else 1.0
         self._high_contrast = on
         self._apply_style()
         if self._result is not None:
@@ -429,6 +432,7 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         ci.layout.invalidate()
         ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
         ci.layout.activate()
+        self._fit_bar_label()
         self.canvas.viewport().update()
 
     # -- mouse -----------------------------------------------------------------
