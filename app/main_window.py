@@ -123,7 +123,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self.runner.finished.connect(self._on_finished)
         self.runner.failed.connect(self._on_failed)
         self.map.pointSelected.connect(self._on_point_selected)
-        self.detail.neededWidthChanged.connect(self._fit_detail_dock)
+        self.detail.neededWidthChanged.connect(lambda _w: self._fit_detail_dock(grow_only=True))
         self.findings.findingActivated.connect(self.go_to_finding)
         self.editors.projectEdited.connect(lambda p: self.document.edit(p, validated=True))
         self.document.stateChanged.connect(self._sync_recovery)

@@ -111,8 +111,11 @@ class WindowLayout:
         self._fit_detail_dock()
         self._fit_findings_dock(force=True)
 
-    def _fit_detail_dock(self, *_args) -> None:
-        """The right column as wide as its shown tab needs (no sideways scrolling), within its shares."""
+    def _fit_detail_dock(self, *_args, grow_only: bool = False) -> None:
+        """The right column as wide as its shown tab needs (no sideways scrolling), within its shares.
+
+        ``grow_only`` (a new point's tables): only widen a column its tables no longer fit; never narrow it,
+        so a new result does not resize (and repaint) the map whenever a number gets a digit shorter."""
         shown = next((n for n, d in self.view_docks.items()
                       if d.isVisible() and not d.visibleRegion().isEmpty() and not d.isFloating()), None)
         if shown is None:
@@ -128,6 +131,8 @@ class WindowLayout:
         else:
             want = int(PLOT_SHARE * w)
         dock = self.view_docks[shown]
+        if grow_only and dock.width() >= want:
+            return
         if abs(dock.width() - want) > 2:
             self.resizeDocks([dock], [want], Qt.Horizontal)
 
