@@ -92,9 +92,13 @@ def findings_reachable(w, qtbot) -> list[str]:
 
 
 def settle(w, qtbot, width, height):
+    """Resize and wait until the deferred fits (dock sizes, wrapped rows, the map's title and legend) have run."""
     w.resize(width, height)
     qtbot.waitUntil(lambda: w.width() == width and w.height() == height, timeout=5000)
-    qtbot.wait(250)  # the deferred fits (dock sizes, wrapped rows, the map's title and legend) run
+    qtbot.wait(250)
+    qtbot.waitUntil(lambda: not getattr(w.map, "_canvas_fit_pending", False) and not w.detail._refit_pending,
+                    timeout=5000)
+    qtbot.wait(150)
 
 
 @pytest.mark.parametrize("presentation", [False, True], ids=["docked", "presentation"])

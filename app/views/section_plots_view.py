@@ -16,7 +16,7 @@ from __future__ import annotations
 import numpy as np
 import pyqtgraph as pg
 import pyqtgraph.exporters
-from PySide6.QtCore import QRectF, Qt
+from PySide6.QtCore import Qt
 from PySide6.QtGui import QFont
 from PySide6.QtWidgets import QWidget
 
@@ -27,6 +27,7 @@ from engine_air.outputs.sections import cut
 from ..units import Units, dimension_of_si_unit
 
 EXPORT_SIZE = (1400, 560)
+_FAIL_COLOUR = (200, 30, 30)
 _CASE_COLOURS = [(31, 119, 180), (214, 39, 40), (44, 160, 44), (148, 103, 189), (140, 86, 75), (23, 190, 207),
                  (188, 189, 34), (127, 127, 127)]
 
@@ -44,6 +45,9 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         self._place(bool(stacked))
         self._scale = 1.0
         self._shown_args = None
+        self._curves: dict[tuple[str, str], tuple] = {}  # (plot, case) -> (line, failing marks)
+        self._marks: dict[str, object] = {}  # infinite lines and legend samples, by name
+        self._texts: dict = {}
         for plot in (self.by_mach, self.by_altitude):
             plot.showGrid(x=True, y=True, alpha=0.25)
             plot.setMenuEnabled(False)
@@ -87,6 +91,8 @@ class SectionPlots(pg.GraphicsLayoutWidget):
                 axis.labelStyle = {"font-size": f"{11 * scale:.0f}pt", "color": "#000"}
                 axis.setLabel(axis.labelText, units=axis.labelUnits)
             plot.legend.opts["labelTextSize"] = f"{10 * scale:.0f}pt"
+            for _sample, label in plot.legend.items:
+                label.setText(label.text, size=f"{10 * scale:.0f}pt", color="k")
             plot.titleLabel.opts["size"] = f"{11 * scale:.0f}pt"
         if self._shown_args is not None:
             self.show_sections(*self._shown_args)
@@ -97,10 +103,70 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         super().resizeEvent(event)
 
     def clear_sections(self) -> None:
-        for plot in (self.by_mach, self.by_altitude):
-            plot.clear()
-            plot.legend.clear()
+        for line, marks in self._curves.values():
+            line.setData([], [])
+            marks.setData([], [])
+        for item in self._marks.values():
+            if isinstance(item, pg.InfiniteLine):
+                item.hide()
         self.lines, self.failing = {}, {}
+
+    # -- items made once and reused: adding and removing pyqtgraph items costs more than the drawing ----------
+    def _curve(self, along: str, name: str, k: int):
+        """The (line, failing marks) of case ``name`` on the plot ``along`` ("mach" or "altitude")."""
+        key = (along, name)
+        if key not in self._curves:
+            plot = self.by_mach if along == "mach" else self.by_altitude
+            line = pg.PlotDataItem(connect="finite")
+            marks = pg.ScatterPlotItem(symbol="x", brush=None)
+            plot.addItem(line)
+            plot.addItem(marks)
+            plot.legend.addItem(line, name)
+            self._curves[key] = (line, marks)
+        line, marks = self._curves[key]
+        colour = _CASE_COLOURS[k % len(_CASE_COLOURS)]
+        line.setPen(pg.mkPen(colour, width=2.5 * self._scale))
+        return line, marks
+
+    def _forget_cases_except(self, names: list[str]) -> None:
+        for (along, name) in [key for key in self._curves if key[1] not in names]:
+            plot = self.by_mach if along == "mach" else self.by_altitude
+            line, marks = self._curves.pop((along, name))
+            plot.legend.removeItem(line)
+            plot.removeItem(line)
+            plot.removeItem(marks)
+
+    def _fails_legend(self, along: str, shown: bool) -> None:
+        """The legend's "fails" entry on one plot, present only when some point of the cut fails."""
+        plot = self.by_mach if along == "mach" else self.by_altitude
+        sample = self._marks.setdefault(f"fails-{along}", pg.ScatterPlotItem(
+            symbol="x", size=10, pen=pg.mkPen(_FAIL_COLOUR, width=2), brush=None))
+        listed = any(item is sample for item, _label in plot.legend.items)
+        if shown and not listed:
+            plot.legend.addItem(sample, "fails")
+        elif listed and not shown:
+            plot.legend.removeItem(sample)
+
+    def _line(self, name: str, plot, angle: int, pen, label: str | None = None, position: float = 0.5):
+        """An infinite line on ``plot``, made once (the limit, the selected point)."""
+        if name not in self._marks:
+            opts = {"position": position, "color": (0, 0, 0), "fill": (255, 255, 255, 200)}
+            item = pg.InfiniteLine(angle=angle, pen=pen, label=label, labelOpts=opts if label else None)
+            plot.addItem(item)
+            self._marks[name] = item
+        return self._marks[name]
+
+    def _set_texts(self, texts: dict) -> None:
+        """Titles and axis labels, set only when they change (each costs a rich-text layout)."""
+        title_pt = f"{11 * self._scale:.0f}pt"
+        for (where, plot), text in texts.items():
+            if self._texts.get((where, id(plot))) == (text, title_pt):
+                continue
+            self._texts[(where, id(plot))] = (text, title_pt)
+            if where == "title":
+                plot.setTitle(text, color="#000", size=title_pt)
+            else:
+                plot.setLabel(where, text)
 
     def show_sections(self, result, case: str, key: str, i: int, j: int, units: Units | None = None) -> None:
         """Draw the cuts through grid row ``i`` and column ``j`` of ``result`` for quantity ``key``.
@@ -108,7 +174,6 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         ``case`` is one case name or WORST (then every case is drawn)."""
         units = units or Units()
         self._shown_args = (result, case, key, i, j, units)
-        self.clear_sections()
         q = QUANTITIES[key]
         dim = dimension_of_si_unit(q.unit) or "none"
         qf = units.factor(dim)
@@ -117,46 +182,49 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         names = [c.name for c in result.cases] if case == WORST else [case]
         altitude = float(result.altitude_m[i])
         mach = float(result.mach[j])
-        # short titles (the quantity is on the axes), so the two plots fit side by side in a narrow panel
-        title_pt = f"{11 * self._scale:.0f}pt"
-        self.by_mach.setTitle(f"along Mach at {altitude / af:,.0f} {units.label('altitude')}", color="#000",
-                              size=title_pt)
-        self.by_altitude.setTitle(f"along altitude at M0 {mach:.3f}", color="#000", size=title_pt)
-        self.by_mach.setLabel("bottom", "flight Mach number M0")
-        self.by_mach.setLabel("left", ylabel)
-        self.by_altitude.setLabel("left", units.with_unit("pressure altitude", "altitude"))
-        self.by_altitude.setLabel("bottom", ylabel)
+        # short titles (the quantity is on the axes)
+        self._set_texts({("title", self.by_mach): f"along Mach at {altitude / af:,.0f} {units.label('altitude')}",
+                         ("title", self.by_altitude): f"along altitude at M0 {mach:.3f}",
+                         ("bottom", self.by_mach): "flight Mach number M0", ("left", self.by_mach): ylabel,
+                         ("left", self.by_altitude): units.with_unit("pressure altitude", "altitude"),
+                         ("bottom", self.by_altitude): ylabel})
         along_mach = cut(result, key, altitude_m=altitude, cases=names)
         along_altitude = cut(result, key, mach=mach, cases=names)
         limit = along_mach.limit
+        self._forget_cases_except(names)
+        self.lines, self.failing = {}, {}
+        any_fails = {"mach": False, "altitude": False}
+        mark_pen = pg.mkPen(_FAIL_COLOUR, width=2)
         for k, name in enumerate(names):
-            colour = _CASE_COLOURS[k % len(_CASE_COLOURS)]
-            pen = pg.mkPen(colour, width=2.5 * self._scale)
-            for plot, along, section in ((self.by_mach, "mach", along_mach), (self.by_altitude, "altitude", along_altitude)):
+            for along, section in (("mach", along_mach), ("altitude", along_altitude)):
                 data = section.case(name)
                 y_disp = data.values / qf
                 if along == "mach":
                     px, py = section.x, y_disp
                 else:
                     px, py = y_disp, section.x / af  # altitude up the side, the quantity across
-                plot.plot(px, py, pen=pen, name=name, connect="finite")
+                line, marks = self._curve(along, name, k)
+                line.setData(px, py)
+                fails = np.asarray(data.failing, bool)
+                marks.setData(px[fails], py[fails], size=10 * self._scale, pen=mark_pen, brush=None, symbol="x")
+                any_fails[along] |= bool(fails.any())
                 self.lines[(along, name)] = (px, py)
                 self.failing[(along, name)] = data.failing
-                if data.failing.any():
-                    fails = data.failing
-                    plot.plot(px[fails], py[fails], pen=None, symbol="x", symbolSize=10 * self._scale,
-                              symbolPen=pg.mkPen((200, 30, 30), width=2), symbolBrush=None,
-                              name="fails" if k == 0 else None)
-        if limit is not None:
-            lpen = pg.mkPen((0, 0, 0), width=1.5, style=Qt.DashLine)
-            opts = {"color": (0, 0, 0), "fill": (255, 255, 255, 200)}
-            self.by_mach.addItem(pg.InfiniteLine(pos=limit / qf, angle=0, pen=lpen, label="limit",
-                                                 labelOpts={"position": 0.12, **opts}))
-            self.by_altitude.addItem(pg.InfiniteLine(pos=limit / qf, angle=90, pen=lpen, label="limit",
-                                                     labelOpts={"position": 0.8, **opts}))
+        for along, shown in any_fails.items():
+            self._fails_legend(along, shown)
+        lpen = pg.mkPen((0, 0, 0), width=1.5, style=Qt.DashLine)
+        for name, plot, angle, position in (("limit-mach", self.by_mach, 0, 0.12),
+                                            ("limit-altitude", self.by_altitude, 90, 0.8)):
+            item = self._line(name, plot, angle, lpen, "limit", position)
+            item.setVisible(limit is not None)
+            if limit is not None:
+                item.setValue(limit / qf)
         sel = pg.mkPen((90, 90, 90), width=1, style=Qt.DotLine)
-        self.by_mach.addItem(pg.InfiniteLine(pos=mach, angle=90, pen=sel))
-        self.by_altitude.addItem(pg.InfiniteLine(pos=altitude / af, angle=0, pen=sel))
+        for name, plot, angle, value in (("selected-mach", self.by_mach, 90, mach),
+                                         ("selected-altitude", self.by_altitude, 0, altitude / af)):
+            item = self._line(name, plot, angle, sel)
+            item.setValue(value)
+            item.show()
 
     def export(self, path: str, size: tuple[int, int] = EXPORT_SIZE) -> None:
         """Write both plots side by side to ``path`` (PNG, or SVG by the file's ending) at ``size`` pixels.
