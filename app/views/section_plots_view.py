@@ -16,8 +16,8 @@ from __future__ import annotations
 import numpy as np
 import pyqtgraph as pg
 import pyqtgraph.exporters
-from PySide6.QtCore import Qt
-from PySide6.QtGui import QFont
+from PySide6.QtCore import Qt, QTimer
+from PySide6.QtGui import QFont, QFontMetrics
 from PySide6.QtWidgets import QWidget
 
 from engine_air.envelope.evaluate import WORST
@@ -56,8 +56,9 @@ class SectionPlots(pg.GraphicsLayoutWidget):
                 if hasattr(axis, "setSIPrefixEnableRanges"):
                     axis.setSIPrefixEnableRanges(())
                 axis.enableAutoSIPrefix(False)
-            plot.addLegend(offset=(-5, 5), brush=pg.mkBrush(255, 255, 255, 225), labelTextColor="k",
-                           pen=pg.mkPen("#888888"))
+        # one legend (the cases' colours are the same in both plots), on the cut along Mach
+        self.by_mach.addLegend(offset=(-5, 5), brush=pg.mkBrush(255, 255, 255, 200), labelTextColor="k",
+                               pen=pg.mkPen("#888888"))
         self.set_scale(1.0)
         self.lines: dict[tuple[str, str], tuple[np.ndarray, np.ndarray]] = {}  # (plot, case) -> drawn data
         self.failing: dict[tuple[str, str], np.ndarray] = {}
@@ -90,10 +91,11 @@ class SectionPlots(pg.GraphicsLayoutWidget):
                 axis.setTextPen(pg.mkPen("k"))
                 axis.labelStyle = {"font-size": f"{11 * scale:.0f}pt", "color": "#000"}
                 axis.setLabel(axis.labelText, units=axis.labelUnits)
-            plot.legend.opts["labelTextSize"] = f"{10 * scale:.0f}pt"
-            for _sample, label in plot.legend.items:
-                label.setText(label.text, size=f"{10 * scale:.0f}pt", color="k")
             plot.titleLabel.opts["size"] = f"{11 * scale:.0f}pt"
+        legend = self.by_mach.legend
+        legend.opts["labelTextSize"] = f"{10 * scale:.0f}pt"
+        for _sample, label in legend.items:
+            label.setText(label.text, size=f"{10 * scale:.0f}pt", color="k")
         if self._shown_args is not None:
             self.show_sections(*self._shown_args)
 
@@ -101,6 +103,21 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         if getattr(self, "_fixed_stacking", False) is None:
             self._place(self.height() > 0.9 * self.width())
         super().resizeEvent(event)
+        QTimer.singleShot(0, self._fit_labels)
+
+    def _fit_labels(self) -> None:
+        """The quantity up the side of the cut along Mach when it fits the plot's height; else the side
+        carries its unit alone and the quantity moves into the title, so no axis label is cut."""
+        texts = getattr(self, "_quantity_texts", None)
+        if texts is None:
+            return
+        full, along, unit, long_title = texts
+        font = QFont()
+        font.setPointSizeF(11 * self._scale)
+        room = self.by_mach.getViewBox().height() - 6
+        fits = room <= 0 or QFontMetrics(font).horizontalAdvance(full) <= room
+        self._set_texts({("left", self.by_mach): full if fits else ("" if unit == "(–)" else unit),
+                         ("title", self.by_mach): along if fits else long_title})
 
     def clear_sections(self) -> None:
         for line, marks in self._curves.values():
@@ -121,7 +138,8 @@ class SectionPlots(pg.GraphicsLayoutWidget):
             marks = pg.ScatterPlotItem(symbol="x", brush=None)
             plot.addItem(line)
             plot.addItem(marks)
-            plot.legend.addItem(line, name)
+            if along == "mach":
+                plot.legend.addItem(line, name)
             self._curves[key] = (line, marks)
         line, marks = self._curves[key]
         colour = _CASE_COLOURS[k % len(_CASE_COLOURS)]
@@ -132,14 +150,15 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         for (along, name) in [key for key in self._curves if key[1] not in names]:
             plot = self.by_mach if along == "mach" else self.by_altitude
             line, marks = self._curves.pop((along, name))
-            plot.legend.removeItem(line)
+            if along == "mach":
+                plot.legend.removeItem(line)
             plot.removeItem(line)
             plot.removeItem(marks)
 
-    def _fails_legend(self, along: str, shown: bool) -> None:
-        """The legend's "fails" entry on one plot, present only when some point of the cut fails."""
-        plot = self.by_mach if along == "mach" else self.by_altitude
-        sample = self._marks.setdefault(f"fails-{along}", pg.ScatterPlotItem(
+    def _fails_legend(self, shown: bool) -> None:
+        """The legend's "fails" entry, present only when some point of a cut fails."""
+        plot = self.by_mach
+        sample = self._marks.setdefault("fails", pg.ScatterPlotItem(
             symbol="x", size=10, pen=pg.mkPen(_FAIL_COLOUR, width=2), brush=None))
         listed = any(item is sample for item, _label in plot.legend.items)
         if shown and not listed:
@@ -183,11 +202,14 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         altitude = float(result.altitude_m[i])
         mach = float(result.mach[j])
         # short titles (the quantity is on the axes)
-        self._set_texts({("title", self.by_mach): f"along Mach at {altitude / af:,.0f} {units.label('altitude')}",
-                         ("title", self.by_altitude): f"along altitude at M0 {mach:.3f}",
-                         ("bottom", self.by_mach): "flight Mach number M0", ("left", self.by_mach): ylabel,
+        along = f"along Mach at {altitude / af:,.0f} {units.label('altitude')}"
+        unit = ylabel[len(q.label):].strip()
+        self._quantity_texts = (ylabel, along, unit, f"{q.label}<br>{along}")
+        self._set_texts({("title", self.by_altitude): f"along altitude at M0 {mach:.3f}",
+                         ("bottom", self.by_mach): "flight Mach number M0",
                          ("left", self.by_altitude): units.with_unit("pressure altitude", "altitude"),
                          ("bottom", self.by_altitude): ylabel})
+        self._fit_labels()
         along_mach = cut(result, key, altitude_m=altitude, cases=names)
         along_altitude = cut(result, key, mach=mach, cases=names)
         limit = along_mach.limit
@@ -210,8 +232,7 @@ class SectionPlots(pg.GraphicsLayoutWidget):
                 any_fails[along] |= bool(fails.any())
                 self.lines[(along, name)] = (px, py)
                 self.failing[(along, name)] = data.failing
-        for along, shown in any_fails.items():
-            self._fails_legend(along, shown)
+        self._fails_legend(any_fails["mach"] or any_fails["altitude"])
         lpen = pg.mkPen((0, 0, 0), width=1.5, style=Qt.DashLine)
         for name, plot, angle, position in (("limit-mach", self.by_mach, 0, 0.12),
                                             ("limit-altitude", self.by_altitude, 90, 0.8)):

@@ -52,6 +52,12 @@ def style_hosted_plot(plot_widget, scale: float = 1.0) -> None:
         axis.setLabel(axis.labelText, units=axis.labelUnits)
     item.titleLabel.opts["color"] = "#000"
     item.titleLabel.opts["size"] = f"{11 * scale:.0f}pt"
+    legend = getattr(plot_widget, "legend", None) or item.legend
+    if legend is not None:  # entries made from now on: black, 10 pt
+        legend.opts["labelTextColor"] = pg.mkColor("k")
+        legend.opts["labelTextSize"] = f"{10 * scale:.0f}pt"
+        for _sample, label in legend.items:
+            label.setText(label.text, size=legend.opts["labelTextSize"], color="k")
 
 
 class WindowLayout:
