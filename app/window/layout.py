@@ -53,7 +53,8 @@ def style_hosted_plot(plot_widget, scale: float = 1.0) -> None:
     item.titleLabel.opts["color"] = "#000"
     item.titleLabel.opts["size"] = f"{11 * scale:.0f}pt"
     legend = getattr(plot_widget, "legend", None) or item.legend
-    if legend is not None:  # entries made from now on: black, 10 pt
+    if legend is not None:  # entries made from now on: black, 10 pt, two columns (the column's width)
+        legend.setColumnCount(2)
         legend.opts["labelTextColor"] = pg.mkColor("k")
         legend.opts["labelTextSize"] = f"{10 * scale:.0f}pt"
         for _sample, label in legend.items:
