@@ -49,7 +49,9 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         self._marks: dict[str, object] = {}  # infinite lines and legend samples, by name
         self._texts: dict = {}
         for plot in (self.by_mach, self.by_altitude):
-            plot.showGrid(x=True, y=True, alpha=0.25)
+            plot.showGrid(x=True, y=True, alpha=0.3)
+            for side in ("bottom", "left"):  # grid lines at the labelled and the minor ticks only: readable, cheaper
+                plot.getAxis(side).setStyle(maxTickLevel=1)
             plot.setMenuEnabled(False)
             for side in ("bottom", "left"):
                 axis = plot.getAxis(side)
@@ -247,26 +249,33 @@ class SectionPlots(pg.GraphicsLayoutWidget):
             item.setValue(value)
             item.show()
 
-    def export(self, path: str, size: tuple[int, int] = EXPORT_SIZE) -> None:
-        """Write both plots side by side to ``path`` (PNG, or SVG by the file's ending) at ``size`` pixels.
-
-        The plots are drawn again in an off-screen view of that size, so the file never depends on (or
-        clips to) the size of the tab on screen."""
-        from ..exports import write_graphics_svg
-
+    def export_page(self, size: tuple[int, int] = EXPORT_SIZE) -> "SectionPlots":
+        """An off-screen copy of these plots, side by side at ``size`` pixels, laid out and ready to write
+        (the caller deletes it)."""
         from PySide6.QtWidgets import QApplication
 
         page = SectionPlots(stacked=False)
         page.setAttribute(Qt.WA_DontShowOnScreen)
+        page.resize(*size)
+        page.show()
+        if self._shown_args is not None:
+            page.show_sections(*self._shown_args)
+        for _ in range(3):  # the axes measure their tick texts while painting: lay out, paint, again
+            page.ci.layout.activate()
+            page.grab()
+            QApplication.processEvents()
+            page._fit_labels()
+        return page
+
+    def export(self, path: str, size: tuple[int, int] = EXPORT_SIZE) -> None:
+        """Write both plots side by side to ``path`` (PNG, or SVG by the file's ending) at ``size`` pixels.
+
+        The plots are drawn again in an off-screen view of that size (``export_page``), so the file never
+        depends on (or clips to) the size of the tab on screen."""
+        from ..exports import write_graphics_svg
+
+        page = self.export_page(size)
         try:
-            page.resize(*size)
-            page.show()
-            if self._shown_args is not None:
-                page.show_sections(*self._shown_args)
-            for _ in range(3):  # the axes measure their tick texts while painting: lay out, paint, again
-                page.ci.layout.activate()
-                page.grab()
-                QApplication.processEvents()
             if str(path).lower().endswith(".svg"):
                 write_graphics_svg(page, path, "Sections")
                 return
