@@ -480,12 +480,14 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         step smaller, so the map keeps its room."""
         on = bool(on)
         small = on and style.compact(self.width(), self.height())
+        was = self.presentation
         self.presentation = on
         self._presentation_small = small
         self.presentation_action.setChecked(on)
         self.setStyleSheet(style.stylesheet(on, small))
         self.verdict.set_presentation(on, small)
-        self._layout_presentation(on)
+        if on != was:
+            self._layout_presentation(on)
         scale = (1.15 if small else 1.3) if on else 1.0
         style_hosted_plot(self.sketch, scale)
         self.sections.set_scale(scale)

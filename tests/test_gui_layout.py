@@ -148,3 +148,19 @@ def test_point_views_are_tabs_each_with_the_column_height(make_window, qtbot):
     np.testing.assert_array_equal(w.sections.lines[("mach", case)][1], w.result.quantity(case, key)[i, :])
     assert w.sections.stacked  # taller than wide: one plot above the other
     assert docks["sections"].height() >= 0.6 * w.height()
+
+
+def test_presentation_mode_gives_back_the_docks_after_a_change_of_window_size(make_window, qtbot):
+    """The editors and findings put away for presentation mode come back when it ends, even when the window
+    crossed the small-window size (which restyles presentation mode) in between."""
+    w = make_window(SAMPLES / "supersonic_two_ramp.toml")
+    settle(w, qtbot, 1600, 1000)
+    w.set_presentation(True)
+    assert not w.findings_dock.isVisible() and not w.editor_dock.isVisible()
+    settle(w, qtbot, 1280, 720)
+    assert "13pt" in w.styleSheet() and "22pt" in w.styleSheet()  # the smaller presentation type
+    settle(w, qtbot, 1600, 1000)
+    assert "15pt" in w.styleSheet() and "28pt" in w.styleSheet()
+    w.set_presentation(False)
+    qtbot.wait(50)
+    assert w.findings_dock.isVisible() and w.editor_dock.isVisible()
