@@ -114,7 +114,12 @@ def test_sections_export_png_and_svg(make_window, tmp_path, monkeypatch):
 
     monkeypatch.setattr(QMessageBox, "critical", fail)
     w = make_window(sample("undersized_business_jet"))
+    assert not w.point_views.shown("sections")  # behind its tab: drawn for the export all the same
     assert w.export("sections-png", tmp_path / "cuts.png")
+    i, j = w.map.selected()
+    case = w.result.cases[0].name
+    np.testing.assert_array_equal(w.sections.lines[("mach", case)][1],
+                                  w.result.quantity(case, w.current_quantity())[i, :])
     assert w.export("sections-svg", tmp_path / "cuts.svg")
     assert (tmp_path / "cuts.png").stat().st_size > 1000
     assert "<svg" in (tmp_path / "cuts.svg").read_text(errors="replace")[:2000]

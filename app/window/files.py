@@ -195,8 +195,8 @@ class FileActions:
             "png": lambda: exports.write_map_png(self.map, path),
             "svg": lambda: exports.write_map_svg(self.map, path),
             "csv": lambda: exports.write_grid_csv(self.result, path),
-            "sections-png": lambda: self.sections.export(str(path)),
-            "sections-svg": lambda: self.sections.export(str(path)),
+            "sections-png": lambda: self.export_sections(path),
+            "sections-svg": lambda: self.export_sections(path),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
                                                        self.document.display_name),
         }

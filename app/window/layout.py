@@ -113,6 +113,12 @@ class WindowLayout:
         if name in ("sketch", "sections"):
             self.point_views.flush(name)
 
+    def export_sections(self, path) -> None:
+        """Write the sections through the selected point (PNG or SVG by the ending), drawn for the window's
+        present state first: behind its tab the view may not have been drawn for the newest result."""
+        self._draw_sections()
+        self.sections.export(str(path))
+
     def _size_docks(self) -> None:
         """The right column's width and the findings' height for the window's present size."""
         self._fit_detail_dock()
