@@ -164,3 +164,21 @@ def test_presentation_mode_gives_back_the_docks_after_a_change_of_window_size(ma
     w.set_presentation(False)
     qtbot.wait(50)
     assert w.findings_dock.isVisible() and w.editor_dock.isVisible()
+
+
+def test_editor_tab_needs_no_sideways_scrolling(make_window, qtbot, base_font):
+    """With "Edit project" in front the column widens to the editors' widest table (schedule, engine ratings)
+    within its share, at the smallest and the largest size; back on the point's tables it narrows again."""
+    w = make_window(SAMPLES / "supersonic_two_ramp.toml")
+    for width, height in ((1280, 720), (1920, 1080)):
+        settle(w, qtbot, width, height)
+        narrow = w.detail_dock.width()
+        w.show_view("editor")
+        for k in range(w.editors.tabs.count()):
+            w.editors.tabs.setCurrentIndex(k)
+            qtbot.wait(60)
+            problems = layout_problems(w)
+            assert problems == [], f"{width} x {height}, {w.editors.tabs.tabText(k)}: " + "; ".join(problems)
+        assert plot_share(w) >= 0.04  # the map stays in sight while editing (a 1280 x 720 window: 0.047)
+        w.show_view("detail")
+        qtbot.waitUntil(lambda: abs(w.detail_dock.width() - narrow) <= 4, timeout=3000)
