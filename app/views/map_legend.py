@@ -18,6 +18,22 @@ from .colour_maps import NOT_JUDGED_GREY
 from .map_overlays import HATCH, LEAST_MARGIN, OUTSIDE_GREY, START_COLOUR, UNSTART_COLOUR, UNSTARTED_COLOUR
 
 
+def limiting_text(labels: list[str], line_chars: int = 70) -> str:
+    """The legend's "limiting: A / B / C" (rich text), broken between checks into lines of about
+    ``line_chars`` characters."""
+    parts = [html.escape(x) for x in labels] or ["nothing judged"]
+    lines, line = [], "limiting:"
+    for k, part in enumerate(parts):
+        piece = part + (" /" if k < len(parts) - 1 else "")
+        if len(line) + 1 + len(piece) > line_chars and line != "limiting:":
+            lines.append(line)
+            line = piece
+        else:
+            line = f"{line} {piece}"
+    lines.append(line)
+    return "<br>".join(lines)
+
+
 class MapLegend:
     """Legend entries and the title's and legend's fit to the width (mixed into ``EnvelopeMap``)."""
 
@@ -50,12 +66,6 @@ class MapLegend:
         if self.not_judged_count:  # the two greys side by side, so that neither is mistaken for the other
             out.append(("not-judged", "not judged here"))
             out.append(("outside", "outside the envelope"))
-        if self._key == LEAST_MARGIN:
-            labels = [html.escape(x) for x in self.limiting_labels] or ["nothing judged"]
-            one = "limiting: " + " / ".join(labels)
-            # one check a line when they do not fit on one short line, so the legend keeps its columns
-            text = one if len(one) <= 26 else "limiting:<br>" + " /<br>".join(labels)
-            out.append(("limiting", text))
         start, unstart = self.starting_machs
         if self.unstarted_count or start is not None:
             out.append(("unstarted", "unstarted (hatched)" + ("" if self.unstarted_count else " (nowhere)")))
@@ -66,6 +76,8 @@ class MapLegend:
                 out.append(("band", "hysteresis: started only if reached from above"))
             else:
                 out.append(("self-start", f"self-start = unstart M0 {start:.3f}"))
+        if self._key == LEAST_MARGIN:  # last: it gets a row of its own across the legend (``_span_limiting``)
+            out.append(("limiting", limiting_text(self.limiting_labels)))
         return out
 
     def _legend_sample(self, entry: str):
@@ -102,10 +114,29 @@ class MapLegend:
             n = self.legend.columnCount
             self.legend.columnCount = -1
             self.legend.setColumnCount(n)  # lays every entry out again
+            self._span_limiting()
             self._legend_labels = [label for _sample, label in self.legend.items]
             self._legend_shown = None
         self._legend_texts = self._legend_texts[:5] + [t for _k, t in wanted]
         self.legend_entries = list(self._legend_texts)
+
+    def _span_limiting(self) -> None:
+        """The "limiting" entry (always the last) on a row of its own across every column, so that its checks
+        take one or two lines of the legend instead of one line each in one narrow column."""
+        samples = getattr(self, "_legend_samples", {})
+        item = samples.get("limiting")
+        pair = next(((smp, lab) for smp, lab in self.legend.items if item is not None and smp.item is item), None)
+        if pair is None:
+            return
+        sample, label = pair
+        lay = self.legend.layout
+        lay.removeItem(sample)
+        lay.removeItem(label)
+        row = max((r for r in range(lay.rowCount()) for c in range(lay.columnCount()) if lay.itemAt(r, c)),
+                  default=-1) + 1
+        lay.addItem(sample, row, 0, alignment=Qt.AlignVCenter)
+        lay.addItem(label, row, 1, 1, max(1, 2 * self.legend.columnCount - 1))
+        self.legend.updateSize()
 
     def _update_legend_text(self) -> None:
         self._legend_shown = None
@@ -134,6 +165,7 @@ class MapLegend:
             self._set_legend_text(pt)
             if self.legend.columnCount != n:
                 self.legend.setColumnCount(n)
+                self._span_limiting()
                 moved = True
             self.legend.layout.invalidate()
             if self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:

@@ -8,7 +8,8 @@
   ``COLUMN_MIN_SHARE`` and ``COLUMN_MAX_SHARE`` of the window's width (``EDITOR_MAX_SHARE`` while editing), so
   the map keeps the rest.
 - Bottom: the findings across the whole width (their seven columns need it), as high as their rows up to
-  ``FINDINGS_MAX_SHARE`` of the window's height; more rows scroll.
+  ``FINDINGS_MAX_SHARE`` of the window's height (``FINDINGS_MAX_SHARE_SHORT`` in a window under
+  ``SHORT_WINDOW`` px high, where the map needs it more); more rows scroll.
 - Presentation mode hides the editors and the findings and raises the point's tables; the docks come back as
   they were afterwards.
 
@@ -31,6 +32,8 @@ COLUMN_MAX_SHARE = 0.42
 EDITOR_MAX_SHARE = 0.56  # the editors' widest tables (schedule, engine ratings) may take more while editing
 PLOT_SHARE = 0.36  # the sketch's and the sections' column
 FINDINGS_MAX_SHARE = 0.28
+FINDINGS_MAX_SHARE_SHORT = 0.20
+SHORT_WINDOW = 800
 FINDINGS_MIN_ROWS = 4  # shown without scrolling whenever the findings have that many
 TAB_TITLES = {"detail": "Selected point", "sketch": "Inlet", "sections": "Sections", "editor": "Edit project"}
 
@@ -164,7 +167,8 @@ class WindowLayout:
         chrome = max(24, dock.height() - tree.height()) if tree.height() > 0 else 30
         scroll = tree.horizontalScrollBar().sizeHint().height()
         need = tree.header().sizeHint().height() + rows * row_h + 2 * tree.frameWidth() + chrome + scroll + 4
-        self.resizeDocks([dock], [min(need, int(FINDINGS_MAX_SHARE * self.height()))], Qt.Vertical)
+        share = FINDINGS_MAX_SHARE_SHORT if self.height() < SHORT_WINDOW else FINDINGS_MAX_SHARE
+        self.resizeDocks([dock], [min(need, int(share * self.height()))], Qt.Vertical)
 
     def _layout_presentation(self, on: bool) -> None:
         if on:
