@@ -39,10 +39,13 @@ TAB_TITLES = {"detail": "Selected point", "sketch": "Inlet", "sections": "Sectio
 
 
 def style_hosted_plot(plot_widget, scale: float = 1.0) -> None:
-    """Black axis text in a readable size for a pyqtgraph plot this window hosts (the inlet sketch)."""
+    """Black axis text in a readable size for a pyqtgraph plot this window hosts (the inlet sketch); a view
+    that is not a pyqtgraph plot is left as it draws itself."""
     import pyqtgraph as pg
     from PySide6.QtGui import QFont
 
+    if not hasattr(plot_widget, "getPlotItem"):
+        return
     font = QFont()
     font.setPointSizeF(10 * scale)
     item = plot_widget.getPlotItem()
