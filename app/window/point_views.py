@@ -5,7 +5,7 @@ A new result draws the map first. ``AfterPaint`` then waits for the map's own pa
 the panels' update, so the map never waits behind them. ``PointViews`` keeps a *dirty* mark per view:
 
 - ``invalidate(names)`` marks views; each shown, marked view is drawn in its own turn of the event loop
-  (``QTimer.singleShot(0)``), one view a turn, so the GUI thread never stalls for their sum;
+  (``QTimer.singleShot(TURN_MS)``), one view a turn, so the GUI thread never stalls for their sum;
 - a view that is not shown (a tab behind another, a closed dock) is not drawn at all; it is drawn when it
   is shown again (``visibilityChanged``);
 - a draw reads the window's state when it runs, so a result superseded meanwhile is never drawn: at most
@@ -21,6 +21,11 @@ from typing import Callable
 from PySide6.QtCore import QEvent, QObject, QTimer
 
 log = logging.getLogger(__name__)
+
+TURN_MS = 2
+"""The pause before the next deferred step. Not 0: Qt runs zero-timers started while it runs timers in the
+same pass, so a chain of them (map paint, panels, sketch, sections) held the GUI thread as one long stall; a
+step that is due a little later lets the other timers and input events through between two steps."""
 
 
 class AfterPaint(QObject):
@@ -41,7 +46,7 @@ class AfterPaint(QObject):
 
     def eventFilter(self, _obj, event) -> bool:  # noqa: N802 - Qt override
         if event.type() == QEvent.Paint and self._fn is not None:
-            QTimer.singleShot(0, self._run)  # the paint runs first; the panels in the next turn
+            QTimer.singleShot(TURN_MS, self._run)  # the paint runs first; the panels in a later turn
         return False
 
     def _run(self) -> None:
@@ -94,7 +99,7 @@ class PointViews(QObject):
     def _queue(self) -> None:
         if not self._queued and self.pending:
             self._queued = True
-            QTimer.singleShot(0, self._draw_next)
+            QTimer.singleShot(TURN_MS, self._draw_next)
 
     def _draw_next(self) -> None:
         self._queued = False
