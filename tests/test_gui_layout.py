@@ -30,7 +30,7 @@ pytest.importorskip("pyqtgraph")
 pytest.importorskip("pytestqt")
 
 from app.main import DEFAULT_SAMPLE, SAMPLES  # noqa: E402
-from gui_support import layout_problems, map_problems, window_factory  # noqa: E402
+from gui_support import layout_problems, map_problems, wait_laid_out, window_factory  # noqa: E402
 
 SIZES = ((1280, 720), (1600, 1000), (1920, 1080))
 
@@ -95,10 +95,7 @@ def settle(w, qtbot, width, height):
     """Resize and wait until the deferred fits (dock sizes, wrapped rows, the map's title and legend) have run."""
     w.resize(width, height)
     qtbot.waitUntil(lambda: w.width() == width and w.height() == height, timeout=5000)
-    qtbot.wait(250)
-    qtbot.waitUntil(lambda: not getattr(w.map, "_canvas_fit_pending", False) and not w.detail._refit_pending,
-                    timeout=5000)
-    qtbot.wait(150)
+    wait_laid_out(qtbot, w, 200)
 
 
 @pytest.mark.parametrize("presentation", [False, True], ids=["docked", "presentation"])
