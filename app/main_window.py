@@ -50,7 +50,7 @@ from .template import new_project
 from .units import SI, SYSTEM_LABELS, US, Units
 from .window.autosave import AutosaveActions
 from .window.files import FileActions
-from .window.layout import WindowLayout, style_hosted_plot
+from .window.layout import WindowLayout
 from .window.point_views import AfterPaint, PointViews
 from .window.verdict import VerdictBanner
 from .worker import MapRunner
@@ -302,7 +302,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         if gen != self.result_generation or self.result is None:
             return  # a newer result arrived meanwhile; it schedules its own update
         self.detail.set_stale(None)
-        self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
+        self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result, self.units))
         self._fit_findings_dock()
         self._deferring = True  # the selection's sketch and sections are drawn in later turns
         try:
@@ -435,7 +435,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         r = self.result
         if self._pending_selection == "worst":
             self._pending_selection = None
-            target = next((s for s in r.summary if not s.holds), r.summary[0] if r.summary else None)
+            target = next((s for s in r.summary if s.fails), r.summary[0] if r.summary else None)
             if target is not None and math.isfinite(target.worst_mach):
                 self.select_condition(target.worst_mach, target.worst_altitude_m)
                 return
@@ -470,8 +470,9 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
             self.units_combo.blockSignals(False)
         self.detail.set_units(self.units)
         self.editors.set_units(self.units)
+        self.sketch.set_units(self.units)
         if self.result is not None:
-            self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
+            self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result, self.units))
             self._redraw()
 
     def set_presentation(self, on: bool) -> None:
@@ -488,9 +489,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self.verdict.set_presentation(on, small)
         if on != was:
             self._layout_presentation(on)
-        scale = (1.15 if small else 1.3) if on else 1.0
-        style_hosted_plot(self.sketch, scale)
-        self.sections.set_scale(scale)
+        self.sections.set_scale((1.15 if small else 1.3) if on else 1.0)
         self.map.set_presentation(on, small)
         self.detail.refresh()
         if self.result is not None and self.verdict.state in ("holds", "fails"):

@@ -95,7 +95,7 @@ def _sample_shots(app, folder: Path, settings) -> list[Path]:
     from engine_air.envelope import flags as F
 
     w = _open(app, "supersonic_two_ramp", settings)  # fails somewhere: least margin is its default map
-    worst = next(s for s in w.result.summary if not s.holds)
+    worst = next(s for s in w.result.summary if s.fails)
     w.select_condition(worst.worst_mach, worst.worst_altitude_m)
     w.show_view("sketch")
     out = _shoot(app, w, folder, "least_margin_with_sketch")

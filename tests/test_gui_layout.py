@@ -91,6 +91,24 @@ def findings_reachable(w, qtbot) -> list[str]:
     return problems
 
 
+def plot_tab_problems(w, qtbot) -> list[str]:
+    """The inlet's and the sections' tabs in turn: each drawing's scene (axes, legend, plot) lies inside its
+    view, none cut at the right; then the point's tables again."""
+    from PySide6.QtCore import Qt
+
+    problems = []
+    for name, view in (("sketch", w.sketch), ("sections", w.sections)):
+        w.show_view(name)
+        wait_laid_out(qtbot, w, 100)
+        scene = view.getPlotItem() if hasattr(view, "getPlotItem") else view.ci
+        need = scene.effectiveSizeHint(Qt.MinimumSize).width()
+        if need > view.viewport().width() + 1:
+            problems.append(f"{name} tab: its drawing needs {need:.0f} px, the view has {view.viewport().width()}")
+    w.show_view("detail")
+    wait_laid_out(qtbot, w, 100)
+    return problems
+
+
 def settle(w, qtbot, width, height):
     """Resize and wait until the deferred fits (dock sizes, wrapped rows, the map's title and legend) have run."""
     w.resize(width, height)
@@ -109,6 +127,7 @@ def test_layout_is_readable_from_1280x720_to_1920x1080(make_window, qtbot, tmp_p
         share = plot_share(w)
         assert share >= min_plot_share(width, height), f"{width} x {height}: map plot {share:.3f} of the window"
         problems = layout_problems(w) + map_problems(w) + tab_problems(w)
+        problems += plot_tab_problems(w, qtbot)
         if not presentation:
             assert w.findings_dock.isVisible()
             rows = w.findings.topLevelItemCount()

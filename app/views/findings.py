@@ -12,7 +12,7 @@ import math
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTreeWidget, QTreeWidgetItem
 
-from ..units import Units, group_digits
+from ..units import US, Units, group_digits
 
 COLUMNS = ["Limit", "Rule", "Verdict", "Worst value", "Worst margin", "Where (worst)", "Failing share"]
 
@@ -24,12 +24,13 @@ def where_text(s, units: Units) -> str:
     return f"M0 {s.worst_mach:.3f}, {group_digits(alt)} {units.label('altitude')}, {s.worst_case}"
 
 
-def mechanisms(result) -> list[str]:
+def mechanisms(result, units: Units | None = None) -> list[str]:
     """Per finding of ``result.summary``: what drives that limit at its own worst point
-    (``engine_air.envelope.explain.finding_mechanism``)."""
+    (``engine_air.envelope.explain.finding_mechanism``), flows, areas and forces in ``units``."""
     from engine_air.envelope.explain import finding_mechanism
 
-    return [finding_mechanism(result.project, result, s)[2] for s in result.summary]
+    system = "us" if units is not None and units.system == US else "si"
+    return [finding_mechanism(result.project, result, s, system)[2] for s in result.summary]
 
 
 def finding_lines(summary, units: Units, mechanism_texts=None) -> list[str]:
@@ -37,11 +38,13 @@ def finding_lines(summary, units: Units, mechanism_texts=None) -> list[str]:
     finding, e.g. ``mechanisms(result)``) each line ends with its own mechanism."""
     lines = []
     for k, s in enumerate(summary):
-        verdict = "holds" if s.holds else "FAILS"
+        verdict = s.verdict
         value = "—" if not math.isfinite(s.worst_value) else f"{s.worst_value:.4g}"
         margin = "—" if not math.isfinite(s.worst_margin) else f"{s.worst_margin:+.4g}"
         line = (f"{s.label} [{s.limit_text}]: {verdict}; worst value {value} (margin {margin}) at "
                 f"{where_text(s, units)}; fails at {100 * s.failing_share:.1f} % of envelope points")
+        if not s.judged:
+            line = f"{s.label} [{s.limit_text}]: {verdict} (judged at no envelope point)"
         if mechanism_texts is not None and k < len(mechanism_texts) and mechanism_texts[k]:
             line += f"; mechanism: {mechanism_texts[k]}"
         lines.append(line)
@@ -73,13 +76,20 @@ class FindingsList(QTreeWidget):
         for k, s in enumerate(self._summary):
             value = "—" if not math.isfinite(s.worst_value) else f"{s.worst_value:.4g}"
             margin = "—" if not math.isfinite(s.worst_margin) else f"{s.worst_margin:+.4g}"
-            item = QTreeWidgetItem([s.label, s.limit_text, "holds" if s.holds else "FAILS", value, margin,
-                                    where_text(s, units), f"{100 * s.failing_share:.1f} %"])
+            share = f"{100 * s.failing_share:.1f} %" if s.judged else "—"
+            item = QTreeWidgetItem([s.label, s.limit_text, s.verdict, value, margin, where_text(s, units), share])
             item.setData(0, Qt.UserRole, k)
             if mechanism_texts is not None and k < len(mechanism_texts):
                 for col in range(1, len(COLUMNS)):
                     item.setToolTip(col, mechanism_texts[k])
-            if not s.holds:
+            if not s.judged:
+                f = item.font(2)
+                f.setItalic(True)
+                item.setFont(2, f)
+                item.setForeground(2, Qt.darkGray)
+                item.setToolTip(2, "Judged at no envelope point (outside its region, limits.region, or where the "
+                                   "check never applies): neither holding nor failing")
+            if s.fails:
                 f = item.font(2)
                 f.setBold(True)
                 item.setFont(2, f)

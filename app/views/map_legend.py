@@ -152,13 +152,13 @@ class MapLegend:
 
 
     def _fit_legend(self) -> None:
-        """Four legend columns when the width allows (few rows leave the plot its height); in a narrow
-        window the legend's type first shrinks (to 75 %), then it drops columns."""
+        """Five or four legend columns when the width allows (few rows leave the plot its height); in a
+        narrow window the legend's type first shrinks (to 85 %, then 75 %), then it drops columns."""
         if not getattr(self, "_legend_labels", None):
             return
         room = self.canvas.width() - 30
         full = 11 * self._scale
-        tries = [(4, full), (4, 0.85 * full), (4, 0.75 * full)] + [(n, 0.75 * full) for n in (3, 2, 1)]
+        tries = [(n, f * full) for f in (1.0, 0.85) for n in (5, 4)] + [(n, 0.75 * full) for n in (5, 4, 3, 2, 1)]
         before = getattr(self, "_legend_shown", None)
         moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
         for n, pt in tries:

@@ -368,7 +368,7 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         self.colour_bar.layout.setColumnFixedWidth(1, int(24 * s))
         self.colour_bar.setMinimumWidth(bar_width)
         self.colour_bar.setMaximumWidth(bar_width)
-        self.legend.setColumnCount(4)  # fewer when the map is narrow (``_fit_legend``)
+        self.legend.setColumnCount(5)  # fewer when the map is narrow (``_fit_legend``)
         self._span_limiting()
         self.plot.titleLabel.opts["size"] = f"{15 * s:.0f}pt"
         self.plot.titleLabel.opts["color"] = "#000"

@@ -5,8 +5,8 @@ A design review reads schedules and margins as lines; these two plots give them 
 cuts are ``engine_air.outputs.sections.cut`` (the review pack draws the same arrays), so a cut never disagrees
 with the map.
 
-The two plots sit one above the other when the view is taller than wide (the window's "Sections" tab) and side
-by side otherwise; text is black, at least 10 pt. ``export(path)`` writes them as PNG or SVG at
+The two plots sit one above the other (the window's "Sections" tab) unless the view is much wider than high
+(then side by side); text is black, at least 10 pt. ``export(path)`` writes them as PNG or SVG at
 ``EXPORT_SIZE`` (side by side, 1400 x 560 px), drawn afresh at that size so no axis label is cut, whatever
 the size of the view on screen.
 """
@@ -103,7 +103,7 @@ class SectionPlots(pg.GraphicsLayoutWidget):
 
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
         if getattr(self, "_fixed_stacking", False) is None:
-            self._place(self.height() > 0.9 * self.width())
+            self._place(self.height() > 0.6 * self.width())  # a tab in the right column: one above the other
         super().resizeEvent(event)
         QTimer.singleShot(0, self._fit_labels)
 
@@ -267,20 +267,19 @@ class SectionPlots(pg.GraphicsLayoutWidget):
             page._fit_labels()
         return page
 
-    def export(self, path: str, size: tuple[int, int] = EXPORT_SIZE) -> None:
-        """Write both plots side by side to ``path`` (PNG, or SVG by the file's ending) at ``size`` pixels.
+    def export(self, path: str, inputs=(), size: tuple[int, int] = EXPORT_SIZE) -> None:
+        """Write both plots side by side to ``path`` (PNG, or SVG by the file's ending) at ``size`` pixels, as
+        the map is written: whole or not at all, never over one of ``inputs`` (``app.exports``).
 
         The plots are drawn again in an off-screen view of that size (``export_page``), so the file never
         depends on (or clips to) the size of the tab on screen."""
-        from ..exports import write_graphics_svg
+        from ..exports import write_graphics_png, write_graphics_svg
 
         page = self.export_page(size)
         try:
             if str(path).lower().endswith(".svg"):
-                write_graphics_svg(page, path, "Sections")
+                write_graphics_svg(page, path, "Sections", inputs)
                 return
-            exporter = pg.exporters.ImageExporter(page.ci)
-            exporter.parameters()["width"] = size[0]
-            exporter.export(str(path))
+            write_graphics_png(page, path, inputs)
         finally:
             page.deleteLater()

@@ -32,39 +32,10 @@ COLUMN_MAX_SHARE = 0.42
 EDITOR_MAX_SHARE = 0.56  # the editors' widest tables (schedule, engine ratings) may take more while editing
 PLOT_SHARE = 0.36  # the sketch's and the sections' column
 FINDINGS_MAX_SHARE = 0.28
-FINDINGS_MAX_SHARE_SHORT = 0.20
+FINDINGS_MAX_SHARE_SHORT = 0.18  # four rows and the header in a 720 px window; more rows scroll
 SHORT_WINDOW = 800
 FINDINGS_MIN_ROWS = 4  # shown without scrolling whenever the findings have that many
 TAB_TITLES = {"detail": "Selected point", "sketch": "Inlet", "sections": "Sections", "editor": "Edit project"}
-
-
-def style_hosted_plot(plot_widget, scale: float = 1.0) -> None:
-    """Black axis text in a readable size for a pyqtgraph plot this window hosts (the inlet sketch); a view
-    that is not a pyqtgraph plot is left as it draws itself."""
-    import pyqtgraph as pg
-    from PySide6.QtGui import QFont
-
-    if not hasattr(plot_widget, "getPlotItem"):
-        return
-    font = QFont()
-    font.setPointSizeF(10 * scale)
-    item = plot_widget.getPlotItem()
-    for name in ("left", "bottom"):
-        axis = item.getAxis(name)
-        axis.setStyle(tickFont=font)
-        axis.setTextPen(pg.mkPen("k"))
-        axis.setPen(pg.mkPen("k"))
-        axis.labelStyle = {"font-size": f"{11 * scale:.0f}pt", "color": "#000"}
-        axis.setLabel(axis.labelText, units=axis.labelUnits)
-    item.titleLabel.opts["color"] = "#000"
-    item.titleLabel.opts["size"] = f"{11 * scale:.0f}pt"
-    legend = getattr(plot_widget, "legend", None) or item.legend
-    if legend is not None:  # entries made from now on: black, 10 pt, two columns (the column's width)
-        legend.setColumnCount(2)
-        legend.opts["labelTextColor"] = pg.mkColor("k")
-        legend.opts["labelTextSize"] = f"{10 * scale:.0f}pt"
-        for _sample, label in legend.items:
-            label.setText(label.text, size=legend.opts["labelTextSize"], color="k")
 
 
 class WindowLayout:
@@ -75,8 +46,7 @@ class WindowLayout:
         self.setCorner(Qt.BottomRightCorner, Qt.BottomDockWidgetArea)
         self.setTabPosition(Qt.RightDockWidgetArea, QTabWidget.North)
         self.detail = DetailPanel()
-        self.sketch = InletSketchView()
-        style_hosted_plot(self.sketch)
+        self.sketch = InletSketchView()  # it draws itself readably (app.views.inlet_sketch_view); hosted here
         self.sections = SectionPlots()
         self.editors = ProjectEditors()
         self.detail_dock = self._dock("detail", "detailDock", self.detail)
@@ -119,11 +89,12 @@ class WindowLayout:
         if name in ("sketch", "sections"):
             self.point_views.flush(name)
 
-    def export_sections(self, path) -> None:
-        """Write the sections through the selected point (PNG or SVG by the ending), drawn for the window's
-        present state first: behind its tab the view may not have been drawn for the newest result."""
+    def export_sections(self, path, inputs=()) -> None:
+        """Write the sections through the selected point (PNG or SVG by the ending; never over one of
+        ``inputs``), drawn for the window's present state first: behind its tab the view may not have been
+        drawn for the newest result."""
         self._draw_sections()
-        self.sections.export(str(path))
+        self.sections.export(str(path), inputs)
 
     def _size_docks(self) -> None:
         """The right column's width and the findings' height for the window's present size."""
@@ -147,13 +118,23 @@ class WindowLayout:
         elif shown == "detail":
             chrome = max(0, self.detail_dock.width() - self.detail.width())
             want = max(int(COLUMN_MIN_SHARE * w), min(self.detail.needed_width() + chrome, int(COLUMN_MAX_SHARE * w)))
-        else:
-            want = int(PLOT_SHARE * w)
+        else:  # the inlet, the sections: their share, or the least width their drawing lays out in
+            want = max(int(PLOT_SHARE * w), min(self._plot_minimum_width(shown), int(EDITOR_MAX_SHARE * w)))
         dock = self.view_docks[shown]
         if grow_only and dock.width() >= want:
             return
         if abs(dock.width() - want) > 2:
             self.resizeDocks([dock], [want], Qt.Horizontal)
+
+    def _plot_minimum_width(self, name: str) -> int:
+        """The least width of the pyqtgraph scene shown in tab ``name`` (its axes, legend and plot), plus the
+        dock's frame: narrower, the scene would be cut at the right."""
+        view = self.sketch if name == "sketch" else self.sections
+        scene = view.getPlotItem() if hasattr(view, "getPlotItem") else getattr(view, "ci", None)
+        if scene is None:
+            return 0
+        chrome = max(0, self.view_docks[name].width() - view.width())
+        return int(scene.effectiveSizeHint(Qt.MinimumSize).width()) + chrome + 4
 
     def _fit_findings_dock(self, force: bool = False) -> None:
         """The findings as high as their rows (at least ``FINDINGS_MIN_ROWS``), at most ``FINDINGS_MAX_SHARE``

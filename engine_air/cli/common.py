@@ -22,9 +22,24 @@ class UsageError(Exception):
     """Input that is unusable for a reason other than the project file's content."""
 
 
+def quiet_stdout() -> None:
+    """The reader of stdout has gone (``engine-air point ... | head``): send the rest of the output nowhere, so
+    that neither this write nor the flush at exit reports a broken pipe; the command runs to its own exit code."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError):  # stdout is no real file (a test's capture): nothing to redirect
+        pass
+
+
 def out(text: str = "") -> None:
-    """Print one line on stdout (the text is built by the command; names in it must be ``name()``-d)."""
-    print(text)
+    """Print one line on stdout (the text is built by the command; names in it must be ``name()``-d). A reader
+    that stopped reading (a closed pipe) ends the output quietly, as Unix tools do."""
+    try:
+        print(text, flush=True)
+    except BrokenPipeError:
+        quiet_stdout()
 
 
 def err(text: str) -> None:
@@ -49,10 +64,12 @@ def check_input_path(path, option: str = "project") -> None:
                          "(or use a link with a UTF-8 name)")
 
 
-def check_output_path(path, option: str) -> None:
-    """Refuse, before any work, an output file that cannot be written: non-UTF-8 name, a folder, a missing or
-    read-only parent folder."""
+def check_output_path(path, option: str, inputs=()) -> None:
+    """Refuse, before any work, an output file that cannot be written: non-UTF-8 name, one of the run's
+    ``inputs`` (links followed: ``engine_air.outputs.writer.check_not_input``), a folder, a missing or read-only
+    parent folder."""
     check_input_path(path, option)
+    check_not_inputs(path, option, inputs)
     text = os.fsdecode(os.fspath(path))
     if not text:
         raise UsageError(f"{option}: an empty file name")
@@ -63,6 +80,16 @@ def check_output_path(path, option: str) -> None:
         raise UsageError(f"{option} {safe_path(text)}: the folder {safe_path(parent)} does not exist")
     if not os.access(parent, os.W_OK) or (os.path.exists(text) and not os.access(text, os.W_OK)):
         raise UsageError(f"{option} {safe_path(text)}: cannot write there (permission denied)")
+
+
+def check_not_inputs(path, option: str, inputs=(), folder: bool = False) -> None:
+    """UsageError when the output ``path`` is (or, for a folder, holds) one of the run's ``inputs``."""
+    from engine_air.outputs.writer import OutputIsInputError, check_not_input
+
+    try:
+        check_not_input(path, inputs, option=option, folder=folder)
+    except OutputIsInputError as exc:
+        raise UsageError(safe_text(str(exc))) from None
 
 
 def finite(value: float | None, option: str) -> None:
@@ -126,5 +153,5 @@ def write_error(path, what: str, exc: OSError) -> UsageError:
 
 
 __all__ = ["EXIT_FAILS", "EXIT_HOLDS", "EXIT_NOT_JUDGED", "EXIT_UNUSABLE", "FT", "UsageError", "cases",
-           "check_input_path", "check_output_path", "err", "finite", "fmt", "load", "name", "out", "path_text",
-           "progress_printer", "warn", "write_error"]
+           "check_input_path", "check_not_inputs", "check_output_path", "err", "finite", "fmt", "load", "name", "out",
+           "path_text", "progress_printer", "quiet_stdout", "warn", "write_error"]

@@ -177,18 +177,25 @@ def write_csv(table: pa.Table, path) -> None:
             pacsv.write_csv(table, fh, pacsv.WriteOptions(include_header=False, quoting_style="needed"))
 
 
-def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv") -> int:
-    """Write ``columns`` to ``path`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows."""
-    table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
-    path = str(Path(path))
-    if fmt == "csv":
-        write_csv(table, path)
-    elif fmt == "parquet":
-        import pyarrow.parquet as pq
+def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv", inputs=()) -> int:
+    """Write ``columns`` to ``path`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows.
 
-        pq.write_table(table, path)
-    else:
+    Through the one output writer (``engine_air.outputs.writer.output_path``): ``OutputIsInputError`` when
+    ``path`` is one of ``inputs`` (links followed); the table goes to a temporary file renamed over ``path`` when
+    complete, so a failed write (a full disk) leaves the old file as it was and no partial file.
+    """
+    from engine_air.outputs.writer import output_path
+
+    if fmt not in ("csv", "parquet"):
         raise ValueError(f"unknown table format {fmt!r}: csv or parquet")
+    table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
+    with output_path(str(Path(path)), inputs) as tmp:
+        if fmt == "csv":
+            write_csv(table, tmp)
+        else:
+            import pyarrow.parquet as pq
+
+            pq.write_table(table, tmp)
     return table.num_rows
 
 
@@ -259,9 +266,9 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
     return pa.concat_tables(parts)
 
 
-def write_point_table(result, path, fmt: str = "csv") -> int:
-    """``point_table(result)`` written to ``path`` as CSV or Parquet; returns the number of rows."""
-    return write_table(point_table(result), path, fmt)
+def write_point_table(result, path, fmt: str = "csv", inputs=()) -> int:
+    """``point_table(result)`` written to ``path`` as CSV or Parquet (``write_table``); returns the number of rows."""
+    return write_table(point_table(result), path, fmt, inputs)
 
 
 __all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns", "to_arrow",
