@@ -117,6 +117,7 @@ class MapLegend:
             self._span_limiting()
             self._legend_labels = [label for _sample, label in self.legend.items]
             self._legend_shown = None
+            self._legend_fit_key = None
         self._legend_texts = self._legend_texts[:5] + [t for _k, t in wanted]
         self.legend_entries = list(self._legend_texts)
 
@@ -139,7 +140,6 @@ class MapLegend:
         self.legend.updateSize()
 
     def _update_legend_text(self) -> None:
-        self._legend_shown = None
         self._fit_legend()
 
     def _set_legend_text(self, pt: float) -> None:
@@ -157,6 +157,10 @@ class MapLegend:
         if not getattr(self, "_legend_labels", None):
             return
         room = self.canvas.width() - 30
+        key = (tuple(self._legend_texts), room, self._scale)
+        if key == getattr(self, "_legend_fit_key", None):
+            return  # the same texts in the same room: laid out already (a new result must not re-lay it)
+        self._legend_fit_key = key
         full = 11 * self._scale
         tries = [(n, f * full) for f in (1.0, 0.85) for n in (5, 4)] + [(n, 0.75 * full) for n in (5, 4, 3, 2, 1)]
         before = getattr(self, "_legend_shown", None)

@@ -370,6 +370,7 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         self.colour_bar.setMaximumWidth(bar_width)
         self.legend.setColumnCount(5)  # fewer when the map is narrow (``_fit_legend``)
         self._span_limiting()
+        self._legend_fit_key = None
         self.plot.titleLabel.opts["size"] = f"{15 * s:.0f}pt"
         self.plot.titleLabel.opts["color"] = "#000"
         if hasattr(self, "_legend_labels"):
