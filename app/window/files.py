@@ -222,8 +222,8 @@ class FileActions:
             "png": lambda: exports.write_map_png(self.map, path, inputs=inputs),
             "svg": lambda: exports.write_map_svg(self.map, path, inputs),
             "csv": lambda: exports.write_grid_csv(self.result, path, inputs),
-            "sections-png": lambda: self.sections.export(str(path), inputs),
-            "sections-svg": lambda: self.sections.export(str(path), inputs),
+            "sections-png": lambda: self.export_sections(path, inputs),
+            "sections-svg": lambda: self.export_sections(path, inputs),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
                                                        self.document.display_name, inputs),
         }
