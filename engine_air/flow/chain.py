@@ -91,11 +91,24 @@ def run_chain(project: Project, case: Case, mach, altitude_m, demand=None, *,
         drag = measured_drag(comp, fs, thr, drag)
     led = ledger(rating, inlet, fs, thr, drag)
     points = assemble(fs, dem, fc, comp, cap, thr, drag, led)
+    if case.angle_of_attack_deg is not None or case.sideslip_deg is not None:  # the case's incidence (§17)
+        points = _with_incidence(points, case, fs)
     if measured:
         from engine_air.flow.measured import measured_fields
 
-        points = measured_fields(points, comp)
+        points = measured_fields(points, comp, rating)
     return points
+
+
+def _with_incidence(points: OperatingPoints, case: Case, fs: FreeStream) -> OperatingPoints:
+    """The points with the case's angle of attack and sideslip at each flight Mach number (degrees)."""
+    from dataclasses import replace
+
+    from engine_air.project.model import incidence_at
+
+    shape = np.shape(points.flags)
+    return replace(points, angle_of_attack_deg=lean(incidence_at(case.angle_of_attack_deg, fs.mach), shape),
+                   sideslip_deg=lean(incidence_at(case.sideslip_deg, fs.mach), shape))
 
 
 def characteristic(project: Project, case: Case, mach, altitude_m, corrected_flow_kg_s,

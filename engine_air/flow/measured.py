@@ -96,9 +96,10 @@ def measured_drag(comp: Compression, fs, thr, drag):
                                additive_drag_coefficient=np.where(given, coefficient, drag.additive_drag_coefficient))
 
 
-def measured_fields(points, comp: Compression):
+def measured_fields(points, comp: Compression, rating=None):
     """The assembled points with the data's own fields: where they decide, their stability fraction, the
-    incidence, and DC(60) and the loss of surge margin from the table's columns (None when it has none)."""
+    incidence, and DC(60), the loss of surge margin and (with the rating's stack-up) the remaining surge margin
+    from the table's columns (None when it has none)."""
     m = comp.measured
     shape = np.shape(points.flags)
     values = {"from_data": np.broadcast_to(m.used, shape),
@@ -109,4 +110,8 @@ def measured_fields(points, comp: Compression):
         column = column_at(m.located, name, m.fraction)
         if column is not None:
             values[name] = np.broadcast_to(np.where(m.used, column, np.nan), shape)
+    stability = getattr(rating, "stability", None)
+    if "surge_margin_loss" in values and stability is not None:  # the stack-up of method §18
+        other = sum(v for _name, v in stability.other_losses)
+        values["remaining_surge_margin"] = stability.available_surge_margin - values["surge_margin_loss"] - other
     return dataclasses.replace(points, **values)

@@ -87,6 +87,7 @@ class OperatingPoints:
     data_stable_flow_fraction: np.ndarray | None = None  # the data's stability limit / MFR_crit (NaN: none)
     angle_of_attack_deg: np.ndarray | None = None  # the case's incidence at the point
     sideslip_deg: np.ndarray | None = None
+    remaining_surge_margin: np.ndarray | None = None  # available - ΔPRS - other items (method §18), from data
 
     # quantities computed when read (the same relations, in the same order, as the chain's stages)
     @property
