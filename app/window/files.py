@@ -197,7 +197,8 @@ class FileActions:
     # -- export --------------------------------------------------------------------
     def input_files(self) -> tuple:
         """Every file this window reads: an export may never be written over one of them."""
-        return tuple(p for p in (self.document.path,) if p is not None)
+        table = getattr(getattr(self.document.project, "characteristics", None), "table", None)
+        return tuple(p for p in (self.document.path, None if table is None else table.path) if p is not None)
 
     def _export_dialog(self, kind: str) -> None:
         if self.result is None:

@@ -19,7 +19,7 @@ import argparse
 import sys
 
 from engine_air import __version__
-from engine_air.cli import check, compare, distortion, maps, pack, point, size, sweep
+from engine_air.cli import calibrate, characteristic, check, compare, distortion, maps, pack, point, size, sweep
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err,
                                    quiet_stdout)
 from engine_air.cli.maps import write_map_csv
@@ -48,7 +48,7 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--version", action="version", version=f"engine-air {__version__}")
     sub = p.add_subparsers(dest="command", required=True)
-    for module in (check, maps, point, size, compare, sweep, pack, distortion):
+    for module in (check, maps, point, characteristic, calibrate, size, compare, sweep, pack, distortion):
         module.add_parser(sub)
     return p
 
