@@ -5,17 +5,19 @@
   pulled out as its own window (the float button in its title bar, or a double click on the title) for a larger
   view on demand, and put back the same way. View → "Show …" (Alt+1…4) raises a tab.
 - Width: the column is as wide as the shown tab needs (the point's tables, the editors' tables), between
-  ``COLUMN_MIN_SHARE`` and ``COLUMN_MAX_SHARE`` of the window's width (``EDITOR_MAX_SHARE`` while editing), so
-  the map keeps the rest.
+  ``COLUMN_MIN_SHARE`` and ``COLUMN_MAX_SHARE`` of the window's width (``EDITOR_MAX_SHARE`` while editing in
+  a large window), so the map keeps the rest.
 - Bottom: the findings across the whole width (their seven columns need it), as high as their rows up to
-  ``FINDINGS_MAX_SHARE`` of the window's height (``FINDINGS_MAX_SHARE_SHORT`` in a window under
-  ``SHORT_WINDOW`` px high, where the map needs it more); more rows scroll.
+  ``FINDINGS_MAX_SHARE`` of the window's height (``FINDINGS_ROWS_SHORT`` rows, at most
+  ``FINDINGS_MAX_SHARE_SHORT``, in a window under ``SHORT_WINDOW`` px high, where the map needs it more); more
+  rows scroll.
 - Presentation mode gives the room to the map: the right column is put away (View → "Point panels", F6, or the
   toolbar's button brings it back), the findings become a strip of ``PRESENTATION_FINDINGS_ROWS`` rows without
   a title bar (more rows scroll), the menu bar and the status bar are hidden (every action keeps its key; the
   toolbar has "Presentation" and "Point panels"). Everything comes back as it was afterwards.
-- In a small window (under ``SMALL_WINDOW_WIDTH`` px wide) the column is held to ``COLUMN_SHARE_SMALL`` of the
-  width, ``EDITOR_SHARE_SMALL`` while editing (the editors' widest tables then scroll down, never sideways).
+- In a window under ``SMALL_WINDOW_WIDTH`` px wide (a 1280 x 720 projector) the editors keep to
+  ``COLUMN_MAX_SHARE``: their widest tables (schedule, engine ratings) scroll sideways inside the tab rather than
+  take the map's width.
 
 ``WindowLayout`` is a part of ``MainWindow``; it builds the docks and keeps their sizes.
 """
@@ -34,6 +36,7 @@ from ..editors import ProjectEditors
 COLUMN_MIN_SHARE = 0.30
 COLUMN_MAX_SHARE = 0.42
 EDITOR_MAX_SHARE = 0.56  # the editors' widest tables (schedule, engine ratings) may take more while editing
+SMALL_WINDOW_WIDTH = 1500  # narrower: the editors keep COLUMN_MAX_SHARE and their widest tables scroll sideways
 PLOT_SHARE = 0.36  # the sketch's and the sections' column
 FINDINGS_MAX_SHARE = 0.28
 FINDINGS_MAX_SHARE_SHORT = 0.18  # four rows and the header in a 720 px window; more rows scroll
@@ -122,7 +125,13 @@ class WindowLayout:
         if shown == "editor":
             bar = self.editor_dock.widget().verticalScrollBar().sizeHint().width()
             need = self.editors.minimumSizeHint().width() + bar + 8
-            want = max(int(COLUMN_MIN_SHARE * w), min(need, int(EDITOR_MAX_SHARE * w)))
+            widest = COLUMN_MAX_SHARE if w < SMALL_WINDOW_WIDTH else EDITOR_MAX_SHARE  # beyond: it scrolls
+            want = max(int(COLUMN_MIN_SHARE * w), min(need, int(widest * w)))
+            # narrower than their widest table, the editors keep the width it needs (their rows wrapped for
+            # it) and scroll sideways, instead of squeezing every tab's columns
+            floor = need if want < need else 0
+            if self.editors.minimumWidth() != floor:
+                self.editors.setMinimumWidth(floor)
         elif shown == "detail":
             chrome = max(0, self.detail_dock.width() - self.detail.width())
             want = max(int(COLUMN_MIN_SHARE * w), min(self.detail.needed_width() + chrome, int(COLUMN_MAX_SHARE * w)))
