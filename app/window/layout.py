@@ -15,6 +15,8 @@
   toolbar's button brings it back), the findings become a strip of ``PRESENTATION_FINDINGS_ROWS`` rows without
   a title bar (more rows scroll), the menu bar and the status bar are hidden (every action keeps its key; the
   toolbar has "Presentation" and "Point panels"). Everything comes back as it was afterwards.
+- In presentation mode and in a window under ``SHORT_WINDOW`` px high the map's hover readout has no row of its
+  own: it is shown over the foot of the map while the pointer is on the plot.
 - In a window under ``SMALL_WINDOW_WIDTH`` px wide (a 1280 x 720 projector) the editors keep to
   ``COLUMN_MAX_SHARE``: their widest tables (schedule, engine ratings) scroll sideways inside the tab rather than
   take the map's width.
@@ -108,7 +110,8 @@ class WindowLayout:
         self.sections.export(str(path), inputs)
 
     def _size_docks(self) -> None:
-        """The right column's width and the findings' height for the window's present size."""
+        """The right column's width, the findings' height and the map's readout for the window's present size."""
+        self.map.set_readout_over_map(self.presentation or self.height() < SHORT_WINDOW)
         self._fit_detail_dock()
         self._fit_findings_dock(force=True)
 
@@ -207,6 +210,8 @@ class WindowLayout:
                 dock.hide()
         self._sync_panels_action()
         QTimer.singleShot(0, self._size_docks)
+        if on:  # the point's tables were laid out while put away (maybe in another type): wrap their rows again
+            QTimer.singleShot(0, self.detail.refresh)
 
     def _sync_panels_action(self) -> None:
         action = getattr(self, "panels_action", None)
