@@ -130,6 +130,8 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self.document.stateChanged.connect(self._sync_recovery)
         self.recovery.reported.connect(self._on_recovery_report)
 
+        self.editors.project_path = self.document.path
+        self.document.stateChanged.connect(lambda: setattr(self.editors, "project_path", self.document.path))
         self.editors.set_project(self.document.project)
         self._update_title()
         self.recompute()
