@@ -433,7 +433,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         case = analysis.case_at(self.result, self.current_case(), (i, j))
         mach, altitude = float(self.result.mach[j]), float(self.result.altitude_m[i])
         self.characteristic.request(self.result.project, case, mach, altitude,
-                                    f"M0 = {mach:.2f} and neighbours, case “{case}”")
+                                    f"M0 = {mach:.2f} and neighbours<br>case “{case}”")
 
     def _draw_sections(self) -> None:
         """The cuts through the selected point as the window shows it now."""

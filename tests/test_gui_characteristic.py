@@ -86,11 +86,12 @@ def test_tab_draws_data_at_a_tested_mach_and_the_model_elsewhere(make_window, qt
     # stability boundary: a dashed vertical line where the curve judges one
     lines = [it for it in w.characteristic.getPlotItem().items if isinstance(it, pg.InfiniteLine)]
     assert len(lines) == sum(c.stability_limit_mass_flow_ratio is not None for c in shown["curves"])
-    # each case's operating point labelled with its case names (at the selected Mach)
+    # each case's operating points: a marker of their own, named in the legend
     names = {p["case"] for p in middle.operating_points if p["mass_flow_ratio"] is not None}
-    assert names and names <= set(" / ".join(w.characteristic.labels).split(" / "))
     legend = [label.text for _sample, label in w.characteristic.legend.items]
-    assert any("measured" in t for t in legend) and any("model" in t for t in legend)
+    assert names and all(f"case {n}" in legend for n in names)
+    assert "M0 1.50 (measured)" in legend and any("model" in t for t in legend)
+    assert "tested points of the table" in legend  # the table's rows at 1.5 as open circles
 
 
 def test_data_curve_passes_through_the_measured_rows_at_a_tested_mach(make_window, qtbot):

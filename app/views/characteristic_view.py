@@ -3,8 +3,9 @@ ratio at the point's Mach number and its neighbours (M0 − 0.2, M0, M0 + 0.2 wi
 
 Where a characteristics table covers the condition the curve drawn is the data's (solid) with the model's dotted
 beside it; elsewhere the model's (solid). The critical point is a filled circle, the stability (buzz) boundary a
-dashed vertical line where it is judged, each case's operating point a diamond labelled with its case names, and
-the table's measured rows at that Mach (the case's incidence) open circles. The axes are dimensionless.
+dashed vertical line where it is judged, each case's operating point a marker in the Mach's colour, and
+the table's measured rows at that Mach (the case's incidence) open circles; each case's operating points have a
+marker shape of their own, named in the legend (labels beside the markers overlapped where cases lie close). The axes are dimensionless.
 
 The curves come from ``engine_air.envelope.characteristic.characteristic_at``. One Mach costs tens of ms (the
 chain swept over 200 demands plus each case's operating point), more than the GUI thread may spend, so
@@ -22,6 +23,7 @@ from ..worker import Worker
 NEIGHBOUR_STEP = 0.2
 COLOURS = [(31, 95, 168), (200, 80, 30), (46, 139, 87), (122, 63, 160), (184, 134, 11), (68, 68, 68)]
 INK = (25, 25, 25)
+CASE_SYMBOLS = ["d", "t", "s", "star", "p", "h", "t1", "x"]
 EXPORT_SIZE = (1400, 900)
 
 
@@ -74,7 +76,7 @@ class CharacteristicView(pg.PlotWidget):
         item.setLabel("left", "total-pressure recovery p_t2/p_t0 (–)", color=INK)
         for side in ("bottom", "left"):
             item.getAxis(side).enableAutoSIPrefix(False)
-        self.legend = item.addLegend(offset=(10, -10), labelTextColor=INK, brush=pg.mkBrush(255, 255, 255, 220),
+        self.legend = item.addLegend(offset=(10, -10), labelTextColor=INK, labelTextSize="8pt", verSpacing=-4, brush=pg.mkBrush(255, 255, 255, 220),
                                      pen=pg.mkPen((150, 150, 150)))
         self.worker = Worker(self, threads=1, supersede=True)
         self.worker.finished.connect(self._on_finished)
@@ -84,6 +86,9 @@ class CharacteristicView(pg.PlotWidget):
         self._title = ""
         self.selected_mach: float | None = None
         self.labels: list[str] = []
+        self._symbols: dict[str, str] = {}
+        self._generics: dict = {}
+        self._entries: list = []
         self.clear_view()
 
     @property
@@ -132,44 +137,70 @@ class CharacteristicView(pg.PlotWidget):
         item.clear()
         self.legend.clear()
         self.message = ""
-        self.labels: list[str] = []  # the operating points' labels drawn (tests)
+        self.labels: list[str] = []  # the cases whose operating points are drawn, in legend order
+        self._symbols: dict[str, str] = {}
+        self._generics: dict = {}
+        self._entries: list = []
         middle = len(curves) // 2 if len(curves) == 3 else None  # the selected Mach (neighbours on both sides)
         if middle is None and curves and self.selected_mach is not None:
             middle = int(np.argmin([abs(c.mach - self.selected_mach) for c in curves]))
         for k, curve in enumerate(curves):
-            self._draw_one(item, curve, COLOURS[k % len(COLOURS)], (measured or [None] * len(curves))[k],
-                           labelled=(k == middle))
+            self._draw_one(item, curve, COLOURS[k % len(COLOURS)], (measured or [None] * len(curves))[k])
+        for k, curve in enumerate(curves):  # the markers last: on top, and their legend entries after the lines'
+            self._draw_points(item, curve, COLOURS[k % len(COLOURS)], large=(k == middle))
+        self._fill_legend()
         self.setTitle(title)
         item.enableAutoRange()
 
-    def _draw_one(self, item, curve, colour, rows, labelled: bool) -> None:
+    def _draw_one(self, item, curve, colour, rows) -> None:
         solid = pg.mkPen(colour, width=2.5)
-        item.plot(curve.mass_flow_ratio, curve.recovery, pen=solid, connect="finite",
-                  name=f"M0 {curve.mach:.2f} ({'measured' if curve.source == 'data' else 'model'})")
+        item.plot(curve.mass_flow_ratio, curve.recovery, pen=solid, connect="finite")
+        self._entries.append(({"pen": solid}, f"M0 {curve.mach:.2f} ({'measured' if curve.source == 'data' else 'model'})"))
         if curve.model_mass_flow_ratio is not None:
             item.plot(curve.model_mass_flow_ratio, curve.model_recovery, connect="finite",
-                      pen=pg.mkPen(colour, width=1.6, style=Qt.DotLine), name=f"M0 {curve.mach:.2f} model")
+                      pen=pg.mkPen(colour, width=1.6, style=Qt.DotLine))
+            self._generic("model", "the model beside the data (dotted)",
+                          pen=pg.mkPen(INK, width=1.6, style=Qt.DotLine))
         if np.isfinite(curve.critical_mass_flow_ratio) and np.isfinite(curve.critical_recovery):
             item.plot([curve.critical_mass_flow_ratio], [curve.critical_recovery], pen=None, symbol="o",
                       symbolSize=9, symbolBrush=pg.mkBrush(colour), symbolPen=pg.mkPen(INK, width=1))
+            self._generic("critical", "critical point", pen=None, symbol="o", symbolSize=9,
+                          symbolBrush=pg.mkBrush(INK), symbolPen=pg.mkPen(INK, width=1))
         if curve.stability_limit_mass_flow_ratio is not None:
             line = pg.InfiniteLine(curve.stability_limit_mass_flow_ratio, angle=90, movable=False,
                                    pen=pg.mkPen(colour, width=1.5, style=Qt.DashLine),
-                                   label="buzz limit", labelOpts={"position": 0.08, "color": colour, "rotateAxis": (1, 0)})
+                                   label="buzz limit", labelOpts={"position": 0.5, "color": colour, "rotateAxis": (1, 0)})
             item.addItem(line)
         if rows is not None:
             item.plot(rows["mass_flow_ratio"], rows["recovery"], pen=None, symbol="o", symbolSize=8,
-                      symbolBrush=None, symbolPen=pg.mkPen(colour, width=1.5), name=f"M0 {curve.mach:.2f} tested")
-        places = sorted(_label_points(curve.operating_points).items(), key=lambda kv: -kv[0][1])
-        for n, ((x, y), names) in enumerate(places):
-            item.plot([x], [y], pen=None, symbol="d", symbolSize=11, symbolBrush=pg.mkBrush(colour),
-                      symbolPen=pg.mkPen(INK, width=1.2),
-                      name=None if n or not labelled else f"M0 {curve.mach:.2f} operating points")
-            if labelled:  # the selected Mach's points only; the labels stacked downwards, left of the markers
-                text = pg.TextItem(" / ".join(names), color=colour, anchor=(1.05, -0.2 + 1.1 * n))
-                text.setPos(x, y)
-                item.addItem(text)
-                self.labels.append(" / ".join(names))
+                      symbolBrush=None, symbolPen=pg.mkPen(colour, width=1.5))
+            self._generic("tested", "tested points of the table", pen=None, symbol="o", symbolSize=8,
+                          symbolBrush=None, symbolPen=pg.mkPen(INK, width=1.5))
+
+    def _draw_points(self, item, curve, colour, large: bool) -> None:
+        for (x, y), names in _label_points(curve.operating_points).items():
+            for name in names[:1]:  # points at one place: the first case's symbol (the legend names each case)
+                item.plot([x], [y], pen=None, symbol=self._case_symbol(name), symbolSize=12 if large else 9,
+                          symbolBrush=pg.mkBrush(colour), symbolPen=pg.mkPen(INK, width=1.2))
+
+    def _generic(self, key: str, text: str, **style) -> None:
+        """A legend entry shared by every Mach (drawn in black), once."""
+        if key not in self._generics:
+            self._generics[key] = (style, text)
+
+    def _fill_legend(self) -> None:
+        """The legend in a fixed order: the Mach numbers' curves, what the marks mean, the cases' markers."""
+        shapes = [(dict(pen=None, symbol=self._symbols[n], symbolSize=11, symbolBrush=pg.mkBrush(230, 230, 230),
+                        symbolPen=pg.mkPen(INK, width=1.2)), f"case {n}") for n in self.labels]
+        for style, text in [*self._entries, *self._generics.values(), *shapes]:
+            self.legend.addItem(pg.PlotDataItem([np.nan], [np.nan], **style), text)
+
+    def _case_symbol(self, name: str) -> str:
+        """One marker shape per case, named in the legend once (in black: every Mach's points use it)."""
+        if name not in self.labels:
+            self.labels.append(name)
+            self._symbols[name] = CASE_SYMBOLS[(len(self.labels) - 1) % len(CASE_SYMBOLS)]
+        return self._symbols[name]
 
     # -- export ----------------------------------------------------------------------
     def export(self, path: str, inputs=(), size: tuple[int, int] = EXPORT_SIZE) -> None:
