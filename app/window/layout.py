@@ -1,9 +1,9 @@
 """The window's layout: the map in the middle, the selected point's views as tabs on the right, the findings below.
 
 - Right column: one tab per view of the selected point ("Selected point" tables, "Inlet" sketch, "Sections",
-  "Edit project"), each with the column's full height (they no longer share it three ways). Any tab can be
+  "Characteristic", "Edit project"), each with the column's full height (they no longer share it three ways). Any tab can be
   pulled out as its own window (the float button in its title bar, or a double click on the title) for a larger
-  view on demand, and put back the same way. View → "Show …" (Alt+1…4) raises a tab.
+  view on demand, and put back the same way. View → "Show …" (Alt+1…5) raises a tab.
 - Width: the column is as wide as the shown tab needs (the point's tables, the editors' tables), between
   ``COLUMN_MIN_SHARE`` and ``COLUMN_MAX_SHARE`` of the window's width (``EDITOR_MAX_SHARE`` while editing), so
   the map keeps the rest.
