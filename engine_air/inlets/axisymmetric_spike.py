@@ -39,9 +39,6 @@ import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import SHOCK_ON_LIP_MACH
-from engine_air.inlets.ramp_layout import terminal_spill_drag
-from engine_air.physics.conical import cone_solution, detachment_mach, solve_columns
-from engine_air.physics.detached_shock import detached_cone_capture_blend
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.project.model import Inlet
 from engine_air.project.schema_field import REQUIRED, Field
@@ -69,6 +66,8 @@ def spike_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
         return [(key, cones, "the second cone must be steeper than the first (it turns the flow further)")]
     if md is None:
         return [("inlet.shock_on_lip_mach", None, "required for an axisymmetric-spike inlet")]
+    from engine_air.physics.conical import cone_solution, detachment_mach  # the conical solver only where used
+
     first = cone_solution(md, cones[0])
     if first is None:
         return [(key, cones, f"the first cone's shock must stay attached at inlet.shock_on_lip_mach = {md:g}: "
@@ -88,6 +87,8 @@ def spike_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
 @lru_cache(maxsize=256)
 def _detached_values(cone: float, design_mach: float) -> tuple[float, float, float]:
     """(detachment Mach, MFR_max and pressure integral just attached) of the first cone, for the blend."""
+    from engine_air.physics.conical import cone_solution, detachment_mach
+
     m_det = detachment_mach(cone)
     lip_ray = cone_solution(design_mach, cone).wave_angle_deg
     at_det = cone_solution(m_det * (1.0 + 1e-7), cone)  # just attached
@@ -100,6 +101,9 @@ def _detached_values(cone: float, design_mach: float) -> tuple[float, float, flo
 def _column(m0: float, cone: float, design_mach: float) -> tuple[float, ...]:
     """The first cone at one flight Mach column: (wave angle rad, surface Mach, p_t ratio, p_c/p0, MFR_max,
     pressure integral); the first four NaN where the cone's shock is detached."""
+    from engine_air.physics.conical import cone_solution
+    from engine_air.physics.detached_shock import detached_cone_capture_blend
+
     first = cone_solution(m0, cone)
     if first is None:
         # detached first cone: normal shock at M0; capture and drag carried from the detachment point
@@ -127,6 +131,8 @@ class AxisymmetricSpikeInlet:
     def _columns(self, inlet: Inlet, flight_mach):
         """Per flight Mach: (M0, scalars, per-shock arrays); scalars = recovery ahead of the terminal shock,
         entry Mach (NaN: the first cone detached, M0), entry flow angle, detached, MFR_max, integral."""
+        from engine_air.physics.conical import solve_columns
+
         m0 = np.asarray(flight_mach, dtype=float)
         cones = tuple(float(c) for c in inlet.cone_half_angles_deg)
         n = len(cones)
@@ -186,6 +192,8 @@ class AxisymmetricSpikeInlet:
         )
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
+        from engine_air.inlets.ramp_layout import terminal_spill_drag
+
         m0, sc, _ = self._columns(inlet, state.flight_mach)
         recovery, entry, angle, integral = sc[0], np.where(np.isnan(sc[1]), m0, sc[1]), sc[2], sc[5]
         spill = terminal_spill_drag(m0, entry, recovery, angle, state.mass_flow_ratio, shocks.max_mass_flow_ratio)

@@ -44,10 +44,8 @@ import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import RAMP_ANGLES, SHOCK_ON_LIP_MACH, ramp_problems
-from engine_air.inlets.ramp_layout import ramp_pre_entry_drag, ramp_shock_system
 from engine_air.inlets.schedule import is_scheduled, scheduled
 from engine_air.physics.shocks import normal_shock, oblique_shock
-from engine_air.physics.starting import self_start_contraction, started_throat_mach
 from engine_air.project.model import Inlet
 from engine_air.project.schema_field import Field
 
@@ -116,6 +114,9 @@ def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
     >>> bool(st.can_run), bool(st.starts)
     (True, True)
     """
+    from engine_air.inlets.ramp_layout import ramp_shock_system  # the shock physics only where used
+    from engine_air.physics.starting import self_start_contraction, started_throat_mach
+
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -331,6 +332,8 @@ class MixedCompressionInlet:
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
         # the external ramps' pressure along the dividing stream line, and the spillage behind the normal shock
         # at the cowl entrance (unstarted, or started with excess air): method section 13
+        from engine_air.inlets.ramp_layout import ramp_pre_entry_drag
+
         return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:

@@ -52,10 +52,6 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy.integrate import cumulative_simpson, simpson, solve_ivp
-from scipy.interpolate import CubicSpline
-from scipy.optimize import minimize_scalar
-
 from engine_air.physics.constants import GAMMA
 
 _G1 = 0.5 * (GAMMA - 1.0)
@@ -102,6 +98,7 @@ def _normal_shock_pt(mn1: float) -> float:
 def _outward(theta_c: float, surface_mach: float, dense: bool = False):
     """Integrate from the cone surface outwards to the shock. Returns (M0, beta, solution) or None when the
     surface Mach number belongs to no free stream (past the hypersonic limit, or no shock before 90 deg)."""
+    from scipy.integrate import solve_ivp  # scipy only where a column is solved
     sol = solve_ivp(_rhs, (theta_c, 0.5 * math.pi - 1e-9), [_speed_from_mach(surface_mach), 0.0],
                     events=_shock_condition, rtol=_RTOL, atol=_ATOL, dense_output=dense)
     if not sol.t_events[0].size:
@@ -142,6 +139,9 @@ def _family(cone_deg: float) -> _Family:
     mcs, m0s = np.array(mcs), np.array(m0s)
     k = int(np.argmin(m0s))
     lo, hi = mcs[max(k - 1, 0)], mcs[min(k + 1, mcs.size - 1)]
+    from scipy.interpolate import CubicSpline
+    from scipy.optimize import minimize_scalar
+
     res = minimize_scalar(lambda mc: _outward(th, mc)[0], bounds=(lo, hi), method="bounded",
                           options={"xatol": 1e-6})  # M0 is flat there: M_det to ~1e-12
     m_det, mc_det = float(res.fun), float(res.x)
@@ -240,6 +240,8 @@ class ConeSolution:
             return 0.0, 1.0
         w = np.linspace(wl, wb, n)
         vr, vw = self._state(w)
+        from scipy.integrate import cumulative_simpson, simpson
+
         ln_r = cumulative_simpson(vr / vw, x=w, initial=0.0)
         s = (np.exp(ln_r) * np.sin(w) / math.sin(wl)) ** 2
         v2 = vr * vr + vw * vw
@@ -319,6 +321,8 @@ def _outward_batch(theta_c: float, surface_mach: np.ndarray, end: np.ndarray):
         return np.concatenate([np.where(live, vw, 0.0) * span, dvw * span])
 
     with np.errstate(all="ignore"):
+        from scipy.integrate import solve_ivp
+
         sol = solve_ivp(rhs, (0.0, 1.0), y0, rtol=_RTOL, atol=_ATOL, dense_output=True)
         if not sol.success:
             return None
