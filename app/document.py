@@ -19,6 +19,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, Signal
 
+from engine_air.project.fingerprint import file_fingerprint
 from engine_air.project.load import load_project
 from engine_air.project.save import save_project
 
@@ -39,6 +40,7 @@ class ProjectDocument(QObject):
         self._undo: list = []
         self._redo: list = []
         self._blank = project if path is None else None  # an untitled start nobody has edited yet
+        self._disk = _fingerprint(self._path)  # the file as opened or last saved: Save checks it is still so
 
     @property
     def project(self):
@@ -47,6 +49,11 @@ class ProjectDocument(QObject):
     @property
     def path(self) -> Path | None:
         return self._path
+
+    @property
+    def disk_fingerprint(self):
+        """The file's ``Fingerprint`` when it was opened or last saved (None: no file, or not known)."""
+        return self._disk
 
     @property
     def dirty(self) -> bool:
@@ -110,6 +117,7 @@ class ProjectDocument(QObject):
         self._path = None if path is None else Path(path)
         self._saved = project if saved else None
         self._blank = project if (path is None and not saved and not recovered) else None
+        self._disk = None  # a restored or new project: its file (if any) was not read here
         self._undo.clear()
         self._redo.clear()
         self.changed.emit(project)
@@ -117,19 +125,36 @@ class ProjectDocument(QObject):
 
     def open(self, path: str | Path) -> None:
         """Load ``path``; raises ``ProjectError`` and leaves the document unchanged on failure."""
+        disk = _fingerprint(path)  # before reading: a change in between shows as "changed on disk", never lost
         project = load_project(path)
         self.reset(project, Path(path).resolve(), saved=True)
+        self._disk = disk
 
-    def save(self, path: str | Path | None = None, overwrite_read_only: bool = False) -> Path:
+    def save(self, path: str | Path | None = None, overwrite_read_only: bool = False,
+             overwrite: bool = False) -> Path:
         """Save atomically to ``path`` (or the current file); raises ``ProjectSaveError``, keeping the edits.
 
         A read-only file is not replaced (``ProjectSaveError``) unless ``overwrite_read_only`` (the user was asked).
+        Saving to the document's own file checks first that the file is still the one opened or last saved:
+        ``FileChangedError`` (another window or program saved it since) unless ``overwrite``.
         """
         target = Path(path) if path is not None else self._path
         if target is None:
             raise ValueError("no file name given")
-        save_project(self._project, target, overwrite_read_only=overwrite_read_only)
+        own = self._path is not None and target.resolve() == self._path
+        self._disk = save_project(self._project, target, overwrite_read_only=overwrite_read_only,
+                                  expected=self._disk if own else None, overwrite=overwrite)
         self._path = target.resolve()
         self._saved = self._project
         self.stateChanged.emit()
         return self._path
+
+
+def _fingerprint(path):
+    """The file's fingerprint, or None (no path, no file, unreadable: nothing to compare against)."""
+    if path is None:
+        return None
+    try:
+        return file_fingerprint(path)
+    except OSError:
+        return None

@@ -458,7 +458,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         r = self.result
         if self._pending_selection == "worst":
             self._pending_selection = None
-            target = next((s for s in r.summary if not s.holds), r.summary[0] if r.summary else None)
+            target = next((s for s in r.summary if s.fails), r.summary[0] if r.summary else None)
             if target is not None and math.isfinite(target.worst_mach):
                 self.select_condition(target.worst_mach, target.worst_altitude_m)
                 return
@@ -493,6 +493,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self.units_combo.blockSignals(False)
         self.detail.set_units(self.units)
         self.editors.set_units(self.units)
+        self.sketch.set_units(self.units)
         if self.result is not None:
             self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
             self._redraw()

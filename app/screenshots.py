@@ -87,7 +87,7 @@ def _sample_shots(app, folder: Path, settings) -> list[Path]:
 
     out = []
     w = _open(app, "supersonic_two_ramp", settings)  # fails somewhere: least margin is its default map
-    worst = next(s for s in w.result.summary if not s.holds)
+    worst = next(s for s in w.result.summary if s.fails)
     w.select_condition(worst.worst_mach, worst.worst_altitude_m)
     _settle(app)
     path = folder / "least_margin_with_sketch.png"

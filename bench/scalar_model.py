@@ -25,9 +25,10 @@ choice as the package (so that the two can be compared point by point):
   each ramp shock plus the momentum balance of the spillage behind the terminal shock (method section 13);
   mixed compression: its external ramps' as for external-ramp;
 - mixed compression (method section 11): the started state of a point at M0 is found by stepping from Mach 1
-  to M0 every 0.0025 (then M0 itself): unstarted until a node self-starts (Kantrowitz), started while every
-  node can run started; a started point has the supersonic throat Mach as its throat Mach and no throat
-  choking; the throat area is read from the schedule (linear in M0, ends held).
+  to M0 every 0.0025 (then M0 itself): unstarted until a node self-starts (Kantrowitz limit on A_th/A_e, the
+  cowl entrance A_e from continuity at the shock-on-lip Mach), started while every node can run started; a
+  started point has the supersonic throat Mach (continuity of the captured flow) as its throat Mach and no
+  throat choking; the throat area is read from the schedule (linear in M0, ends held).
 """
 
 from __future__ import annotations
@@ -314,8 +315,24 @@ MIXED_STEP = 0.0025
 _MIXED_CACHE: dict = {}
 
 
+def entrance_over_capture(inlet):
+    """Cowl entrance over capture area A_e/A_c (method section 11): continuity at the shock-on-lip Mach M_d, every
+    ramp shock on the lip, the capture stream tube passing the entrance behind the last ramp shock:
+    A_e/A_c = (A/A*)(M_e,d) / ((A/A*)(M_d) pi_ramps(M_d))."""
+    m_d = float(inlet.shock_on_lip_mach)
+    m, pi = m_d, 1.0
+    for a in inlet.ramp_angles_deg:
+        _, m, pt = oblique_shock(m, math.radians(a))
+        pi *= pt
+    return area_ratio(m) / (area_ratio(m_d) * pi)
+
+
 def mixed_node(inlet, m0):
-    """Mixed compression at flight Mach m0: (can_run, starts, M_th, pi_ramps * pi_cowl, Kantrowitz limit)."""
+    """Mixed compression at flight Mach m0: (can_run, starts, M_th, pi_ramps * pi_cowl, Kantrowitz limit).
+
+    Started throat by continuity of the captured flow MFR_max rho0 V0 A_c at the total pressure behind the ramps
+    and the cowl shock: (A/A*)(M_th) = (A_th/A_c) pi_ramps pi_cowl (A/A*)(M0) / MFR_max, supersonic root;
+    self-starting when A_th/A_e reaches the Kantrowitz limit at the post-ramp Mach (method section 11)."""
     key = (inlet, m0)
     if key in _MIXED_CACHE:
         return _MIXED_CACHE[key]
@@ -333,12 +350,17 @@ def mixed_node(inlet, m0):
         result = (False, False, NAN, NAN, limit)
         cowl = oblique_shock(m, math.radians(sum(inlet.ramp_angles_deg))) if attached and m > 1.0 else None
         if cowl is not None and cowl[1] > 1.0:
-            c = throat_area(inlet, m0) / inlet.capture_area_m2
-            target = c * area_ratio(cowl[1])
+            a_th = throat_area(inlet, m0)
+            mfr_max = external_compression(inlet, m0)[1]
+            target = a_th / inlet.capture_area_m2 * pi * cowl[2] * area_ratio(m0) / mfr_max
             if target >= 1.0:
-                m_th = 1.0 if target == 1.0 else brentq(lambda x: area_ratio(x) - target, 1.0, cowl[1] + 1e-9,
+                top = 1.0
+                while area_ratio(top) < target:
+                    top *= 2.0
+                m_th = 1.0 if target == 1.0 else brentq(lambda x: area_ratio(x) - target, 1.0, top,
                                                          xtol=1e-15, rtol=8.9e-16, maxiter=200)
-                result = (True, c >= limit, m_th, pi * cowl[2], limit)
+                contraction = a_th / (entrance_over_capture(inlet) * inlet.capture_area_m2)
+                result = (True, contraction >= limit, m_th, pi * cowl[2], limit)
     _MIXED_CACHE[key] = result
     return result
 

@@ -18,6 +18,7 @@ Public API (the names below; everything else is reached through its package):
 Packages: ``physics`` (air and gas dynamics), ``inlets`` (one module per inlet type and the registry),
 ``flow`` (the match, airflow management, the thrust ledger), ``project`` (model, schema, files),
 ``envelope`` (grid, evaluation, checks, flags, ranking), ``studies`` (sizing, sweep, compare),
+``distortion`` (engine-face distortion from rake files, method §18),
 ``outputs`` (quantities, tables, pictures, review pack), ``cli``.
 """
 

@@ -41,7 +41,8 @@ RAMP = load_project(SAMPLES / "supersonic_two_ramp.toml")              # 8 + 7 d
 SMALL = load_project(SAMPLES / "undersized_business_jet.toml")         # pitot with a small throat
 MIXED = load_project(SAMPLES / "mixed_compression_throat_schedule.toml")  # mixed compression, throat schedule
 PROJECTS = {"pitot": PITOT, "ramp": RAMP, "small-throat": SMALL, "mixed": MIXED}
-NULL_UNLESS_MIXED = ("started", "self_start_contraction")  # interfaces: null unless mixed-compression
+NULL_UNLESS_MIXED = ("started", "self_start_contraction", "entrance_area_m2",  # interfaces: null unless
+                     "internal_contraction_ratio")  # mixed-compression (method §11)
 
 MACHS = np.array([0.0, 1e-9, 0.049, 0.05, 0.3, 0.8, 0.999999, 1.0, 1.0 + 1e-12, 1.0001, 1.01, 1.2, 1.35, 1.6,
                   2.0, 2.0 + 1e-9, 2.5, 3.0, 4.0, 5.0, 6.0])
@@ -578,5 +579,5 @@ def test_tiny_legal_limits_and_areas_give_flags_and_no_warnings(tmp_path):
         assert "face-choked" in record["flags"]
         for key, value in record.items():
             if value is None:
-                assert key in ("net_thrust_n", "installed_thrust_n", "installation_loss_fraction", "started",
-                               "self_start_contraction", "relative_tip_mach"), key
+                assert key in ("net_thrust_n", "installed_thrust_n", "installation_loss_fraction",
+                               "relative_tip_mach") + NULL_UNLESS_MIXED, key

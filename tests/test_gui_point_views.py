@@ -187,7 +187,11 @@ def test_ledger_rows_sum_to_the_installed_thrust(make_window):
     assert rec["value"] == pytest.approx(-f_n * rating.recovery_thrust_exchange * (1 - pi / ref), rel=1e-12)
     for key in ("ram_drag_n", "additive_drag_n", "spillage_drag_n", "bleed_drag_n", "bypass_drag_n"):
         assert any(r["key"] == key for r in rows)
-    # the take-off rating has no thrust table
+    # a rating without a thrust table (the sample's take-off rating, its table taken away)
+    p = w.result.project
+    no_table = replace(p.ratings[1], thrust_mach=None, thrust_altitude_m=None, net_thrust_n=None,
+                       thrust_reference_recovery=None, recovery_thrust_exchange=None)
+    w = make_window(sample("variable_geometry_fighter"), project=replace(p, ratings=(p.ratings[0], no_table)))
     w.set_case(w.result.cases[1].name)
     w.select_point(0, 1)
     texts = [w.detail.ledger.item(r, 1).text() for r in range(w.detail.ledger.rowCount())]

@@ -626,7 +626,8 @@ def _nones(record, prefix=""):
     for key, value in record.items():
         if key in ("checks", "flag_descriptions", "limiting"):
             continue
-        if key in ("started", "self_start_contraction") and record["started"] is None:
+        if key in ("started", "self_start_contraction", "entrance_area_m2", "internal_contraction_ratio") \
+                and record["started"] is None:
             continue  # null by contract unless the inlet is mixed-compression (interfaces, point JSON)
         if isinstance(value, dict):
             yield from _nones(value, prefix + key + ".")

@@ -20,6 +20,7 @@ from hypothesis import strategies as st
 
 import engine_air
 from engine_air.project import load as load_module
+from engine_air.project import project_rules as project_rules_module
 from engine_air import project as pf
 from engine_air.envelope.polygon import (
     envelope_mask,
@@ -414,7 +415,7 @@ def test_throat_equal_to_capture_is_allowed():
 def test_ramp_limits_at_edges():
     d = setpath(ramp_data(), "inlet.ramp_angles_deg", [25.0, 15.0])
     d["inlet"]["shock_on_lip_mach"] = 5
-    with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
+    with mock.patch.object(project_rules_module, "_check_design", lambda r, inlet: None):
         p = pf.project_from_dict(d)
     assert p.inlet.ramp_angles_deg == (25.0, 15.0) and p.inlet.shock_on_lip_mach == 5.0
 
@@ -520,11 +521,13 @@ def test_unknown_inlet_type_suggests_a_known_one(tmp_path):
     assert err.key == "inlet.type" and 'did you mean "external-ramp"?' in err.allowed
 
 
-def test_tip_mach_limit_without_tip_speed_warns():
+def test_tip_mach_limit_without_tip_speed_is_an_error():
+    # the limit would be judged nowhere (more cases in tests/test_limit_data.py)
     d = pitot_data()
     del d["engine"]["rating"][0]["fan_tip_speed_m_s"]
-    p = pf.project_from_dict(d)
-    assert any("limits.relative_tip_mach_max" in w for w in p.warnings)
+    with pytest.raises(ProjectError) as info:
+        pf.project_from_dict(d)
+    assert info.value.key == "limits.relative_tip_mach_max" and "judged nowhere" in info.value.allowed
 
 
 # -- whole-file problems -----------------------------------------------------------
@@ -831,7 +834,7 @@ def ratings(draw):
                      net_thrust_n=tuple(tuple(draw(st.lists(_fl(0.0, 1e7), min_size=len(mach), max_size=len(mach))))
                                         for _ in alt),
                      thrust_reference_recovery=draw(st.none() | _fl(0.0, 1.0) | st.just("mil-e-5008b")),
-                     recovery_thrust_exchange=draw(_opt(_fl(0.0, 10.0, False))))
+                     recovery_thrust_exchange=draw(_fl(0.0, 10.0, False)))  # a thrust table needs its X
     return draw(names), tuple(theta), tuple(flow), extra
 
 
@@ -884,6 +887,11 @@ def projects(draw):
     cases = tuple(Case(name=c, rating=draw(st.sampled_from([r.name for r in rating_objs])),
                        isa_offset_K=draw(_fl(-100.0, 100.0, False)), mach_range=draw(_opt(_range(0.0, 6.0))),
                        altitude_range_m=draw(_opt(_range(-5000.0, 84000.0)))) for c in case_names)
+    used = [r for r in rating_objs if any(c.rating == r.name for c in cases)]
+    if not any(r.fan_tip_speed_m_s is not None or r.corrected_tip_speed_m_s is not None for r in used):
+        limits = replace(limits, relative_tip_mach_max=None)  # a limit needs its data (engine_air.project.limit_data)
+    if not any(r.net_thrust_n is not None for r in used):
+        limits = replace(limits, installation_loss_max=None)
     return Project(limits=limits, inlet=inlet, ratings=rating_objs, envelope=draw(star_polygons()),
                    grid=Grid(mp, ap), cases=cases, title=draw(st.text(max_size=40)),
                    notes=draw(st.text(max_size=80)), format=1)
@@ -892,7 +900,7 @@ def projects(draw):
 @settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(projects())
 def test_random_projects_round_trip_exactly(project):
-    with mock.patch.object(load_module, "_check_design", lambda r, inlet: None):
+    with mock.patch.object(project_rules_module, "_check_design", lambda r, inlet: None):
         load_module.validate_project(project)
         assert pf.project_from_dict(pf.project_to_dict(copy.deepcopy(project))) == project
         assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
@@ -926,7 +934,8 @@ def full_data() -> dict:
              net_thrust_n=[[90000.0, 80000.0, 95000.0, 110000.0], [40000.0, 38000.0, 52000.0, 60000.0]],
              thrust_reference_recovery="mil-e-5008b", recovery_thrust_exchange=1.3)
     d["engine"]["rating"][1].update(fan_tip_speed_m_s=400.0, thrust_mach=[0.5], thrust_altitude_m=[0.0],
-                                    net_thrust_n=[[20000.0]], thrust_reference_recovery=0.97)
+                                    net_thrust_n=[[20000.0]], thrust_reference_recovery=0.97,
+                                    recovery_thrust_exchange=1.1)
     d["case"][0].update(mach_range=[0.0, 0.4], altitude_range_m=[0.0, 3000.0])
     return d
 

@@ -11,7 +11,8 @@ import numpy as np
 import pytest
 from pygasflow import isentropic_solver, normal_shockwave_solver
 
-from engine_air.physics.starting import isentropic_contraction_limit, self_start_contraction, started_throat_mach
+from engine_air.physics.starting import (isentropic_contraction_limit, self_start_contraction, started_throat_mach,
+                                         started_throat_mach_by_continuity)
 
 G = 1.4
 
@@ -34,6 +35,11 @@ def test_kantrowitz_limit_at_mach_2_from_naca_1135_table_values():
     # Kantrowitz & Donaldson: (A*/A)/pi_ns = (1/1.6875)/0.72087 = 0.8220.
     assert float(self_start_contraction(2.0)) == pytest.approx(0.8220, abs=5e-5)
     assert float(self_start_contraction(2.0)) == pytest.approx((1.0 / 1.6875) / 0.72087, rel=2e-5)
+    # the same from pygasflow's isentropic (A/A*) and normal-shock (p_t2/p_t1) solvers at M = 2
+    ars = isentropic_solver("m", 2.0, to_dict=True)["ars"]
+    tpr = normal_shockwave_solver("mu", 2.0, to_dict=True)["tpr"]
+    assert float(1.0 / ars / tpr) == pytest.approx(0.8220, abs=5e-5)
+    assert float(self_start_contraction(2.0)) == pytest.approx(float(1.0 / ars / tpr), rel=1e-10)
 
 
 def test_kantrowitz_curve_against_relations_worked_here_and_pygasflow():
@@ -84,3 +90,30 @@ def test_started_throat_mach_without_a_supersonic_root_is_nan():
     assert float(started_throat_mach(limit * 1.0001, m1)) == pytest.approx(1.0, abs=0.02)
     assert np.isnan(started_throat_mach(0.9, 0.8))  # subsonic entrance
     assert float(started_throat_mach(1.0, 2.0)) == pytest.approx(2.0, abs=1e-9)
+
+
+def test_started_throat_by_continuity_passes_the_captured_flow():
+    # (A/A*)(M_th) = (A_th/A_c) pi (A/A*)(M0) / MFR_max (method §11): the throat passes, at total pressure
+    # pi p_t0, the captured flow MFR_max rho0 V0 A_c, i.e. pi MFP(M_th) A_th = MFR_max MFP(M0) A_c
+    m0 = np.array([2.0, 2.5, 3.0, 3.0, 2.2])
+    c = np.array([0.65, 0.40, 0.30, 0.35, 0.60])
+    pi = np.array([0.97, 0.95, 0.90, 0.90, 0.99])
+    mfr = np.array([0.95, 1.0, 1.0, 1.0, 0.9])
+    m_th = started_throat_mach_by_continuity(c, m0, pi, mfr)
+    target = c * pi * area_ratio_by_hand(m0) / mfr
+    expected = isentropic_solver("crit_area_super", target, to_dict=True)["m"]  # pygasflow supersonic inverse
+    np.testing.assert_allclose(m_th, expected, rtol=1e-7)
+
+    def mfp(m):  # W sqrt(T_t)/(A p_t) over sqrt(g/R), NACA Report 1135 form
+        return m * (1.0 + 0.2 * m * m) ** -3.0
+
+    np.testing.assert_allclose(pi * mfp(m_th) * c, mfr * mfp(m0), rtol=1e-9)
+    assert np.all(m_th > 1.0)
+
+
+def test_started_throat_by_continuity_without_a_supersonic_root_is_nan():
+    # the captured flow does not fit the throat supersonically: (A/A*) < 1 has no root (M0 = 3: A/A* = 4.2346)
+    assert np.isnan(started_throat_mach_by_continuity(0.2, 3.0, 1.0, 1.0))  # 0.847 < 1
+    assert float(started_throat_mach_by_continuity(1.0 / 4.2346 * 1.0001, 3.0, 1.0, 1.0)) == pytest.approx(1.0, abs=0.02)
+    assert np.isnan(started_throat_mach_by_continuity(0.5, 0.9, 1.0, 1.0))  # subsonic flight
+    assert np.isnan(started_throat_mach_by_continuity(0.5, 2.0, np.nan, 1.0))  # no total pressure (detached)

@@ -21,6 +21,13 @@ from .common import colour_map, fmt, plain_axes, table_item, verdict_item
 from .task import TaskDialog
 
 
+def _verdict_cell(summary):
+    """holds / FAILS / not judged anywhere (a limit judged at no envelope point) / – (no such check)."""
+    if summary is not None and not summary.judged:
+        return table_item(summary.verdict)
+    return verdict_item(None if summary is None else summary.holds)
+
+
 class MapPlot(pg.GraphicsLayoutWidget):
     """One map: an image over Mach x altitude with a colour bar."""
 
@@ -143,9 +150,9 @@ class CompareDialog(TaskDialog):
         self.verdicts.setRowCount(len(rows))
         for r, row in enumerate(rows):
             self.verdicts.setItem(r, 0, table_item(row.label))
-            self.verdicts.setItem(r, 1, verdict_item(None if row.a is None else row.a.holds))
+            self.verdicts.setItem(r, 1, _verdict_cell(row.a))
             self.verdicts.setItem(r, 2, table_item(fmt(None if row.a is None else row.a.worst_margin), True))
-            self.verdicts.setItem(r, 3, verdict_item(None if row.b is None else row.b.holds))
+            self.verdicts.setItem(r, 3, _verdict_cell(row.b))
             self.verdicts.setItem(r, 4, table_item(fmt(None if row.b is None else row.b.worst_margin), True))
             self.verdicts.setItem(r, 5, table_item(row.change))
         extra = []

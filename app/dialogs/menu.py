@@ -7,6 +7,8 @@ from typing import Callable
 from PySide6.QtGui import QAction
 from PySide6.QtWidgets import QFileDialog, QMessageBox
 
+from engine_air.project.errors import ProjectError
+
 from .compare import CompareDialog
 from .review_pack import ReviewPackDialog
 from .sizing import SizingDialog
@@ -67,16 +69,56 @@ def add_design_menu(main_window, get_project: Callable[[], object]):
             return
         folder = QFileDialog.getExistingDirectory(main_window, "Write review pack into folder")
         if folder:
-            keep(ReviewPackDialog(p, folder, main_window))
+            inputs = main_window.input_files() if hasattr(main_window, "input_files") else ()
+            keep(ReviewPackDialog(p, folder, main_window, inputs=inputs))
+
+    def distortion():
+        p = project_or_warn()
+        if p is None:
+            return
+        path, _ = QFileDialog.getOpenFileName(main_window, "Open rake file", "",
+                                              "rake files (*.csv *.parquet *.pq);;All files (*)")
+        if path:
+            open_distortion(main_window, p, path, keep)
 
     for text, slot, tip in (
         ("Feasible range and optimum…", sizing, "Range of one design variable for which every limit holds"),
         ("Compare with project file…", compare, "This project against another on one grid"),
         ("Trade sweep…", trade, "Every combination of up to four design variables"),
         ("Write review pack…", pack, "HTML page with verdict, maps, findings and inputs"),
+        ("Engine-face distortion…", distortion, "Descriptors and surge-margin stack-up of a rake file (method §18)"),
     ):
         action = QAction(text, main_window)
         action.setStatusTip(tip)
         action.triggered.connect(slot)
         menu.addAction(action)
     return menu
+
+
+def open_distortion(main_window, project, path, keep=None):
+    """Read the rake file at ``path`` and open the distortion dialog; a bad file gets a message box and the
+    open project stays as it was. Returns the dialog, or None."""
+    from PySide6.QtCore import Qt
+    from PySide6.QtWidgets import QApplication
+
+    from .distortion import DistortionDialog, open_rakes
+
+    QApplication.setOverrideCursor(Qt.WaitCursor)
+    try:
+        assessment = open_rakes(path, project)
+    except (ProjectError, MemoryError) as exc:
+        QApplication.restoreOverrideCursor()
+        QMessageBox.warning(main_window, "Engine-face distortion", f"The rake file cannot be used:\n{exc}")
+        return None
+    except Exception as exc:  # noqa: BLE001 - never out of a slot
+        QApplication.restoreOverrideCursor()
+        QMessageBox.warning(main_window, "Engine-face distortion",
+                            f"The rake file cannot be used (internal error {type(exc).__name__}: {exc})")
+        return None
+    QApplication.restoreOverrideCursor()
+    dialog = DistortionDialog(project, assessment, main_window)
+    if keep is not None:
+        keep(dialog)
+    else:
+        dialog.show()
+    return dialog

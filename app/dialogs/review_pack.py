@@ -8,7 +8,9 @@ from PySide6.QtCore import QUrl
 from PySide6.QtGui import QDesktopServices
 from PySide6.QtWidgets import QLabel, QPushButton, QVBoxLayout
 
+from engine_air.outputs.pack_folder import check_pack_target
 from engine_air.outputs.review_pack import write_review_pack
+from engine_air.outputs.writer import OutputIsInputError, check_not_input
 
 from .task import TaskDialog
 
@@ -16,9 +18,10 @@ from .task import TaskDialog
 class ReviewPackDialog(TaskDialog):
     """Writes the review pack of a project into a folder, with progress."""
 
-    def __init__(self, project, folder, parent=None, auto_start: bool = True) -> None:
+    def __init__(self, project, folder, parent=None, auto_start: bool = True, inputs=()) -> None:
         super().__init__("Design: write review pack", parent)
         self.project = project
+        self.inputs = tuple(inputs)  # files the window reads: the pack's folder may not hold one
         self.folder = os.fspath(folder)
         self.resize(560, 150)
         self.path_label = QLabel(f"Folder: {self.folder}")
@@ -35,10 +38,16 @@ class ReviewPackDialog(TaskDialog):
             self.start()
 
     def make_task(self):
-        project, folder = self.project, self.folder
+        project, folder, inputs = self.project, self.folder, self.inputs
+        try:  # before any work: a folder that holds the project, or one the pack may not replace
+            check_not_input(folder, inputs, folder=True)
+            check_pack_target(folder)
+        except (OutputIsInputError, OSError) as exc:
+            self._report_error(str(exc))
+            return None
 
         def task(progress, cancelled):
-            return write_review_pack(project, folder, progress=progress, cancelled=cancelled)
+            return write_review_pack(project, folder, progress=progress, cancelled=cancelled, inputs=inputs)
 
         return task
 

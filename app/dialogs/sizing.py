@@ -1,4 +1,5 @@
-"""Feasible range of one design variable and an optimum inside it."""
+"""Feasible range of one design variable and an optimum inside it, judged by every limit or by the limits ticked
+(``feasible_range(..., limits=...)``, as ``engine-air size --limits``)."""
 
 from __future__ import annotations
 
@@ -7,6 +8,8 @@ import pyqtgraph as pg
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QAbstractItemView,
+    QCheckBox,
+    QGridLayout,
     QComboBox,
     QFormLayout,
     QHBoxLayout,
@@ -26,6 +29,7 @@ from engine_air.studies.sizing import (
     design_variables,
     feasible_range,
     optimise,
+    project_check_names,
     variable_label,
     variable_unit,
 )
@@ -44,7 +48,8 @@ _OBJECTIVE_CHOICES = (
 
 
 class SizingDialog(TaskDialog):
-    """Feasible range of one design variable and an optimum inside it."""
+    """Feasible range of one design variable and an optimum inside it, judged by every limit or by the limits ticked
+(``feasible_range(..., limits=...)``, as ``engine-air size --limits``)."""
 
     def __init__(self, project, parent=None) -> None:
         super().__init__("Design: feasible range and optimum", parent)
@@ -90,6 +95,7 @@ class SizingDialog(TaskDialog):
         self.point_box.setLayout(point)
         point.setContentsMargins(0, 0, 0, 0)
         form.addRow("At the point", self.point_box)
+        form.addRow("Limits judged", self._limit_boxes(project))
 
         self.plot = pg.PlotWidget(background="w")
         self.plot.setLabel("left", "worst relative margin")
@@ -119,6 +125,30 @@ class SizingDialog(TaskDialog):
         self._variable_changed()
         self._objective_changed()
 
+    def _limit_boxes(self, project) -> QWidget:
+        """One tick box per check of the project (all ticked: every limit is judged)."""
+        box = QWidget()
+        grid = QGridLayout(box)
+        grid.setContentsMargins(0, 0, 0, 0)
+        self.limit_checks: dict[str, QCheckBox] = {}
+        try:
+            names = project_check_names(project)
+        except Exception:  # noqa: BLE001 - the dialog still sizes against every limit
+            names = ()
+        for k, name in enumerate(names):
+            tick = QCheckBox(name)
+            tick.setChecked(True)
+            tick.setToolTip(f"Judge the {name} check (point --json checks[].name); untick to leave it out of "
+                            "the sizing, e.g. a limit this variable cannot move")
+            grid.addWidget(tick, k // 4, k % 4)
+            self.limit_checks[name] = tick
+        return box
+
+    def chosen_limits(self) -> tuple[str, ...] | None:
+        """The ticked checks; None when every check is ticked (judge every limit)."""
+        ticked = tuple(n for n, box in self.limit_checks.items() if box.isChecked())
+        return None if len(ticked) == len(self.limit_checks) else ticked
+
     def _variable_changed(self) -> None:
         name = self.variable.currentData()
         if name is None:
@@ -146,9 +176,13 @@ class SizingDialog(TaskDialog):
         if not lo < hi:
             self._report_error("the search range needs lower < upper")
             return None
+        limits = self.chosen_limits()
+        if limits == ():
+            self._report_error("tick at least one limit to judge")
+            return None
 
         def task(progress, cancelled):
-            sizing = feasible_range(project, name, lo, hi, scan_points=n, cancelled=cancelled,
+            sizing = feasible_range(project, name, lo, hi, scan_points=n, limits=limits, cancelled=cancelled,
                                     progress=(lambda f: progress(f * (0.75 if objective else 1.0))))
             best = None
             if objective and sizing.feasible:

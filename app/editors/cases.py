@@ -25,24 +25,10 @@ from engine_air.project.model import Case
 
 from .fields import tooltip
 
-from .widgets import CellError, cell_si, make_table, number_item
+from .widgets import CellError, cell_si, make_table, number_item, range_cells
 
 
 REGION_HEADERS = ("M0 from", "M0 to", "H from", "H to")
-
-
-def _blank(t, r, c) -> bool:
-    item = t.item(r, c)
-    return item is None or not item.text().strip()
-
-
-def _range(t, r, c, dim, u, what):
-    """The (low, high) pair in columns c, c+1 of row r; None when both cells are blank."""
-    if _blank(t, r, c) and _blank(t, r, c + 1):
-        return None
-    if _blank(t, r, c) or _blank(t, r, c + 1):
-        raise CellError(f"row {r + 1}, {what}: give both bounds, or leave both blank for no bound")
-    return (cell_si(t, r, c, dim, u, what), cell_si(t, r, c + 1, dim, u, what))
 
 
 class CasesTab:
@@ -107,8 +93,8 @@ class CasesTab:
                 combo = t.cellWidget(r, 1)
                 rating = combo.currentText() if combo is not None else ""
                 dt = cell_si(t, r, 2, "temperature_difference", u, "ISA offset")
-                mach = _range(t, r, 3, "none", u, "Mach range")
-                alt = _range(t, r, 5, "altitude", u, "altitude range")
+                mach = range_cells(t, r, 3, "none", u, "Mach range")
+                alt = range_cells(t, r, 5, "altitude", u, "altitude range")
                 cases.append(Case(name=name, rating=rating, isa_offset_K=dt, mach_range=mach, altitude_range_m=alt))
         except CellError as exc:
             self.show_error(str(exc))

@@ -1,5 +1,6 @@
-"""The "Limits" tab: the face Mach limit, the optional limits behind a check box, started operation and
-the recovery limit (a number or the MIL-E-5008B reference).
+"""The "Limits" tab: the face Mach limit, the optional limits behind a check box, started operation,
+the recovery limit (a number or the MIL-E-5008B reference) and, per check, the optional region where it is judged
+(``[limits.region.NAME]``: Mach and altitude ranges, two cells each, both blank for no bound; method section 15).
 
 A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
 ``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
@@ -9,24 +10,36 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+from PySide6.QtCore import Qt
 from PySide6.QtWidgets import (
     QCheckBox,
     QComboBox,
     QFormLayout,
     QHBoxLayout,
+    QLabel,
+    QTableWidgetItem,
+    QVBoxLayout,
     QWidget,
 )
 
+from engine_air.envelope.check_names import CHECK_NAMES
 from engine_air.project import schema as S
-from engine_air.project.model import REFERENCE_RECOVERY_NAME
+from engine_air.project.model import REFERENCE_RECOVERY_NAME, LimitRegion
 
 from .fields import fallback as _fallback, scroll as _scroll, tooltip as _tooltip
+from .widgets import CellError, make_table, number_item, range_cells
+
+REGION_COLUMNS = ("Check", "M0 from", "M0 to", "H from", "H to")
+
+
 class LimitsTab:
     """The "Limits" tab: the face Mach limit, the optional limits behind a check box, started operation and"""
 
     def _build_limits(self) -> None:
         w = QWidget()
-        form = QFormLayout(w)
+        outer = QVBoxLayout(w)
+        form = QFormLayout()
+        outer.addLayout(form)
 
         def limit_field(name):
             return lambda p, v: replace(p, limits=replace(p.limits, **{name: v}))
@@ -37,7 +50,8 @@ class LimitsTab:
         labels = {"throat_mach_max": "Throat Mach limit M_th max",
                   "stable_flow_fraction": "Stable flow fraction MFR/MFR_max",
                   "relative_tip_mach_max": "Blade relative tip Mach max", "spillage_fraction_max": "Spillage fraction max",
-                  "installation_loss_max": "Installation loss max (share of net thrust)"}
+                  "installation_loss_max": "Installation loss max (share of net thrust)",
+                  "dc60_max": "Distortion DC(60) max", "surge_margin_min": "Remaining surge margin min"}
         for f in S.LIMIT_FIELDS:
             if f.kind != "number" or f.required:
                 continue
@@ -66,7 +80,62 @@ class LimitsTab:
         row.addWidget(self.recovery_mode)
         row.addWidget(self.recovery_min, 1)
         form.addRow("Recovery limit p_t2/p_t0 min", row)
+        self._build_limit_regions(outer)
         self.tabs.addTab(_scroll(w), "Limits")
+
+    def _build_limit_regions(self, layout) -> None:
+        """A table with one row per check: the Mach and altitude range where it is judged (blank: everywhere)."""
+        title = QLabel("<b>Where each limit is judged</b> (optional)")
+        layout.addWidget(title)
+        t = self.region_table = make_table(list(REGION_COLUMNS))
+        t.setRowCount(len(CHECK_NAMES))
+        t.verticalHeader().setVisible(False)
+        for c, key in ((1, "mach_range"), (2, "mach_range"), (3, "altitude_range_m"), (4, "altitude_range_m")):
+            t.horizontalHeaderItem(c).setToolTip(_tooltip(S.field(f"{S.REGION_TABLE}.{key}"))
+                                                 + "\nLeave both cells blank for no bound on this axis.")
+        t.setFixedHeight(t.horizontalHeader().sizeHint().height() + 30 * len(CHECK_NAMES) + 4)
+        t.cellChanged.connect(lambda _r, _c: self._regions_changed())
+        layout.addWidget(t)
+        note = QLabel("A check is judged only for M0 and altitude inside its bounds (included); outside them it "
+                      "has no verdict and no margin at that point. A check judged nowhere in the envelope is "
+                      "reported as not judged anywhere, never as holding. Blank cells: no bound on that axis. "
+                      "Example: a mixed-compression inlet's \"started\" check only from the Mach number at which "
+                      "it is meant to run started.")
+        note.setWordWrap(True)
+        layout.addWidget(note)
+        layout.addStretch(1)
+
+    def _load_limit_regions(self, p) -> None:
+        t, u = self.region_table, self._units
+        t.blockSignals(True)
+        t.setHorizontalHeaderLabels(["Check", "M0 from", "M0 to", u.with_unit("H from", "altitude"),
+                                     u.with_unit("H to", "altitude")])
+        for k, name in enumerate(CHECK_NAMES):
+            item = QTableWidgetItem(name)
+            item.setFlags(item.flags() & ~Qt.ItemIsEditable)
+            t.setItem(k, 0, item)
+            region = p.limits.region(name)
+            for col, values, dim in ((1, region and region.mach_range, "none"),
+                                     (3, region and region.altitude_range_m, "altitude")):
+                for j in range(2):
+                    t.setItem(k, col + j, number_item(values[j], dim, u) if values else QTableWidgetItem(""))
+        t.blockSignals(False)
+
+    def _regions_changed(self) -> None:
+        if self._loading:
+            return
+        t, u = self.region_table, self._units
+        try:
+            regions = []
+            for r, name in enumerate(CHECK_NAMES):
+                mach = range_cells(t, r, 1, "none", u, f"{name} Mach range")
+                alt = range_cells(t, r, 3, "altitude", u, f"{name} altitude range")
+                if mach is not None or alt is not None:
+                    regions.append(LimitRegion(name, mach_range=mach, altitude_range_m=alt))
+        except CellError as exc:
+            self.show_error(str(exc))
+            return
+        self.apply_now(lambda p: replace(p, limits=replace(p.limits, regions=tuple(regions))))
 
     def _optional_from_widgets(self, name):
         box, spin = self.optional_limits[name]
@@ -116,3 +185,4 @@ class LimitsTab:
             self.recovery_mode.setCurrentIndex(1)
             self.recovery_min.set_si(float(rec))
         self.recovery_min.setEnabled(self.recovery_mode.currentIndex() == 1)
+        self._load_limit_regions(p)

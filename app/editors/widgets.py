@@ -103,3 +103,18 @@ def cell_si(table: QTableWidget, row: int, col: int, dimension: str, units: Unit
     if not math.isfinite(value):
         raise CellError(f"row {row + 1}, {what}: {text!r} is not a finite number")
     return units.to_si(dimension, value) if dimension != "none" else value
+
+
+def _blank(t, r, c) -> bool:
+    item = t.item(r, c)
+    return item is None or not item.text().strip()
+
+
+def range_cells(t, r, c, dim, u, what):
+    """The (low, high) SI pair in columns c, c+1 of row r (a case's or a limit's region); None when both cells are
+    blank; ``CellError`` when one is."""
+    if _blank(t, r, c) and _blank(t, r, c + 1):
+        return None
+    if _blank(t, r, c) or _blank(t, r, c + 1):
+        raise CellError(f"row {r + 1}, {what}: give both bounds, or leave both blank for no bound")
+    return (cell_si(t, r, c, dim, u, what), cell_si(t, r, c + 1, dim, u, what))

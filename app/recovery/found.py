@@ -5,15 +5,17 @@ from __future__ import annotations
 import datetime as _dt
 import json
 import logging
+import os
 from dataclasses import dataclass
 from pathlib import Path
 
 from PySide6.QtCore import QLockFile
 
-from engine_air.project.toml_file import load_project
+from engine_air.project.errors import ProjectError
+from engine_air.project.load import loads_project
+from engine_air.project.schema import MAX_FILE_BYTES
 
-
-from .slot import MAX_SIDECAR_BYTES, Slot, recovery_dir
+from .slot import MAX_SIDECAR_BYTES, Slot, reason_of, read_regular, recovery_dir, regular_or_missing
 
 log = logging.getLogger(__name__)
 
@@ -32,8 +34,21 @@ class Recovered:
         return self.slot.key
 
     def load(self):
-        """The recovered project, checked by the loader's rules; raises ``ProjectError``."""
-        return load_project(self.slot.project_file)
+        """The recovered project, checked by the loader's rules; raises ``ProjectError``.
+
+        Read defensively (``read_regular``): a link, pipe or device in the slot's place, or a file over the
+        project-file size limit, is a ``ProjectError``, never a hang or an unbounded read.
+        """
+        path = self.slot.project_file
+        try:
+            raw = read_regular(path, MAX_FILE_BYTES)
+        except OSError as exc:
+            raise ProjectError(path, "(file)", None, f"cannot be read: {reason_of(exc)}") from None
+        try:
+            text = raw.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise ProjectError(path, "(file)", None, "is not UTF-8 text") from None
+        return loads_project(text, path)
 
     def original_changed_since(self) -> bool:
         """True if the project's own file was modified after this copy was autosaved."""
@@ -58,10 +73,9 @@ class Recovered:
 
 
 def _read_sidecar(path: Path) -> dict:
+    """The sidecar's fields; {} for a missing, unreadable, oversized or odd one (a link, a pipe, a device)."""
     try:
-        if path.stat().st_size > MAX_SIDECAR_BYTES:
-            return {}
-        data = json.loads(path.read_text(encoding="utf-8"))
+        data = json.loads(read_regular(path, MAX_SIDECAR_BYTES).decode("utf-8"))
     except (OSError, ValueError):
         return {}
     return data if isinstance(data, dict) else {}
@@ -90,24 +104,48 @@ def _entry(slot: Slot) -> Recovered:
                      title=title if isinstance(title, str) else "")
 
 
-def find_recovered(folder: str | Path | None = None, exclude: set[str] | frozenset = frozenset()) -> list[Recovered]:
+def _candidates(folder: Path, notes: list) -> list[Path]:
+    """The folder's ``*.toml`` slots that are regular files (``lstat``); anything else is noted and skipped."""
+    found = []
+    with os.scandir(folder) as it:
+        for entry in it:
+            if not entry.name.endswith(".toml") or entry.name.startswith("."):
+                continue
+            if entry.is_file(follow_symlinks=False):
+                found.append(Path(entry.path))
+            else:
+                notes.append(f"skipped {entry.path}: not a plain file (a link, pipe, device or folder)")
+    return sorted(found)
+
+
+def find_recovered(folder: str | Path | None = None, exclude: set[str] | frozenset = frozenset(),
+                   notes: list | None = None) -> list[Recovered]:
     """Unsaved work of sessions that ended without a clean close, newest first.
 
     Each returned entry's lock is now held by this process (so a second program starting at the same
-    time does not offer it too); call ``discard()`` or ``release()`` on each. Never raises.
+    time does not offer it too); call ``discard()`` or ``release()`` on each. Never raises, never hangs: only
+    regular files are read (a link, pipe or device in a slot's place is skipped), each read bounded by its
+    size limit. What was skipped is appended to ``notes`` (and logged).
     """
+    notes = [] if notes is None else notes
     folder = Path(folder) if folder is not None else recovery_dir()
     try:
-        candidates = sorted(p for p in folder.glob("*.toml") if p.is_file())
+        candidates = _candidates(folder, notes)
+    except FileNotFoundError:
+        return []
     except OSError as exc:
         log.warning("cannot list the recovery folder %s: %s", folder, exc)
         return []
     found = []
     for path in candidates:
         key = path.stem
-        if key in exclude or key.startswith("."):
+        if key in exclude:
             continue
         slot = Slot(folder, key)
+        odd = [p for p in (slot.lock_file, slot.sidecar_file) if not regular_or_missing(p)]
+        if odd:  # a pipe as the lock would hang the lock check; a link as the sidecar could be written through
+            notes.append(f"skipped recovery slot {key}: {odd[0]} is not a plain file")
+            continue
         lock = QLockFile(str(slot.lock_file))
         lock.setStaleLockTime(0)
         if lock.tryLock(0):
@@ -119,7 +157,10 @@ def find_recovered(folder: str | Path | None = None, exclude: set[str] | frozens
             found.append(_entry(slot))
         except Exception:  # noqa: BLE001 - a strange file is skipped, never fatal
             log.exception("skipping recovery file %s", path)
+            notes.append(f"skipped recovery slot {key}: it cannot be read")
             slot.release()
+    for note in notes:
+        log.warning("recovery: %s", note)
     far_past = _dt.datetime.min.replace(tzinfo=_dt.timezone.utc)
     found.sort(key=lambda e: e.saved_at or far_past, reverse=True)
     return found

@@ -71,11 +71,15 @@ def offer_recovery(window, open_window=None) -> list[tuple[str, str]]:
     window), if given, else they are kept for later. Never raises.
     """
     outcomes = []
+    notes: list[str] = []
     try:
-        entries = find_recovered(window.recovery.folder, exclude={window.recovery.key})
+        entries = find_recovered(window.recovery.folder, exclude={window.recovery.key}, notes=notes)
     except Exception:  # noqa: BLE001
         log.exception("looking for recovery files failed")
         return outcomes
+    if notes:
+        window.statusBar().showMessage(f"Recovery folder: {notes[0]}" + (f" (and {len(notes) - 1} more)"
+                                                                          if len(notes) > 1 else ""), 15000)
     target = window
     for k, entry in enumerate(entries):
         choice = LATER

@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import datetime as _dt
+import errno
 import json
 import os
+import stat
 import tempfile
 import uuid
 from dataclasses import dataclass, field
@@ -12,9 +14,9 @@ from pathlib import Path
 
 from PySide6.QtCore import QLockFile, QStandardPaths
 
+from engine_air.project.atomic import write_bytes_atomic
 from engine_air.project.errors import ProjectSaveError
-from engine_air.project.toml_file import save_project, write_bytes_atomic
-
+from engine_air.project.save import dumps_project
 
 
 ENV_DIR = "ENGINE_AIR_RECOVERY_DIR"
@@ -40,6 +42,46 @@ def new_key() -> str:
 
 def _now() -> _dt.datetime:
     return _dt.datetime.now().astimezone()
+
+
+_NOFOLLOW = getattr(os, "O_NOFOLLOW", 0)
+_NONBLOCK = getattr(os, "O_NONBLOCK", 0)
+
+
+class NotRegularError(OSError):
+    """A file in the recovery folder that is not a plain file (a link, a pipe, a device, a folder)."""
+
+
+def regular_or_missing(path: Path) -> bool:
+    """True when nothing is at ``path`` or a regular file is (``lstat``: a link is not followed)."""
+    try:
+        return stat.S_ISREG(os.lstat(path).st_mode)
+    except FileNotFoundError:
+        return True
+    except OSError:
+        return False
+
+
+def read_regular(path: Path, limit: int) -> bytes:
+    """At most ``limit`` bytes of the regular file at ``path``, read defensively.
+
+    Opened without following a link (``O_NOFOLLOW``) and without waiting for a writer (``O_NONBLOCK``: a pipe
+    never hangs the program); anything but a regular file raises ``NotRegularError``; more than ``limit`` bytes
+    (counted by reading ``limit + 1``, whatever the size on disk says) raise ``OSError(EFBIG)``.
+    """
+    try:
+        fd = os.open(path, os.O_RDONLY | _NOFOLLOW | _NONBLOCK)
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            raise NotRegularError(errno.ELOOP, "is a link, not a plain file", str(path)) from None
+        raise
+    with os.fdopen(fd, "rb") as fh:
+        if not stat.S_ISREG(os.fstat(fd).st_mode):
+            raise NotRegularError(errno.EINVAL, "is not a plain file", str(path))
+        data = fh.read(limit + 1)
+    if len(data) > limit:
+        raise OSError(errno.EFBIG, f"is larger than {limit} bytes", str(path))
+    return data
 
 
 def reason_of(exc: BaseException) -> str:
@@ -92,10 +134,14 @@ class Slot:
             self.lock = None
 
     def write(self, project, original_path) -> None:
-        """The project (atomically, by ``save_project``), then its sidecar (atomically too)."""
+        """The project, then its sidecar, each atomically (temporary file + rename) and never through a link:
+        a link planted at a slot's name is replaced, the file it points at never written."""
         self.folder.mkdir(parents=True, exist_ok=True)
         self.acquire()
-        save_project(project, self.project_file)
+        try:
+            write_bytes_atomic(self.project_file, dumps_project(project).encode("utf-8"), follow_links=False)
+        except OSError as exc:
+            raise ProjectSaveError(self.project_file, exc.strerror or str(exc), exc.errno) from exc
         meta = {
             "format": SIDECAR_FORMAT,
             "original_path": None if original_path is None else str(Path(original_path).resolve()),
@@ -114,4 +160,4 @@ class Slot:
 
 
 def write_text_atomic(path: Path, text: str) -> None:
-    write_bytes_atomic(path, text.encode("utf-8"))
+    write_bytes_atomic(path, text.encode("utf-8"), follow_links=False)

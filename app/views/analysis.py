@@ -56,6 +56,6 @@ def nearest_index(result, mach: float, altitude_m: float) -> tuple[int, int]:
 
 
 def failing_count(result) -> tuple[int, int]:
-    """(checks failing, checks judged) over the summary."""
-    total = len(result.summary)
-    return sum(1 for s in result.summary if not s.holds), total
+    """(checks failing, checks judged somewhere) over the summary; a check judged nowhere is in neither."""
+    judged = [s for s in result.summary if s.holds is not None]
+    return sum(1 for s in judged if not s.holds), len(judged)

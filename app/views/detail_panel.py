@@ -61,6 +61,29 @@ FLOW_ROWS = [
 ]
 
 
+def starting_text(rec: dict, units) -> str:
+    """The internal contraction of a mixed-compression point in words (method §11): cowl entrance A_e, the
+    internal contraction ratio CR = A_th/A_e and the self-start (Kantrowitz) limit K(M_e) on the same basis."""
+    a_e, cr, k = rec.get("entrance_area_m2"), rec.get("internal_contraction_ratio"), rec.get("self_start_contraction")
+    parts = []
+    if a_e is not None:
+        parts.append(f"cowl entrance A_e = {fmt(units.to_display('area', a_e))} {units.label('area')}")
+    if cr is not None:
+        parts.append(f"internal contraction A_th/A_e = {cr:.4f}")
+    if k is not None:
+        started = rec.get("started")
+        if cr is None:
+            verdict = ""
+        elif cr >= k:
+            verdict = " (reached: it starts itself here)"
+        elif started:
+            verdict = " (not reached: it runs started because it started at a lower Mach number)"
+        else:
+            verdict = " (not reached: it cannot swallow its starting shock here)"
+        parts.append(f"self-start limit K(M_e) = {k:.4f} on A_th/A_e{verdict}")
+    return "; ".join(parts)
+
+
 def fmt(x, digits: int = 4) -> str:
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "—"
@@ -360,12 +383,6 @@ class DetailPanel(QScrollArea):
         case = next((c for c in result.project.cases if c.name == case_name), None)
         rating = result.project.rating(case.rating) if case is not None else None
         self._ledger = ledger_rows(self._record, getattr(rating, "recovery_thrust_exchange", None))
-        self._contraction = None
-        if self._record.get("started") is not None:  # the throat's contraction A_th/A_c at this Mach number
-            from engine_air.inlets.schedule import inlet_at
-
-            inlet = inlet_at(result.project.inlet, float(self._record["mach"]))
-            self._contraction = inlet.throat_area_m2 / inlet.capture_area_m2
         self._inside = bool(result.inside[self._index])
         self._fill()
 
@@ -500,16 +517,12 @@ class DetailPanel(QScrollArea):
             self.started_label.setText("")
             self.started_label.hide()
         else:
-            ssc = rec.get("self_start_contraction")
-            contraction = getattr(self, "_contraction", None)
-            text = ("<b>Started</b>: the supersonic compression continues inside the cowl to the throat."
+            text = ("<b>Started</b>: the supersonic compression continues inside the cowl to the throat; the "
+                    "terminal shock stands just behind the throat."
                     if started else
                     "<b>UNSTARTED</b>: a normal shock stands ahead of the cowl.") if rec["mach"] > 1.0 else \
                 "Subsonic flight: a mixed-compression inlet is not started."
-            if ssc is not None:
-                text += f"<br>Self-start contraction (Kantrowitz) A_th/A_c = {ssc:.4f}"
-            if contraction is not None:
-                text += f"; this throat {contraction:.4f}"
+            text += "<br>" + starting_text(rec, self._units)
             self.started_label.setTextFormat(Qt.RichText)
             self.started_label.setText(text)
             self.started_label.show()

@@ -37,11 +37,13 @@ def finding_lines(summary, units: Units, mechanism_texts=None) -> list[str]:
     finding, e.g. ``mechanisms(result)``) each line ends with its own mechanism."""
     lines = []
     for k, s in enumerate(summary):
-        verdict = "holds" if s.holds else "FAILS"
+        verdict = s.verdict
         value = "—" if not math.isfinite(s.worst_value) else f"{s.worst_value:.4g}"
         margin = "—" if not math.isfinite(s.worst_margin) else f"{s.worst_margin:+.4g}"
         line = (f"{s.label} [{s.limit_text}]: {verdict}; worst value {value} (margin {margin}) at "
                 f"{where_text(s, units)}; fails at {100 * s.failing_share:.1f} % of envelope points")
+        if not s.judged:
+            line = f"{s.label} [{s.limit_text}]: {verdict} (judged at no envelope point)"
         if mechanism_texts is not None and k < len(mechanism_texts) and mechanism_texts[k]:
             line += f"; mechanism: {mechanism_texts[k]}"
         lines.append(line)
@@ -73,13 +75,20 @@ class FindingsList(QTreeWidget):
         for k, s in enumerate(self._summary):
             value = "—" if not math.isfinite(s.worst_value) else f"{s.worst_value:.4g}"
             margin = "—" if not math.isfinite(s.worst_margin) else f"{s.worst_margin:+.4g}"
-            item = QTreeWidgetItem([s.label, s.limit_text, "holds" if s.holds else "FAILS", value, margin,
-                                    where_text(s, units), f"{100 * s.failing_share:.1f} %"])
+            share = f"{100 * s.failing_share:.1f} %" if s.judged else "—"
+            item = QTreeWidgetItem([s.label, s.limit_text, s.verdict, value, margin, where_text(s, units), share])
             item.setData(0, Qt.UserRole, k)
             if mechanism_texts is not None and k < len(mechanism_texts):
                 for col in range(1, len(COLUMNS)):
                     item.setToolTip(col, mechanism_texts[k])
-            if not s.holds:
+            if not s.judged:
+                f = item.font(2)
+                f.setItalic(True)
+                item.setFont(2, f)
+                item.setForeground(2, Qt.darkGray)
+                item.setToolTip(2, "Judged at no envelope point (outside its region, limits.region, or where the "
+                                   "check never applies): neither holding nor failing")
+            if s.fails:
                 f = item.font(2)
                 f.setBold(True)
                 item.setFont(2, f)

@@ -1,7 +1,10 @@
-"""Side view of the inlet at the selected point: walls, cowl, throat, face, shocks and the captured stream tube.
+"""Side view of the inlet at the selected point: walls, cowl, entrance, throat, face, shocks, doors and the
+captured stream tube, to scale, in the chosen units.
 
 Draws ``engine_air.outputs.inlet_sketch.inlet_sketch`` (the geometry is computed there, Qt-free); this widget
-only chooses pens. It is redrawn whenever the selection or the project changes.
+chooses pens, converts metres to the display unit of length (``app.units``, dimension "altitude": m or ft),
+frames the drawing tightly (equal scales on both axes) and keeps the legend below the plot, outside the
+geometry. It is redrawn whenever the selection, the project or the units change.
 """
 
 from __future__ import annotations
@@ -9,54 +12,100 @@ from __future__ import annotations
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import Qt
+from PySide6.QtGui import QFont
 
 from engine_air.outputs.inlet_sketch import InletSketch, inlet_sketch
 
+from ..units import Units
+
+INK = (25, 25, 25)
 _PENS = {
-    "wall": pg.mkPen((60, 60, 60), width=3),
-    "cowl": pg.mkPen((60, 60, 60), width=3),
-    "throat": pg.mkPen((40, 110, 200), width=2, style=Qt.DashLine),
-    "face": pg.mkPen((40, 110, 200), width=3),
-    "shock": pg.mkPen((210, 90, 20), width=2),
-    "terminal-shock": pg.mkPen((190, 30, 30), width=3),
-    "bow-shock": pg.mkPen((190, 30, 30), width=3),
-    "stream-tube": pg.mkPen((20, 150, 90), width=2, style=Qt.DotLine),
+    "wall": pg.mkPen((45, 45, 45), width=3),
+    "cowl": pg.mkPen((45, 45, 45), width=3),
+    "axis": pg.mkPen((90, 90, 90), width=1, style=Qt.DashDotLine),
+    "entrance": pg.mkPen((120, 60, 170), width=2, style=Qt.DashLine),
+    "throat": pg.mkPen((30, 100, 200), width=2, style=Qt.DashLine),
+    "face": pg.mkPen((30, 100, 200), width=3),
+    "shock": pg.mkPen((215, 95, 15), width=2),
+    "cowl-shock": pg.mkPen((215, 95, 15), width=2, style=Qt.DashLine),
+    "terminal-shock": pg.mkPen((190, 25, 25), width=3),
+    "bow-shock": pg.mkPen((190, 25, 25), width=3),
+    "stream-tube": pg.mkPen((15, 140, 80), width=2, style=Qt.DotLine),
+    "auxiliary-door": pg.mkPen((0, 150, 170), width=3),
+    "bypass-door": pg.mkPen((150, 0, 150), width=3),
 }
 
+_LEGEND = {"wall": "walls", "entrance": "entrance A_e", "throat": "throat A_th",
+           "face": "engine face", "shock": "ramp/cone shocks", "cowl-shock": "cowl shock",
+           "terminal-shock": "terminal shock", "bow-shock": "bow shock", "stream-tube": "stream tube",
+           "auxiliary-door": "aux. door open", "bypass-door": "bypass door open"}
+_NOT_IN_LEGEND = ("cowl", "axis")
+FONT_PT = 9
 
-_LEGEND = {"shock": "oblique/conical shocks", "terminal-shock": "terminal shock", "bow-shock": "bow shock",
-           "stream-tube": "captured stream tube", "wall": "ramps / spike / duct", "throat": "throat",
-           "face": "engine face"}
+
+def _font(bold: bool = False) -> QFont:
+    font = QFont()
+    font.setPointSize(FONT_PT)
+    font.setBold(bold)
+    return font
 
 
 class InletSketchView(pg.PlotWidget):
-    """A pyqtgraph plot of the inlet's side view; ``sketch`` holds what is drawn."""
+    """A pyqtgraph plot of the inlet's side view; ``sketch`` holds what is drawn (metres), ``units`` the display
+    units of the axes."""
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent=parent, background="w")
         self.setAspectLocked(True)
         self.setMenuEnabled(False)
         self.showGrid(x=False, y=False)
-        self.setLabel("bottom", "x", units="m")
-        self.setLabel("left", "y", units="m")
-        self.setTitle("Inlet at the selected point")
-        self.legend = self.addLegend(offset=(-5, 5), labelTextSize="8pt", brush=pg.mkBrush(255, 255, 255, 220),
-                                     colCount=3)
+        self.units = Units()
+        item = self.getPlotItem()
+        for name in ("left", "bottom"):
+            axis = item.getAxis(name)
+            axis.setPen(pg.mkPen(INK))
+            axis.setTextPen(pg.mkPen(INK))
+            axis.setStyle(tickFont=_font(), tickTextOffset=3)
+            axis.enableAutoSIPrefix(False)  # the unit is the chosen one (m or ft), never rescaled
+        # the legend sits in its own column right of the drawing (docked, the view is wide and low): it never
+        # covers the geometry; the unit note below it, beside the bottom axis
+        self.legend = pg.LegendItem(colCount=2, labelTextColor=INK, labelTextSize=f"{FONT_PT}pt",
+                                    verSpacing=-6, horSpacing=6)
+        item.layout.addItem(self.legend, 2, 3)
+        self.unit_note = pg.LabelItem("", color="#191919", size=f"{FONT_PT}pt", justify="left")
+        item.layout.addItem(self.unit_note, 3, 3)
         self.sketch: InletSketch | None = None
         self.curves: dict[str, pg.PlotDataItem] = {}
+        self.texts: list[pg.TextItem] = []
+        self._shown = None  # (project, points, index) of the drawn point, for a redraw in other units
+        self._axis_labels()
+        self.setTitle("Inlet at the selected point")
+
+    # -- public ---------------------------------------------------------------------------------------------
+    def setTitle(self, title=None, **args) -> None:  # noqa: N802 (Qt naming) -- readable dark type by default
+        args.setdefault("color", "#191919")
+        args.setdefault("size", f"{FONT_PT + 1}pt")
+        self.getPlotItem().setTitle(title, **args)
+
+    def set_units(self, units: Units) -> None:
+        """Draw lengths in ``units`` (m or ft) from now on; redraws the point shown."""
+        if units == self.units:
+            return
+        self.units = units
+        self._axis_labels()
+        if self._shown is not None:
+            self.show_point(*self._shown)
 
     def clear_sketch(self, message: str = "select a point on the map") -> None:
-        self.clear()
-        self.legend.clear()
-        self.curves = {}
+        self._clear()
         self.sketch = None
+        self._shown = None
         self.setTitle(f"Inlet: {message}")
 
     def show_point(self, project, points, index) -> None:
         """Draw the inlet of ``project`` at ``index`` of ``points`` (an ``OperatingPoints``)."""
-        self.clear()
-        self.legend.clear()
-        self.curves = {}
+        self._clear()
+        self._shown = (project, points, index)
         try:
             sketch = inlet_sketch(project, points, index)
         except (ValueError, KeyError) as exc:  # a design the layout cannot draw: say so, keep the window
@@ -64,25 +113,54 @@ class InletSketchView(pg.PlotWidget):
             self.setTitle(f"Inlet: cannot draw ({exc})")
             return
         self.sketch = sketch
+        f = 1.0 / self.units.factor("altitude")
         shown_roles = set()
         for line in sketch.lines:
             name = None
-            if line.role not in shown_roles and line.role not in ("cowl",):
+            if line.role not in shown_roles and line.role not in _NOT_IN_LEGEND:
                 name = _LEGEND.get(line.role, line.label)
                 shown_roles.add(line.role)
-            self.curves[line.label] = self.plot(line.x_m, line.y_m, pen=_PENS.get(line.role), name=name)
+            curve = self.plot(line.x_m * f, line.y_m * f, pen=_PENS.get(line.role))
+            self.curves[line.label] = curve
+            if name is not None:
+                self.legend.addItem(curve, name)
+        for x, y, text in sketch.labels:
+            label = pg.TextItem(text, color=INK, anchor=(0.5, 0.5))
+            label.setFont(_font(bold=True))
+            label.setPos(x * f, y * f)
+            self.addItem(label)
+            self.texts.append(label)
         mach = float(np.asarray(points.mach)[index])
         self.setTitle(f"Inlet at M0 = {mach:.2f}")
-        self.setToolTip(sketch.notes[0])
-        self.getPlotItem().setLabel("bottom", "x (duct length not to scale)", units="m")
-        xs = np.concatenate([line.x_m for line in sketch.lines])
-        ys = np.concatenate([line.y_m for line in sketch.lines])
-        span = max(float(np.ptp(ys)), 1e-9)
-        # head room above the cowl for the legend
-        self.setRange(xRange=(float(xs.min()), float(xs.max())),
-                      yRange=(float(ys.min()) - 0.05 * span, float(ys.max()) + 1.3 * span), padding=0.02)
+        self.setToolTip("; ".join(sketch.notes) + ". Stations: 1 lip, e cowl entrance, th throat, 2 engine face.")
+        self._frame()
+
+    def frame_rect(self) -> tuple[float, float, float, float]:
+        """The drawing's bounds in display units (x_min, x_max, y_min, y_max); the view frames them tightly."""
+        x0, x1, y0, y1 = self.sketch.bounds()
+        f = 1.0 / self.units.factor("altitude")
+        return x0 * f, x1 * f, y0 * f, y1 * f
 
     def drawn_angle_deg(self, label: str) -> float:
         """Angle from the free-stream direction of the straight line drawn as ``label`` (for tests)."""
         x, y = self.curves[label].getData()
         return float(np.degrees(np.arctan2(y[-1] - y[0], x[-1] - x[0])))
+
+    # -- inside ---------------------------------------------------------------------------------------------
+    def _clear(self) -> None:
+        self.clear()
+        self.legend.clear()
+        self.curves = {}
+        self.texts = []
+
+    def _axis_labels(self) -> None:
+        unit = self.units.label("altitude")
+        item = self.getPlotItem()
+        item.setLabel("left", f"y ({unit})", color="#191919", **{"font-size": f"{FONT_PT}pt"})
+        self.unit_note.setText(f"x, y in {unit}, to scale<br>(duct length not to scale)")
+
+    def _frame(self) -> None:
+        x0, x1, y0, y1 = self.frame_rect()
+        pad_x, pad_y = 0.02 * (x1 - x0), 0.03 * (y1 - y0)
+        top = 0.06 * (y1 - y0)  # room for the station names centred on the top of the frame
+        self.setRange(xRange=(x0 - pad_x, x1 + pad_x), yRange=(y0 - pad_y, y1 + pad_y + top), padding=0.0)

@@ -102,11 +102,12 @@ class SectionPlots(pg.GraphicsLayoutWidget):
         self.by_mach.addItem(pg.InfiniteLine(pos=mach, angle=90, pen=sel))
         self.by_altitude.addItem(pg.InfiniteLine(pos=altitude / af, angle=0, pen=sel))
 
-    def export(self, path: str) -> None:
-        """Write both plots to ``path`` (PNG, or SVG by the file's ending), as the map is written."""
-        from ..exports import write_graphics_svg
+    def export(self, path: str, inputs=()) -> None:
+        """Write both plots to ``path`` (PNG, or SVG by the file's ending), as the map is written: whole or not
+        at all, never over one of ``inputs`` (``app.exports``)."""
+        from ..exports import write_graphics_png, write_graphics_svg
 
         if str(path).lower().endswith(".svg"):
-            write_graphics_svg(self, path, "Sections")
+            write_graphics_svg(self, path, "Sections", inputs)
             return
-        pg.exporters.ImageExporter(self.ci).export(str(path))
+        write_graphics_png(self, path, inputs)

@@ -1,4 +1,5 @@
-"""The main window's files: New, Open, Save (asking before replacing a read-only file), recent files, exports.
+"""The main window's files: New, Open, Save (asking before replacing a read-only file or one changed on disk since
+it was opened or saved), recent files, exports (never over the project's own file).
 
 ``FileActions`` is mixed into ``app.main_window.MainWindow``; it uses the window's ``document``, ``editors``,
 ``map``, ``result``, ``units``, ``settings`` and status bar.
@@ -14,9 +15,12 @@ from pathlib import Path
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QApplication, QFileDialog, QMessageBox
 
+from engine_air.outputs.writer import OutputIsInputError, check_not_input
 from engine_air.project.errors import ProjectError, ProjectSaveError
+from engine_air.project.fingerprint import FileChangedError
 
 from .. import exports
+from . import changed_on_disk
 from ..recovery import reason_of
 from ..template import new_project
 
@@ -129,12 +133,14 @@ class FileActions:
             return False
         return True
 
-    def save_to(self, path) -> bool:
+    def save_to(self, path, overwrite: bool = False) -> bool:
         self.editors.flush()
         if not self._allow_read_only_target(path):
             return False
         try:
-            saved = self.document.save(path)
+            saved = self.document.save(path, overwrite=overwrite)
+        except FileChangedError as exc:
+            return self._changed_on_disk(path, exc)
         except (ProjectSaveError, OSError) as exc:
             QMessageBox.critical(self, "Could not save",
                                  f"{exc}\n\nYour edits are kept in the window; try another folder or name.")
@@ -148,6 +154,21 @@ class FileActions:
         self._add_recent(saved)
         self.statusBar().showMessage(f"Saved {saved}", 5000)
         return True
+
+    def _changed_on_disk(self, path, exc: FileChangedError) -> bool:
+        """The file was saved by someone else since this window opened or saved it: ask, never overwrite."""
+        choice = changed_on_disk.ask_changed_on_disk(self, path, exc.found)
+        if choice == changed_on_disk.OVERWRITE:
+            return self.save_to(path, overwrite=True)
+        if choice == changed_on_disk.SAVE_AS:
+            return self.save_as_dialog()
+        if choice == changed_on_disk.RELOAD:
+            if exc.found is not None and self.open_file(path, ask=False):
+                self.statusBar().showMessage(f"Reloaded {Path(path).name} from disk; nothing was saved.", 10000)
+            return False
+        self.statusBar().showMessage(f"Not saved: {Path(path).name} was changed on disk; your edits are kept.",
+                                     10000)
+        return False
 
     def recent_files(self) -> list[str]:
         value = self.settings.value("recent_files", [])
@@ -174,6 +195,10 @@ class FileActions:
             a.triggered.connect(lambda _c=False, f=f: self.open_file(f))
 
     # -- export --------------------------------------------------------------------
+    def input_files(self) -> tuple:
+        """Every file this window reads: an export may never be written over one of them."""
+        return tuple(p for p in (self.document.path,) if p is not None)
+
     def _export_dialog(self, kind: str) -> None:
         if self.result is None:
             QMessageBox.information(self, "Nothing to export", "There is no computed map yet.")
@@ -191,17 +216,23 @@ class FileActions:
 
     def export(self, kind: str, path) -> bool:
         """Write ``kind`` ("png", "svg", "csv", "txt", "sections-png", "sections-svg") to ``path``; a failure is reported, never raised."""
+        inputs = self.input_files()
         writers = {
-            "png": lambda: exports.write_map_png(self.map, path),
-            "svg": lambda: exports.write_map_svg(self.map, path),
-            "csv": lambda: exports.write_grid_csv(self.result, path),
-            "sections-png": lambda: self.sections.export(str(path)),
-            "sections-svg": lambda: self.sections.export(str(path)),
+            "png": lambda: exports.write_map_png(self.map, path, inputs=inputs),
+            "svg": lambda: exports.write_map_svg(self.map, path, inputs),
+            "csv": lambda: exports.write_grid_csv(self.result, path, inputs),
+            "sections-png": lambda: self.sections.export(str(path), inputs),
+            "sections-svg": lambda: self.sections.export(str(path), inputs),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
-                                                       self.document.display_name),
+                                                       self.document.display_name, inputs),
         }
         if kind not in writers:
             raise ValueError(f"unknown export kind {kind!r}")
+        try:
+            check_not_input(path, inputs)
+        except OutputIsInputError as exc:
+            QMessageBox.critical(self, "Export refused", f"{exc}.")
+            return False
         QApplication.setOverrideCursor(Qt.WaitCursor)
         try:
             writers[kind]()

@@ -50,15 +50,19 @@ class VerdictBanner(QLabel):
         self.show_state(*self.verdict_for(result))
 
     def verdict_for(self, result) -> tuple[str, str]:
-        """("holds" or "fails", the banner's two lines as rich text) for a ``MapResult``."""
+        """("holds" or "fails", the banner's two lines as rich text) for a ``MapResult``; a limit judged at no
+        envelope point is named apart and not counted among those that hold."""
         failing, total = analysis.failing_count(result)
         n_cases = len(result.cases)
         small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
         over = f"whole envelope, {n_cases} case{'s' if n_cases != 1 else ''}"
+        unjudged = [s for s in result.summary if s.holds is None]  # outside their regions everywhere (§15)
+        if unjudged:
+            over += "; not judged anywhere: " + ", ".join(html.escape(s.label) for s in unjudged)
         if failing == 0:
-            return "holds", (f"✔  ALL {total} LIMITS HOLD<br><span style='font-size:{small}pt; font-weight:normal'>"
-                             f"{over}</span>")
-        names = "; ".join(html.escape(s.label) for s in result.summary if not s.holds)
+            head = f"✔  ALL {total} LIMITS HOLD" if total else "NO LIMIT IS JUDGED ANYWHERE"
+            return "holds", (f"{head}<br><span style='font-size:{small}pt; font-weight:normal'>{over}</span>")
+        names = "; ".join(html.escape(s.label) for s in result.summary if s.holds is False)
         return "fails", (f"✖  {failing} OF {total} LIMITS FAIL<br><span style='font-size:{small}pt; "
                          f"font-weight:normal'>{names} — {over}</span>")
 

@@ -16,7 +16,7 @@ def add_parser(sub) -> None:
 
 
 def run(args) -> int:
-    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.envelope.evaluate import evaluate_project, not_judged_reason, verdict_text
     from engine_air.envelope.explain import mechanism
     from engine_air.envelope.ranking import nearest_index
     from engine_air.flow.match import REGIMES
@@ -39,13 +39,15 @@ def run(args) -> int:
     out("-" * len(header))
     failing = []
     for s in result.summary:
-        verdict = "holds" if s.holds else "FAILS"
+        if not s.judged:
+            out(f"{s.label:<40} {s.limit_text:<28} {s.verdict}: {not_judged_reason(project, s)}")
+            continue
         out(
-            f"{s.label:<40} {s.limit_text:<28} {verdict:<7} {fmt(s.worst_value):>8} "
+            f"{s.label:<40} {s.limit_text:<28} {s.verdict:<7} {fmt(s.worst_value):>8} "
             f"{fmt(s.worst_margin):>8} {fmt(s.worst_mach, 3):>6} {fmt(s.worst_altitude_m * alt_scale, 0):>7}  "
             f"{100 * s.failing_share:5.1f}%  {name(s.worst_case)}"
         )
-        if not s.holds:
+        if s.fails:
             failing.append(s)
     out()
     for s in failing:
@@ -55,7 +57,7 @@ def run(args) -> int:
         out(f"{s.label}: worst at Mach {s.worst_mach:.3f}, {s.worst_altitude_m * alt_scale:.0f} {alt_unit}, "
             f"case {name(repr(s.worst_case))}, {regime} operation: {mechanism(project, points, j, s.name)}.")
     if failing:
-        out(f"\nVERDICT: {len(failing)} of {len(result.summary)} limits FAIL somewhere in the envelope.")
+        out("\nVERDICT: " + verdict_text(result))
         return EXIT_FAILS
-    out(f"VERDICT: all {len(result.summary)} limits hold at every envelope point of every case.")
+    out("VERDICT: " + verdict_text(result))
     return EXIT_HOLDS

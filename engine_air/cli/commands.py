@@ -1,7 +1,8 @@
 """Command line ``engine-air``: the parser and ``main``; each command lives in its own module.
 
 Commands: ``check`` (engine_air.cli.check), ``map`` (maps), ``point`` (point),
-``size`` (size), ``compare`` (compare), ``sweep`` (sweep), ``pack`` (pack).
+``size`` (size), ``compare`` (compare), ``sweep`` (sweep), ``pack`` (pack), ``distortion``
+(distortion).
 
 Exit codes: 0 every limit holds, 1 some limit fails, 2 the input is unusable
 (one-line message on stderr, never a traceback), 3 (``point`` only) the point
@@ -18,7 +19,7 @@ import argparse
 import sys
 
 from engine_air import __version__
-from engine_air.cli import check, compare, maps, pack, point, size, sweep
+from engine_air.cli import check, compare, distortion, maps, pack, point, size, sweep
 from engine_air.cli.common import EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err
 from engine_air.cli.maps import write_map_csv
 from engine_air.cli.size import SIZE_OBJECTIVES
@@ -46,7 +47,7 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--version", action="version", version=f"engine-air {__version__}")
     sub = p.add_subparsers(dest="command", required=True)
-    for module in (check, maps, point, size, compare, sweep, pack):
+    for module in (check, maps, point, size, compare, sweep, pack, distortion):
         module.add_parser(sub)
     return p
 
@@ -116,6 +117,10 @@ def main(argv=None) -> int:
     except MemoryError:
         err("engine-air: not enough memory for this grid; reduce grid.mach_points or grid.altitude_points")
     except Exception as exc:  # last resort: never a traceback
+        writer = sys.modules.get("engine_air.outputs.writer")  # imported only by commands that write
+        if writer is not None and isinstance(exc, writer.OutputIsInputError):
+            err(f"engine-air: {exc}")
+            return EXIT_UNUSABLE
         err(f"engine-air: internal error ({type(exc).__name__}: {exc}); please report it with the project file")
     return EXIT_UNUSABLE
 

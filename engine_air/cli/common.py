@@ -49,10 +49,12 @@ def check_input_path(path, option: str = "project") -> None:
                          "(or use a link with a UTF-8 name)")
 
 
-def check_output_path(path, option: str) -> None:
-    """Refuse, before any work, an output file that cannot be written: non-UTF-8 name, a folder, a missing or
-    read-only parent folder."""
+def check_output_path(path, option: str, inputs=()) -> None:
+    """Refuse, before any work, an output file that cannot be written: non-UTF-8 name, one of the run's
+    ``inputs`` (links followed: ``engine_air.outputs.writer.check_not_input``), a folder, a missing or read-only
+    parent folder."""
     check_input_path(path, option)
+    check_not_inputs(path, option, inputs)
     text = os.fsdecode(os.fspath(path))
     if not text:
         raise UsageError(f"{option}: an empty file name")
@@ -63,6 +65,16 @@ def check_output_path(path, option: str) -> None:
         raise UsageError(f"{option} {safe_path(text)}: the folder {safe_path(parent)} does not exist")
     if not os.access(parent, os.W_OK) or (os.path.exists(text) and not os.access(text, os.W_OK)):
         raise UsageError(f"{option} {safe_path(text)}: cannot write there (permission denied)")
+
+
+def check_not_inputs(path, option: str, inputs=(), folder: bool = False) -> None:
+    """UsageError when the output ``path`` is (or, for a folder, holds) one of the run's ``inputs``."""
+    from engine_air.outputs.writer import OutputIsInputError, check_not_input
+
+    try:
+        check_not_input(path, inputs, option=option, folder=folder)
+    except OutputIsInputError as exc:
+        raise UsageError(safe_text(str(exc))) from None
 
 
 def finite(value: float | None, option: str) -> None:
@@ -126,5 +138,5 @@ def write_error(path, what: str, exc: OSError) -> UsageError:
 
 
 __all__ = ["EXIT_FAILS", "EXIT_HOLDS", "EXIT_NOT_JUDGED", "EXIT_UNUSABLE", "FT", "UsageError", "cases",
-           "check_input_path", "check_output_path", "err", "finite", "fmt", "load", "name", "out", "path_text",
+           "check_input_path", "check_not_inputs", "check_output_path", "err", "finite", "fmt", "load", "name", "out", "path_text",
            "progress_printer", "warn", "write_error"]

@@ -27,8 +27,9 @@ def run(args) -> int:
     from engine_air.outputs.quantities import QUANTITIES
     from engine_air.studies.compare import compare_projects, write_compare_csv
 
+    inputs = (args.a, args.b)  # every file this run reads
     if args.csv:
-        check_output_path(args.csv, "--csv")
+        check_output_path(args.csv, "--csv", inputs)
     a = load(args.a, "A")
     b = load(args.b, "B")
     c = compare_projects(a, b, grid_from=args.grid_from)
@@ -45,8 +46,8 @@ def run(args) -> int:
     out(head)
     out("-" * len(head))
     for row in c.verdicts:
-        va = "-" if row.a is None else ("holds" if row.a.holds else "FAILS")
-        vb = "-" if row.b is None else ("holds" if row.b.holds else "FAILS")
+        va = "-" if row.a is None else row.a.verdict
+        vb = "-" if row.b is None else row.b.verdict
         ma = None if row.a is None else row.a.worst_margin
         mb = None if row.b is None else row.b.worst_margin
         out(f"{row.label[:40]:<40} {va:<6} {fmt(ma):>9} {vb:<6} {fmt(mb):>9}  {row.change}")
@@ -63,7 +64,7 @@ def run(args) -> int:
             f"{where:>24}")
     if args.csv:
         try:
-            rows = write_compare_csv(c, args.csv)
+            rows = write_compare_csv(c, args.csv, inputs=inputs)
         except OSError as exc:
             raise write_error(args.csv, "CSV file", exc) from None
         out(f"\nwrote {rows} rows to {path_text(args.csv)}")

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import os
+
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, load, out,
                                    path_text, write_error)
 
@@ -34,9 +36,10 @@ def run(args) -> int:
     if args.quantity not in QUANTITIES:
         raise UsageError(f"--quantity {args.quantity!r}: unknown quantity; choose from {', '.join(QUANTITIES)}")
     targets = [(opt, p) for opt, p in (("--csv", args.csv), ("--parquet", args.parquet), ("--png", args.png)) if p]
+    inputs = (args.project,)  # every file this run reads
     for opt, p in targets:
-        check_output_path(p, opt)
-    if len({p for _, p in targets}) < len(targets):
+        check_output_path(p, opt, inputs)
+    if len({os.path.realpath(p) for _, p in targets}) < len(targets):
         raise UsageError("map: --csv, --parquet and --png must name different files")
     project = load(args.project)
     result = evaluate_project(project, cases(project, args.case))
@@ -45,7 +48,7 @@ def run(args) -> int:
             if not p:
                 continue
             try:
-                rows = write_point_table(result, p, fmt)  # CSV batch by batch, never the whole table at once
+                rows = write_point_table(result, p, fmt, inputs)  # CSV batch by batch, never the whole table
             except OSError as exc:
                 raise write_error(p, f"{fmt.upper() if fmt == 'csv' else 'Parquet'} file", exc) from None
             out(f"wrote {rows} rows to {path_text(p)}")
@@ -53,7 +56,7 @@ def run(args) -> int:
         from engine_air.outputs.pictures import write_map_png
 
         try:
-            write_map_png(result, args.png, args.quantity)
+            write_map_png(result, args.png, args.quantity, inputs=inputs)
         except OSError as exc:
             raise write_error(args.png, "PNG file", exc) from None
         out(f"wrote {path_text(args.png)}")

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_input_path, load, out,
-                                   path_text, write_error)
+from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_input_path, check_not_inputs,
+                                   load, out, path_text, write_error)
 
 
 def add_parser(sub) -> None:
@@ -22,6 +22,8 @@ def run(args) -> int:
     from engine_air.project.errors import ProjectError
 
     check_input_path(args.out, "--out")
+    inputs = (args.project,)  # every file this run reads
+    check_not_inputs(args.out, "--out", inputs, folder=True)
     quantities = tuple(args.quantity) if args.quantity else PACK_QUANTITIES
     for q in quantities:
         if q not in QUANTITIES:
@@ -29,7 +31,8 @@ def run(args) -> int:
     project = load(args.project)
     chosen = cases(project, args.case)
     try:
-        pack = write_review_pack(args.project, args.out, quantities=quantities, case_names=chosen)
+        pack = write_review_pack(args.project, args.out, quantities=quantities, case_names=chosen,
+                                 inputs=inputs)
     except OSError as exc:
         if isinstance(exc, ProjectError):
             raise

@@ -22,6 +22,9 @@ def add_parser(sub) -> None:
     z.add_argument("--upper", type=float, help="upper end of the search range")
     z.add_argument("--scan", type=int, default=25, help="values scanned before refining (3 to 201; default 25)")
     z.add_argument("--case", action="append", help="case name (repeatable); default every case")
+    z.add_argument("--limits", metavar="NAME[,NAME...]",
+                   help="judge only these checks (names as in point --json checks[].name, e.g. face-mach,stability); "
+                        "default every check of the project")
     z.add_argument("--objective", choices=SIZE_OBJECTIVES,
                    help="figure to minimise in the feasible range; write --objective=-worst_margin (or "
                         "max_worst_margin) to maximise the worst relative margin")
@@ -39,6 +42,7 @@ def run(args) -> int:
         finite(value, option)
     project = load(args.project)
     chosen = cases(project, args.case)
+    limits = _limits(project, args.limits)
     objective = "-worst_margin" if args.objective == "max_worst_margin" else args.objective
     at = None
     if objective is not None and objective != "-worst_margin":
@@ -52,7 +56,7 @@ def run(args) -> int:
                          "(spillage_fraction, additive_drag_coefficient, spillage_drag_coefficient)")
     out(f"engine-air {__version__} size: {path_text(args.project)}")
     result = feasible_range(project, args.variable, args.lower, args.upper, scan_points=args.scan,
-                            case_names=chosen, progress=progress_printer("size"))
+                            case_names=chosen, limits=limits, progress=progress_printer("size"))
     for line in result.describe():
         out(name(line))
     if not result.feasible:
@@ -62,10 +66,28 @@ def run(args) -> int:
         ranges = ", ".join(f"{iv.lower.value:.6g} to {iv.upper.value:.6g}" for iv in result.intervals)
         out(f"ANSWER: {name(args.variable)} feasible from {ranges} {result.unit}".rstrip() + ".")
         return EXIT_HOLDS
-    best = optimise(project, args.variable, objective, at=at, within=result, case_names=chosen)
+    best = optimise(project, args.variable, objective, at=at, within=result, case_names=chosen, limits=limits)
     for line in best.describe():
         out(name(line))
     if best.value is None:
         return EXIT_FAILS
     out(f"ANSWER: {name(args.variable)} = {best.value:.6g} {result.unit}".rstrip() + ".")
     return EXIT_HOLDS
+
+
+def _limits(project, text: str | None) -> tuple[str, ...] | None:
+    """The checks named by ``--limits`` (comma-separated); UsageError naming the project's checks otherwise."""
+    from engine_air.studies.sizing import project_check_names
+
+    if text is None:
+        return None
+    names = tuple(dict.fromkeys(n.strip() for n in text.split(",") if n.strip()))
+    allowed = project_check_names(project)
+    listing = ", ".join(allowed)
+    if not names:
+        raise UsageError(f"--limits {name(repr(text))}: name at least one check; this project's checks are: {listing}")
+    unknown = [n for n in names if n not in allowed]
+    if unknown:
+        raise UsageError(f"--limits {name(', '.join(unknown))}: not a check of this project; its checks are: "
+                         f"{listing}")
+    return names

@@ -42,8 +42,9 @@ def run(args) -> int:
         raise UsageError(f"--rows {args.rows}: must be 0 or more")
     finite(args.cruise_mach, "--cruise-mach")
     finite(args.cruise_altitude_m, "--cruise-altitude-m")
+    inputs = (args.project,)  # every file this run reads
     if args.csv:
-        check_output_path(args.csv, "--csv")
+        check_output_path(args.csv, "--csv", inputs)
     variables = [parse_vary(v) for v in args.vary]
     project = load(args.project)
     chosen = cases(project, args.case)
@@ -78,7 +79,7 @@ def run(args) -> int:
         out(f"... {len(result.rows) - args.rows} more rows" + (" in the CSV file" if args.csv else " (use --csv)"))
     if args.csv:
         try:
-            write_sweep_csv(result, args.csv)
+            write_sweep_csv(result, args.csv, inputs)
         except OSError as exc:
             raise write_error(args.csv, "CSV file", exc) from None
         out(f"wrote {len(result.rows)} rows to {path_text(args.csv)}")

@@ -24,9 +24,19 @@ Checks, in order:
   points only: fails where the inlet is ``unstarted`` or, started, at ``unstart-risk`` (method §11).
   Margin +1 where it holds, -1 where it fails (a yes/no check).
 - ``installation-loss``: limit - installation loss 1 - F_inst/F_n (method section 13), where thrust data give it.
+- ``dc60``: ``limits.dc60_max`` - DC(60) (method section 18), where ``points.dc60`` is finite.
+- ``surge-margin``: remaining surge margin - ``limits.surge_margin_min``, the remaining margin being the rating's
+  available margin - ``points.surge_margin_loss`` - its other stack-up items (``[engine.rating.stability]``,
+  passed as ``stability``), where the loss is finite.
+  Both are added only when the points carry the data (``points.dc60`` / ``points.surge_margin_loss`` not None:
+  a characteristics table with distortion columns, method sections 17-18); until data back them the limits are
+  judged by ``engine-air distortion`` on rake files only.
 
 No check applies outside the atmosphere model or outside the case's region (``outside-case-region``, method
-section 14): such points are computed but judged by no limit.
+section 14): such points are computed but judged by no limit. A check with a region of its own
+(``[limits.region.NAME]``, method section 15: ``mach_range``, ``altitude_range_m``, bounds included) applies
+only inside it: outside, it has no verdict and no margin (``applies`` false), so it is in no least margin and
+no failing share.
 """
 
 from __future__ import annotations
@@ -36,8 +46,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine_air.envelope import flags as F
+from engine_air.envelope.check_names import CHECK_NAMES
 from engine_air.physics.shocks import normal_shock
-from engine_air.project.model import REFERENCE_RECOVERY_NAME, Limits
+from engine_air.project.model import REFERENCE_RECOVERY_NAME, LimitRegion, Limits
 
 
 @dataclass
@@ -62,6 +73,8 @@ MAX_RELATIVE_MARGIN = 1e12
 
 
 def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=None) -> Check:
+    if name not in CHECK_NAMES:  # a [limits.region.NAME] table must be able to name every check
+        raise AssertionError(f"check {name!r} is not listed in engine_air.envelope.check_names.CHECK_NAMES")
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         applies = np.asarray(applies, bool) & np.isfinite(margin)
         fails = applies & (margin < 0.0)
@@ -74,8 +87,39 @@ def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=N
     return Check(name, label, limit_text, value, margin, relative, applies, fails)
 
 
-def build_checks(limits: Limits, points) -> list[Check]:
-    """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints)."""
+def in_region(region: LimitRegion | None, mach, altitude_m) -> np.ndarray:
+    """Bool: inside ``region`` (bounds included; everywhere when ``region`` is None), at the broadcast shape of
+    ``mach`` and ``altitude_m``."""
+    mach, altitude_m = np.asarray(mach, float), np.asarray(altitude_m, float)
+    inside = np.ones(np.broadcast_shapes(mach.shape, altitude_m.shape), bool)
+    if region is not None and region.mach_range is not None:
+        lo, hi = region.mach_range
+        inside &= (mach >= lo) & (mach <= hi)
+    if region is not None and region.altitude_range_m is not None:
+        lo, hi = region.altitude_range_m
+        inside &= (altitude_m >= lo) & (altitude_m <= hi)
+    return inside
+
+
+def _restrict(check: Check, region: LimitRegion | None, points) -> Check:
+    """``check`` judged only inside its region (method section 15): no verdict and no margin outside."""
+    if region is None:
+        return check
+    inside = in_region(region, points.mach, points.altitude_m)
+    check.applies = check.applies & inside
+    check.fails = check.fails & inside
+    check.relative_margin = np.where(inside, check.relative_margin, np.nan)
+    return check
+
+
+def build_checks(limits: Limits, points, stability=None) -> list[Check]:
+    """Every check that ``limits`` asks for, evaluated on ``points`` (an OperatingPoints), each judged only
+    inside its region when ``limits`` gives one; ``stability`` the case's rating's ``Stability`` (the
+    surge-margin stack-up), or None."""
+    return [_restrict(c, limits.region(c.name), points) for c in _every_check(limits, points, stability)]
+
+
+def _every_check(limits: Limits, points, stability=None) -> list[Check]:
     inside = (points.flags & (F.OUTSIDE_ATMOSPHERE | F.OUTSIDE_CASE_REGION)) == 0
     bits = points.flags
     checks = [
@@ -164,7 +208,31 @@ def build_checks(limits: Limits, points) -> list[Check]:
                 loss, cap - loss, max(cap, 0.01), inside & np.isfinite(loss),
             )
         )
+    checks.extend(distortion_checks(limits, points, inside, stability))
     return checks
+
+
+def distortion_checks(limits: Limits, points, inside, stability=None) -> list[Check]:
+    """``dc60`` and ``surge-margin`` (method §18) where the points carry distortion data (finite values)."""
+    out = []
+    dc60 = getattr(points, "dc60", None)
+    if limits.dc60_max is not None and dc60 is not None:
+        cap = limits.dc60_max
+        dc60 = np.asarray(dc60, float)
+        out.append(_check("dc60", "Distortion DC(60)", f"DC(60) <= {cap:g}", dc60, cap - dc60, max(cap, 0.01),
+                          inside & np.isfinite(dc60)))
+    loss = getattr(points, "surge_margin_loss", None)
+    if limits.surge_margin_min is not None and loss is not None:
+        floor = limits.surge_margin_min
+        loss = np.asarray(loss, float)
+        if stability is None:
+            remaining = np.full(np.shape(loss), np.nan)
+        else:
+            other = sum(v for _n, v in stability.other_losses)
+            remaining = stability.available_surge_margin - loss - other
+        out.append(_check("surge-margin", "Remaining surge margin", f"remaining surge margin >= {floor:g}",
+                          remaining, remaining - floor, max(abs(floor), 0.01), inside & np.isfinite(remaining)))
+    return out
 
 
 def limiting_index(checks: list[Check], bits) -> np.ndarray:

@@ -13,6 +13,9 @@ points (over all evaluated cases) at which it fails. Only *judged* points count
 (``mach_range``, ``altitude_range_m``); a point outside its case's region is
 computed, flagged ``outside-case-region`` and judged by no check, so it is in no
 verdict and no failing share (failing share = failing judged / judged points).
+A check with a region of its own (``[limits.region.NAME]``, method section 15)
+is judged only inside it; a check judged at no point of the envelope has the
+verdict "not judged anywhere" (``LimitSummary.holds`` is None), never "holds".
 """
 
 from __future__ import annotations
@@ -43,14 +46,19 @@ class CaseMap:
     points: OperatingPoints  # arrays of shape (altitude_points, mach_points)
 
 
+NOT_JUDGED = "not judged anywhere"
+"""The verdict of a check judged at no point of the envelope (method section 15)."""
+
+
 @dataclass
 class LimitSummary:
-    """One check over the whole envelope."""
+    """One check over the whole envelope. ``holds`` is True or False where the check is judged somewhere,
+    None where it is judged nowhere (``verdict`` says "not judged anywhere")."""
 
     name: str
     label: str
     limit_text: str
-    holds: bool
+    holds: bool | None
     worst_value: float
     worst_margin: float
     worst_mach: float
@@ -58,6 +66,19 @@ class LimitSummary:
     worst_case: str
     failing_share: float  # failing points / envelope points judged by this check, all cases
     judged_points: int
+
+    @property
+    def judged(self) -> bool:
+        return self.holds is not None
+
+    @property
+    def fails(self) -> bool:
+        return self.holds is False
+
+    @property
+    def verdict(self) -> str:
+        """"holds", "FAILS" or "not judged anywhere"."""
+        return NOT_JUDGED if self.holds is None else ("holds" if self.holds else "FAILS")
 
 
 @dataclass
@@ -71,7 +92,18 @@ class MapResult:
 
     @property
     def holds(self) -> bool:
-        return all(s.holds for s in self.summary)
+        """No limit fails anywhere (a limit judged nowhere does not fail: it is reported apart)."""
+        return not any(s.fails for s in self.summary)
+
+    @property
+    def judged_summary(self) -> list[LimitSummary]:
+        """The limits judged somewhere in the envelope (the ones a count of "limits hold" may count)."""
+        return [s for s in self.summary if s.judged]
+
+    @property
+    def not_judged(self) -> list[LimitSummary]:
+        """The limits judged at no point of the envelope."""
+        return [s for s in self.summary if not s.judged]
 
     def case_map(self, name: str) -> CaseMap:
         for c in self.cases:
@@ -128,6 +160,36 @@ class MapResult:
                 if check is None or chk.name == check:
                     out |= chk.fails
         return out & self.inside
+
+
+def verdict_text(result: MapResult, names: str = "label") -> str:
+    """The overall verdict as one sentence: every judged limit holds, or how many of them fail and which; the
+    limits judged at no envelope point are named apart and never counted as holding (method section 15).
+    ``names``: "label" or "name" of the failing and unjudged limits."""
+    judged, unjudged = result.judged_summary, result.not_judged
+    failing = [s for s in judged if s.fails]
+    if failing:
+        text = (f"{len(failing)} of {len(judged)} limits FAIL somewhere in the envelope: "
+                + ", ".join(getattr(s, names) for s in failing) + ".")
+    elif judged:
+        text = f"all {len(judged)} limits hold at every envelope point of every case."
+    else:
+        text = "no limit is judged anywhere in the envelope."
+    if unjudged:
+        one = len(unjudged) == 1
+        text += (f" {len(unjudged)} limit{' is' if one else 's are'} not judged anywhere (at no envelope point "
+                 f"does {'it' if one else 'any of them'} apply): " + ", ".join(getattr(s, names) for s in unjudged)
+                 + ".")
+    return text
+
+
+def not_judged_reason(project: Project, summary: LimitSummary) -> str:
+    """Why a limit is judged nowhere: outside its region (``[limits.region.NAME]``) at every envelope point, or
+    nowhere in the envelope where the check applies at all (e.g. a supersonic-only check over a subsonic
+    envelope)."""
+    if project.limits.region(summary.name) is not None:
+        return "outside its region (limits.region." + summary.name + ") at every envelope point"
+    return "the check applies at no envelope point"
 
 
 def check_grid_size(project: Project, n_cases: int | None = None) -> None:
@@ -215,7 +277,7 @@ def summarise(result: MapResult) -> list[LimitSummary]:
             failing += int((chk.fails & applies).sum())
         worst = ranking.worst_of_check([cm.points for cm in result.cases], k, result.inside)
         if worst is None:
-            out.append(LimitSummary(name, label, limit_text, True, np.nan, np.nan, np.nan, np.nan, "", 0.0, 0))
+            out.append(LimitSummary(name, label, limit_text, None, np.nan, np.nan, np.nan, np.nan, "", 0.0, 0))
             continue
         case_name, j = result.cases[worst.case].name, worst.index
         chk = result.cases[worst.case].points.checks[k]

@@ -58,19 +58,21 @@ def mechanism(project: Project, points: OperatingPoints, index, check_name: str)
         return f"mass-flow ratio {v('mass_flow_ratio'):.3f}: spillage {v('spillage_fraction'):.3f} ({regime} operation)"
     if check_name == "started":
         from engine_air.inlets.mixed_compression import starting_machs
-        from engine_air.inlets.schedule import scheduled
 
-        contraction = float(scheduled(inlet, "throat_area_m2", v("mach"))) / inlet.capture_area_m2
         start, unstart = starting_machs(inlet)
         history = ("it does not self-start below Mach 5" if start is None else
                    f"accelerating it self-starts at Mach {start:.3f}, decelerating it stays started down to Mach {unstart:.3f}")
         if bits & F.UNSTARTED:
-            return (f"unstarted: A_th/A_c = {contraction:.4f} against the self-start (Kantrowitz) limit "
-                    f"{v('self_start_contraction'):.4f} at the post-ramp Mach; {history}")
+            return (f"unstarted: internal contraction A_th/A_e = {v('internal_contraction_ratio'):.4f} (cowl entrance "
+                    f"A_e = {v('entrance_area_m2'):.4g} m^2) against the self-start (Kantrowitz) limit "
+                    f"{v('self_start_contraction'):.4f} on A_th/A_e at the post-ramp Mach; {history}")
         if bits & F.UNSTART_RISK:
             return (f"started, but the engine takes MFR {v('mass_flow_ratio'):.3f} of the {v('max_mass_flow_ratio'):.3f} "
                     "captured: without bleed or bypass for the excess the terminal shock would be expelled")
         return f"started ({history})"
+    if check_name in ("dc60", "surge-margin"):
+        return (f"engine-face distortion from the characteristics data at mass-flow ratio {v('mass_flow_ratio'):.3f} "
+                f"({regime} operation): DC(60) and the ring intensities load the engine's surge-margin stack-up")
     return f"{regime} operation"
 
 

@@ -125,7 +125,11 @@ class OperatingPoints:
     ramp_downstream_mach: np.ndarray | None = None
     oblique_ahead_of_cowl: np.ndarray | None = None  # bool: buzz is judged only there (method §10)
     started: np.ndarray | None = None  # bool, mixed compression only (method §11)
-    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz limit K(M_e) on A_th/A_e, mixed compression only
+    entrance_area_m2: np.ndarray | None = None  # cowl entrance area A_e, mixed compression only (method §11)
+    internal_contraction_ratio: np.ndarray | None = None  # CR = A_th/A_e, mixed compression only
+    dc60: np.ndarray | None = None  # distortion DC(60) from data (method §18); None: no data, not judged
+    surge_margin_loss: np.ndarray | None = None  # ΔPRS from data (method §18); None: no data, not judged
 
     @property
     def face_mach_margin(self) -> np.ndarray:
@@ -475,6 +479,9 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         oblique_ahead_of_cowl=None if shocks.oblique_ahead_of_cowl is None else full(shocks.oblique_ahead_of_cowl),
         started=None if started is None else full(started),
         self_start_contraction=None if shocks.self_start_contraction is None else full(shocks.self_start_contraction),
+        entrance_area_m2=None if shocks.entrance_area_m2 is None else full(shocks.entrance_area_m2),
+        internal_contraction_ratio=(None if shocks.internal_contraction_ratio is None
+                                    else full(shocks.internal_contraction_ratio)),
     )
     points.checks = build_checks(project.limits, points)
     points.limiting = limiting_index(points.checks, points.flags)

@@ -37,7 +37,9 @@ class ShockSystem:
     ramp_static_pressure_ratio: np.ndarray  # (n_shocks, ...) p behind / p ahead of each shock
     oblique_ahead_of_cowl: np.ndarray | None = None  # bool: an oblique or conical shock stands ahead (buzz)
     started: np.ndarray | None = None  # bool, mixed compression only
-    self_start_contraction: np.ndarray | None = None  # Kantrowitz A_th/A_c limit, mixed compression only
+    self_start_contraction: np.ndarray | None = None  # Kantrowitz limit K(M_e) on A_th/A_e, mixed compression only
+    entrance_area_m2: np.ndarray | None = None  # cowl entrance area A_e, mixed compression only
+    internal_contraction_ratio: np.ndarray | None = None  # CR = A_th/A_e, mixed compression only
 
 
 @dataclass(frozen=True)

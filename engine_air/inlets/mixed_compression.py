@@ -1,19 +1,26 @@
 """Two-dimensional mixed-compression inlet (``mixed-compression``, method §11).
 
 Layout: external ramps laid out shock-on-lip at ``shock_on_lip_mach`` M_d exactly as for the
-``external-ramp`` type (``engine_air.inlets.ramp_layout``); inside the cowl a cowl shock turns the flow back
-by the sum of the ramp angles (a plane oblique shock at the post-ramp Mach M_e); a supersonic contraction
-from the capture area A_c to the throat A_th (``throat_area_m2``, which ``[inlet.schedule]`` may schedule
-in M0); a terminal normal shock just downstream of the throat.
+``external-ramp`` type (``engine_air.inlets.ramp_layout``); the cowl entrance e, the flow section from the
+cowl lip to the last ramp surface normal to the post-ramp flow; inside the cowl a cowl shock that turns the
+flow back by the sum of the ramp angles (a plane oblique shock at the post-ramp Mach M_e); a supersonic
+contraction from the entrance A_e to the throat A_th (``throat_area_m2``, which ``[inlet.schedule]`` may
+schedule in M0); a terminal normal shock just downstream of the throat.
 
-Started (the terminal shock behind the throat):
-    M1 = Mach behind the cowl shock, at area A_c;
-    M_th = supersonic root of A(M_th)/A* = (A_th/A_c) A(M1)/A*   (isentropic contraction, NACA Report 1135 eq. 80);
+Cowl entrance (fixed by the layout; continuity at M_d, all ramp shocks on the lip):
+    A_e/A_c = (A/A*)(M_e,d) / ((A/A*)(M_d) pi_ramps(M_d))      (``ramp_layout.cowl_entrance_area_ratio``)
+  the same as the lip's distance from the last ramp surface in the layout (``ramp_layout.cowl_entrance``).
+  Internal contraction ratio CR = A_th/A_e. (An earlier form of this model used A_th/A_c as the contraction,
+  which breaks continuity: the captured flow did not fit the throat it was given.)
+Started (the terminal shock behind the throat): continuity of the captured flow W = MFR_max rho0 V0 A_c through
+  the ramp and cowl shocks,
+    (A/A*)(M_th) = (A_th/A_c) pi_ramps pi_cowl (A/A*)(M0) / MFR_max,   supersonic root [NACA Report 1135, eq. 80]
+  (below M_d the same as CR pi_cowl (A/A*)(M_e): the entrance passes exactly the captured flow);
     pi_ext = pi_ramps pi_cowl pi_ns(M_th) eta_int               (eta_int = ``internal_recovery_factor``).
-  It cannot run started where a ramp or the cowl shock is detached or the contraction has no supersonic
-  root (``engine_air.physics.starting.started_throat_mach``).
+  It cannot run started where a ramp or the cowl shock is detached, the flow behind the cowl shock is not
+  supersonic or the relation has no supersonic root (``starting.started_throat_mach_by_continuity``).
 Self-starting (Kantrowitz-Donaldson, NACA ACR L5D20): with the normal shock at the cowl entrance at M_e
-  the inlet swallows it when A_th/A_c >= (A*/A)(M_e)/pi_ns(M_e) (``self_start_contraction``).
+  the inlet swallows it when CR = A_th/A_e >= K(M_e) = (A*/A)(M_e)/pi_ns(M_e) (``self_start_contraction``).
 History: along each altitude row the aircraft accelerates from Mach 1: the inlet is unstarted until it
   self-starts, then started while it can run started; once it cannot, unstarted again until it self-starts
   again. Geometry depends on M0 only (the throat schedule), so the state is found once per Mach number by a
@@ -27,13 +34,12 @@ Unstarted: a normal shock stands ahead of the cowl at M_e (pi_ext = pi_ramps pi_
 Simplifications (stated in the README): one-dimensional internal flow (no reflected cowl shock, no boundary
 layer except through eta_int), the cowl shock as a plane oblique shock at the mean post-ramp Mach, the
 terminal shock taken at the throat, ramp angles and the shock-on-lip Mach fixed (only the throat area is
-read from a schedule), pre-entry drag not modelled (as for the external-ramp type).
+read from a schedule), pre-entry drag of the external ramps only (as for the external-ramp type).
 
 Example (checked in tests/test_mixed_compression.py shock by shock with NACA Report 1135 relations): ramps
-[5, 5] deg, M_d = 2.5, A_th/A_c = 0.85, eta_int = 0.97. Accelerating, it self-starts at M0 = 2.2225; at
-M0 = 2.5, started, M_th = 1.4778 and pi_ext = 0.8879 (Kantrowitz limit at M_e: 0.8078). With the throat
-scheduled 0.80 -> 0.85 between M0 2.3 and 2.6 it self-starts at 2.413 and, decelerating, stays started down
-to 2.328 (the hysteresis band).
+[5, 5] deg, M_d = 2.5 (A_e/A_c = 0.69931), A_th/A_c = 0.59 (CR = 0.84369), eta_int = 0.97. Accelerating, it
+self-starts at M0 = 2.2374 (where K(M_e) falls to CR); at M0 = 2.5, started, M_th = 1.8712 and
+pi_ext = 0.7399; decelerating it stays started down to M0 = 1.8799 (the hysteresis band).
 """
 
 from __future__ import annotations
@@ -71,21 +77,52 @@ class MixedState:
     entrance_mach: np.ndarray  # M_e, behind the last ramp (ahead of the cowl)
     ramp_recovery: np.ndarray  # product of the ramp shocks' total-pressure ratios
     cowl: object  # ObliqueShock of the cowl at M_e turning by the ramp sum
-    contraction: np.ndarray  # A_th/A_c (throat scheduled in M0)
+    entrance_area_ratio: float  # A_e/A_c of the cowl entrance (fixed by the shock-on-lip layout)
+    contraction: np.ndarray  # internal contraction ratio CR = A_th/A_e (throat scheduled in M0)
     throat_mach: np.ndarray  # supersonic throat Mach when started; NaN where it cannot run started
     can_run: np.ndarray  # bool: it can run started at this Mach number
-    self_start_limit: np.ndarray  # Kantrowitz A_th/A_c limit at M_e (1 where M_e <= 1)
+    self_start_limit: np.ndarray  # Kantrowitz limit K(M_e) on CR (1 where M_e <= 1)
     starts: np.ndarray  # bool: can run started and self-starts here
 
 
-def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
-    """The Mach-only state of the mixed-compression ``inlet`` at flight Mach numbers ``flight_mach``.
+def entrance_area_m2(inlet: Inlet) -> float:
+    """Cowl entrance area A_e (m^2) of a mixed-compression ``inlet``: A_c times the continuity ratio of its
+    shock-on-lip layout (``ramp_layout.cowl_entrance_area_ratio``, method §11).
 
-    Ramps as ``ramp_layout.ramp_shock_system`` (post-ramp Mach M_e), the cowl shock turning by the ramp sum at
-    M_e [NACA Report 1135, eqs. 132, 138], the contraction c = A_th(M0)/A_c, the started throat Mach (supersonic
-    root of A(M_th)/A* = c A(M1)/A*, ``starting.started_throat_mach``), can-run-started (ramps and cowl shock
-    attached, M1 > 1, a root), the Kantrowitz limit at M_e (``starting.self_start_contraction``) and
-    self-starting (can run started and c at or above that limit).
+    Parameters
+    ----------
+    inlet : Inlet
+        A mixed-compression inlet (ramps, shock-on-lip Mach, capture area in m^2).
+
+    Returns
+    -------
+    float
+        A_e, m^2.
+
+    Examples
+    --------
+    >>> from engine_air.project.model import Inlet
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=2.0, throat_area_m2=1.0, face_area_m2=1.5,
+    ...               ramp_angles_deg=(6.0, 6.0), shock_on_lip_mach=2.4)
+    >>> print(f"{entrance_area_m2(inlet):.5f}")
+    1.34431
+    """
+    from engine_air.inlets.ramp_layout import cowl_entrance_area_ratio
+
+    return inlet.capture_area_m2 * cowl_entrance_area_ratio(inlet.ramp_angles_deg, inlet.shock_on_lip_mach)
+
+
+def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
+    """The Mach-only state of the mixed-compression ``inlet`` at flight Mach numbers ``flight_mach`` (method §11).
+
+    Ramps as ``ramp_layout.ramp_shock_system`` (post-ramp Mach M_e, MFR_max from the lip-streamline trace), the
+    cowl shock turning by the ramp sum at M_e [NACA Report 1135, eqs. 132, 138], the cowl entrance A_e/A_c from
+    continuity at M_d (``ramp_layout.cowl_entrance_area_ratio``), the internal contraction ratio
+    CR = A_th(M0)/A_e, the started throat Mach by continuity of the captured flow through the ramp and cowl shocks
+    (supersonic root of (A/A*)(M_th) = (A_th/A_c) pi_ramps pi_cowl (A/A*)(M0)/MFR_max,
+    ``starting.started_throat_mach_by_continuity``), can-run-started (ramps and cowl shock attached, supersonic
+    behind the cowl shock, a root), the Kantrowitz limit K(M_e) (``starting.self_start_contraction``) and
+    self-starting (can run started and CR >= K(M_e)).
 
     Parameters
     ----------
@@ -101,21 +138,23 @@ def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
 
     Examples
     --------
-    Two 5 deg ramps at M0 = 2.5 turn the flow to M_e = 2.097 (two NACA 1135 oblique shocks); the Kantrowitz
-    limit there is 0.8078 and the scheduled contraction 0.8333 is above it: it can run started and starts itself.
+    Two 5 deg ramps (M_d = 2.5: A_e/A_c = 0.69931) at M0 = 2.0 turn the flow to M_e = 1.649 (two NACA 1135
+    oblique shocks); the Kantrowitz limit there is 0.8837 and the scheduled contraction 0.62/0.69931 = 0.8866 is
+    just above it: it can run started and starts itself.
 
     >>> from engine_air.project.model import Inlet, Schedule
-    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
-    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
-    >>> st = mixed_state(inlet, 2.5)
-    >>> print(f"{float(st.entrance_mach):.3f} {float(st.self_start_limit):.4f} {float(st.contraction):.4f}")
-    2.097 0.8078 0.8333
+    ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
+    >>> st = mixed_state(inlet, 2.0)
+    >>> print(f"{st.entrance_area_ratio:.5f} {float(st.entrance_mach):.3f} {float(st.self_start_limit):.4f} "
+    ...       f"{float(st.contraction):.4f}")
+    0.69931 1.649 0.8837 0.8866
     >>> bool(st.can_run), bool(st.starts)
     (True, True)
     """
-    from engine_air.inlets.ramp_layout import ramp_shock_system  # the shock physics only where used
-    from engine_air.physics.starting import self_start_contraction, started_throat_mach
+    from engine_air.inlets.ramp_layout import cowl_entrance_area_ratio, ramp_shock_system  # physics where used
+    from engine_air.physics.starting import self_start_contraction, started_throat_mach_by_continuity
 
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
@@ -127,13 +166,17 @@ def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
         ramp_recovery = np.prod(np.where(np.isfinite(pts), pts, 1.0), axis=0) if pts.shape[0] else np.ones_like(m0)
         turn = np.radians(float(sum(inlet.ramp_angles_deg)))
         cowl = oblique_shock(np.where(ramps_ok, m_e, 2.0), turn)
-        m1 = np.where(ramps_ok & cowl.attached, cowl.downstream_mach, np.nan)
-        contraction = scheduled(inlet, "throat_area_m2", m0) / inlet.capture_area_m2
-        m_th = started_throat_mach(contraction, m1)
-        can_run = ramps_ok & cowl.attached & np.isfinite(m_th)
+        cowl_ok = ramps_ok & cowl.attached & (cowl.downstream_mach > 1.0)
+        entrance = cowl_entrance_area_ratio(inlet.ramp_angles_deg, inlet.shock_on_lip_mach)
+        throat_to_capture = scheduled(inlet, "throat_area_m2", m0) / inlet.capture_area_m2
+        contraction = throat_to_capture / entrance
+        m_th = started_throat_mach_by_continuity(
+            throat_to_capture, m0, ramp_recovery * np.where(cowl_ok, cowl.total_pressure_ratio, np.nan),
+            ramps.max_mass_flow_ratio)
+        can_run = cowl_ok & np.isfinite(m_th)
         limit = self_start_contraction(np.where(supersonic, m_e, 1.0))
         starts = can_run & (contraction >= limit)
-    return MixedState(ramps, m_e, ramp_recovery, cowl, contraction, np.where(can_run, m_th, np.nan),
+    return MixedState(ramps, m_e, ramp_recovery, cowl, entrance, contraction, np.where(can_run, m_th, np.nan),
                       can_run, limit, starts)
 
 
@@ -169,13 +212,13 @@ def started_along(inlet: Inlet, mach_history) -> np.ndarray:
 
     Examples
     --------
-    The throat schedule below self-starts the inlet at M0 2.413 and keeps it started, decelerating, to 2.328:
+    The throat schedule below self-starts the inlet at M0 1.984 and keeps it started, decelerating, to 1.795:
 
     >>> from engine_air.project.model import Inlet, Schedule
-    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
-    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
-    >>> started_along(inlet, [2.38, 2.5, 2.38, 2.3]).tolist()
+    ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
+    >>> started_along(inlet, [1.9, 2.1, 1.9, 1.7]).tolist()
     [False, True, True, False]
     """
     path = np.asarray(mach_history, dtype=float).ravel()
@@ -212,10 +255,10 @@ def started_accelerating(inlet: Inlet, flight_mach) -> np.ndarray:
     Examples
     --------
     >>> from engine_air.project.model import Inlet, Schedule
-    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
-    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
-    >>> started_accelerating(inlet, [0.9, 2.38, 2.42, 3.0]).tolist()
+    ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
+    >>> started_accelerating(inlet, [0.9, 1.9, 2.0, 3.0]).tolist()
     [False, False, True, True]
     """
     m0 = np.asarray(flight_mach, dtype=float)
@@ -263,11 +306,11 @@ def starting_machs(inlet: Inlet, top_mach: float = TOP_MACH) -> tuple[float | No
     Examples
     --------
     >>> from engine_air.project.model import Inlet, Schedule
-    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.80, face_area_m2=0.9,
+    >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
-    ...               schedule=Schedule(mach=(2.3, 2.6), throat_area_m2=(0.80, 0.85)))
+    ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
     >>> print("%.3f %.3f" % starting_machs(inlet))
-    2.413 2.328
+    1.984 1.795
     """
     axis = np.arange(SCAN_START, top_mach + SCAN_STEP / 2, SCAN_STEP)
     state = mixed_state(inlet, axis)
@@ -296,10 +339,13 @@ class MixedCompressionInlet:
         if not 0.0 < inlet.internal_recovery_factor <= 1.0:
             problems.append(("inlet.internal_recovery_factor", inlet.internal_recovery_factor,
                              "must be a number with 0 < internal_recovery_factor <= 1"))
-        if not is_scheduled(inlet, "throat_area_m2") and not inlet.throat_area_m2 < inlet.capture_area_m2:
-            problems.append(("inlet.throat_area_m2", inlet.throat_area_m2,
-                             f"a mixed-compression inlet contracts: must be below capture_area_m2 = "
-                             f"{inlet.capture_area_m2:g} m^2"))
+        if not is_scheduled(inlet, "throat_area_m2"):
+            a_e = entrance_area_m2(inlet)
+            if not inlet.throat_area_m2 < a_e:
+                problems.append(("inlet.throat_area_m2", inlet.throat_area_m2,
+                                 f"a mixed-compression inlet contracts inside the cowl: must be below the cowl "
+                                 f"entrance area A_e = {a_e:.6g} m^2 (A_e/A_c = {a_e / inlet.capture_area_m2:.5f} "
+                                 f"from the ramps laid out shock-on-lip at Mach {inlet.shock_on_lip_mach:g})"))
         return problems
 
     def shock_system(self, inlet: Inlet, flight_mach) -> ShockSystem:
@@ -327,6 +373,8 @@ class MixedCompressionInlet:
             oblique_ahead_of_cowl=ramps.oblique_ahead_of_cowl & ~started,
             started=started,
             self_start_contraction=state.self_start_limit,
+            entrance_area_m2=np.broadcast_to(state.entrance_area_ratio * inlet.capture_area_m2, m0.shape).copy(),
+            internal_contraction_ratio=state.contraction,
         )
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):

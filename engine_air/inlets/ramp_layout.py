@@ -155,6 +155,82 @@ def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
     return RampGeometry(lip, np.array(corners), flow)
 
 
+def cowl_entrance(geometry: RampGeometry) -> tuple[np.ndarray, float]:
+    """The cowl entrance of a shock-on-lip layout: the flow section from the lip to the last ramp surface, normal
+    to the post-ramp flow (method §11). Returns the foot F of that section on the last ramp (x, y) and its height
+    h_e = |e x (L - C_n)| (e the last ramp's direction, C_n its corner, L the lip), in capture heights: for a 2-D
+    inlet h_e = A_e/A_c.
+
+    Parameters
+    ----------
+    geometry : RampGeometry
+        A shock-on-lip layout (``ramp_design_geometry``), lengths in capture heights.
+
+    Returns
+    -------
+    tuple
+        (foot of the entrance section on the last ramp, shape (2,); entrance height h_e, capture heights).
+
+    Examples
+    --------
+    Two 6 deg ramps laid out shock-on-lip at M_d = 2.4 (the continuity value of ``cowl_entrance_area_ratio``,
+    0.67215, is the same height):
+
+    >>> foot, h = cowl_entrance(ramp_design_geometry([6.0, 6.0], 2.4))
+    >>> print(f"{h:.5f}")
+    0.67215
+    """
+    corner = geometry.corners[-1]
+    theta = float(geometry.flow_angle_rad[-1])
+    e = np.array([np.cos(theta), np.sin(theta)])
+    d = geometry.lip - corner
+    return corner + float(d @ e) * e, float(abs(_cross(e[0], e[1], d[0], d[1])))
+
+
+def cowl_entrance_area_ratio(ramp_angles_deg, design_mach) -> float:
+    """Cowl entrance area over capture area A_e/A_c of ramps laid out shock-on-lip at ``design_mach`` (method §11),
+    by continuity at the design Mach number: every ramp shock meets the lip, the whole capture stream tube passes
+    the entrance in the uniform flow behind the last ramp shock (Mach M_e,d, total pressure pi_ramps p_t0), so
+
+        A_e/A_c = (A/A*)(M_e,d) / ((A/A*)(M_d) pi_ramps(M_d))    [NACA Report 1135, eqs. 80, 132, 138]
+
+    Parameters
+    ----------
+    ramp_angles_deg : sequence of float
+        Deflection of each ramp, deg, in flow order.
+    design_mach : float
+        Shock-on-lip design Mach number M_d (dimensionless).
+
+    Returns
+    -------
+    float
+        A_e/A_c (dimensionless, 0 < value < 1).
+
+    Raises
+    ------
+    ValueError
+        When a ramp shock is detached at the design Mach number.
+
+    Examples
+    --------
+    Method §11 check values: two 6 deg ramps at M_d 2.4 and 3.0, three 5 deg ramps at 3.0.
+
+    >>> print(f"{cowl_entrance_area_ratio([6.0, 6.0], 2.4):.5f} {cowl_entrance_area_ratio([6.0, 6.0], 3.0):.5f} "
+    ...       f"{cowl_entrance_area_ratio([5.0, 5.0, 5.0], 3.0):.5f}")
+    0.67215 0.59437 0.53027
+    """
+    problems = ramp_design_problems(ramp_angles_deg, design_mach)
+    if problems:
+        raise ValueError("; ".join(problems))
+    m = np.asarray(float(design_mach))
+    recovery = 1.0
+    for angle in ramp_angles_deg:
+        shock = oblique_shock(m, np.radians(float(angle)))
+        recovery *= float(shock.total_pressure_ratio)
+        m = shock.downstream_mach
+    return float(area_ratio(m) / (area_ratio(float(design_mach)) * recovery))
+
+
 @dataclass(frozen=True)
 class RampTrace:
     """The external ramps at each flight Mach number: attached shocks, the detached ramp's bow shock taken at

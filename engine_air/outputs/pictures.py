@@ -321,15 +321,19 @@ def write_map_png(
     levels: tuple[float, float] | None = None,
     *,
     units: str = SI,
+    inputs=(),
 ) -> MapPicture:
     """Write the map of ``quantity_key`` for ``case`` (None: worst of all cases) to ``path`` as PNG.
 
-    Returns the ``MapPicture``. Raises KeyError for an unknown quantity or case and OSError when the
-    file cannot be written.
+    Returns the ``MapPicture``. Raises KeyError for an unknown quantity or case, ``OutputIsInputError`` when
+    ``path`` is one of ``inputs``, and OSError when the file cannot be written (the old file is then kept:
+    ``engine_air.outputs.writer``).
     """
+    from engine_air.outputs.writer import check_not_input, write_output_bytes
+
+    check_not_input(path, inputs)
     pic = render_map(result, quantity_key, case, levels, units=units)
-    with open(path, "wb") as fh:
-        fh.write(pic.png)
+    write_output_bytes(path, pic.png, inputs)
     return pic
 
 
@@ -422,11 +426,14 @@ def section_figure(section: Section, *, units: str = SI, project_title: str | No
     return SectionFigure(fig, ax, legend, section)
 
 
-def write_section_png(section: Section, path, *, units: str = SI, project_title: str | None = None) -> bytes:
-    """Write a section plot to ``path``; returns the PNG bytes."""
+def write_section_png(section: Section, path, *, units: str = SI, project_title: str | None = None,
+                      inputs=()) -> bytes:
+    """Write a section plot to ``path`` (whole or not at all, never over one of ``inputs``); returns the PNG."""
+    from engine_air.outputs.writer import check_not_input, write_output_bytes
+
+    check_not_input(path, inputs)
     png = figure_png(section_figure(section, units=units, project_title=project_title).figure)
-    with open(path, "wb") as fh:
-        fh.write(png)
+    write_output_bytes(path, png, inputs)
     return png
 
 

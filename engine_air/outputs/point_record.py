@@ -79,7 +79,8 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
         record["worst_relative_margin"] = None  # nothing is judged here; the flags say why
     record.update({
         "regime": REGIMES[int(_at(points.regime, index))],
-        # mixed compression only (method §11); null for the other types (self_start_contraction likewise)
+        # mixed compression only (method §11); null for the other types (self_start_contraction,
+        # entrance_area_m2 and internal_contraction_ratio likewise)
         "started": None if points.started is None else bool(_at(points.started, index)),
         "flags": names,
         "flag_descriptions": {n: F.DESCRIPTIONS[n] for n in names},
@@ -110,7 +111,10 @@ def record_in_us_units(record: dict) -> dict:
 
 
 def station_table(project: Project, points: OperatingPoints, index) -> list[dict]:
-    """Stations 0, 1, th, 2 at one point: dicts with station, name, mach, p_pa, t_k, pt_pa, tt_k, v_m_s, area_m2."""
+    """Stations 0, 1, th, 2 at one point: dicts with station, name, mach, p_pa, t_k, pt_pa, tt_k, v_m_s, area_m2
+    (the throat area scheduled at the point's Mach number where ``[inlet.schedule]`` gives it)."""
+    from engine_air.inlets.schedule import scheduled
+
     inlet = project.inlet
     at = lambda name: float(_at(getattr(points, name), index))  # noqa: E731
     m0, tt, pt0 = at("mach"), at("total_temperature_k"), at("total_pressure_pa")
@@ -129,7 +133,7 @@ def station_table(project: Project, points: OperatingPoints, index) -> list[dict
     return [
         row("0", "free stream", m0, pt0, at("stream_tube_area_m2")),
         row("1", "capture plane", at("capture_mach"), pi_ext * pt_inlet, inlet.capture_area_m2),
-        row("th", "throat", at("throat_mach"), pi_ext * pt_inlet, inlet.throat_area_m2),
+        row("th", "throat", at("throat_mach"), pi_ext * pt_inlet, float(scheduled(inlet, "throat_area_m2", m0))),
         row("2", "engine face", at("face_mach"), pi * pt_inlet, inlet.face_area_m2),
     ]
 

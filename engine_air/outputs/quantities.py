@@ -147,7 +147,14 @@ _ALL = (
     _q("thrust_reference_recovery", "Thrust reference recovery", "",
        "Recovery the engine's thrust table assumes"),
     _q("self_start_contraction", "Self-start contraction", "",
-       "Kantrowitz limit on A_th / A_c (mixed compression only)"),
+       "Kantrowitz limit K(M_e) on the internal contraction ratio A_th / A_e at the post-ramp Mach M_e "
+       "(mixed compression only)"),
+    _q("entrance_area_m2", "Cowl entrance area", "m^2",
+       "Cowl entrance area A_e: the flow section from the lip to the last ramp, from continuity at the "
+       "shock-on-lip Mach (mixed compression only)", us=("ft^2", FT * FT)),
+    _q("internal_contraction_ratio", "Internal contraction ratio", "",
+       "A_th / A_e, throat over cowl entrance; the inlet self-starts where it reaches the self-start contraction "
+       "(mixed compression only)"),
     _q("worst_relative_margin", "Least relative margin (all limits)", "",
        "Least relative margin (margin over the limit's magnitude) over every check judged at the point; a failing "
        "check ranks first. Not defined (NaN / null) where nothing is judged: outside the atmosphere model "
@@ -176,7 +183,7 @@ MAP_KEYS: tuple[str, ...] = (
     "spillage_fraction", "mass_flow_ratio", "throat_mach", "additive_drag_coefficient", "face_static_to_ambient",
     "relative_tip_mach",
     # mixed compression (method §11) and the installation ledger (method §13)
-    "started", "self_start_contraction", "ram_drag_n", "additive_drag_n", "spillage_drag_n", "bleed_drag_n",
+    "started", "self_start_contraction", "internal_contraction_ratio", "ram_drag_n", "additive_drag_n", "spillage_drag_n", "bleed_drag_n",
     "bypass_drag_n", "net_thrust_n", "installed_thrust_n", "installation_loss_fraction",
 )
 """The quantities a map can be coloured by, in the order offered."""

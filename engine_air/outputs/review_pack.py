@@ -27,13 +27,16 @@ envelope for every case and writes into ``folder``:
 - ``engine-air-pack.json``: the manifest, naming every file the pack wrote.
 
 Safe output: the pack writes only into a new or empty folder, or into one that
-holds its own manifest (a pack written before; files listed there and not
-written again are removed). It never writes through a symbolic link: every file
-is written under a fresh temporary name (created exclusively, links not
-followed) and renamed over the final name, which replaces a link planted there
-rather than its target; a link in place of the folder itself is refused, one in
-place of ``maps`` or ``sections`` is replaced by a real folder. Before it returns
-it checks that every picture it reports is a regular, non-empty file.
+holds its own manifest and nothing it does not list (a pack written before); a
+folder that holds an input of the run (the project file) is refused before any
+work. The pack is assembled in a temporary folder beside the target and moved
+into place whole (``engine_air.outputs.writer.staged_folder``), so a failure
+(a full disk, a cancelled run) leaves no partial pack and the previous one as it
+was. Inside, every file is written under a fresh temporary name (created
+exclusively, links not followed) and renamed, so no link is ever written
+through; a link in place of the folder itself is refused. Before it returns it
+checks that every picture it reports is a regular, non-empty file
+(``engine_air.outputs.pack_folder``).
 ``PackFolderError`` (an ``OSError``) says why a folder is refused.
 
 The pictures come from ``engine_air.outputs.pictures`` (matplotlib, no Qt). Every text
@@ -51,13 +54,10 @@ import base64
 import datetime as _dt
 import errno
 import html
-import json
 import math
 import os
 import platform
 import re
-import secrets
-import stat
 import sys
 from engine_air.project.load import tomllib  # tomli on Python 3.10
 from dataclasses import dataclass, field
@@ -69,14 +69,16 @@ from engine_air import CAUTION, __version__
 from engine_air.envelope import flags as F
 from engine_air.envelope import ranking
 from engine_air.envelope.explain import finding_mechanism
-from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project
+from engine_air.envelope.evaluate import WORST, Cancelled, MapResult, evaluate_project, verdict_text
 from engine_air.flow.match import REGIMES
 from engine_air.project.model import Project
+from engine_air.outputs.pack_folder import MANIFEST, PackFolderError, StagingFolder, check_pack_target
 from engine_air.outputs.pictures import figure_png, render_map, section_figure, short
 from engine_air.outputs.sections import check_of, cut
 from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.outputs.quantities import QUANTITIES
 from engine_air.outputs.ledger_table import NO_THRUST_DATA, ledger_rows
+from engine_air.outputs.writer import check_not_input, staged_folder
 from engine_air.outputs.point_record import point_record, shock_table, station_table
 from engine_air.studies.sizing import worst_point
 
@@ -97,9 +99,6 @@ SOURCES = (
 )
 
 
-MANIFEST = "engine-air-pack.json"
-"""The pack's own manifest file; a folder holding it was written by a pack before."""
-_SIGNATURE = "engine-air review pack"
 SLUG_CHARS = 24
 
 
@@ -119,15 +118,6 @@ class ReviewPack:
     def all_pictures(self) -> list[str]:
         return self.pictures + self.section_pictures
 
-
-class PackFolderError(OSError):
-    """The folder cannot take a review pack (not empty and not a pack's, a symbolic link, ...)."""
-
-    def __init__(self, path, message: str) -> None:
-        super().__init__(errno.EEXIST, message, os.fspath(path))
-
-    def __str__(self) -> str:
-        return f"{self.filename}: {self.strerror}"
 
 
 def _slug(text: str, limit: int = SLUG_CHARS) -> str:
@@ -151,142 +141,6 @@ def picture_stems(case_names: list[str]) -> dict[str, str]:
             out[name] = f"c{k}-{_slug(name)}"
     return out
 
-
-# -- writing without following links -------------------------------------------------
-
-_DIR_FD = os.open in os.supports_dir_fd and os.rename in os.supports_dir_fd and os.mkdir in os.supports_dir_fd
-_NOFOLLOW = getattr(os, "O_NOFOLLOW", 0)
-_DIRECTORY = getattr(os, "O_DIRECTORY", 0)
-
-
-def _is_our_manifest(data: bytes) -> tuple[bool, list[str]]:
-    try:
-        doc = json.loads(data.decode("utf-8"))
-    except (UnicodeDecodeError, ValueError):
-        return False, []
-    if not isinstance(doc, dict) or doc.get("written_by") != _SIGNATURE:
-        return False, []
-    files = doc.get("files", [])
-    return True, [f for f in files if isinstance(f, str)] if isinstance(files, list) else []
-
-
-class _Folder:
-    """A pack folder: refuses a foreign non-empty folder, writes files by exclusive temp file + rename."""
-
-    def __init__(self, path: str) -> None:
-        self.path = path
-        if os.path.islink(path):
-            raise PackFolderError(path, "is a symbolic link; the review pack does not write through links "
-                                        "(give the real folder)")
-        if not os.path.exists(path):
-            os.makedirs(path)
-        elif not os.path.isdir(path):
-            raise PackFolderError(path, "exists and is not a folder")
-        self.fd = os.open(path, os.O_RDONLY | _DIRECTORY | _NOFOLLOW) if _DIR_FD else None
-        self.dirs: dict[str, int | None] = {"": self.fd}
-        self.previous: list[str] = []
-        entries = os.listdir(self.fd if self.fd is not None else path)
-        if entries:
-            ours = False
-            if MANIFEST in entries:
-                st = self._lstat("", MANIFEST)
-                if st is not None and stat.S_ISREG(st.st_mode):
-                    ours, self.previous = _is_our_manifest(self._read("", MANIFEST))
-            if not ours:
-                self.close()
-                shown = ", ".join(sorted(entries)[:3]) + (", …" if len(entries) > 3 else "")
-                raise PackFolderError(path, f"is not empty ({shown}) and holds no review-pack manifest "
-                                            f"({MANIFEST}); give a new or empty folder")
-
-    def close(self) -> None:
-        for fd in set(self.dirs.values()):
-            if fd is not None:
-                os.close(fd)
-        self.dirs = {}
-
-    def _lstat(self, sub: str, name: str):
-        try:
-            if self.fd is not None:
-                return os.stat(name, dir_fd=self.dirs[sub], follow_symlinks=False)
-            return os.lstat(os.path.join(self.path, sub, name))
-        except FileNotFoundError:
-            return None
-
-    def _read(self, sub: str, name: str) -> bytes:
-        if self.fd is not None:
-            fd = os.open(name, os.O_RDONLY | _NOFOLLOW, dir_fd=self.dirs[sub])
-        else:
-            fd = os.open(os.path.join(self.path, sub, name), os.O_RDONLY | _NOFOLLOW)
-        with os.fdopen(fd, "rb") as fh:
-            return fh.read(1 << 20)
-
-    def subfolder(self, sub: str) -> None:
-        """Make sure ``sub`` is a real folder of ours: a link there is removed (the link, not its target)."""
-        st = self._lstat("", sub)
-        if st is not None and stat.S_ISLNK(st.st_mode):
-            if self.fd is not None:
-                os.unlink(sub, dir_fd=self.fd)
-            else:
-                os.unlink(os.path.join(self.path, sub))
-            st = None
-        if st is None:
-            if self.fd is not None:
-                os.mkdir(sub, dir_fd=self.fd)
-            else:
-                os.mkdir(os.path.join(self.path, sub))
-        elif not stat.S_ISDIR(st.st_mode):
-            raise PackFolderError(os.path.join(self.path, sub), "exists and is not a folder")
-        if self.fd is not None:
-            self.dirs[sub] = os.open(sub, os.O_RDONLY | _DIRECTORY | _NOFOLLOW, dir_fd=self.fd)
-        else:
-            self.dirs[sub] = None
-
-    def write(self, relative: str, data: bytes) -> str:
-        """Write ``data`` to ``relative`` (``name`` or ``sub/name``) by a fresh temporary file and a rename:
-        a link at the final name is replaced, never written through. Returns the full path."""
-        sub, _, name = relative.rpartition("/")
-        tmp = f".{name[:40]}.{secrets.token_hex(6)}.tmp"
-        flags = os.O_WRONLY | os.O_CREAT | os.O_EXCL | _NOFOLLOW | getattr(os, "O_BINARY", 0)
-        dir_fd = self.dirs[sub]
-        base = os.path.join(self.path, sub)
-        fd = os.open(tmp, flags, 0o644, dir_fd=dir_fd) if dir_fd is not None else os.open(os.path.join(base, tmp),
-                                                                                          flags, 0o644)
-        try:
-            with os.fdopen(fd, "wb") as fh:
-                fh.write(data)
-            if dir_fd is not None:
-                os.replace(tmp, name, src_dir_fd=dir_fd, dst_dir_fd=dir_fd)
-            else:
-                os.replace(os.path.join(base, tmp), os.path.join(base, name))
-        except BaseException:
-            try:
-                os.unlink(tmp, dir_fd=dir_fd) if dir_fd is not None else os.unlink(os.path.join(base, tmp))
-            except OSError:
-                pass
-            raise
-        return os.path.join(self.path, *relative.split("/"))
-
-    def remove(self, relative: str) -> None:
-        """Remove a file (or a link: the link itself) the previous pack wrote; missing is fine."""
-        sub, _, name = relative.rpartition("/")
-        if sub not in self.dirs:
-            return
-        try:
-            if self.dirs[sub] is not None:
-                os.unlink(name, dir_fd=self.dirs[sub])
-            else:
-                os.unlink(os.path.join(self.path, sub, name))
-        except (FileNotFoundError, IsADirectoryError, PermissionError):
-            pass
-
-    def is_picture(self, relative: str) -> bool:
-        sub, _, name = relative.rpartition("/")
-        st = self._lstat(sub, name)
-        return st is not None and stat.S_ISREG(st.st_mode) and st.st_size > 0
-
-    def manifest(self, files: list[str], complete: bool) -> None:
-        doc = {"written_by": _SIGNATURE, "version": __version__, "complete": complete, "files": files}
-        self.write(MANIFEST, json.dumps(doc, indent=1).encode("utf-8"))
 
 
 def _num(x, digits: int = 4) -> str:
@@ -315,7 +169,7 @@ h1 { font-size: 22px; margin-bottom: 4px; } h2 { font-size: 18px; border-bottom:
 h3 { font-size: 15px; margin: 18px 0 6px; }
 table { border-collapse: collapse; margin: 8px 0; } th, td { border: 1px solid #c8c8c8; padding: 3px 7px; }
 th { background: #efefef; text-align: left; } td.n { text-align: right; font-variant-numeric: tabular-nums; }
-.holds { color: #0b4f8a; font-weight: bold; } .fails { color: #8a3b00; font-weight: bold; }
+.holds { color: #0b4f8a; font-weight: bold; } .fails { color: #8a3b00; font-weight: bold; } .unjudged { color: #555; font-style: italic; }
 .banner { padding: 8px 12px; border: 2px solid; display: inline-block; margin: 8px 0; font-weight: bold; }
 .banner.holds { border-color: #0b4f8a; background: #eaf2fa; } .banner.fails { border-color: #b35806; background: #fdf0e3; }
 .meta { color: #555; } .maps { display: flex; flex-wrap: wrap; gap: 18px; }
@@ -407,6 +261,7 @@ def write_review_pack(
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
     units: str = "si",
+    inputs: tuple = (),
 ) -> ReviewPack:
     """Evaluate a project and write its review pack into ``folder`` (created if needed).
 
@@ -417,14 +272,18 @@ def write_review_pack(
         (its text is ``source_text`` when that loads back to the same project,
         else ``dumps_project(project)``).
     folder : path
-        Output folder: new, empty, or holding a pack's manifest (a pack written before, replaced);
-        anything else raises ``PackFolderError``. Links are never written through.
+        Output folder: new, empty, or holding a pack's manifest (a pack written before, replaced whole);
+        anything else raises ``PackFolderError``, a folder holding an input ``OutputIsInputError``, both
+        before any work. The pack is assembled beside it and moved into place whole
+        (``engine_air.outputs.writer.staged_folder``): a failure leaves the previous folder as it was.
     quantities : tuple of str
         Keys of ``engine_air.outputs.quantities.QUANTITIES`` to map.
     case_names : list of str, optional
         Evaluate only these cases (default every case).
     units : "si" or "us"
         Axes of the pictures: altitude in km ("si") or ft ("us").
+    inputs : paths
+        Further files the run reads (the project file is one already); none may lie in ``folder``.
 
     Returns a ``ReviewPack`` (paths, verdict, the evaluation). Raises
     ``ProjectError`` for an unusable project, KeyError for an unknown quantity,
@@ -435,22 +294,26 @@ def write_review_pack(
             raise KeyError(q)
     if str(units).lower() not in ("si", "us"):
         raise ValueError(f"units must be 'si' or 'us', got {units!r}")
-    project, text, source_name, notes = _read_source(project_or_path, source_text)
     folder = os.fspath(folder)
+    sources = [*inputs] + ([] if isinstance(project_or_path, Project) else [project_or_path])
+    check_not_input(folder, sources, folder=True)
+    check_pack_target(folder)
+    project, text, source_name, notes = _read_source(project_or_path, source_text)
     result = evaluate_project(project, case_names, cancelled=cancelled)
-    out = _Folder(folder)
-    try:
-        return _write(out, project, text, source_name, notes, result, quantities, progress, cancelled, units)
-    finally:
-        out.close()
+    with staged_folder(folder, sources) as staging:
+        out = StagingFolder(staging, final=folder)
+        try:
+            return _write(out, project, text, source_name, notes, result, quantities, progress, cancelled, units)
+        finally:
+            out.close()
 
 
 _PREVIOUS = re.compile(r"^(maps|sections)/[^/\\]+$")
 
 
-def _write(out: _Folder, project, text, source_name, notes, result, quantities, progress, cancelled,
+def _write(out: StagingFolder, project, text, source_name, notes, result, quantities, progress, cancelled,
            units) -> ReviewPack:
-    folder = out.path
+    folder = out.final
     written: list[str] = []
     out.manifest(sorted(set(out.previous) | {MANIFEST}), complete=False)  # ours from the first byte on
     out.subfolder("maps")
@@ -541,14 +404,14 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
     verdict_rows = []
     finding_rows = []
     for s in result.summary:
-        cls = "holds" if s.holds else "fails"
+        cls = "fails" if s.fails else "holds" if s.judged else "unjudged"
         verdict_rows.append([
-            e(s.label), e(s.limit_text), f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>',
+            e(s.label), e(s.limit_text), f'<span class="{cls}">{e(s.verdict)}</span>',
             _num(s.worst_value), _num(s.worst_margin), f"{100 * s.failing_share:.1f} %", str(s.judged_points),
         ])
         regime, flags, why = finding_mechanism(project, result, s)
         finding_rows.append([
-            e(s.label), f'<span class="{cls}">{"holds" if s.holds else "FAILS"}</span>', _num(s.worst_value),
+            e(s.label), f'<span class="{cls}">{e(s.verdict)}</span>', _num(s.worst_value),
             _num(s.worst_margin), _num(s.worst_mach, 3), _num(s.worst_altitude_m, 0), e(s.worst_case or "–"),
             e(regime), e(flags), e(why),
         ])
@@ -611,10 +474,7 @@ def _write(out: _Folder, project, text, source_name, notes, result, quantities, 
     now = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
     title = project.title or os.path.basename(source_name)
     banner_cls = "holds" if holds else "fails"
-    failing = [s for s in result.summary if not s.holds]
-    banner = (f"VERDICT: all {len(result.summary)} limits hold at every envelope point of every case."
-              if holds else f"VERDICT: {len(failing)} of {len(result.summary)} limits FAIL somewhere in the envelope: "
-              + ", ".join(s.label for s in failing) + ".")
+    banner = "VERDICT: " + verdict_text(result)
     inside = int(result.inside.sum())
     maps_html = "".join(
         f"<h3>{e(QUANTITIES[q].label)}</h3><div class=\"maps\">{''.join(figures[q])}</div>" for q in quantities)

@@ -251,18 +251,37 @@ def write_csv(table, dest) -> int:
     return write_csv_batches(list(columns), [(n, [_column(v) for v in columns.values()])], dest)
 
 
-def write_table(columns: Mapping[str, object] | pa.Table, dest, fmt: str = "csv") -> int:
-    """Write ``columns`` to ``dest`` (a path or a binary file object) as CSV (``fmt="csv"``) or Parquet
-    (``"parquet"``); returns the number of rows."""
-    if fmt == "csv":
-        return write_csv(columns, dest)
-    if fmt == "parquet":
+@contextmanager
+def _output(dest, inputs):
+    """Where to write: a binary file object as it is, a path through the one output writer
+    (``engine_air.outputs.writer.output_path``: never an input, a temporary file renamed over it when complete)."""
+    if hasattr(dest, "write"):
+        yield dest
+        return
+    from engine_air.outputs.writer import output_path
+
+    with output_path(str(Path(dest)), inputs) as tmp:
+        yield tmp
+
+
+def write_table(columns: Mapping[str, object] | pa.Table, dest, fmt: str = "csv", inputs=()) -> int:
+    """Write ``columns`` to ``dest`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows.
+
+    ``dest`` is a binary file object, or a path written through the one output writer
+    (``engine_air.outputs.writer.output_path``): ``OutputIsInputError`` when ``path`` is one of ``inputs`` (links
+    followed); the table goes to a temporary file renamed over ``path`` when complete, so a failed write (a full
+    disk) leaves the old file as it was and no partial file.
+    """
+    if fmt not in ("csv", "parquet"):
+        raise ValueError(f"unknown table format {fmt!r}: csv or parquet")
+    with _output(dest, inputs) as target:
+        if fmt == "csv":
+            return write_csv(columns, target)
         import pyarrow.parquet as pq
 
         table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
-        pq.write_table(table, dest if hasattr(dest, "write") else str(Path(dest)))
+        pq.write_table(table, target)
         return table.num_rows
-    raise ValueError(f"unknown table format {fmt!r}: csv or parquet")
 
 
 def coded_text(codes: np.ndarray, names: Sequence[str], missing: str = "") -> pa.Array:
@@ -400,11 +419,12 @@ def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain
     return cols
 
 
-def write_point_table(result, dest, fmt: str = "csv") -> int:
-    """``point_table(result)`` written to ``dest`` (a path or a binary file) as CSV or Parquet; returns the number
-    of rows. CSV is written case by case and batch by batch, without the whole table in memory."""
+def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
+    """``point_table(result)`` written to ``dest`` (a path through the one output writer, or a binary file) as CSV
+    or Parquet; returns the number of rows. CSV is written case by case and batch by batch, without the whole
+    table in memory."""
     if fmt != "csv":
-        return write_table(point_table(result), dest, fmt)
+        return write_table(point_table(result), dest, fmt, inputs)
     from engine_air.outputs.quantities import TABLE_KEYS
 
     order = point_table_columns(TABLE_KEYS)
@@ -414,7 +434,8 @@ def write_point_table(result, dest, fmt: str = "csv") -> int:
         for cm in result.cases:
             cols = _point_columns(result, cm, TABLE_KEYS)
             yield n, [cols.pop(name) for name in order]  # one case's columns at a time
-    return write_csv_batches(order, parts(), dest)
+    with _output(dest, inputs) as target:
+        return write_csv_batches(order, parts(), target)
 
 
 __all__ = ["BATCH_ROWS", "FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns",

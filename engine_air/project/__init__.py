@@ -14,12 +14,14 @@ from __future__ import annotations
 import importlib
 
 _EXPORTS = {
-    "Project": "model", "Inlet": "model", "Schedule": "model", "Limits": "model", "Rating": "model",
+    "Project": "model", "Inlet": "model", "Schedule": "model", "Limits": "model", "LimitRegion": "model", "Rating": "model",
+    "Stability": "model",
     "Envelope": "model", "Grid": "model", "Case": "model",
     "ProjectError": "errors", "ProjectSaveError": "errors",
     "load_project": "load", "loads_project": "load", "project_from_dict": "load", "validate_project": "load",
     "save_project": "save", "dumps_project": "save", "project_to_dict": "save",
-    "write_bytes_atomic": "atomic", "is_read_only": "atomic",
+    "write_bytes_atomic": "atomic", "is_read_only": "atomic", "atomic_path": "atomic",
+    "Fingerprint": "fingerprint", "FileChangedError": "fingerprint", "file_fingerprint": "fingerprint",
     "Field": "schema_field", "REQUIRED": "schema_field",
     "MAX_FILE_BYTES": "schema", "MAX_AXIS_POINTS": "schema", "MIN_AXIS_POINTS": "schema",
     "MAX_GRID_POINTS": "schema", "MAX_CASES": "schema", "MAX_CASE_POINTS": "schema",

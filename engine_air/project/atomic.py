@@ -1,14 +1,18 @@
 """Atomic file writes: a crash or a full disk never leaves half a file.
 
 The bytes go to a temporary file beside the target, are flushed to disk, and the temporary file is then
-renamed over the target, so the previous file survives a failed write.
+renamed over the target, so the previous file survives a failed write. ``write_bytes_atomic`` takes the
+bytes; ``atomic_path`` hands a temporary file name to a writer that wants a name (``engine_air.outputs.writer``
+builds every output file on it).
 """
 
 from __future__ import annotations
 
+import contextlib
 import os
 import stat
 import tempfile
+from typing import Iterator
 
 
 def _default_mode() -> int:
@@ -20,25 +24,53 @@ def _default_mode() -> int:
 _NEW_FILE_MODE = _default_mode()
 
 
-def write_bytes_atomic(path: str | os.PathLike, data: bytes) -> None:
+def _target(path: str | os.PathLike, follow_links: bool) -> str:
+    """The file the bytes end up in: links followed (the link is kept, its target replaced), or, with
+    ``follow_links=False``, the name itself (a link there is replaced by the new file, its target untouched)."""
+    text = os.fspath(path)
+    return os.path.realpath(text) if follow_links else os.path.abspath(text)
+
+
+def _mode_of(target: str, follow_links: bool) -> int:
+    try:
+        st = os.stat(target) if follow_links else os.lstat(target)
+    except FileNotFoundError:
+        return _NEW_FILE_MODE
+    return stat.S_IMODE(st.st_mode) if stat.S_ISREG(st.st_mode) else _NEW_FILE_MODE
+
+
+def _temporary(folder: str, target: str):
+    """A new, exclusively created temporary file beside ``target`` (its name keeps the target's suffix)."""
+    base = os.path.basename(target)
+    suffix = os.path.splitext(base)[1][:16]
+    return tempfile.NamedTemporaryFile("wb", dir=folder, prefix="." + base[:60] + ".", suffix=".tmp" + suffix,
+                                       delete=False)
+
+
+def _unlink_quietly(name: str | None) -> None:
+    if name is not None:
+        try:
+            os.unlink(name)
+        except OSError:
+            pass
+
+
+def write_bytes_atomic(path: str | os.PathLike, data: bytes, *, follow_links: bool = True) -> None:
     """Write ``data`` to ``path`` so that a crash never leaves half a file.
 
     The bytes go to a temporary file in the target's folder, are flushed and
     fsync'ed, then renamed over the target (``os.replace``); the target's
-    permissions are kept. A symbolic link at ``path`` is followed. On any
-    ``OSError`` the temporary file is removed, the previous file is left as it
-    was, and the ``OSError`` is raised.
+    permissions are kept. A symbolic link at ``path`` is followed (its target is
+    replaced, the link kept) unless ``follow_links=False`` (the link itself is
+    replaced and its target never written). On any ``OSError`` the temporary file
+    is removed, the previous file is left as it was, and the ``OSError`` is raised.
     """
-    target = os.path.realpath(os.fspath(path))
+    target = _target(path, follow_links)
     folder = os.path.dirname(target)
     tmp_name = None
     try:
-        try:
-            mode = stat.S_IMODE(os.stat(target).st_mode)
-        except FileNotFoundError:
-            mode = _NEW_FILE_MODE
-        with tempfile.NamedTemporaryFile("wb", dir=folder, prefix="." + os.path.basename(target) + ".",
-                                         suffix=".tmp", delete=False) as f:
+        mode = _mode_of(target, follow_links)
+        with _temporary(folder, target) as f:
             tmp_name = f.name
             f.write(data)
             f.flush()
@@ -47,11 +79,38 @@ def write_bytes_atomic(path: str | os.PathLike, data: bytes) -> None:
         os.replace(tmp_name, target)
         tmp_name = None
     finally:
-        if tmp_name is not None:
-            try:
-                os.unlink(tmp_name)
-            except OSError:
-                pass
+        _unlink_quietly(tmp_name)
+    _sync_folder(folder)
+
+
+@contextlib.contextmanager
+def atomic_path(path: str | os.PathLike, *, follow_links: bool = True) -> Iterator[str]:
+    """A temporary file name beside ``path`` for a writer that wants a file name (pyarrow, matplotlib, Qt).
+
+    ``with atomic_path("out.csv") as tmp: writer(tmp)``: the writer fills ``tmp`` (an empty file, created
+    exclusively in the target's folder, its name ending in the target's suffix); when the block ends without an
+    exception the file is fsync'ed and renamed over ``path`` (``os.replace``), so the target is either the old
+    file or the whole new one. On an exception (a full disk, a failed render) the temporary file is removed, the
+    old file is left as it was, and the exception goes on. Links are treated as in ``write_bytes_atomic``.
+    """
+    target = _target(path, follow_links)
+    folder = os.path.dirname(target)
+    tmp_name = None
+    try:
+        mode = _mode_of(target, follow_links)
+        with _temporary(folder, target) as f:
+            tmp_name = f.name
+        yield tmp_name
+        fd = os.open(tmp_name, os.O_RDONLY | getattr(os, "O_NOFOLLOW", 0))
+        try:
+            os.fsync(fd)
+        finally:
+            os.close(fd)
+        os.chmod(tmp_name, mode)
+        os.replace(tmp_name, target)
+        tmp_name = None
+    finally:
+        _unlink_quietly(tmp_name)
     _sync_folder(folder)
 
 

@@ -15,6 +15,16 @@ REFERENCE_RECOVERY_NAME = "mil-e-5008b"
 
 
 @dataclass(frozen=True)
+class LimitRegion:
+    """Where one check is judged (method section 15): ``check`` is a check name (``point --json``
+    ``checks[].name``); bounds included, ``None`` for no bound on that axis."""
+
+    check: str
+    mach_range: tuple[float, float] | None = None
+    altitude_range_m: tuple[float, float] | None = None
+
+
+@dataclass(frozen=True)
 class Limits:
     face_mach_max: float
     throat_mach_max: float | None = None
@@ -24,6 +34,16 @@ class Limits:
     spillage_fraction_max: float | None = None  # extension: optional limit on spillage
     started_required: bool | None = None  # mixed-compression: None means the type's default (true)
     installation_loss_max: float | None = None  # needs thrust data in the ratings
+    dc60_max: float | None = None  # method §18: judged where distortion data give DC(60)
+    surge_margin_min: float | None = None  # method §18: remaining surge margin after the stack-up
+    regions: tuple[LimitRegion, ...] = ()  # [limits.region.NAME]: where a check is judged (default everywhere)
+
+    def region(self, check: str) -> LimitRegion | None:
+        """The region of the check named ``check``; None when it is judged everywhere."""
+        for r in self.regions:
+            if r.check == check:
+                return r
+        return None
 
 
 @dataclass(frozen=True)
@@ -65,6 +85,19 @@ class Inlet:
 
 
 @dataclass(frozen=True)
+class Stability:
+    """The engine maker's surge-margin stack-up for one rating (method §18, after SAE AIR1419).
+
+    Fractions of the surge pressure ratio; sensitivities per equal-area ring, innermost first;
+    ``other_losses`` the named stack-up items as (name, fraction) pairs in file order."""
+
+    available_surge_margin: float
+    circumferential_sensitivity: tuple[float, ...]
+    radial_sensitivity: tuple[float, ...]
+    other_losses: tuple[tuple[str, float], ...] = ()
+
+
+@dataclass(frozen=True)
 class Rating:
     name: str
     theta: tuple[float, ...]
@@ -76,6 +109,7 @@ class Rating:
     net_thrust_n: tuple[tuple[float, ...], ...] | None = None  # one row per thrust_altitude_m
     thrust_reference_recovery: float | str | None = None  # a number or "mil-e-5008b"
     recovery_thrust_exchange: float | None = None  # dF/F per dpi/pi, from the engine maker
+    stability: Stability | None = None  # [engine.rating.stability], method §18
 
 
 @dataclass(frozen=True)

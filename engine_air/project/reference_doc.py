@@ -48,7 +48,8 @@ def _allowed(f: Field) -> str:
 
 
 def _kind(f: Field) -> str:
-    return {"number or name": "number or text", "choice": "text", "number table": "list of number lists"}.get(
+    return {"number or name": "number or text", "choice": "text", "number table": "list of number lists",
+                   "named numbers": "table of numbers"}.get(
         f.kind, f.kind)
 
 
@@ -105,7 +106,9 @@ def main(argv: list[str] | None = None) -> int:
             return 1
         return 0
     DOC_PATH.parent.mkdir(parents=True, exist_ok=True)
-    DOC_PATH.write_text(text, encoding="utf-8")
+    from engine_air.outputs.writer import write_output_text
+
+    write_output_text(DOC_PATH, text)  # whole or not at all
     print(f"wrote {DOC_PATH}")
     return 0
 

@@ -8,7 +8,10 @@ of the project's inlet type, and keys at their default value left out (the [grid
 from __future__ import annotations
 
 import errno
+import json
 import os
+import re
+from typing import TYPE_CHECKING
 
 import tomli_w
 
@@ -17,6 +20,9 @@ from engine_air.project.atomic import is_read_only, write_bytes_atomic
 from engine_air.project.errors import ProjectSaveError
 from engine_air.project.model import Project
 from engine_air.project.schema_field import REQUIRED, Field
+
+if TYPE_CHECKING:
+    from engine_air.project.fingerprint import Fingerprint
 
 
 def _plain(value):
@@ -45,16 +51,28 @@ def project_to_dict(project: Project) -> dict:
     inlet = _body(project.inlet, S.inlet_fields(kind))
     if project.inlet.schedule is not None:
         inlet["schedule"] = _body(project.inlet.schedule, S.schedule_fields(kind))
+    limits = _body(project.limits, S.LIMIT_FIELDS)
+    if project.limits.regions:
+        limits["region"] = {r.check: _body(r, S.LIMIT_REGION_FIELDS) for r in project.limits.regions}
     out = {
         "project": _body(project, S.PROJECT_FIELDS),
-        "limits": _body(project.limits, S.LIMIT_FIELDS),
+        "limits": limits,
         "inlet": inlet,
-        "engine": {"rating": [_body(x, S.RATING_FIELDS) for x in project.ratings]},
+        "engine": {"rating": [_rating_body(x) for x in project.ratings]},
         "envelope": _body(project.envelope, S.ENVELOPE_FIELDS),
         "grid": _body(project.grid, S.GRID_FIELDS, keep_defaults=True),  # the resolution is always shown
         "case": [_body(c, S.CASE_FIELDS) for c in project.cases],
     }
     return out
+
+
+def _rating_body(rating) -> dict:
+    body = _body(rating, S.RATING_FIELDS)
+    if rating.stability is not None:
+        stability = _body(rating.stability, S.fields("engine.rating.stability"))
+        stability["other_losses"] = dict(rating.stability.other_losses)
+        body["stability"] = stability
+    return body
 
 
 _HEADER = "# engine-air project file. SI units: m, m^2, kg/s, m/s, K; angles in degrees. Keys: docs/project-file.md"
@@ -70,7 +88,13 @@ def _toml_value(value: object) -> str:
         per_line = 1 if any(isinstance(v, (list, tuple)) for v in value) else _ITEMS_PER_LINE
         rows = [", ".join(items[i:i + per_line]) for i in range(0, len(items), per_line)]
         return "[\n    " + ",\n    ".join(rows) + ",\n]"
+    if isinstance(value, dict):  # a small table of name = number, written inline
+        return "{ " + ", ".join(f"{_toml_key(k)} = {_toml_value(v)}" for k, v in value.items()) + " }"
     return tomli_w.dumps({"v": value})[len("v = "):].rstrip("\n")
+
+
+def _toml_key(key: str) -> str:
+    return key if re.fullmatch(r"[A-Za-z0-9_-]+", key) else json.dumps(key)
 
 
 def dumps_project(project: Project) -> str:
@@ -78,18 +102,23 @@ def dumps_project(project: Project) -> str:
     d = project_to_dict(project)
     out = [_HEADER, ""]
 
-    def table(header: str, body: dict) -> None:
+    def table(header: str, body: dict, inline_tables: bool = False) -> None:
         out.append(header)
-        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items() if not isinstance(value, dict))
+        out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items()
+                   if inline_tables or not isinstance(value, dict))
         out.append("")
 
     table("[project]", d["project"])
     table("[limits]", d["limits"])
+    for name, body in d["limits"].get("region", {}).items():
+        table(f"[limits.region.{name}]", body)
     table("[inlet]", d["inlet"])
     if "schedule" in d["inlet"]:
         table("[inlet.schedule]", d["inlet"]["schedule"])
     for item in d["engine"]["rating"]:
         table("[[engine.rating]]", item)
+        if "stability" in item:
+            table("[engine.rating.stability]", item["stability"], inline_tables=True)
     table("[envelope]", d["envelope"])
     table("[grid]", d["grid"])
     for item in d["case"]:
@@ -97,17 +126,28 @@ def dumps_project(project: Project) -> str:
     return "\n".join(out)
 
 
-def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False) -> None:
-    """Write ``project`` to ``path`` atomically (``write_bytes_atomic``).
+def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False, *,
+                 expected: Fingerprint | None = None, overwrite: bool = False) -> Fingerprint | None:
+    """Write ``project`` to ``path`` atomically (``write_bytes_atomic``); returns the new file's ``Fingerprint``.
 
     A read-only file at ``path`` is not replaced: ``ProjectSaveError`` says so, unless
     ``overwrite_read_only=True`` (the program asks the user first); the new file keeps the old permissions.
+    ``expected``: the fingerprint of the file when it was opened or last saved (``file_fingerprint``, or what
+    the last ``save_project`` returned); when the file on disk is no longer that file (another program or
+    window saved it since), ``FileChangedError`` (a ``ProjectSaveError``) is raised and nothing is written,
+    unless ``overwrite=True``. Without ``expected`` the file is not compared.
     On any ``OSError`` the previous file is left as it was and ``ProjectSaveError`` is raised.
     """
+    from engine_air.project.fingerprint import bytes_fingerprint, check_unchanged  # only when saving
+
+    if expected is not None and not overwrite:
+        check_unchanged(path, expected)
     if not overwrite_read_only and is_read_only(path):
         raise ProjectSaveError(os.fspath(path), "the file is read-only; it was not replaced (save under another "
                                                 "name, or make the file writable first)", errno.EACCES)
+    data = dumps_project(project).encode("utf-8")
     try:
-        write_bytes_atomic(path, dumps_project(project).encode("utf-8"))
+        write_bytes_atomic(path, data)
     except OSError as exc:
         raise ProjectSaveError(os.fspath(path), exc.strerror or str(exc), exc.errno) from exc
+    return bytes_fingerprint(path, data)

@@ -16,6 +16,7 @@ from __future__ import annotations
 import difflib
 from dataclasses import dataclass, replace
 
+from engine_air.envelope.check_names import CHECK_NAMES
 from engine_air.project.inlet_keys import DECLARED
 from engine_air.project.model import REFERENCE_RECOVERY_NAME
 from engine_air.project.schema_field import REQUIRED, Field
@@ -47,6 +48,10 @@ MAX_CORRECTED_FLOW_KG_S = 5000.0
 MAX_TIP_SPEED_M_S = 1000.0
 MAX_THRUST_N = 1.0e7
 MAX_MACH = 6.0
+MAX_RINGS = 20
+"""Most equal-area rings of a rake (and entries of a stability sensitivity list)."""
+MAX_STACK_UP_ITEMS = 50
+"""Most named items in ``other_losses``."""
 MIN_ALTITUDE_M = -5000.0
 MAX_ALTITUDE_M = 84000.0
 
@@ -76,6 +81,11 @@ class Table:
 TABLES: tuple[Table, ...] = (
     Table("project", False, True, "the file itself: format number, title and notes"),
     Table("limits", False, True, "the limits every point of the envelope is judged against"),
+    Table("limits.region.<check>", False, False,
+          "where one check is judged (method section 15): one table per check that has a region, the last part of "
+          "its name the check's name, one of " + ", ".join(CHECK_NAMES) + " (the names of `engine-air point --json` "
+          "checks[].name). Outside the region the check is not judged at that point: no verdict, no margin, "
+          "not in the least margin and not in the failing share; give mach_range, altitude_range_m or both"),
     Table("inlet", False, True, "inlet geometry and airflow management; which keys apply depends on inlet.type"),
     Table("inlet.schedule", False, False,
           "geometry scheduled against flight Mach number M0: linear between the listed Mach numbers, end values "
@@ -84,6 +94,10 @@ TABLES: tuple[Table, ...] = (
     Table("engine.rating", True, True,
           "engine ratings: corrected airflow demand against theta2 = T_t2/T_ref, optional fan tip speed and "
           "thrust table; one table per rating"),
+    Table("engine.rating.stability", False, False,
+          "the engine maker's surge-margin stack-up for the rating above it (method section 18, after SAE AIR1419, "
+          "recalled, not copied): available margin, loss sensitivities per equal-area ring (innermost first) and "
+          "the other named stack-up items; the distortion command and the surge-margin check use it"),
     Table("envelope", False, True,
           "the flight envelope as a polygon in (Mach, geopotential altitude), vertices in order, closed "
           "automatically"),
@@ -140,6 +154,26 @@ LIMIT_FIELDS = (
     _num("installation_loss_max", "limits",
          "largest installation loss (1 - installed thrust / net thrust) allowed; needs thrust data in the ratings",
          lo=0.0, hi=1.0, lo_open=True, hi_open=True, decimals=3, step=0.01),
+    _num("dc60_max", "limits",
+         "largest distortion descriptor DC(60) allowed (method section 18); judged where rake or characteristics "
+         "data give DC(60)", lo=0.0, hi=10.0, lo_open=True, decimals=3, step=0.01),
+    _num("surge_margin_min", "limits",
+         "least remaining surge margin (fraction of the surge pressure ratio) after the stack-up of "
+         "[engine.rating.stability]; judged where distortion data give the loss", lo=-1.0, hi=1.0, hi_open=True,
+         decimals=3, step=0.01),
+)
+
+REGION_TABLE = "limits.region.<check>"
+"""The schema's name of a ``[limits.region.NAME]`` table (``NAME`` a check name)."""
+
+LIMIT_REGION_FIELDS = (
+    Field("mach_range", REGION_TABLE, "number list",
+          "[lowest, highest] flight Mach number where the check is judged (bounds included); absent: every Mach",
+          lo=0.0, hi=MAX_MACH, length=(2, 2), order="non-decreasing", decimals=3),
+    Field("altitude_range_m", REGION_TABLE, "number list",
+          "[lowest, highest] geopotential altitude where the check is judged (bounds included); absent: every "
+          "altitude", unit="m", lo=MIN_ALTITUDE_M, hi=MAX_ALTITUDE_M, length=(2, 2), order="non-decreasing",
+          decimals=0),
 )
 
 INLET_COMMON_FIELDS = (
@@ -215,6 +249,26 @@ RATING_FIELDS = (
     _num("recovery_thrust_exchange", "engine.rating",
          "thrust exchange rate X = (dF/F)/(dp_t/p_t) from the engine maker; no default", lo=0.0, hi=10.0,
          requires=("net_thrust_n",), decimals=3, step=0.05),
+)
+
+_FRACTION = dict(lo=0.0, hi=1.0, hi_open=True, decimals=4, step=0.01)
+
+STABILITY_FIELDS = (
+    _num("available_surge_margin", "engine.rating.stability",
+         "surge margin available before distortion and the other stack-up items, a fraction of the surge pressure "
+         "ratio", default=REQUIRED, **_FRACTION),
+    Field("circumferential_sensitivity", "engine.rating.stability", "number list",
+          "KC per equal-area ring, innermost first: loss of surge pressure ratio per unit ring circumferential "
+          "intensity (delta PC/P)_i", lo=0.0, hi=100.0, length=(1, MAX_RINGS), default=REQUIRED, decimals=3,
+          step=0.05),
+    Field("radial_sensitivity", "engine.rating.stability", "number list",
+          "KR per equal-area ring, innermost first: loss of surge pressure ratio per unit ring radial intensity "
+          "(delta PR/P)_i", lo=0.0, hi=100.0, length=(1, MAX_RINGS), default=REQUIRED,
+          same_length_as="circumferential_sensitivity", decimals=3, step=0.05),
+    Field("other_losses", "engine.rating.stability", "named numbers",
+          "the other stack-up items the engine maker lists, each a fraction of the surge pressure ratio, e.g. "
+          "{ tolerances = 0.04, deterioration = 0.03 }", length=(0, MAX_STACK_UP_ITEMS), default=None,
+          **_FRACTION),
 )
 
 ENVELOPE_FIELDS = (
@@ -321,7 +375,9 @@ def fields(table_name: str, inlet_type: str | None = None) -> tuple[Field, ...]:
     return {
         "project": PROJECT_FIELDS,
         "limits": LIMIT_FIELDS,
+        REGION_TABLE: LIMIT_REGION_FIELDS,
         "engine.rating": RATING_FIELDS,
+        "engine.rating.stability": STABILITY_FIELDS,
         "envelope": ENVELOPE_FIELDS,
         "grid": GRID_FIELDS,
         "case": CASE_FIELDS,
@@ -343,9 +399,10 @@ def field(path: str, inlet_type: str | None = None) -> Field:
 
 
 def subtables(table_name: str) -> tuple[str, ...]:
-    """Names of the tables directly below ``table_name`` (``inlet`` → ``schedule``)."""
+    """Names of the tables directly below ``table_name`` (``inlet`` → ``schedule``, ``limits`` → ``region``)."""
     prefix = table_name + "."
-    return tuple(t.name[len(prefix):] for t in TABLES if t.name.startswith(prefix) and "." not in t.name[len(prefix):])
+    below = (t.name[len(prefix):].partition(".")[0] for t in TABLES if t.name.startswith(prefix))
+    return tuple(dict.fromkeys(below))
 
 
 def suggestion(name: str, candidates) -> str | None:

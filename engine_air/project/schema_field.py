@@ -13,7 +13,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-KINDS = ("number", "integer", "text", "boolean", "number list", "number table", "number or name", "choice")
+KINDS = ("number", "integer", "text", "boolean", "number list", "number table", "number or name", "choice",
+         "named numbers")
 
 
 @dataclass(frozen=True)
@@ -21,7 +22,8 @@ class Field:
     """A key of the project file.
 
     ``kind``: "number", "integer", "text", "boolean", "number list", "number table" (a list of number lists),
-    "number or name" (a number, or one of ``names``, case-insensitive) or "choice" (one of ``names``).
+    "number or name" (a number, or one of ``names``, case-insensitive), "choice" (one of ``names``) or "named
+    numbers" (a TOML table of name = number, kept as (name, value) pairs in file order).
     ``lo``/``hi`` bound numbers (and list entries); ``lo_open``/``hi_open`` say whether the bound itself is
     excluded. ``length`` is (least, most) entries of a list (rows of a table), ``None`` for unbounded; for text,
     ``length=(1, None)`` means it must not be blank. ``order`` is "" (any), "increasing" (strictly) or
@@ -108,6 +110,9 @@ class Field:
         if k == "number or name":
             names = " or ".join(f'"{n}"' for n in self.names)
             return f"a finite number with {self.bounds_text()}, or the name {names}"
+        if k == "named numbers":
+            return ("a table of name = number, e.g. { tolerances = 0.04 }, with " + self.bounds_text("each value")
+                    + (f", at most {self.length[1]} names" if self.length and self.length[1] else ""))
         entries = self.bounds_text("each entry" if k == "number list" else "each value")
         shape = ""
         if self.length is not None:

@@ -142,9 +142,13 @@ class VerdictRow:
     @property
     def change(self) -> str:
         if self.a is None:
-            return "only in B" + (" (holds)" if self.b.holds else " (fails)")
+            return f"only in B ({self.b.verdict.lower()})"
         if self.b is None:
-            return "only in A" + (" (holds)" if self.a.holds else " (fails)")
+            return f"only in A ({self.a.verdict.lower()})"
+        if not self.a.judged or not self.b.judged:
+            if self.a.judged == self.b.judged:
+                return "not judged anywhere in either"
+            return "not judged anywhere in " + ("A" if not self.a.judged else "B")
         if self.a.holds and self.b.holds:
             return "holds in both"
         if not self.a.holds and not self.b.holds:
@@ -312,12 +316,14 @@ def compare_columns(c: CompareResult, quantities: tuple[str, ...] = DIFFERENCE_Q
     return cols
 
 
-def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES) -> int:
-    """``compare_columns`` written as CSV by ``engine_air.outputs.table``. Empty fields are values that are not
-    defined. Returns the number of rows written."""
+def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFFERENCE_QUANTITIES,
+                      inputs=()) -> int:
+    """``compare_columns`` written as CSV by ``engine_air.outputs.table`` (whole or not at all; never over one of
+    ``inputs``, e.g. the two project files). Empty fields are values that are not defined. Returns the number of
+    rows written."""
     from engine_air.outputs.table import write_table
 
-    return write_table(compare_columns(c, quantities), path, "csv")
+    return write_table(compare_columns(c, quantities), path, "csv", inputs)
 
 
 __all__ = [

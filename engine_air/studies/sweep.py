@@ -225,7 +225,7 @@ def variant_row(result: MapResult, index: tuple[int, ...], values: tuple[float, 
         judged = chk.applies & result.inside
         if judged.any():
             face = min(face, float(np.min(chk.margin[judged])))
-    failing = tuple(s.name for s in result.summary if not s.holds)
+    failing = tuple(s.name for s in result.summary if s.fails)
     return SweepRow(
         index=tuple(int(i) for i in index), values=tuple(float(v) for v in values),
         verdict="holds" if result.holds else "fails", worst_relative_margin=w.relative_margin,
@@ -561,12 +561,12 @@ def sweep_columns(result: SweepResult) -> dict:
     return cols
 
 
-def write_sweep_csv(result: SweepResult, path) -> int:
-    """One row per variant (``sweep_columns``), written by ``engine_air.outputs.table``. Undefined numbers are
-    empty fields. Returns the number of rows."""
+def write_sweep_csv(result: SweepResult, path, inputs=()) -> int:
+    """One row per variant (``sweep_columns``), written by ``engine_air.outputs.table`` (whole or not at all;
+    never over one of ``inputs``). Undefined numbers are empty fields. Returns the number of rows."""
     from engine_air.outputs.table import write_table
 
-    write_table(sweep_columns(result), path, "csv")
+    write_table(sweep_columns(result), path, "csv", inputs)
     return len(result.rows)
 
 

@@ -39,6 +39,12 @@ a feasible interval names the limit and the point (Mach, altitude, case) that
 fails just beyond it. A feasible interval narrower than the scan spacing can be
 missed: raise ``scan_points`` when that matters.
 
+``feasible_range(..., limits=[...])`` judges only the named checks (``point --json``
+``checks[].name``), e.g. ``["face-mach"]`` for a capture area that no other limit
+should empty; every check is judged only inside its region (method section 15).
+The answer names, per judged limit, the end of the feasible range it bounds
+(``SizingResult.limit_ends``).
+
 ``optimise(project, variable, objective, at, within)`` minimises a figure inside
 the feasible range with ``scipy.optimize.minimize_scalar(method="bounded")``,
 and also tries the interval's ends (a monotone figure is best at an end).
@@ -84,6 +90,7 @@ from engine_air.studies.sizing.feasible import (
     worst_margin,
     worst_point,
 )
+from engine_air.studies.sizing.limit_choice import chosen_limits, judged_by, project_check_names
 from engine_air.studies.sizing.optimum import (
     OBJECTIVES,
     POINT_OBJECTIVES,
@@ -113,7 +120,7 @@ from engine_air.studies.sizing.variables import (
 __all__ = [
     "AIRFLOW_VARIABLES", "AREA_VARIABLES", "COMMON_VARIABLES", "DEFAULT_SCAN_POINTS", "MAX_SCAN_POINTS", "MIN_SCAN_POINTS", "OBJECTIVES",
     "POINT_OBJECTIVES", "RTOL", "AllowedRange", "Bound", "Interval", "OptimumResult", "SizingResult", "WorstPoint",
-    "allowed_range", "default_search_range", "design_value", "design_variables", "feasible_range", "finite_number",
+    "allowed_range", "chosen_limits", "default_search_range", "judged_by", "project_check_names", "design_value", "design_variables", "feasible_range", "finite_number",
     "is_valid", "optimise", "parse_variable", "point_objective", "resolve_point", "variable_label", "variable_unit",
     "with_design_value", "with_design_values", "worst_margin", "worst_point",
 ]

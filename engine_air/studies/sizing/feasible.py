@@ -3,6 +3,9 @@
 g(v) = min over cases, envelope points and checks of the relative margin; every limit holds exactly where
 g(v) >= 0. g is scanned at evenly spaced values and each change between feasible and infeasible neighbours is
 refined by Brent's method, then closed by bisection (see the package text of ``engine_air.studies.sizing``).
+With ``limits`` only the named checks are judged (``engine_air.studies.sizing.limit_choice``); every check is
+judged only inside its region (method section 15). The answer says, per judged limit, which end of the
+feasible range it bounds.
 """
 
 from __future__ import annotations
@@ -18,6 +21,7 @@ from scipy.optimize import brentq
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
 from engine_air.project.errors import ProjectError
 from engine_air.project.model import Project
+from engine_air.studies.sizing.limit_choice import chosen_limits, judged_by
 from engine_air.studies.sizing.variables import (
     AllowedRange,
     allowed_range,
@@ -66,7 +70,7 @@ def worst_point(result: MapResult) -> WorstPoint:
     from engine_air.envelope.ranking import worst_point as _worst
 
     best = _worst([cm.points for cm in result.cases], result.inside)
-    holds = all(s.holds for s in result.summary)
+    holds = result.holds  # a limit judged nowhere (outside its region everywhere) does not fail
     if best is None:
         return WorstPoint(math.inf, math.nan, math.nan, None, "", "", math.nan, math.nan, "", holds)
     cm = result.cases[best.case]
@@ -82,9 +86,9 @@ def worst_point(result: MapResult) -> WorstPoint:
 class _Evaluator:
     """g(v) with a cache, an evaluation count, progress and cancel."""
 
-    def __init__(self, project, variable, case_names, cancelled):
+    def __init__(self, project, variable, case_names, cancelled, limits=None):
         self.project, self.variable, self.case_names = project, variable, case_names
-        self.cancelled = cancelled
+        self.cancelled, self.limits = cancelled, limits
         self.cache: dict[float, WorstPoint] = {}
         self.count = 0
 
@@ -96,7 +100,7 @@ class _Evaluator:
         if self.cancelled is not None and self.cancelled():
             raise Cancelled()
         edited = with_design_value(self.project, self.variable, value)
-        w = worst_point(evaluate_project(edited, self.case_names))
+        w = worst_point(judged_by(evaluate_project(edited, self.case_names), self.limits))
         self.cache[value] = w
         self.count += 1
         return w
@@ -106,9 +110,12 @@ class _Evaluator:
         return float(np.clip(self.worst(value).relative_margin, -1e6, 1e6))
 
 
-def worst_margin(project: Project, variable: str, value: float, case_names: list[str] | None = None) -> WorstPoint:
-    """g(value): the worst relative margin over the envelope with ``variable`` set to ``value``."""
-    return worst_point(evaluate_project(with_design_value(project, variable, value), case_names))
+def worst_margin(project: Project, variable: str, value: float, case_names: list[str] | None = None,
+                 limits: tuple[str, ...] | None = None) -> WorstPoint:
+    """g(value): the worst relative margin over the envelope with ``variable`` set to ``value`` (over the checks
+    named in ``limits`` only, when given)."""
+    return worst_point(judged_by(evaluate_project(with_design_value(project, variable, value), case_names),
+                                 chosen_limits(project, limits)))
 
 
 # -- the feasible range ----------------------------------------------------------
@@ -180,11 +187,41 @@ class SizingResult:
     evaluations: int = 0
     seconds: float = 0.0
     current: WorstPoint | None = None
+    limits: tuple[str, ...] = ()  # the checks judged (every check of the project unless some were named)
+    limits_named: bool = False  # True when only the named checks were judged
 
     @property
     def feasible(self) -> bool:
         """True when some value in the search interval makes every limit hold."""
         return bool(self.intervals)
+
+    def limit_ends(self) -> dict[str, list[tuple[int, str, float]]]:
+        """Per judged check, the ends of the feasible intervals it bounds: (interval number from 1, "lower" or
+        "upper", value); an empty list for a check that bounds no end in the search range."""
+        ends: dict[str, list[tuple[int, str, float]]] = {name: [] for name in self.limits}
+        for i, iv in enumerate(self.intervals):
+            for side, bound in (("lower", iv.lower), ("upper", iv.upper)):
+                if bound.kind == "limit" and bound.check is not None:
+                    ends.setdefault(bound.check, []).append((i + 1, side, bound.value))
+        return ends
+
+    def describe_limits(self) -> list[str]:
+        """One line per judged check: which end of the feasible range it bounds."""
+        u = f" {self.unit}" if self.unit else ""
+        several = len(self.intervals) > 1
+        out = ["Limits judged: " + ("only " if self.limits_named else "every check: ") + ", ".join(self.limits)
+               + "."]
+        for name, ends in self.limit_ends().items():
+            if ends:
+                text = "; ".join(f"the {side} end" + (f" of interval {i}" if several else "") + f" ({v:.6g}{u})"
+                                 for i, side, v in ends)
+                out.append(f"  {name}: bounds {text}.")
+            elif not self.intervals:
+                count = sum(1 for c in self.scan_check if c == name)
+                out.append(f"  {name}: the limiting check at {count} of {len(self.scan_check)} values scanned.")
+            else:
+                out.append(f"  {name}: bounds no end of the feasible range in the search range.")
+        return out
 
     def describe(self) -> list[str]:
         """The answer in plain words, one line each."""
@@ -205,6 +242,7 @@ class SizingResult:
             out.append(f"Feasible interval {i + 1}: {iv.lower.value:.6g} to {iv.upper.value:.6g}{u}.")
             out.append(f"  lower end {iv.lower.value:.6g}{u}: {iv.lower.describe()}")
             out.append(f"  upper end {iv.upper.value:.6g}{u}: {iv.upper.describe()}")
+        out += self.describe_limits()
         out += [f"Note: {n}" for n in self.notes]
         return out
 
@@ -266,6 +304,50 @@ def _refine(ev: _Evaluator, good: float, bad: float) -> tuple[float, float]:
     return good, bad
 
 
+def _limit_bound(ev: _Evaluator, good: float, bad: float) -> Bound:
+    """The end of a feasible interval where a limit fails just beyond (``bad``)."""
+    wi, wo = ev.worst(good), ev.worst(bad)
+    return Bound(value=good, kind="limit", check=wo.check, label=wo.label, limit_text=wo.limit_text,
+                 mach=wo.mach, altitude_m=wo.altitude_m, case=wo.case, relative_margin_inside=wi.relative_margin,
+                 relative_margin_outside=wo.relative_margin, outside=bad)
+
+
+def _end_bound(ev: _Evaluator, value: float, at_rule: bool, reason: str) -> Bound:
+    """The end of a feasible interval at the end of the search range (or of what the rules allow)."""
+    w = ev.worst(value)
+    return Bound(value=value, kind="rule" if at_rule else "search", check=w.check, label=w.label,
+                 limit_text=w.limit_text, mach=w.mach, altitude_m=w.altitude_m, case=w.case,
+                 relative_margin_inside=w.relative_margin, reason=reason)
+
+
+def _intervals(ev: _Evaluator, values: np.ndarray, ok: np.ndarray, allowed: AllowedRange, tick) -> list[Interval]:
+    """The feasible intervals from the scan: each run of feasible scan values, its ends refined where a limit
+    fails beyond them and kept where the scan (or the rules) end."""
+    n = len(values)
+    intervals: list[Interval] = []
+    i = 0
+    while i < n:
+        if not ok[i]:
+            i += 1
+            continue
+        j = i
+        while j + 1 < n and ok[j + 1]:
+            j += 1
+        if i == 0:
+            low = _end_bound(ev, values[0], values[0] == allowed.lower, allowed.lower_reason)
+        else:
+            low = _limit_bound(ev, *_refine(ev, values[i], values[i - 1]))
+            tick()
+        if j == n - 1:
+            high = _end_bound(ev, values[-1], values[-1] == allowed.upper, allowed.upper_reason)
+        else:
+            high = _limit_bound(ev, *_refine(ev, values[j], values[j + 1]))
+            tick()
+        intervals.append(Interval(low, high))
+        i = j + 1
+    return intervals
+
+
 def feasible_range(
     project: Project,
     variable: str,
@@ -274,6 +356,7 @@ def feasible_range(
     *,
     scan_points: int = DEFAULT_SCAN_POINTS,
     case_names: list[str] | None = None,
+    limits: list[str] | tuple[str, ...] | None = None,
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
 ) -> SizingResult:
@@ -293,6 +376,10 @@ def feasible_range(
         Values scanned evenly from lower to upper (3 to 201; 25 by default).
     case_names : list of str, optional
         Judge only these cases (default: every case).
+    limits : list of str, optional
+        Judge only these checks (``point --json`` ``checks[].name``; default:
+        every check of the project). ``ProjectError`` for a name the project
+        has not.
     progress, cancelled : callables, optional
         ``progress(fraction)`` after each envelope evaluation; ``cancelled()``
         polled before each, raising ``engine_air.envelope.evaluate.Cancelled``.
@@ -302,7 +389,8 @@ def feasible_range(
     SizingResult
         ``intervals`` (possibly empty: ``feasible`` is False and ``describe()``
         says so), each end a ``Bound`` naming the limit and the point that fail
-        just beyond it; ``scan_values``/``scan_margin`` for a plot of g(v).
+        just beyond it; ``scan_values``/``scan_margin`` for a plot of g(v);
+        ``limit_ends()`` which end each judged limit bounds.
 
     Each boundary is closed to a bracket narrower than 1e-6 times its value; the
     reported end is the feasible side of the bracket, where every limit holds.
@@ -310,14 +398,15 @@ def feasible_range(
     t_start = time.perf_counter()
     parse_variable(project, variable)
     n = _check_count("scan_points", scan_points)
+    named = chosen_limits(project, limits)
     notes: list[str] = []
     lo, hi, allowed = _search_interval(project, variable, lower, upper, notes)
-    ev = _Evaluator(project, variable, case_names, cancelled)
-    expected = n + 1 + 2 * 16
+    ev = _Evaluator(project, variable, case_names, cancelled, named)
+    expected = [n + 1 + 2 * 16]
 
     def tick():
         if progress is not None:
-            progress(min(0.99, ev.count / expected))
+            progress(min(0.99, ev.count / expected[0]))
 
     values = np.linspace(lo, hi, n)
     worsts = []
@@ -325,46 +414,11 @@ def feasible_range(
         worsts.append(ev.worst(v))
         tick()
     current_value = design_value(project, variable)
-    current = worst_point(evaluate_project(project, case_names))
+    current_result = judged_by(evaluate_project(project, case_names), named)
+    current = worst_point(current_result)
     ok = np.array([w.holds for w in worsts])
-    transitions = int(np.count_nonzero(ok[1:] != ok[:-1]))
-    expected = n + 1 + transitions * 16
-
-    def limit_bound(good, bad) -> Bound:
-        wi, wo = ev.worst(good), ev.worst(bad)
-        return Bound(value=good, kind="limit", check=wo.check, label=wo.label, limit_text=wo.limit_text,
-                     mach=wo.mach, altitude_m=wo.altitude_m, case=wo.case, relative_margin_inside=wi.relative_margin,
-                     relative_margin_outside=wo.relative_margin, outside=bad)
-
-    def end_bound(value, at_rule: bool, reason: str) -> Bound:
-        w = ev.worst(value)
-        return Bound(value=value, kind="rule" if at_rule else "search", check=w.check, label=w.label,
-                     limit_text=w.limit_text, mach=w.mach, altitude_m=w.altitude_m, case=w.case,
-                     relative_margin_inside=w.relative_margin, reason=reason)
-
-    intervals: list[Interval] = []
-    i = 0
-    while i < n:
-        if not ok[i]:
-            i += 1
-            continue
-        j = i
-        while j + 1 < n and ok[j + 1]:
-            j += 1
-        if i == 0:
-            low = end_bound(values[0], values[0] == allowed.lower, allowed.lower_reason)
-        else:
-            good, bad = _refine(ev, values[i], values[i - 1])
-            tick()
-            low = limit_bound(good, bad)
-        if j == n - 1:
-            high = end_bound(values[-1], values[-1] == allowed.upper, allowed.upper_reason)
-        else:
-            good, bad = _refine(ev, values[j], values[j + 1])
-            tick()
-            high = limit_bound(good, bad)
-        intervals.append(Interval(low, high))
-        i = j + 1
+    expected[0] = n + 1 + int(np.count_nonzero(ok[1:] != ok[:-1])) * 16
+    intervals = _intervals(ev, values, ok, allowed, tick)
     if progress is not None:
         progress(1.0)
     return SizingResult(
@@ -372,6 +426,5 @@ def feasible_range(
         scan_values=values, scan_margin=np.array([w.relative_margin for w in worsts]),
         scan_check=[w.check for w in worsts], intervals=intervals, notes=notes, evaluations=ev.count + 1,
         seconds=time.perf_counter() - t_start, current=current,
+        limits=tuple(s.name for s in current_result.summary), limits_named=named is not None,
     )
-
-

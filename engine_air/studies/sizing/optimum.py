@@ -28,6 +28,7 @@ from engine_air.studies.sizing.feasible import (
     feasible_range,
     worst_point,
 )
+from engine_air.studies.sizing.limit_choice import chosen_limits, judged_by
 from engine_air.studies.sizing.variables import finite_number, variable_unit, with_design_value
 
 POINT_OBJECTIVES = ("spillage_fraction", "additive_drag_coefficient", "spillage_drag_coefficient")
@@ -99,6 +100,49 @@ def point_objective(project: Project, objective: str, at) -> tuple[float, list[s
     return float(np.asarray(pts.value(objective))[0]), F.names_of(int(pts.flags[0]))
 
 
+def _check_point_objective(project, variable, objective, at_resolved, sizing) -> None:
+    """A point objective must be defined at its point (probed in the middle of the first feasible interval)."""
+    iv = sizing.intervals[0]
+    probe = 0.5 * (iv.lower.value + iv.upper.value)
+    value0, names = point_objective(with_design_value(project, variable, probe), objective, at_resolved)
+    if not math.isfinite(value0):
+        why = "; ".join(F.DESCRIPTIONS[n] for n in names if n != "ok") or "not defined there"
+        raise ProjectError(None, "objective", objective,
+                           f"is not defined at Mach {at_resolved[0]:g}, {at_resolved[1]:g} m, case "
+                           f"{at_resolved[2]!r}: {why}")
+
+
+def _best_value(f, intervals) -> tuple[float, float, Interval]:
+    """(objective, value, interval) of the least objective over the feasible intervals: each searched by
+    ``minimize_scalar(method="bounded")``, its ends tried too."""
+    best = None
+    for iv in intervals:
+        a, b = iv.lower.value, iv.upper.value
+        candidates = [a, b]
+        if b > a:
+            res = minimize_scalar(f, bounds=(a, b), method="bounded",
+                                  options={"xatol": RTOL * max(abs(a), abs(b)), "maxiter": 200})
+            candidates.append(float(res.x))
+        for v in candidates:
+            fv = f(v)
+            if best is None or fv < best[0]:
+                best = (fv, v, iv)
+    return best
+
+
+def _sizing_for(project, variable, within, scan_points, case_names, limits, progress, cancelled) -> SizingResult:
+    """The feasible range to search: ``within`` when it is one, else computed over ``within`` as a search
+    interval (None: the default interval)."""
+    if isinstance(within, SizingResult):
+        if within.variable != variable:
+            raise ProjectError(None, "within", within.variable,
+                               f"is the feasible range of another variable, not {variable}")
+        return within
+    lo, hi = (None, None) if within is None else within
+    return feasible_range(project, variable, lo, hi, scan_points=scan_points, case_names=case_names,
+                          limits=limits, progress=progress, cancelled=cancelled)
+
+
 def optimise(
     project: Project,
     variable: str,
@@ -107,6 +151,7 @@ def optimise(
     within: SizingResult | tuple[float, float] | None = None,
     *,
     case_names: list[str] | None = None,
+    limits: list[str] | tuple[str, ...] | None = None,
     scan_points: int = DEFAULT_SCAN_POINTS,
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
@@ -126,6 +171,9 @@ def optimise(
     within : SizingResult, (lower, upper) or None
         The feasible range to search: a result of ``feasible_range``, a search
         interval passed to it, or None for the default search interval.
+    limits : list of str, optional
+        Judge only these checks (as ``feasible_range``); with ``within`` a
+        ``SizingResult``, the checks it judged unless named here.
 
     Each feasible interval is searched with ``minimize_scalar(method="bounded")``
     (absolute tolerance 1e-6 times the interval's larger end) and its two ends
@@ -140,26 +188,21 @@ def optimise(
         raise ProjectError(None, "objective", objective, "must be one of " + ", ".join(OBJECTIVES))
     point = objective in POINT_OBJECTIVES
     at_resolved = resolve_point(project, at) if point else None
-
-    def sub_progress(lo, hi):
-        return None if progress is None else (lambda f: progress(lo + (hi - lo) * f))
-
-    if isinstance(within, SizingResult):
-        sizing = within
-        if sizing.variable != variable:
-            raise ProjectError(None, "within", sizing.variable, f"is the feasible range of another variable, not {variable}")
-    else:
-        lo, hi = (None, None) if within is None else within
-        sizing = feasible_range(project, variable, lo, hi, scan_points=scan_points, case_names=case_names,
-                                progress=sub_progress(0.0, 0.7), cancelled=cancelled)
+    if limits is None and isinstance(within, SizingResult) and within.limits_named:
+        limits = within.limits
+    named = chosen_limits(project, limits)
+    sizing = _sizing_for(project, variable, within, scan_points, case_names, named,
+                         None if progress is None else (lambda x: progress(0.7 * x)), cancelled)
     unit = variable_unit(variable)
     if not sizing.intervals:
         return OptimumResult(variable, unit, objective, at_resolved, None, math.nan, None, None, sizing, False,
                              "The feasible range is empty: no value makes every limit hold.",
                              sizing.evaluations, time.perf_counter() - t_start)
-
     count = [0]
     cache: dict[float, float] = {}
+
+    def worst_at(v: float) -> WorstPoint:
+        return worst_point(judged_by(evaluate_project(with_design_value(project, variable, v), case_names), named))
 
     def f(v: float) -> float:
         v = float(v)
@@ -167,42 +210,20 @@ def optimise(
             return cache[v]
         if cancelled is not None and cancelled():
             raise Cancelled()
-        edited = with_design_value(project, variable, v)
         count[0] += 1
         if point:
-            x, _ = point_objective(edited, objective, at_resolved)
+            x, _ = point_objective(with_design_value(project, variable, v), objective, at_resolved)
         else:
-            x = -worst_point(evaluate_project(edited, case_names)).relative_margin
-        x = x if math.isfinite(x) else 1e30  # undefined: never chosen over a defined value
-        cache[v] = x
+            x = -worst_at(v).relative_margin
+        cache[v] = x if math.isfinite(x) else 1e30  # undefined: never chosen over a defined value
         if progress is not None:
             progress(min(0.99, 0.7 + 0.3 * count[0] / (40 * len(sizing.intervals))))
-        return x
+        return cache[v]
 
     if point:
-        mid_iv = sizing.intervals[0]
-        probe = 0.5 * (mid_iv.lower.value + mid_iv.upper.value)
-        value0, names = point_objective(with_design_value(project, variable, probe), objective, at_resolved)
-        if not math.isfinite(value0):
-            why = "; ".join(F.DESCRIPTIONS[n] for n in names if n != "ok") or "not defined there"
-            raise ProjectError(None, "objective", objective,
-                               f"is not defined at Mach {at_resolved[0]:g}, {at_resolved[1]:g} m, case "
-                               f"{at_resolved[2]!r}: {why}")
-
-    best = None
-    for iv in sizing.intervals:
-        a, b = iv.lower.value, iv.upper.value
-        candidates = [a, b]
-        if b > a:
-            res = minimize_scalar(f, bounds=(a, b), method="bounded",
-                                  options={"xatol": RTOL * max(abs(a), abs(b)), "maxiter": 200})
-            candidates.append(float(res.x))
-        for v in candidates:
-            fv = f(v)
-            if best is None or fv < best[0]:
-                best = (fv, v, iv)
-    fv, v, iv = best
-    worst = worst_point(evaluate_project(with_design_value(project, variable, v), case_names))
+        _check_point_objective(project, variable, objective, at_resolved, sizing)
+    fv, v, iv = _best_value(f, sizing.intervals)
+    worst = worst_at(v)
     message = ""
     if v in (iv.lower.value, iv.upper.value):
         end = iv.lower if v == iv.lower.value else iv.upper
@@ -215,5 +236,3 @@ def optimise(
         progress(1.0)
     return OptimumResult(variable, unit, objective, at_resolved, v, fv, worst, iv, sizing, worst.holds, message,
                          sizing.evaluations + count[0] + 1, time.perf_counter() - t_start)
-
-
