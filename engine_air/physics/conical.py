@@ -86,16 +86,25 @@ def _steps(span, longest: float = _H) -> int:
     return max(4, int(math.ceil(float(np.max(np.abs(span), initial=0.0)) / longest)))
 
 
-def _taylor_maccoll(w, y):
+def _taylor_maccoll(w, y, cot=None):
     """dy/dw for y = (V_r, V_w) (outward past a shock a member may reach the sonic line of V_w and turn to
-    NaN; the callers read nothing beyond)."""
+    NaN; the callers read nothing beyond); ``cot``: cot(w) when known."""
     vr, vw = y[0], y[1]
     q = vw * vw
     a = _G1 * (1.0 - vr * vr - q)
     out = np.empty_like(y)
     out[0] = vw
-    out[1] = (q * vr - a * (2.0 * vr + vw / np.tan(w))) / (a - q)
+    out[1] = (q * vr - a * (2.0 * vr + vw * (1.0 / np.tan(w) if cot is None else cot))) / (a - q)
     return out
+
+
+def _cot(w):
+    return 1.0 / np.tan(w)
+
+
+def _tm_cot(cot, y):
+    """``_taylor_maccoll`` with the cotangents of the stages computed once (``rk8.integrate(..., at=_cot)``)."""
+    return _taylor_maccoll(None, y, cot)
 
 
 def _shock_f(w, vr, vw):
@@ -129,7 +138,7 @@ def _scan(w0, y0, w1, steps: int):
     step end, whether the flow there is sound (inside the sonic line of V_w) and whether f is smooth over the
     step before (its change within 20 % of the linear one: a step that ran into the sonic line is not)."""
     with np.errstate(all="ignore"):
-        y = integrate(_taylor_maccoll, w0, w1, y0, steps, nodes=True)
+        y = integrate(_tm_cot, w0, w1, y0, steps, nodes=True, at=_cot)
         w = w0 + (np.asarray(w1) - w0) * (np.arange(steps + 1) / steps)[:, None]
         vr, vw = y[:, 0], y[:, 1]
         f, df = _shock_f(w, vr, vw)
@@ -223,7 +232,9 @@ def _vertex(x, y, degree: int = 4):
 def _family(cone_deg: float) -> _Family:
     """Tabulate (M0, beta) over the surface Mach number for one cone; find the detachment point."""
     th = math.radians(cone_deg)
-    mc = np.concatenate([np.linspace(0.3, 1.0, 40, endpoint=False), np.geomspace(1.0, 40.0, 120)])
+    # surface Mach numbers from 0.6 (below every detachment point of a cone up to 41 deg: the strong branch
+    # further down only costs steps) far up the weak branch
+    mc = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
     top = 0.5 * math.pi - 1e-6
     m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05))
     # the family: the members next to one another about the least flight Mach number, up to _TOP_MACH
@@ -239,6 +250,10 @@ def _family(cone_deg: float) -> _Family:
     # the least one, closer in about the least of them until a quartic through nine of them fits to 1e-9
     k = int(np.argmin(m0))
     lo, hi = mc[max(k - 1, 0)], mc[min(k + 1, mc.size - 1)]
+    if 2 <= k <= mc.size - 3:  # the quartic through the five members about it: probes within half a spacing
+        guess, _, _ = _vertex(mc[k - 2:k + 3], m0[k - 2:k + 3])
+        half = 0.25 * (hi - lo)
+        lo, hi = max(lo, guess - half), min(hi, guess + half)
     for _ in range(6):
         probe = np.linspace(lo, hi, 17)
         end = np.minimum(np.interp(probe, mc, beta) + 0.1, top)
@@ -336,7 +351,7 @@ def _inward_pass(th: float, m0, beta):
     """From trial wave angles to the cone: V_w there (zero at the solution) and the surface speed."""
     vr, vw, _, _ = _behind_shock(m0, beta)
     with np.errstate(all="ignore"):
-        y = integrate(_taylor_maccoll, beta, np.full(m0.size, th), np.stack([vr, vw]), _steps(beta - th))
+        y = integrate(_tm_cot, beta, np.full(m0.size, th), np.stack([vr, vw]), _steps(beta - th), at=_cot)
     return y[1], np.hypot(y[0], y[1])
 
 

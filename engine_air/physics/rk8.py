@@ -44,7 +44,7 @@ for _j, _v in {0: 0.054293734116568765, 5: 4.450312892752409, 6: 1.8915178993145
     _B[_j] = _v
 
 
-def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False) -> np.ndarray:
+def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False, at=None) -> np.ndarray:
     """Integrate dy/dw = rhs(w, y) for every member from ``w0`` to ``w1`` in ``steps`` equal steps.
 
     Parameters
@@ -59,6 +59,9 @@ def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False) -> np.ndarray:
         Number of equal steps per member.
     nodes : bool
         Return the states at every step's end as well.
+    at : callable, optional
+        ``at(w)`` applied once to the abscissae of every stage of every step together (an array of shape
+        (steps, 12, n)); ``rhs`` then gets ``at(w)`` in place of ``w`` (e.g. a cotangent computed once).
 
     Returns
     -------
@@ -67,16 +70,17 @@ def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False) -> np.ndarray:
     """
     w0 = np.asarray(w0, dtype=float)
     h = (np.asarray(w1, dtype=float) - w0) / steps
+    w = w0 + h * (np.arange(steps)[:, None, None] + _C[None, :, None])  # every stage of every step
+    w = at(w) if at is not None else w
     y = np.array(y0, dtype=float)
     stages = np.empty((_STAGES,) + y.shape)
     flat = stages.reshape(_STAGES, -1)
     kept = [y] if nodes else None
     for i in range(steps):
-        w = w0 + i * h
-        stages[0] = rhs(w, y)
+        stages[0] = rhs(w[i, 0], y)
         for s in range(1, _STAGES):
-            stages[s] = rhs(w + _C[s] * h, y + h * (_A[s, :s] @ flat[:s]).reshape(y.shape))
-        y = y + h * (_B @ flat).reshape(y.shape)
+            stages[s] = rhs(w[i, s], y + (_A[s, :s] @ flat[:s]).reshape(y.shape) * h)
+        y = y + (_B @ flat).reshape(y.shape) * h
         if nodes:
             kept.append(y)
     return np.stack(kept) if nodes else y
