@@ -48,7 +48,7 @@ from engine_air.outputs.sections import (
 )
 
 DPI = 100
-MAP_SIZE_IN = (8.0, 6.4)
+MAP_SIZE_IN = (9.6, 6.4)  # 960 x 640 px at DPI: a review map at least 900 x 600
 SECTION_SIZE_IN = (8.0, 5.2)
 MAX_NAME = 60  # characters of a case or project name shown in a title
 
