@@ -52,7 +52,7 @@ import pyarrow.compute as pc
 FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
 """First characters a spreadsheet may take as the start of a formula."""
 
-BATCH_ROWS = 4096
+BATCH_ROWS = 4_096
 """Rows turned into CSV text at a time (a few MB of text)."""
 
 
@@ -181,7 +181,7 @@ def _column(values) -> _Coded | _Plain:
     if isinstance(values, pa.Array):
         if pa.types.is_string(values.type) or pa.types.is_large_string(values.type):
             return _column(values.dictionary_encode())
-        return _Plain(values)
+        return _few(values) or _Plain(values)
     if isinstance(values, np.ndarray) and values.dtype.kind in "fiub":
         return _Plain(values.ravel())
     texts = [None if v is None else str(v) for v in (values.ravel().tolist() if isinstance(values, np.ndarray)
@@ -189,6 +189,21 @@ def _column(values) -> _Coded | _Plain:
     unique = sorted(set(t for t in texts if t is not None))
     index = {t: k for k, t in enumerate(unique)}
     return _coded_text(unique + [None], [index.get(t, len(unique)) for t in texts])
+
+
+def _few(values: pa.Array) -> _Coded | None:
+    """An Arrow column of numbers with few distinct values (an axis, a quantity of one axis, a constant: a sample
+    of every n-th value repeats) as the texts of its distinct values and codes; None otherwise."""
+    n = len(values)
+    if n <= 4096:
+        return None
+    sample = pc.take(values, _numbers(np.arange(0, n, max(1, n // 1024))))
+    if len(pc.unique(sample)) >= 0.5 * len(sample):
+        return None
+    enc = values.dictionary_encode()
+    codes = pc.fill_null(enc.indices, len(enc.dictionary)).to_numpy(zero_copy_only=False)
+    texts = pa.concat_arrays([_number_text(enc.dictionary), _strings([None])])
+    return _Coded(texts, codes)
 
 
 @contextmanager
