@@ -49,7 +49,7 @@ def findings_text(result, units: Units, title: str = "", file_name: str = "") ->
         f"Verdict: {verdict}",
         "",
     ]
-    body = [f"- {line}" for line in finding_lines(result.summary, units, mechanisms(result))]
+    body = [f"- {line}" for line in finding_lines(result.summary, units, mechanisms(result, units))]
     tail = ["", engine_air.CAUTION, ""]
     return "\n".join([h for h in head if h is not None] + body + tail)
 

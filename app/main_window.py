@@ -340,7 +340,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         if gen != self.result_generation or self.result is None:
             return  # a newer result arrived meanwhile; it schedules its own update
         self.detail.set_stale(None)
-        self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
+        self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result, self.units))
         self._restore_selection()
         self.panels_generation = gen
 
@@ -495,7 +495,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.editors.set_units(self.units)
         self.sketch.set_units(self.units)
         if self.result is not None:
-            self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result))
+            self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result, self.units))
             self._redraw()
 
     def set_presentation(self, on: bool) -> None:

@@ -285,3 +285,109 @@ def test_point_worst_relative_margin_is_the_least_judged_margin(capsys):
     outside = json.loads(capsys.readouterr().out)
     assert outside["worst_relative_margin"] is None and outside["judged"] is False
     assert {"outside-envelope", "outside-atmosphere"} & set(outside["flags"])
+
+
+# -- issue 14: texts that tell the truth; the command line's edges ------------------------------------------------
+
+def fighter_variant(tmp_path, **changes) -> Path:
+    """The variable-geometry sample with a fixed throat far from its schedule (the schedule covers Mach 0-2.2, so
+    the fixed 0.30 m^2 is used nowhere), tighter limits (the installation loss fails) and a coarse grid."""
+    import re
+
+    text = (SAMPLES / "variable_geometry_fighter.toml").read_text(encoding="utf-8")
+    subs = {"throat_area_m2": "0.30", "installation_loss_max": "0.10", "mach_points": "31", "altitude_points": "21"}
+    subs.update({k: str(v) for k, v in changes.items()})
+    for key, value in subs.items():
+        text = re.sub(rf"(?m)^{key}\s*=\s*[0-9.]+\s*$", f"{key} = {value}", text)
+    path = tmp_path / "fighter.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def test_throat_text_uses_the_scheduled_area_and_the_flow_through_the_throat(tmp_path):
+    import numpy as np
+
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.envelope.explain import finding_mechanism
+    from engine_air.project import load_project
+
+    p = load_project(fighter_variant(tmp_path))
+    r = evaluate_project(p)
+    s = next(s for s in r.summary if s.name == "throat-mach")
+    text = finding_mechanism(p, r, s)[2]
+    # the schedule by hand (method §12: linear in M0, ends held): mach [1.0, 1.3] -> throat [0.46, 0.47]
+    area = float(np.interp(s.worst_mach, [0.0, 1.0, 1.3, 1.6, 2.0, 2.2], [0.46, 0.46, 0.47, 0.48, 0.50, 0.50]))
+    assert f"A_th = {area:.3f} m^2" in text and "0.300 m^2" not in text
+    pts = r.case_map(s.worst_case).points
+    i = (list(r.altitude_m).index(s.worst_altitude_m), list(r.mach).index(s.worst_mach))
+    engine, bypass = float(pts.mass_flow_kg_s[i]), float(pts.bypass_flow_kg_s[i])
+    assert bypass > 0.0  # the doors pass air here: the throat carries engine + bypass flow
+    assert f"the flow {engine + bypass:.1f} kg/s (engine {engine:.1f} kg/s + bypass {bypass:.1f} kg/s)" in text
+    us = finding_mechanism(p, r, s, "us")[2]
+    assert "kg/s" not in us and "m^2" not in us
+    assert f"{(engine + bypass) / 0.45359237:.1f} lbm/s" in us and f"{area / 0.3048 ** 2:.3f} ft^2" in us
+
+
+def test_installation_loss_text_itemises_the_ledger(tmp_path, capsys):
+    path = fighter_variant(tmp_path)
+    assert main(["check", str(path)]) == 1
+    text = capsys.readouterr().out
+    line = next(x for x in text.splitlines() if x.startswith("Installation loss:"))
+    assert "subcritical operation: subcritical operation" not in line
+    for item in ("recovery penalty", "spillage drag", "bleed drag", "bypass drag", "net thrust F_n", "installed"):
+        assert item in line, item
+    assert line.count(" N (") == 4 and line.count(" %)") == 4
+    # the items add up: F_n - F_inst = penalty + spillage + bleed + bypass (method §13), to the rounding shown
+    import re
+
+    numbers = [float(n.replace(" ", "")) for n in re.findall(r"([0-9][0-9 ]*) N", line)]
+    f_n, penalty, spill, bleed, bypass, f_inst = numbers
+    assert abs((f_n - f_inst) - (penalty + spill + bleed + bypass)) <= 3.0
+    assert main(["check", str(path), "--units", "us"]) == 1
+    us = capsys.readouterr().out
+    line = next(x for x in us.splitlines() if x.startswith("Installation loss:"))
+    assert " N " not in line and " N (" not in line and "lbf (" in line
+
+
+def test_started_text_names_the_self_start_and_unstart_mach(capsys):
+    import numpy as np
+
+    from engine_air.envelope.explain import mechanism
+    from engine_air.flow.match import evaluate_conditions
+    from engine_air.inlets.mixed_compression import starting_machs
+    from engine_air.project import load_project
+
+    p = load_project(SAMPLES / "mixed_compression_throat_schedule.toml")
+    start, unstart = starting_machs(p.inlet)
+    below, above = 0.5 * (1.0 + unstart), 0.5 * (start + 2.5)
+    pts = evaluate_conditions(p, p.cases[0], np.array([below, above]), np.array([11000.0, 15000.0]))
+    low = mechanism(p, pts, 0, "started")
+    # below the unstart Mach no started flow exists: the text says so and names both Mach numbers
+    assert "unstarted by design" in low and f"unstart Mach {unstart:.3f}" in low
+    assert f"self-starts at Mach {start:.3f}" in low and f"only above Mach {unstart:.3f}" in low
+    assert "self-starts at Mach" in mechanism(p, pts, 1, "started")
+    assert main(["check", str(SAMPLES / "mixed_compression_throat_schedule.toml")]) == 1
+    line = next(x for x in capsys.readouterr().out.splitlines() if x.startswith("Inlet started (mixed compression):"))
+    assert f"self-starts at Mach {start:.3f}" in line
+
+
+def test_workers_and_scheduler_are_exclusive(capsys):
+    code = main(["sweep", str(SAMPLES / "supersonic_two_ramp.toml"), "--vary", "capture_area_m2=0.5:0.6:2",
+                 "--scheduler", "tcp://127.0.0.1:8786", "--workers", "2"])
+    assert code == 2
+    err = capsys.readouterr().err
+    assert "--workers" in err and "--scheduler" in err and "exclusive" in err
+
+
+def test_a_closed_pipe_ends_quietly():
+    # `engine-air point ... | head`: the reader goes away before the JSON is written. Unix tools stop quietly; the
+    # command must not print "Broken pipe" or a traceback, and exits 0.
+    r, w = os.pipe()
+    proc = subprocess.Popen([sys.executable, "-m", "engine_air.cli", "point", str(SAMPLES / "supersonic_two_ramp.toml"),
+                             "--mach", "2", "--altitude-m", "11000", "--json"], stdout=w, stderr=subprocess.PIPE,
+                            cwd=Path(__file__).resolve().parents[1])
+    os.close(w)
+    os.close(r)
+    _, err = proc.communicate(timeout=120)
+    assert proc.returncode == 0
+    assert err.decode() == ""

@@ -135,3 +135,32 @@ def test_compare_csv_has_every_quantity_and_neutral_text(tmp_path, capsys):
         rows = list(csv.DictReader(fh))
     assert rows and all(float(r["worst_relative_margin_delta"] or 0.0) == 0.0 for r in rows)
     assert {"ISA, max", "worst of all cases"} <= {r["case"] for r in rows}
+
+
+def test_differences_only_inside_case_regions_and_drags_in_newtons():
+    # Issue 14: a take-off case judged only at Mach 0-0.4 below 3000 m (method §14) must not report differences at
+    # Mach 2; and a drag coefficient (over q0 -> 0 at the low-speed end) is not compared, the drag in newtons is.
+    from dataclasses import replace
+
+    from engine_air.project.model import Grid
+
+    fighter = load_project(SAMPLES / "variable_geometry_fighter.toml")
+    a = replace(fighter, grid=Grid(mach_points=31, altitude_points=21))
+    b = with_design_value(a, "capture_area_m2", a.inlet.capture_area_m2 * 1.1)
+    c = compare_projects(a, b)
+    take_off = "ISA+15, take-off"
+    region = next(x for x in a.cases if x.name == take_off)
+    mach_2d, alt_2d = np.meshgrid(c.mach, c.altitude_m)
+    inside_region = ((mach_2d >= region.mach_range[0]) & (mach_2d <= region.mach_range[1])
+                     & (alt_2d >= region.altitude_range_m[0]) & (alt_2d <= region.altitude_range_m[1]))
+    for key in DIFFERENCE_QUANTITIES:
+        d = c.difference(take_off, key)
+        assert not np.isfinite(d[~(inside_region & c.both)]).any(), key
+        s = c.stat(take_off, key)
+        if s.points and s.max_abs > 0:
+            assert region.mach_range[0] <= s.max_abs_mach <= region.mach_range[1], key
+            assert region.altitude_range_m[0] <= s.max_abs_altitude_m <= region.altitude_range_m[1], key
+    assert np.isfinite(c.difference(take_off, "spillage_fraction")).any()  # the region itself is compared
+    assert "additive_drag_coefficient" not in DIFFERENCE_QUANTITIES
+    assert {"additive_drag_n", "spillage_drag_n"} <= set(DIFFERENCE_QUANTITIES)
+    assert QUANTITIES["additive_drag_n"].unit == "N"

@@ -106,3 +106,22 @@ def test_pack_says_no_thrust_data(tmp_path):
     section = page[page.index('<section id="ledger">'):]
     section = re.sub(r"\s+", " ", section[:section.index("</section>")])
     assert NO_THRUST_DATA in section and "Spillage drag" in section
+
+
+def test_spillage_drag_coefficient_agrees_with_the_newtons():
+    # Method §12 ("Spillage drag is 0 at MFR >= 1"): the coefficient and the force say the same thing. Subsonic
+    # points of the pitot sample run at MFR > 1 near take-off (the stream tube is wider than the capture): there
+    # both are 0; below MFR 1 the force is C_spill q0 A_c (q0 = gamma/2 p0 M0^2, NACA 1135 eq. 44).
+    import numpy as np
+
+    p = load_project(SAMPLES / "subsonic_transport_nacelle.toml")
+    pts = evaluate_project(p).cases[0].points
+    mfr = np.asarray(pts.mass_flow_ratio)
+    over = np.isfinite(mfr) & (mfr >= 1.0)
+    assert over.any() and (~over & np.isfinite(mfr)).any()
+    assert np.all(np.asarray(pts.spillage_drag_n)[over] == 0.0)
+    assert np.all(np.asarray(pts.spillage_drag_coefficient)[over] == 0.0)
+    under = np.isfinite(mfr) & (mfr < 1.0) & np.isfinite(pts.spillage_drag_coefficient)
+    q0 = 0.5 * 1.4 * pts.static_pressure_pa * pts.mach ** 2
+    force = pts.spillage_drag_coefficient * q0 * p.inlet.capture_area_m2
+    assert np.allclose(force[under], np.asarray(pts.spillage_drag_n)[under], rtol=1e-9, atol=1e-6)

@@ -229,3 +229,12 @@ def test_map_table_judged_column():
     inside = np.asarray(t.column("inside_envelope").to_numpy(zero_copy_only=False))
     assert np.array_equal(judged, inside)  # inside the atmosphere every inside point has a judged check
     assert judged.sum() == result.inside.sum() * len(result.cases)
+
+
+def test_detail_panel_shows_rounding_noise_as_zero():
+    # 1 - MFR at MFR = 1 can come out as 1.1e-16 in floating point; shown rounded to the display precision, it is 0.
+    pytest.importorskip("PySide6")
+    from app.views.detail_panel import fmt
+
+    assert fmt(1.1102230246251565e-16) == "0" and fmt(-2e-13) == "0" and fmt(0.0) == "0"
+    assert fmt(2.5e-4) == "2.500e-04" and fmt(0.3125) == "0.3125"  # real small values keep their digits

@@ -50,12 +50,14 @@ def test_map_carries_axes_title_colour_bar_and_lines(failing):
     assert "flight envelope" in texts
     assert "Face Mach margin = 0" in texts  # this sample fails on face Mach: the zero line is drawn
     assert "face static = ambient (p2/p0 = 1)" in texts and m.ram_line
-    assert "a limit fails here" in texts and m.failing_points == int(failing.failing(WORST).sum()) > 0
+    # the marks and their count are the failures of the quantity shown (issue 14), not of every limit
+    assert "Face Mach number: fails here" in texts
+    assert m.failing_points == int(failing.failing(WORST, "face-mach").sum()) > 0
     # the failing marks are plotted at failing grid points
     marks = [c for c in ax.collections if isinstance(c, PathCollection)]
     xy = marks[-1].get_offsets()
     assert len(xy) > 0
-    fail = failing.failing(WORST)
+    fail = failing.failing(WORST, "face-mach")
     for mach, alt_km in np.asarray(xy)[:5]:
         i = int(np.argmin(np.abs(failing.altitude_m / 1000 - alt_km)))
         j = int(np.argmin(np.abs(failing.mach - mach)))
@@ -165,3 +167,54 @@ def test_long_names_are_cut_in_titles(failing):
     result = evaluate_project(replace(project, grid=replace(project.grid, mach_points=9, altitude_points=7)))
     m = P.map_figure(result, "face_mach", result.cases[0].name)
     assert len(m.axes.get_title()) < 200
+
+
+# -- issue 14: the picture tells the truth ------------------------------------------------------------------------
+
+def test_default_quantity_is_the_least_margin_when_a_limit_fails(failing, ramp):
+    assert not failing.holds and P.default_quantity(failing) == "worst_relative_margin"
+    holding = evaluate_project(load_project(SAMPLES / "subsonic_transport_nacelle.toml"))
+    assert holding.holds and P.default_quantity(holding) == "face_mach_margin"
+
+
+def test_map_png_default_size_title_and_case(tmp_path, capsys):
+    from engine_air.cli import main
+
+    out = tmp_path / "m.png"
+    assert main(["map", str(FAILING), "--png", str(out), "--case", "ISA, take-off"]) == 1
+    assert "worst_relative_margin" in capsys.readouterr().out  # a limit fails: the least margin by default
+    import struct
+
+    width, height = struct.unpack(">II", out.read_bytes()[16:24])  # the PNG IHDR chunk: width, height
+    assert width >= 900 and height >= 600
+    result = evaluate_project(load_project(FAILING), ["ISA, take-off"])
+    m = P.map_figure(result, "worst_relative_margin")
+    assert "case “ISA, take-off”" in m.axes.get_title() and "worst of" not in m.axes.get_title()
+    three = load_project(SAMPLES / "subsonic_transport_nacelle.toml")
+    names = [c.name for c in three.cases]
+    assert len(names) == 3
+    two = evaluate_project(three, names[:2])
+    title = P.map_figure(two, "face_mach").axes.get_title()
+    assert "worst of cases" in title and names[0] in title and names[2] not in title
+
+
+def test_titles_fit_their_figure(failing):
+    from dataclasses import replace
+
+    project = replace(failing.project, title="A long project title with many words in it " * 6)
+    result = evaluate_project(replace(project, grid=replace(project.grid, mach_points=9, altitude_points=7)))
+    for fig, ax in ((m.figure, m.axes) for m in [P.map_figure(result, "face_mach_margin")]):
+        renderer = fig.canvas.get_renderer()
+        fig.draw(renderer)
+        box, page = ax.title.get_window_extent(renderer), fig.bbox
+        assert box.x0 >= page.x0 - 0.5 and box.x1 <= page.x1 + 0.5 and box.y1 <= page.y1 + 0.5
+        assert ax.get_title().count("\n") <= 2
+
+
+def test_a_quantity_defined_nowhere_says_why_without_a_colour_scale(ramp):
+    # the two-ramp sample's rating has no thrust table (method §13: installation loss null, flag no-thrust-data)
+    m = P.map_figure(ramp, "installation_loss_fraction", ramp.cases[0].name)
+    assert m.colour_bar is None and m.note == "no thrust data: installation loss is not computed"
+    assert any(t.get_text().replace("\n", " ") == m.note for t in m.axes.texts)
+    pic = P.render_map(ramp, "installation_loss_fraction")
+    assert pic.note == m.note

@@ -96,10 +96,13 @@ def test_pack_pictures_are_valid_pngs(ramp_pack):
     page = parse(ramp_pack.index_path)
     result = ramp_pack.result
     n_cases = len(result.cases) + 1  # each case and the worst of all
-    assert len(ramp_pack.pictures) == n_cases * len(PACK_QUANTITIES)
-    # sections: the limiting check's own quantity (recovery against MIL-E-5008B here), then every mapped one
-    assert len(ramp_pack.section_pictures) == 2 * (len(PACK_QUANTITIES) + 1)
-    assert Path(ramp_pack.section_pictures[0]).name == "recovery_minus_reference__along-mach.png"
+    # recovery against MIL-E-5008B fails here: the least margin and that limit's own quantity come first
+    assert ramp_pack.quantities == ("worst_relative_margin", "recovery_minus_reference") + PACK_QUANTITIES
+    assert len(ramp_pack.pictures) == n_cases * len(ramp_pack.quantities)
+    # sections: each limit judged somewhere, its own quantity through its own worst point
+    judged = [s for s in result.summary if s.worst_case]
+    assert len(ramp_pack.section_pictures) == 2 * len(judged)
+    assert Path(ramp_pack.section_pictures[0]).name == f"{judged[0].name}__along-mach.png"
     assert len(page.images) == len(ramp_pack.pictures) + len(ramp_pack.section_pictures)
     for img in page.images:
         prefix = "data:image/png;base64,"
@@ -111,9 +114,10 @@ def test_pack_pictures_are_valid_pngs(ramp_pack):
     for path in ramp_pack.all_pictures:
         assert len(png_shape(Path(path).read_bytes())) == 3
     ids = set(page.ids)
-    for q in PACK_QUANTITIES:
+    for q in ramp_pack.quantities:
         assert f"map-c1-isa-max-{q}" in ids and f"map-all-worst-{q}" in ids
-        assert f"section-{q}-along-mach" in ids and f"section-{q}-along-altitude" in ids
+    for s in judged:
+        assert f"section-{s.name}-along-mach" in ids and f"section-{s.name}-along-altitude" in ids
 
 
 def test_pack_inputs_reproduce_the_project(ramp_pack):
@@ -293,3 +297,116 @@ def test_picture_stems_are_unique_and_short():
     stems = picture_stems(names)
     assert len(set(stems.values())) == len(names)
     assert all(len(s) <= 30 for s in stems.values())
+
+
+# -- issue 14: a review output that tells the truth ---------------------------------------------------------------
+
+MIXED = SAMPLES / "mixed_compression_throat_schedule.toml"
+
+
+@pytest.fixture(scope="module")
+def mixed_pack(tmp_path_factory):
+    project = replace(load_project(MIXED), grid=Grid(25, 21))
+    return write_review_pack(project, tmp_path_factory.mktemp("mixed"))
+
+
+def _captions(path) -> dict[str, str]:
+    import re
+
+    raw = Path(path).read_text(encoding="utf-8")
+    return {m.group(1): html.unescape(re.sub(r"<[^>]+>", "", m.group(2)))
+            for m in re.finditer(r'<figure id="([^"]+)">.*?<figcaption>(.*?)</figcaption>', raw, re.S)}
+
+
+def test_pack_maps_every_failing_limit(mixed_pack):
+    result = mixed_pack.result
+    failing = {s.name for s in result.summary if not s.holds}
+    assert {"started", "recovery"} <= failing
+    # the least margin, then each failing limit's own quantity, then the usual four
+    assert mixed_pack.quantities[:3] == ("worst_relative_margin", "recovery_minus_reference", "started")
+    names = {Path(p).name for p in mixed_pack.pictures}
+    assert "c1-isa-max__started.png" in names and "c1-isa-max__worst_relative_margin.png" in names
+
+
+def test_sections_cut_each_limit_through_its_own_worst_point(mixed_pack):
+    from engine_air.outputs.pack_pictures import section_targets
+    from engine_air.outputs.sections import cut
+
+    result = mixed_pack.result
+    targets = section_targets(result, mixed_pack.quantities)
+    judged = [s for s in result.summary if s.worst_case]
+    assert [t.tag for t in targets] == [s.name for s in judged]
+    points = {(t.mach, t.altitude_m) for t in targets}
+    assert len(points) > 1  # not one point for every limit
+    for t, s in zip(targets, judged):
+        assert (t.mach, t.altitude_m) == (s.worst_mach, s.worst_altitude_m)
+        assert cut(result, t.quantity, altitude_m=t.altitude_m).at == s.worst_altitude_m
+        assert cut(result, t.quantity, mach=t.mach).at == s.worst_mach
+    page = Path(mixed_pack.index_path).read_text(encoding="utf-8")
+    for s in judged:
+        assert f"{html.escape(s.label)}: through its worst point, Mach {s.worst_mach:.3f}" in page
+
+
+def test_captions_count_the_failures_of_the_quantity_shown(mixed_pack):
+    result = mixed_pack.result
+    case = result.cases[0].name
+    caps = _captions(mixed_pack.index_path)
+    # face Mach holds everywhere here while other limits fail: its map says no face-Mach failure
+    assert not result.failing(case, "face-mach").any()
+    assert "no point where the limit “Face Mach number” fails" in caps["map-c1-isa-max-face_mach_margin"]
+    started = int((result.failing(case, "started")).sum())
+    assert started > 0 and f"{started} points where the limit" in caps["map-c1-isa-max-started"]
+    anywhere = int(result.failing(case).sum())
+    assert f"{anywhere} points where some limit fails" in caps["map-c1-isa-max-worst_relative_margin"]
+
+
+def test_pack_header_and_findings_quote_the_scheduled_throat(mixed_pack):
+    page = parse(mixed_pack.index_path)
+    text = " ".join(page.all_text.split())
+    sched = load_project(MIXED).inlet.schedule  # the header gives the schedule, not the fixed key it overrides
+    first, last = sched.throat_area_m2[0], sched.throat_area_m2[-1]
+    assert (f"throat scheduled in flight Mach from {first:g} m² at Mach {sched.mach[0]:g} to {last:g} m² at Mach "
+            f"{sched.mach[-1]:g}") in text
+    assert f"throat {load_project(MIXED).inlet.throat_area_m2:g} m²" not in text
+
+
+def test_pack_is_also_one_pdf(mixed_pack):
+    import json
+    import re
+
+    pdf = Path(mixed_pack.pdf_path)
+    assert pdf.name == "review.pdf" and pdf.parent == Path(mixed_pack.folder)
+    data = pdf.read_bytes()
+    assert data[:5] == b"%PDF-" and data.rstrip().endswith(b"%%EOF")
+    pages = len(re.findall(rb"/Type\s*/Page\b(?!s)", data))
+    pictures = len(mixed_pack.pictures) + len(mixed_pack.section_pictures)
+    assert pictures < pages <= pictures + 4  # text pages (verdict, findings, tables), then every picture
+    manifest = json.loads((Path(mixed_pack.folder) / MANIFEST).read_text(encoding="utf-8"))
+    assert "review.pdf" in manifest["files"] and manifest["complete"]
+
+
+def test_default_pack_quantities_follow_the_failing_limits():
+    from engine_air.outputs.pack_pictures import PACK_QUANTITIES as FOUR, pack_quantities
+
+    holding = evaluate_project(small(load_project(PITOT), ["ISA, take-off"]))
+    assert holding.holds and pack_quantities(holding) == FOUR
+    text = (SAMPLES / "variable_geometry_fighter.toml").read_text(encoding="utf-8")
+    project = load_project(SAMPLES / "variable_geometry_fighter.toml")
+    tight = replace(project, limits=replace(project.limits, installation_loss_max=0.10), grid=Grid(31, 21))
+    result = evaluate_project(tight)
+    assert "installation_loss_max" in text and not result.holds
+    assert pack_quantities(result)[:2] == ("worst_relative_margin", "installation_loss_fraction")
+
+
+def test_review_output_modules_keep_the_shape_rule():
+    # Issue 15's shape rule for these modules: no module over 600 lines, no function over 100.
+    import ast
+
+    root = Path(__file__).resolve().parents[1] / "engine_air"
+    for rel in ("outputs/review_pack.py", "outputs/pack_folder.py", "outputs/pack_html.py", "outputs/pack_pictures.py",
+                "outputs/pictures.py", "envelope/explain.py", "studies/compare.py"):
+        text = (root / rel).read_text(encoding="utf-8")
+        assert text.count("\n") <= 600, rel
+        for node in ast.walk(ast.parse(text)):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                assert node.end_lineno - node.lineno + 1 <= 100, f"{rel}: {node.name}"

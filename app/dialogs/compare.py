@@ -183,5 +183,6 @@ class CompareDialog(TaskDialog):
         where = (f", largest |B − A| at Mach {s.max_abs_mach:.3f}, {s.max_abs_altitude_m:.0f} m"
                  if s.points and s.max_abs > 0 else "")
         self.stats.setText(f"{QUANTITIES[key].label}, case {case}: B − A from {fmt(s.min)} to {fmt(s.max)} "
-                           f"over {s.points} points inside both envelopes{where}. A and B share one colour scale; "
+                           f"over {s.points} points both judge (inside both envelopes and the case's region){where}. "
+                           "A and B share one colour scale; "
                            "crosses mark points where some limit fails; grey is outside the envelope.")

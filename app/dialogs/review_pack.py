@@ -52,7 +52,8 @@ class ReviewPackDialog(TaskDialog):
         return task
 
     def show_result(self, pack) -> None:
-        self.status.setText(f"Wrote {pack.index_path} ({len(pack.pictures)} maps). Verdict: "
+        self.status.setText(f"Wrote {pack.index_path} and {os.path.basename(pack.pdf_path)} ({len(pack.pictures)} "
+                            f"maps, {len(pack.section_pictures)} sections). Verdict: "
                             + ("every limit holds." if pack.holds else "<b>some limit FAILS</b>."))
         self.open_button.setEnabled(True)
 

@@ -61,6 +61,10 @@ FLOW_ROWS = [
 ]
 
 
+ZERO_DECIMALS = 9
+"""Display precision of the smallest numbers: a value that rounds to 0 at 9 decimals is shown as 0."""
+
+
 def starting_text(rec: dict, units) -> str:
     """The internal contraction of a mixed-compression point in words (method §11): cowl entrance A_e, the
     internal contraction ratio CR = A_th/A_e and the self-start (Kantrowitz) limit K(M_e) on the same basis."""
@@ -88,7 +92,7 @@ def fmt(x, digits: int = 4) -> str:
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "—"
     x = float(x)
-    if x == 0:
+    if round(x, ZERO_DECIMALS) == 0.0:  # rounding noise of a zero (e.g. 1 - MFR = 1.1e-16) shows as 0
         return "0"
     if abs(x) >= 1e5 or abs(x) < 1e-3:
         return f"{x:.3e}"

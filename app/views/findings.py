@@ -12,7 +12,7 @@ import math
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTreeWidget, QTreeWidgetItem
 
-from ..units import Units, group_digits
+from ..units import US, Units, group_digits
 
 COLUMNS = ["Limit", "Rule", "Verdict", "Worst value", "Worst margin", "Where (worst)", "Failing share"]
 
@@ -24,12 +24,13 @@ def where_text(s, units: Units) -> str:
     return f"M0 {s.worst_mach:.3f}, {group_digits(alt)} {units.label('altitude')}, {s.worst_case}"
 
 
-def mechanisms(result) -> list[str]:
+def mechanisms(result, units: Units | None = None) -> list[str]:
     """Per finding of ``result.summary``: what drives that limit at its own worst point
-    (``engine_air.envelope.explain.finding_mechanism``)."""
+    (``engine_air.envelope.explain.finding_mechanism``), flows, areas and forces in ``units``."""
     from engine_air.envelope.explain import finding_mechanism
 
-    return [finding_mechanism(result.project, result, s)[2] for s in result.summary]
+    system = "us" if units is not None and units.system == US else "si"
+    return [finding_mechanism(result.project, result, s, system)[2] for s in result.summary]
 
 
 def finding_lines(summary, units: Units, mechanism_texts=None) -> list[str]:

@@ -55,7 +55,7 @@ def run(args) -> int:
         j = nearest_index(result.mach, result.altitude_m, s.worst_mach, s.worst_altitude_m)
         regime = REGIMES[int(points.regime[j])]
         out(f"{s.label}: worst at Mach {s.worst_mach:.3f}, {s.worst_altitude_m * alt_scale:.0f} {alt_unit}, "
-            f"case {name(repr(s.worst_case))}, {regime} operation: {mechanism(project, points, j, s.name)}.")
+            f"case {name(repr(s.worst_case))}, {regime} operation: {mechanism(project, points, j, s.name, args.units)}.")
     if failing:
         out("\nVERDICT: " + verdict_text(result))
         return EXIT_FAILS

@@ -21,7 +21,15 @@ import sys
 import importlib
 
 from engine_air import __version__
+<<<<<<< HEAD
 from engine_air.cli.common import EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err
+=======
+from engine_air.cli import check, compare, distortion, maps, pack, point, size, sweep
+from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err,
+                                   quiet_stdout)
+from engine_air.cli.maps import write_map_csv
+from engine_air.cli.size import SIZE_OBJECTIVES
+>>>>>>> main
 from engine_air.outputs.safe_text import safe_path, safe_text
 from engine_air.project.errors import ProjectError
 
@@ -120,6 +128,9 @@ def main(argv=None) -> int:
         return int(exc.code or 0) if isinstance(exc.code, int) else EXIT_UNUSABLE
     try:
         return args.handler(args)
+    except BrokenPipeError:  # stdout's reader has gone (``| head``): stop quietly, no traceback, no message
+        quiet_stdout()
+        return EXIT_HOLDS
     except ProjectError as exc:
         err(f"engine-air: {exc}")
     except UsageError as exc:

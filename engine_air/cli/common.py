@@ -22,9 +22,24 @@ class UsageError(Exception):
     """Input that is unusable for a reason other than the project file's content."""
 
 
+def quiet_stdout() -> None:
+    """The reader of stdout has gone (``engine-air point ... | head``): send the rest of the output nowhere, so
+    that neither this write nor the flush at exit reports a broken pipe; the command runs to its own exit code."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError):  # stdout is no real file (a test's capture): nothing to redirect
+        pass
+
+
 def out(text: str = "") -> None:
-    """Print one line on stdout (the text is built by the command; names in it must be ``name()``-d)."""
-    print(text)
+    """Print one line on stdout (the text is built by the command; names in it must be ``name()``-d). A reader
+    that stopped reading (a closed pipe) ends the output quietly, as Unix tools do."""
+    try:
+        print(text, flush=True)
+    except BrokenPipeError:
+        quiet_stdout()
 
 
 def err(text: str) -> None:
@@ -138,5 +153,5 @@ def write_error(path, what: str, exc: OSError) -> UsageError:
 
 
 __all__ = ["EXIT_FAILS", "EXIT_HOLDS", "EXIT_NOT_JUDGED", "EXIT_UNUSABLE", "FT", "UsageError", "cases",
-           "check_input_path", "check_not_inputs", "check_output_path", "err", "finite", "fmt", "load", "name", "out", "path_text",
-           "progress_printer", "warn", "write_error"]
+           "check_input_path", "check_not_inputs", "check_output_path", "err", "finite", "fmt", "load", "name", "out",
+           "path_text", "progress_printer", "quiet_stdout", "warn", "write_error"]

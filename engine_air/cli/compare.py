@@ -36,7 +36,8 @@ def run(args) -> int:
     out(f"engine-air {__version__} compare: A = {path_text(args.a)}, B = {path_text(args.b)}")
     out(f"  grid from {args.grid_from}: {len(c.mach)} Mach x {len(c.altitude_m)} altitude; "
         f"{int(c.both.sum())} points inside both envelopes (A {int(c.inside_a.sum())}, B {int(c.inside_b.sum())})")
-    out(f"  cases compared: {name(', '.join(c.cases))}")
+    out(f"  cases compared: {name(', '.join(c.cases))}; differences only where both projects judge the point "
+        "(inside both envelopes and the case's region); drags in newtons")
     if c.only_a:
         out(f"  cases only in A: {name(', '.join(c.only_a))}")
     if c.only_b:

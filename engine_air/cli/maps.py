@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import os
 
-from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, load, out,
+from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, load, name, out,
                                    path_text, write_error)
 
 
@@ -15,7 +15,8 @@ def add_parser(sub) -> None:
     m.add_argument("--csv", help="CSV file to write (one row per grid point and case)")
     m.add_argument("--parquet", help="Parquet file to write (the same columns as the CSV)")
     m.add_argument("--png", help="PNG picture of the map of --quantity to write")
-    m.add_argument("--quantity", default="face_mach_margin", help="quantity drawn in the PNG")
+    m.add_argument("--quantity", help="quantity drawn in the PNG; default the least margin over every limit "
+                                      "(worst_relative_margin) when some limit fails, else the face Mach margin")
     m.set_defaults(handler=run)
 
 
@@ -33,7 +34,7 @@ def run(args) -> int:
 
     if not (args.csv or args.parquet or args.png):
         raise UsageError("map: give at least one of --csv FILE, --parquet FILE, --png FILE")
-    if args.quantity not in QUANTITIES:
+    if args.quantity is not None and args.quantity not in QUANTITIES:
         raise UsageError(f"--quantity {args.quantity!r}: unknown quantity; choose from {', '.join(QUANTITIES)}")
     targets = [(opt, p) for opt, p in (("--csv", args.csv), ("--parquet", args.parquet), ("--png", args.png)) if p]
     inputs = (args.project,)  # every file this run reads
@@ -53,11 +54,12 @@ def run(args) -> int:
                 raise write_error(p, f"{fmt.upper() if fmt == 'csv' else 'Parquet'} file", exc) from None
             out(f"wrote {rows} rows to {path_text(p)}")
     if args.png:
-        from engine_air.outputs.pictures import write_map_png
+        from engine_air.outputs.pictures import default_quantity, write_map_png
 
+        quantity = args.quantity or default_quantity(result)
         try:
-            write_map_png(result, args.png, args.quantity, inputs=inputs)
+            pic = write_map_png(result, args.png, quantity, inputs=inputs)
         except OSError as exc:
             raise write_error(args.png, "PNG file", exc) from None
-        out(f"wrote {path_text(args.png)}")
+        out(f"wrote {path_text(args.png)} ({quantity}, {name(pic.case)}{'; ' + pic.note if pic.note else ''})")
     return EXIT_HOLDS if result.holds else EXIT_FAILS

@@ -1,4 +1,4 @@
-"""``engine-air pack PROJECT --out FOLDER [--quantity Q] [--case NAME]``: the review pack."""
+"""``engine-air pack PROJECT --out FOLDER [--quantity Q] [--case NAME]``: the review pack (HTML, PDF, pictures)."""
 
 from __future__ import annotations
 
@@ -7,25 +7,26 @@ from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, ch
 
 
 def add_parser(sub) -> None:
-    r = sub.add_parser("pack", help="review pack: one folder with an HTML page, the maps and the inputs")
+    r = sub.add_parser("pack", help="review pack: one folder with an HTML page, the same review as a PDF, the maps and the inputs")
     r.add_argument("project")
     r.add_argument("--out", required=True, help="folder to write (created if needed)")
-    r.add_argument("--quantity", action="append", help="quantity to map (repeatable); default face Mach margin, "
-                                                       "recovery, spillage fraction, throat Mach")
+    r.add_argument("--quantity", action="append", help="quantity to map (repeatable); default: when a limit "
+                   "fails, the least margin over every limit and each failing limit's own quantity; then face Mach "
+                   "margin, recovery, spillage fraction, throat Mach")
     r.add_argument("--case", action="append", help="case name (repeatable); default every case")
     r.set_defaults(handler=run)
 
 
 def run(args) -> int:
     from engine_air.outputs.quantities import QUANTITIES
-    from engine_air.outputs.review_pack import PACK_QUANTITIES, write_review_pack
+    from engine_air.outputs.review_pack import write_review_pack
     from engine_air.project.errors import ProjectError
 
     check_input_path(args.out, "--out")
     inputs = (args.project,)  # every file this run reads
     check_not_inputs(args.out, "--out", inputs, folder=True)
-    quantities = tuple(args.quantity) if args.quantity else PACK_QUANTITIES
-    for q in quantities:
+    quantities = tuple(args.quantity) if args.quantity else None
+    for q in quantities or ():
         if q not in QUANTITIES:
             raise UsageError(f"--quantity {q!r}: unknown quantity; choose from {', '.join(QUANTITIES)}")
     project = load(args.project)
@@ -37,6 +38,7 @@ def run(args) -> int:
         if isinstance(exc, ProjectError):
             raise
         raise write_error(args.out, "review pack", exc) from None
-    out(f"wrote {path_text(pack.index_path)} ({len(pack.pictures)} maps, inputs in {path_text(pack.project_path)})")
+    out(f"wrote {path_text(pack.index_path)} and {path_text(pack.pdf_path)} ({len(pack.pictures)} maps of "
+        f"{', '.join(pack.quantities)}; {len(pack.section_pictures)} sections; inputs in {path_text(pack.project_path)})")
     out("VERDICT: " + ("every limit holds." if pack.holds else "some limit FAILS somewhere in the envelope."))
     return EXIT_HOLDS if pack.holds else EXIT_FAILS

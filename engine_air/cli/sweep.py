@@ -34,6 +34,9 @@ def run(args) -> int:
 
     if args.scheduler is not None:
         parse_scheduler(args.scheduler)
+        if args.workers is not None:
+            raise UsageError(f"--workers {args.workers} and --scheduler {args.scheduler}: they are exclusive (the "
+                             "cluster's scheduler decides its workers); give one of them")
     if not (math.isfinite(args.timeout) and args.timeout > 0):
         raise UsageError(f"--timeout {args.timeout}: must be a number of seconds above 0")
     if args.workers is not None and args.workers < 1:

@@ -396,7 +396,7 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m) -> Opera
         d_add = np.where(low | not_modelled, np.nan, d_add)
         c_add = d_add / (q0 * inlet.capture_area_m2)
         suction = np.where(supersonic, inlet.supersonic_lip_suction_factor, inlet.lip_suction_factor)
-        c_spill = (1.0 - suction) * c_add
+        c_spill = np.where(mfr >= 1.0, 0.0, (1.0 - suction) * c_add)  # as d_spill: 0 at MFR >= 1 (method §12)
         # spillage drag in newtons: 0 at MFR >= 1 and below M0 0.05 (q0 < 0.2 % of p0)
         d_spill = np.where(low | (mfr >= 1.0), 0.0, (1.0 - suction) * d_add)
 

@@ -2,20 +2,25 @@
 
 Maps (``map_figure``, ``render_map``, ``write_map_png``): one quantity of an
 envelope evaluation (``engine_air.envelope.evaluate.MapResult``) for one case,
-or the worst of all cases when ``case`` is None, over flight Mach number (x)
-and pressure altitude (y: km in SI, ft in US units), with
+or the worst of the evaluated cases when ``case`` is None (the only case when
+one was evaluated), over flight Mach number (x) and pressure altitude (y: km in
+SI, ft in US units); ``default_quantity(result)`` is the one shown when none is
+asked for (the least margin when a limit fails, else the face Mach margin), with
 
-- a title naming the quantity and the case (and the project);
+- a title naming the quantity and the case shown (and the project), wrapped to fit;
 - a colour bar labelled with the quantity and its unit. Margins use the
   diverging scale centred on zero (orange where the limit fails, blue where it
   holds), levels the sequential one (``engine_air.outputs.colours``, the same
   scales as the program);
 - points where the quantity is not judged (not defined, or its check does not
   apply there) in neutral grey, points outside the envelope in light grey;
-- the envelope outline, an ``x`` on failing points (thinned to a regular
-  pattern when dense), the margin = 0 line (of the quantity shown, or of the
+- the envelope outline, an ``x`` where the limit of the quantity shown fails
+  (any limit's for the least margin and for a quantity no limit judges; thinned
+  to a regular pattern when dense), the margin = 0 line (of the quantity shown, or of the
   least relative margin over all limits for a level quantity) and the dashed
-  face static = ambient line (p2/p0 = 1), each named in a legend below.
+  face static = ambient line (p2/p0 = 1), each named in a legend below;
+- for a quantity defined nowhere (e.g. the installation loss without thrust
+  data) no colour bar, and the reason written on the picture.
 
 Section plots (``section_figure``, ``write_section_png``): a cut from
 ``engine_air.outputs.sections.cut``, one line per case, the limit line (zero
@@ -48,7 +53,7 @@ from engine_air.outputs.sections import (
 )
 
 DPI = 100
-MAP_SIZE_IN = (9.6, 6.4)  # 960 x 640 px at DPI: a review map at least 900 x 600
+MAP_SIZE_IN = (9.6, 6.8)  # 960 x 680 px: a map picture is at least 900 x 600 px
 SECTION_SIZE_IN = (8.0, 5.2)
 MAX_NAME = 60  # characters of a case or project name shown in a title
 
@@ -176,6 +181,8 @@ class MapPicture:
     label: str = ""
     unit: str = ""
     case: str = ""
+    check: str | None = None  # the check whose failures are marked and counted (None: any limit's)
+    note: str = ""  # written on the picture instead of a colour scale: why the quantity is defined nowhere
 
     @property
     def undefined_points(self) -> int:
@@ -197,6 +204,156 @@ class MapFigure:
     not_judged_points: int
     zero_line: bool
     ram_line: bool
+    case: str = ""  # the case shown (WORST for the worst of the evaluated cases)
+    check: str | None = None  # the check whose failures are marked and counted (None: any limit's)
+    note: str = ""  # written on the picture instead of a colour scale (a quantity defined nowhere)
+
+
+def default_quantity(result: MapResult) -> str:
+    """The quantity a map shows when none is asked for, as in the program: the least relative margin over every
+    limit (``worst_relative_margin``) when some limit fails (it shows where, whichever limit it is), else the face
+    Mach margin."""
+    if result.summary and not result.holds:
+        return "worst_relative_margin"
+    return "face_mach_margin"
+
+
+def shown_case(result: MapResult, case: str | None) -> str:
+    """The case a map of ``case`` shows: the named one; for None (or WORST) the worst of the evaluated cases, or
+    the only one when a single case was evaluated (``--case NAME``)."""
+    if case not in (None, WORST):
+        result.case_map(case)  # KeyError for an unknown case
+        return case
+    return result.cases[0].name if len(result.cases) == 1 else WORST
+
+
+def map_case_title(result: MapResult, case: str) -> str:
+    """The case named in a map's title: "case “A”", "worst of all cases", or "worst of cases “A”, “B”" when only
+    some of the project's cases were evaluated."""
+    if case != WORST:
+        return case_title(case)
+    names = [c.name for c in result.cases]
+    if len(names) < len(result.project.cases):
+        return "worst of cases " + ", ".join(f"“{short(n, 30)}”" for n in names)
+    return case_title(WORST)
+
+
+TITLE_CHARS = 72
+"""Characters per title line of a map or section (12 pt on the figure's width); longer titles wrap, at most three
+lines."""
+
+
+def fitted_title(*parts: str, width: int = TITLE_CHARS) -> str:
+    """``parts`` one per line, each wrapped to ``width`` characters, three lines at most (the last cut with an
+    ellipsis): a title that fits its figure whatever the names."""
+    import textwrap
+
+    lines: list[str] = []
+    for part in parts:
+        if part:
+            lines += textwrap.wrap(" ".join(str(part).split()), width, break_long_words=True) or [""]
+    if len(lines) > 3:
+        lines = lines[:3]
+        lines[2] = short(lines[2] + " …", width)
+    return "\n".join(lines)
+
+
+THRUST_KEYS = ("net_thrust_n", "installed_thrust_n", "installation_loss_fraction")
+"""Quantities that need the rating's thrust table (method §13)."""
+
+
+def missing_reason(result: MapResult, quantity_key: str, case: str) -> str:
+    """Why ``quantity_key`` is not defined at any envelope point of ``case``."""
+    from engine_air.envelope import flags as F
+
+    q = QUANTITIES[quantity_key]
+    bits = np.asarray(result.flags(case))[np.asarray(result.inside, bool)]
+    if quantity_key in THRUST_KEYS and bits.size and np.all(bits & F.NO_THRUST_DATA):
+        what = "installation loss" if quantity_key == "installation_loss_fraction" else q.label.lower()
+        return f"no thrust data: {what} is not computed"
+    if quantity_key in ("started", "self_start_contraction"):
+        return f"{q.label}: defined for a mixed-compression inlet only"
+    return f"{q.label}: not defined at any point of the envelope"
+
+
+@dataclass(frozen=True)
+class _MapData:
+    quantity: object
+    name: str
+    kind: str
+    x: np.ndarray
+    y: np.ndarray
+    alt_unit: str
+    q_unit: str
+    q_factor: float
+    shown: np.ndarray
+    not_judged: np.ndarray
+    failing: np.ndarray
+    check: str | None
+    vmin: float
+    vmax: float
+
+
+def _map_data(result, quantity_key, case, units, levels) -> _MapData:
+    q = QUANTITIES[quantity_key]
+    name = shown_case(result, case)
+    alt_unit, alt_f = altitude_scale(units)
+    q_unit, q_f = quantity_scale(quantity_key, units)
+    values = np.asarray(result.quantity(name, quantity_key), float)
+    # judged: inside the envelope and the case's region, defined, and where the quantity's own check applies (e.g.
+    # "started" only in supersonic flight)
+    judged = judged_map(result, name, quantity_key) & result.judged(name)
+    shown = np.where(judged, values, np.nan)
+    check = check_of(result, quantity_key)
+    # the marks and counts are the failures of the quantity shown (its own check); any limit's for the least margin
+    # and for a quantity no check judges
+    failing = (result.failing(name, check) & judged if check is not None else result.failing(name)) & result.inside
+    if levels is None:
+        levels = C.levels_for(q.kind, shown)
+    vmin, vmax = float(levels[0]), float(levels[1])
+    if not (math.isfinite(vmin) and math.isfinite(vmax)) or vmax <= vmin:
+        vmin, vmax = C.levels_for(q.kind, np.array([vmin, vmax]))
+    return _MapData(q, name, q.kind, np.asarray(result.mach, float), np.asarray(result.altitude_m, float) * alt_f,
+                    alt_unit, q_unit, q_f, shown, result.inside & ~judged, failing, check, vmin, vmax)
+
+
+def _map_lines(ax, result, d: _MapData, alt_f: float) -> tuple[bool, bool]:
+    """The envelope outline, the zero-margin line and the face static = ambient line; (zero drawn, ram drawn)."""
+    env = result.project.envelope
+    ex = np.array(list(env.mach) + [env.mach[0]], float)
+    ey = np.array(list(env.altitude_m) + [env.altitude_m[0]], float) * alt_f
+    ax.plot(ex, ey, color=_rgb(C.OUTLINE), lw=2.0, zorder=4)
+    zero_field = d.shown if d.kind == C.MARGIN else least_relative_margin(result, d.name)
+    zero = _contour(ax, d.x, d.y, zero_field, 0.0, colors=[_rgb(C.ZERO_LINE)], linewidths=2.2, halo=5, zorder=5)
+    ratio = np.asarray(result.quantity(d.name, "face_static_to_ambient"), float)
+    ram = _contour(ax, d.x, d.y, ratio, 1.0, colors=[_rgb(C.RAM_LINE)], linewidths=2.2, linestyles="--",
+                   halo=4.5, zorder=5)
+    return zero, ram
+
+
+def _fail_label(result, d: _MapData) -> str:
+    if d.check is None:
+        return "some limit fails here"
+    label = next((c.label for c in result.cases[0].points.checks if c.name == d.check), d.check)
+    return f"{label}: fails here"
+
+
+def _map_legend(fig, result, d: _MapData, zero: bool, ram: bool, empty: bool):
+    _, _, _, _, _, Line2D, Patch = _mpl()
+    none = " (none here)"
+    zero_text = (f"{d.quantity.label} = 0" if d.kind == C.MARGIN else "limit boundary (least margin = 0)")
+    handles = [
+        Line2D([], [], color=_rgb(C.OUTLINE), lw=2.0, label="flight envelope"),
+        Line2D([], [], color=_rgb(C.ZERO_LINE), lw=2.2, label=zero_text + ("" if zero else none)),
+        Line2D([], [], color=_rgb(C.RAM_LINE), lw=2.2, ls="--",
+               label="face static = ambient (p2/p0 = 1)" + ("" if ram else none)),
+        Line2D([], [], color=_rgb(C.FAIL_MARK), marker="x", ls="", ms=7,
+               label=_fail_label(result, d) + ("" if d.failing.any() else " (nowhere)")),
+        Patch(facecolor=_rgb(C.NOT_JUDGED_GREY), edgecolor="0.3",
+              label="not defined here" if empty else "not judged / not defined"),
+        Patch(facecolor=_rgb(C.OUTSIDE_GREY), edgecolor="0.3", label="outside the envelope"),
+    ]
+    return fig.legend(handles=handles, loc="outside lower center", ncols=3, fontsize=9, frameon=True)
 
 
 def map_figure(
@@ -208,86 +365,52 @@ def map_figure(
     levels: tuple[float, float] | None = None,
     project_title: str | None = None,
 ) -> MapFigure:
-    """Build the map of ``quantity_key`` for ``case`` (None: the worst of all cases).
+    """Build the map of ``quantity_key`` for ``case`` (None: the worst of the evaluated cases, or the only one).
 
-    KeyError for an unknown quantity or case; ValueError for unknown ``units``.
+    A quantity defined nowhere in the envelope (e.g. the installation loss of a rating without thrust data) is
+    drawn grey with the reason written on the picture and no colour bar. KeyError for an unknown quantity or
+    case; ValueError for unknown ``units``.
     """
-    q = QUANTITIES[quantity_key]
-    name = WORST if case is None else case
-    if name != WORST:
-        result.case_map(name)  # KeyError for an unknown case
-    alt_unit, alt_f = altitude_scale(units)
-    q_unit, q_f = quantity_scale(quantity_key, units)
-    kind = q.kind
-    x = np.asarray(result.mach, float)
-    y = np.asarray(result.altitude_m, float) * alt_f
-    values = np.asarray(result.quantity(name, quantity_key), float)
-    judged = judged_map(result, name, quantity_key) if kind == C.MARGIN else (result.inside & np.isfinite(values))
-    not_judged = result.inside & ~judged
-    shown = np.where(judged, values, np.nan)
-    failing = result.failing(name) & result.inside  # any limit, as in the program's map
-    if levels is None:
-        levels = C.levels_for(kind, shown)
-    vmin, vmax = float(levels[0]), float(levels[1])
-    if not (math.isfinite(vmin) and math.isfinite(vmax)) or vmax <= vmin:
-        vmin, vmax = C.levels_for(kind, np.array([vmin, vmax]))
-
-    _, FigureCanvasAgg, ListedColormap, Normalize, Figure, Line2D, Patch = _mpl()
+    d = _map_data(result, quantity_key, case, units, levels)
+    _, alt_f = altitude_scale(units)
+    _, FigureCanvasAgg, ListedColormap, Normalize, Figure, _, _ = _mpl()
     fig = Figure(figsize=MAP_SIZE_IN, dpi=DPI, layout="constrained")
     FigureCanvasAgg(fig)
     ax = fig.add_subplot()
     ax.set_facecolor(_rgb(C.OUTSIDE_GREY))
-    xe, ye = _edges(x), _edges(y)
-    grey = np.where(not_judged, 1.0, np.nan)
+    xe, ye = _edges(d.x), _edges(d.y)
+    grey = np.where(d.not_judged, 1.0, np.nan)
     ax.pcolormesh(xe, ye, np.ma.masked_invalid(grey), cmap=ListedColormap([_rgb(C.NOT_JUDGED_GREY)]),
-                  vmin=0, vmax=2, shading="flat")
-    mesh = ax.pcolormesh(xe, ye, np.ma.masked_invalid(shown * q_f), cmap=C.matplotlib_colormap(kind),
-                         norm=Normalize(vmin * q_f, vmax * q_f), shading="flat")
-
-    env = result.project.envelope
-    ex = np.array(list(env.mach) + [env.mach[0]], float)
-    ey = np.array(list(env.altitude_m) + [env.altitude_m[0]], float) * alt_f
-    ax.plot(ex, ey, color=_rgb(C.OUTLINE), lw=2.0, zorder=4)
-
-    zero_field = shown if kind == C.MARGIN else least_relative_margin(result, name)
-    zero = _contour(ax, x, y, zero_field, 0.0, colors=[_rgb(C.ZERO_LINE)], linewidths=2.2, halo=5, zorder=5)
-    ratio = np.asarray(result.quantity(name, "face_static_to_ambient"), float)
-    ram = _contour(ax, x, y, ratio, 1.0, colors=[_rgb(C.RAM_LINE)], linewidths=2.2, linestyles="--",
-                   halo=4.5, zorder=5)
-
-    ii, jj = marked_points(failing)
-    ax.scatter(x[jj], y[ii], marker="x", s=22, c=[_rgb(C.FAIL_MARK)], linewidths=1.1, zorder=6)
-
+                  vmin=0, vmax=2, shading="flat", rasterized=True)
+    empty = not np.isfinite(d.shown).any()
+    mesh = ax.pcolormesh(xe, ye, np.ma.masked_invalid(d.shown * d.q_factor), cmap=C.matplotlib_colormap(d.kind),
+                         norm=Normalize(d.vmin * d.q_factor, d.vmax * d.q_factor), shading="flat", rasterized=True)
+    zero, ram = _map_lines(ax, result, d, alt_f)
+    ii, jj = marked_points(d.failing)
+    ax.scatter(d.x[jj], d.y[ii], marker="x", s=22, c=[_rgb(C.FAIL_MARK)], linewidths=1.1, zorder=6)
     ax.set_xlim(xe[0], xe[-1])
     ax.set_ylim(ye[0], ye[-1])
-    _altitude_ticks(ax.yaxis, alt_unit)
+    _altitude_ticks(ax.yaxis, d.alt_unit)
     ax.set_xlabel("Flight Mach number M0")
-    ax.set_ylabel(f"Pressure altitude ({alt_unit})")
-    title = f"{q.label} — {case_title(name)}"
-    sub = short(project_title if project_title is not None else (result.project.title or ""))
-    ax.set_title(title + (f"\n{sub}" if sub else ""), fontsize=12)
+    ax.set_ylabel(f"Pressure altitude ({d.alt_unit})")
+    sub = project_title if project_title is not None else (result.project.title or "")
+    ax.set_title(fitted_title(f"{d.quantity.label} — {map_case_title(result, d.name)}", sub), fontsize=12)
     ax.grid(True, color="white", alpha=0.25, lw=0.6)
-
-    bar = fig.colorbar(mesh, ax=ax, fraction=0.06, pad=0.02)
-    bar_label = f"{q.label} ({q_unit})"
-    if kind == C.MARGIN:
-        bar_label += "\n< 0: limit fails   > 0: limit holds"
-    bar.set_label(bar_label)
-
-    none = " (none here)"
-    zero_text = (f"{q.label} = 0" if kind == C.MARGIN else "limit boundary (least margin = 0)")
-    handles = [
-        Line2D([], [], color=_rgb(C.OUTLINE), lw=2.0, label="flight envelope"),
-        Line2D([], [], color=_rgb(C.ZERO_LINE), lw=2.2, label=zero_text + ("" if zero else none)),
-        Line2D([], [], color=_rgb(C.RAM_LINE), lw=2.2, ls="--",
-               label="face static = ambient (p2/p0 = 1)" + ("" if ram else none)),
-        Line2D([], [], color=_rgb(C.FAIL_MARK), marker="x", ls="", ms=7,
-               label="a limit fails here" + ("" if failing.any() else " (nowhere)")),
-        Patch(facecolor=_rgb(C.NOT_JUDGED_GREY), edgecolor="0.3", label="not judged / not defined"),
-        Patch(facecolor=_rgb(C.OUTSIDE_GREY), edgecolor="0.3", label="outside the envelope"),
-    ]
-    legend = fig.legend(handles=handles, loc="outside lower center", ncols=3, fontsize=9, frameon=True)
-    return MapFigure(fig, ax, bar, legend, kind, vmin, vmax, int(failing.sum()), int(not_judged.sum()), zero, ram)
+    bar, note = None, ""
+    if empty:
+        note = missing_reason(result, quantity_key, d.name)
+        ax.text(0.5, 0.5, fitted_title(note, width=48),
+                transform=ax.transAxes, ha="center", va="center", fontsize=14, zorder=7,
+                bbox=dict(boxstyle="round,pad=0.6", facecolor="white", edgecolor="0.3"))
+    else:
+        bar = fig.colorbar(mesh, ax=ax, fraction=0.06, pad=0.02)
+        bar_label = f"{d.quantity.label} ({d.q_unit})"
+        if d.kind == C.MARGIN:
+            bar_label += "\n< 0: limit fails   > 0: limit holds"
+        bar.set_label(bar_label)
+    legend = _map_legend(fig, result, d, zero, ram, empty)
+    return MapFigure(fig, ax, bar, legend, d.kind, d.vmin, d.vmax, int(d.failing.sum()), int(d.not_judged.sum()),
+                     zero, ram, d.name, d.check, note)
 
 
 def render_map(
@@ -299,13 +422,18 @@ def render_map(
     units: str = SI,
     **_ignored,
 ) -> MapPicture:
-    """Render ``quantity_key`` (a key of ``QUANTITIES``) for ``case`` (None: worst of all cases) as PNG."""
-    m = map_figure(result, quantity_key, case, units=units, levels=levels)
+    """Render ``quantity_key`` (a key of ``QUANTITIES``) for ``case`` (None: the worst of the evaluated cases, or
+    the only one) as PNG."""
+    return picture_of(map_figure(result, quantity_key, case, units=units, levels=levels), quantity_key)
+
+
+def picture_of(m: MapFigure, quantity_key: str) -> MapPicture:
+    """The ``MapPicture`` (PNG bytes and what they show) of a map figure."""
     png = figure_png(m.figure)
     w, h = (int(round(v)) for v in m.figure.get_size_inches() * m.figure.dpi)
     q = QUANTITIES[quantity_key]
     return MapPicture(png, w, h, m.kind, m.vmin, m.vmax, m.failing_points, m.not_judged_points, quantity_key,
-                      q.label, q.unit, WORST if case is None else case)
+                      q.label, q.unit, m.case, m.check, m.note)
 
 
 def map_png_bytes(result, quantity_key="face_mach_margin", case=None, levels=None, *, units: str = SI) -> bytes:
@@ -323,7 +451,8 @@ def write_map_png(
     units: str = SI,
     inputs=(),
 ) -> MapPicture:
-    """Write the map of ``quantity_key`` for ``case`` (None: worst of all cases) to ``path`` as PNG.
+    """Write the map of ``quantity_key`` for ``case`` (None: the worst of the evaluated cases, or the only one) to
+    ``path`` as PNG (960 x 680 px).
 
     Returns the ``MapPicture``. Raises KeyError for an unknown quantity or case, ``OutputIsInputError`` when
     ``path`` is one of ``inputs``, and OSError when the file cannot be written (the old file is then kept:
@@ -419,8 +548,7 @@ def section_figure(section: Section, *, units: str = SI, project_title: str | No
         ax.set_ylabel(f"Pressure altitude ({alt_unit})")
         _altitude_ticks(ax.yaxis, alt_unit)
         title = f"{q.label} against altitude at Mach {section.at:.3g}"
-    sub = short(project_title or "")
-    ax.set_title(title + (f"\n{sub}" if sub else ""), fontsize=12)
+    ax.set_title(fitted_title(title, project_title or ""), fontsize=12)
     ax.grid(True, alpha=0.3)
     legend = fig.legend(handles, labels, loc="outside lower center", ncols=3, fontsize=9)
     return SectionFigure(fig, ax, legend, section)
@@ -450,7 +578,8 @@ def quantity_kind(quantity_key: str) -> str:
 
 
 __all__ = [
-    "MapFigure", "MapPicture", "SectionFigure", "altitude_scale", "check_of", "figure_png", "map_figure",
-    "map_png_bytes", "quantity_kind", "quantity_scale", "render_map", "section_figure", "section_png_bytes",
+    "MapFigure", "MapPicture", "SectionFigure", "THRUST_KEYS", "altitude_scale", "check_of", "default_quantity",
+    "figure_png", "fitted_title", "map_case_title", "map_figure", "map_png_bytes", "missing_reason", "picture_of",
+    "quantity_kind", "quantity_scale", "render_map", "section_figure", "section_png_bytes", "shown_case",
     "write_map_png", "write_section_png",
 ]

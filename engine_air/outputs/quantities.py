@@ -113,7 +113,7 @@ _ALL = (
     _q("spillage_fraction", "Spillage fraction", "", "max(0, 1 - mass-flow ratio)", judged_by="spillage"),
     _q("additive_drag_coefficient", "Additive drag coefficient", "", "Pre-entry (additive) drag over q0 A_c"),
     _q("spillage_drag_coefficient", "Spillage drag coefficient", "",
-       "Additive drag less lip suction over q0 A_c"),
+       "Additive drag less lip suction over q0 A_c; 0 at a mass-flow ratio of 1 or more, as the spillage drag"),
     _q("face_static_to_ambient", "Face static / ambient pressure", "", "p2 / p0"),
     _q("relative_tip_mach", "Blade relative tip Mach", "", "sqrt(M2^2 + (U_tip/a2)^2)",
        judged_by="relative-tip-mach"),

@@ -46,6 +46,8 @@ def check_of(result: MapResult, quantity_key: str) -> str | None:
             "recovery_minus_reference": "recovery" if recovery_is_reference else None,
             "spillage_fraction": "spillage",
             "relative_tip_mach": "relative-tip-mach",
+            "installation_loss_fraction": "installation-loss",
+            "started": "started",
         }.get(quantity_key)
     if named is None or not result.cases:
         return None
@@ -68,6 +70,7 @@ def limit_of(result: MapResult, quantity_key: str) -> float | None:
         "recovery": lim.recovery_min,
         "spillage": lim.spillage_fraction_max,
         "relative-tip-mach": lim.relative_tip_mach_max,
+        "installation-loss": getattr(lim, "installation_loss_max", None),
     }.get(check)
     try:
         return float(value)

@@ -12,8 +12,11 @@ grids:
   the larger of the two projects' point counts along each axis.
 
 Each project is judged inside its *own* envelope polygon on that grid
-(``inside_a``, ``inside_b``); a difference is defined where both are inside
-(``both``) and is NaN elsewhere. The verdicts (``verdicts``) are therefore those
+(``inside_a``, ``inside_b``) and, for a case with a region (``mach_range``,
+``altitude_range_m``, method §14), inside that region only; a difference is defined
+where both projects judge the point (``judged_both``) and is NaN elsewhere, so a
+difference far outside a case's region (a take-off case at Mach 2) is never
+reported. The verdicts (``verdicts``) are therefore those
 of each project on the common grid: with ``grid_from="a"`` A's verdict is that of
 ``engine-air check A``; B's may differ from its own check at points its own grid
 has and A's has not.
@@ -54,13 +57,30 @@ GRID_CHOICES = ("a", "b", "union")
 DIFFERENCE_QUANTITIES = (
     "worst_relative_margin", "face_mach_margin", "recovery", "spillage_fraction", "mass_flow_ratio", "throat_mach",
     "face_mach",
-    "recovery_minus_reference", "additive_drag_coefficient",
+    "recovery_minus_reference", "additive_drag_n", "spillage_drag_n",
 )
 """Quantities whose difference maps and statistics ``compare_projects`` prepares; the first is the default.
 
 The default is the least relative margin over every judged limit: any design change that moves any limit shows in
 it, where a single quantity (e.g. the face Mach margin, which a ramp angle does not change) can be zero everywhere
-and give a blank difference map."""
+and give a blank difference map. Drags are compared in newtons: a drag coefficient divides by q0, which goes to zero
+at the low-speed end of the envelope, where a small difference in newtons becomes an enormous one in coefficient."""
+
+
+def judged_value(result: MapResult, case: str, key: str) -> np.ndarray:
+    """The map of ``key`` for ``case`` (or WORST) where it is judged, NaN elsewhere: outside the envelope and
+    outside the case's region (``mach_range``, ``altitude_range_m``; method §14). For WORST the worst over the cases
+    judged at each point (least margin; for a level quantity the value of the case whose limiting margin is least)."""
+    if case != WORST:
+        values = np.asarray(result.quantity(case, key), dtype=float)
+        return np.where(result.judged(case), values, np.nan)
+    stack = np.stack([np.where(result.judged(c.name), np.asarray(result.quantity(c.name, key), dtype=float), np.nan)
+                      for c in result.cases])
+    if key.endswith("margin") or key == "recovery_minus_reference":
+        least = np.min(np.where(np.isnan(stack), np.inf, stack), axis=0)
+        return np.where(np.isposinf(least), np.nan, least)
+    pick = result.worst_case_index()  # a judged case ranks before one that is not
+    return np.take_along_axis(stack, pick[None], axis=0)[0]
 
 
 def evaluate_on_axes(project: Project, mach_1d, altitude_1d, case_names: list[str] | None = None) -> MapResult:
@@ -112,12 +132,13 @@ def common_axes(a: Project, b: Project, grid_from: str = "a") -> tuple[np.ndarra
 
 @dataclass(frozen=True)
 class DifferenceStats:
-    """B - A of one quantity for one case over the points inside both envelopes."""
+    """B - A of one quantity for one case over the points both projects judge (inside both envelopes and the
+    case's region)."""
 
     case: str
     quantity: str
     label: str
-    points: int  # points compared (inside both envelopes, defined in both)
+    points: int  # points compared (judged by both: inside both envelopes and the case's region; defined in both)
     min: float
     max: float
     mean: float
@@ -193,17 +214,24 @@ class CompareResult:
     def holds_b(self) -> bool:
         return self.result_b.holds
 
+    def judged_both(self, case: str) -> np.ndarray:
+        """(ny, nx) bool: both projects judge the point for ``case`` (inside both envelopes and the case's region in
+        each; for WORST, judged in some case of each)."""
+        return self.result_a.judged(case) & self.result_b.judged(case)
+
     def value(self, side: str, case: str, key: str) -> np.ndarray:
-        """The map of ``key`` for ``case`` of project ``side`` ("a" or "b"), NaN outside its envelope."""
+        """The map of ``key`` for ``case`` of project ``side`` ("a" or "b"), NaN where that project does not judge
+        it (outside its envelope or the case's region)."""
         result = {"a": self.result_a, "b": self.result_b}[side]
-        return result.quantity(case, key)
+        return judged_value(result, case, key)
 
     def difference(self, case: str, key: str) -> np.ndarray:
-        """B - A of quantity ``key`` for ``case`` (or WORST): NaN outside either envelope or where undefined."""
+        """B - A of quantity ``key`` for ``case`` (or WORST): NaN where either project does not judge the point
+        (outside its envelope or the case's region) or the quantity is not defined."""
         if case != WORST and case not in self.cases:
             raise KeyError(f"case {case!r} is not in both projects; shared cases are {self.cases}")
-        da = self.result_a.quantity(case, key)
-        db = self.result_b.quantity(case, key)
+        da = self.value("a", case, key)
+        db = self.value("b", case, key)
         with np.errstate(invalid="ignore"):
             return np.where(self.both, db - da, np.nan)
 
@@ -328,5 +356,5 @@ def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFF
 
 __all__ = [
     "DIFFERENCE_QUANTITIES", "GRID_CHOICES", "CompareResult", "DifferenceStats", "VerdictRow", "common_axes",
-    "compare_columns", "compare_projects", "evaluate_on_axes", "write_compare_csv",
+    "compare_columns", "compare_projects", "evaluate_on_axes", "judged_value", "write_compare_csv",
 ]
