@@ -16,20 +16,12 @@ spelling Python reads as a number (``--altitude-m -1000``, ``--lower -1e3``,
 from __future__ import annotations
 
 import argparse
+import importlib
 import sys
 
-import importlib
-
 from engine_air import __version__
-<<<<<<< HEAD
-from engine_air.cli.common import EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err
-=======
-from engine_air.cli import check, compare, distortion, maps, pack, point, size, sweep
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err,
                                    quiet_stdout)
-from engine_air.cli.maps import write_map_csv
-from engine_air.cli.size import SIZE_OBJECTIVES
->>>>>>> main
 from engine_air.outputs.safe_text import safe_path, safe_text
 from engine_air.project.errors import ProjectError
 
