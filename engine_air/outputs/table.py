@@ -257,10 +257,20 @@ def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], d
     return rows
 
 
+class Streamed:
+    """A table given part by part (``write_point_table``): column ``names`` and ``parts``, an iterable of
+    (rows, columns ready for ``text(a, b)``)."""
+
+    def __init__(self, names: Sequence[str], parts: Iterable[tuple[int, list]]):
+        self.names, self.parts = list(names), parts
+
+
 def write_csv(table, dest) -> int:
-    """``table`` (an Arrow table or a mapping of name -> values) as CSV to ``dest`` (a path or a binary file):
-    a header, then one line per row, cells joined by commas, nulls and non-finite numbers as empty cells.
-    Returns the number of rows."""
+    """``table`` (an Arrow table, a mapping of name -> values or a ``Streamed`` table) as CSV to ``dest`` (a path
+    or a binary file): a header, then one line per row, cells joined by commas, nulls and non-finite numbers as
+    empty cells. Returns the number of rows."""
+    if isinstance(table, Streamed):
+        return write_csv_batches(table.names, table.parts, dest)
     columns = dict(zip(table.column_names, table.columns)) if isinstance(table, pa.Table) else dict(table)
     n = len(next(iter(columns.values()))) if columns else 0
     return write_csv_batches(list(columns), [(n, [_column(v) for v in columns.values()])], dest)
@@ -450,8 +460,8 @@ def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
             cols = _point_columns(result, cm, TABLE_KEYS)
             yield n, [cols.pop(name) for name in order]  # one case's columns at a time
     with _output(dest, inputs) as target:
-        return write_csv_batches(order, parts(), target)
+        return write_csv(Streamed(order, parts()), target)
 
 
-__all__ = ["BATCH_ROWS", "FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns",
-           "to_arrow", "write_csv", "write_csv_batches", "write_point_table", "write_table"]
+__all__ = ["BATCH_ROWS", "FORMULA_LEADS", "Streamed", "coded_text", "flag_text", "neutralise", "point_table",
+           "point_table_columns", "to_arrow", "write_csv", "write_csv_batches", "write_point_table", "write_table"]

@@ -41,8 +41,11 @@ def _mach_from_speed(v):
     return np.sqrt(v2 / (_G1 * (1.0 - v2)))
 
 
-def _steps(span, longest: float = _H) -> int:
-    """Equal steps no longer than ``longest`` (rad) over the widest of the members' spans."""
+def _steps(span, longest: float = _H, near: float | None = None, share: float = 0.08) -> int:
+    """Equal steps no longer than ``longest`` (rad) over the widest of the members' spans, nor than ``share`` of
+    the least ray ``near`` reached (rad): the cot(w) term grows as 1/w towards a slender cone's axis."""
+    if near is not None:
+        longest = min(longest, share * near)
     return max(4, int(math.ceil(float(np.max(np.abs(span), initial=0.0)) / longest)))
 
 
@@ -206,7 +209,7 @@ def cone_family(cone_deg: float) -> ConeFamily:
     # further down only costs steps) far up the weak branch
     mc = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
     top = 0.5 * math.pi - 1e-6
-    m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05))
+    m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05, th, 0.16))
     # the family: the members next to one another about the least flight Mach number, up to _TOP_MACH
     ok = np.isfinite(m0)
     k = int(np.nanargmin(np.where(ok, m0, np.nan)))
@@ -227,9 +230,9 @@ def cone_family(cone_deg: float) -> ConeFamily:
     for _ in range(6):
         probe = np.linspace(lo, hi, 17)
         end = np.minimum(np.interp(probe, mc, beta) + 0.1, top)
-        pm0, pbeta = _outward(th, probe, end, _steps(end - th, 0.03))
+        pm0, pbeta = _outward(th, probe, end, _steps(end - th, 0.03, th, 0.1))
         if not np.isfinite(pm0).all():
-            pm0, pbeta = _outward(th, probe, np.full(probe.size, top), _steps(top - th, 0.03))
+            pm0, pbeta = _outward(th, probe, np.full(probe.size, top), _steps(top - th, 0.03, th, 0.1))
         if not np.isfinite(pm0).any():
             raise ValueError(f"no attached conical shock found about the detachment point of a {cone_deg:g} deg cone")
         j = int(np.nanargmin(pm0))
