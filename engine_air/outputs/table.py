@@ -141,7 +141,8 @@ def _strings(texts: Sequence[str | None]) -> pa.Array:
     np.cumsum([len(d) for d in data], out=offsets[1:])
     valid = np.array([t is not None for t in texts], dtype=bool)
     validity = None if valid.all() else pa.py_buffer(np.packbits(valid, bitorder="little"))
-    return pa.Array.from_buffers(pa.string(), len(data), [validity, pa.py_buffer(offsets), pa.py_buffer(b"".join(data))])
+    buffers = [validity, pa.py_buffer(offsets), pa.py_buffer(b"".join(data))]
+    return pa.Array.from_buffers(pa.string(), len(data), buffers)
 
 
 class _Coded:
