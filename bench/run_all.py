@@ -70,7 +70,7 @@ def startup(folder, repeats):
 
 def per_point(repeats):
     import scalar_model
-    from numpy_floor import floor_inputs, floor_map
+    from numpy_floor import floor_face_margin
 
     from engine_air.envelope.polygon import grid_axes
     from engine_air.flow.match import evaluate_conditions
@@ -88,13 +88,14 @@ def per_point(repeats):
         rng = np.random.default_rng(1)
         pts = [(mach[i], alt[j]) for i, j in zip(rng.integers(0, mach.size, 200), rng.integers(0, alt.size, 200))]
         t_scalar = best_time(lambda: [scalar_model.evaluate_point(project, case, m, h) for m, h in pts], 3) / len(pts)
-        line = (f"per point, {project.inlet.type}: {t_vec * 1e9:.0f} ns; scalar script / package = "
-                f"{t_scalar / t_vec:,.0f}x (goal >= 100x)")
-        if project.inlet.type == "pitot":
-            inputs = floor_inputs(project)
-            t_floor = best_time(lambda: floor_map(*inputs), repeats) / m2.size
-            line += f"; package / numpy floor = {t_vec / t_floor:.1f}x ({t_floor * 1e9:.0f} ns per point)"
-        print(line)
+        rating = project.rating(case.rating)
+        floor_args = (mach, alt, case.isa_offset_K, np.asarray(rating.theta, float),
+                      np.asarray(rating.corrected_flow_kg_s, float), project.inlet.face_area_m2,
+                      project.limits.face_mach_max)
+        t_floor = best_time(lambda: floor_face_margin(*floor_args), repeats) / m2.size
+        print(f"per point, {project.inlet.type}: {t_vec * 1e9:.0f} ns; scalar script / package = "
+              f"{t_scalar / t_vec:,.0f}x (goal >= 100x); package / numpy floor = {t_vec / t_floor:.1f}x "
+              f"({t_floor * 1e9:.0f} ns per point, bench/numpy_floor.py)")
 
 
 _PEAK = ("import resource, sys, contextlib, io\nsys.path.insert(0, {root!r})\nfrom engine_air.cli import main\n"

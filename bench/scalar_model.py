@@ -6,7 +6,7 @@ oblique-shock wave angle from the theta-beta-M relation) and the project's
 ``engine_air.project.model`` dataclasses (inlet, rating table, limits, case).
 
 It is the reference that ``tests/test_scalar_agreement.py`` holds the
-vectorised ``engine_air.flow.match.evaluate_conditions`` against, and the slow
+vectorised ``engine_air.evaluate_conditions`` against, and the slow
 baseline of ``bench/bench_map.py``.
 
 Where the method leaves a detail open, this model makes the same documented
@@ -558,6 +558,8 @@ def evaluate_point(project, case, mach, altitude_m) -> dict:
         c_add = d_add / (q0 * a1)
         suction = 0.0 if supersonic else inlet.lip_suction_factor
         c_spill = (1.0 - suction) * c_add
+    if not low and mfr >= 1.0:  # nothing spills at or above full capture: no spillage drag coefficient (§12)
+        c_spill = 0.0
 
     face_static = pi * pt_in * p_over_pt(m2) / p0
     if rating.fan_tip_speed_m_s is not None:

@@ -16,7 +16,8 @@ from pygasflow import isentropic_solver
 
 from engine_air.envelope import flags as F
 from engine_air.flow.airflow import door_flow, exit_mach
-from engine_air.flow.match import REGIMES, evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
+from engine_air.flow.match import REGIMES
 from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating
 
 G = 1.4

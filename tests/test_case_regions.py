@@ -19,7 +19,7 @@ from pygasflow import isentropic_solver
 from engine_air.cli import main
 from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.outputs.point_record import point_record
 from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating
 from engine_air.project.toml_file import load_project, save_project

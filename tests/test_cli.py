@@ -353,7 +353,7 @@ def test_started_text_names_the_self_start_and_unstart_mach(capsys):
     import numpy as np
 
     from engine_air.envelope.explain import mechanism
-    from engine_air.flow.match import evaluate_conditions
+    from engine_air.envelope.conditions import evaluate_conditions
     from engine_air.inlets.mixed_compression import starting_machs
     from engine_air.project import load_project
 

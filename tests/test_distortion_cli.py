@@ -148,7 +148,7 @@ def test_map_checks_are_judged_only_where_data_back_them():
     from dataclasses import replace
 
     from engine_air.envelope.checks import build_checks
-    from engine_air.flow.match import evaluate_conditions
+    from engine_air.envelope.conditions import evaluate_conditions
 
     project = load_project(SAMPLE)
     case = project.cases[0]

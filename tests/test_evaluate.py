@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 
 from engine_air.envelope.evaluate import WORST, evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.project.model import Grid
 from engine_air.project import load_project
 

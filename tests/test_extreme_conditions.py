@@ -29,7 +29,8 @@ from engine_air.physics.atmosphere import MAX_ALTITUDE_M, MIN_ALTITUDE_M
 from engine_air.physics.constants import GAMMA, LOW_SPEED_MACH, P_REF, R_AIR, T_REF
 from engine_air.envelope.evaluate import evaluate_project
 from engine_air.physics.isentropic import choked_corrected_flow_per_area
-from engine_air.flow.match import REGIMES, SUBSONIC, evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
+from engine_air.flow.match import REGIMES, SUBSONIC
 from engine_air.project.model import Case, Grid, Inlet, Project, Rating
 from engine_air.project import ProjectError, load_project, project_from_dict, project_to_dict
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
@@ -558,7 +559,7 @@ def test_tiny_legal_limits_and_areas_give_flags_and_no_warnings(tmp_path):
     import warnings
 
     from engine_air.envelope.evaluate import evaluate_project
-    from engine_air.envelope.point import evaluate_point
+    from engine_air.outputs.point import evaluate_point
     from engine_air.project import load_project
 
     text = (SAMPLES / "subsonic_transport_nacelle.toml").read_text(encoding="utf-8")

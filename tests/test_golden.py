@@ -23,7 +23,7 @@ from engine_air.envelope.flags import DESCRIPTIONS
 ROOT = Path(__file__).resolve().parents[1]
 GOLDEN = ROOT / "tests" / "golden"
 SAMPLES = ["subsonic_transport_nacelle", "supersonic_two_ramp", "undersized_business_jet"]
-RTOL = 1e-9
+RTOL = 1e-12
 ADDED_FLAGS = {"no-thrust-data"}
 """Flags added on purpose after the golden files were written (method section 13: a rating without a thrust
 table carries ``no-thrust-data``); they are taken out before comparing flag lists."""

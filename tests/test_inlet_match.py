@@ -22,7 +22,8 @@ from engine_air.inlets.registry import inlet_type
 
 def external_shocks(inlet, mach):
     return inlet_type(inlet.type).shock_system(inlet, mach)
-from engine_air.flow.match import REGIMES, evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
+from engine_air.flow.match import REGIMES
 from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
 from engine_air.outputs.point_record import point_record

@@ -17,7 +17,7 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 from pygasflow.solvers import oblique_shockwave_solver  # noqa: E402
 
-from engine_air.flow.match import evaluate_conditions  # noqa: E402
+from engine_air.envelope.conditions import evaluate_conditions  # noqa: E402
 from engine_air.outputs.inlet_sketch import inlet_sketch  # noqa: E402
 from engine_air.project.toml_file import load_project  # noqa: E402
 

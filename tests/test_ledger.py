@@ -17,7 +17,7 @@ from pygasflow import isentropic_solver
 
 from engine_air.envelope import flags as F
 from engine_air.flow.ledger import bilinear_held
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.outputs.point_record import point_record
 from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating
 

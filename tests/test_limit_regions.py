@@ -26,7 +26,7 @@ import pytest
 from engine_air.cli import main
 from engine_air.envelope.checks import in_region
 from engine_air.envelope.evaluate import NOT_JUDGED, evaluate_project, verdict_text
-from engine_air.envelope.point import evaluate_point
+from engine_air.outputs.point import evaluate_point
 from engine_air.project import (LimitRegion, ProjectError, dumps_project, load_project, loads_project,
                                 project_to_dict, save_project, validate_project)
 from engine_air.project.model import Case, Envelope, Grid, Inlet, Limits, Project, Rating

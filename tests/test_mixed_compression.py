@@ -21,7 +21,7 @@ from pygasflow.shockwave import max_theta_from_mach
 
 from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.inlets.mixed_compression import (INLET, entrance_area_m2, mixed_state, started_accelerating,
                                                  started_along, starting_machs)
 from engine_air.inlets.ramp_layout import (cowl_entrance, cowl_entrance_area_ratio, ramp_design_geometry,

@@ -14,7 +14,7 @@ import pytest
 from engine_air.envelope import ranking
 from engine_air.envelope.checks import Check
 from engine_air.envelope.evaluate import WORST, evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.outputs.quantities import JSON_KEYS, QUANTITIES, REGISTRY, TABLE_KEYS
 from engine_air.outputs.safe_text import safe_path, safe_text
 from engine_air.outputs.table import point_table_columns, write_table

@@ -11,13 +11,13 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 from pygasflow.shockwave import beta_from_mach_theta
 from scipy.optimize import brentq
 
 from engine_air.envelope import flags as F
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.inlets.base import CaptureState
 from engine_air.inlets.registry import INLET_TYPES, inlet_type
 from engine_air.project.model import Case, Envelope, Inlet, Limits, Project, Rating
@@ -151,6 +151,7 @@ def test_every_registered_type_is_covered():
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(name=st.sampled_from(sorted(TYPES)), mach=st.floats(0.0, 3.0), alt=st.floats(0.0, 20000.0),
        flow=st.floats(1.0, 200.0))
+@example(name="pitot", mach=2.875, alt=0.0, flow=142.0)
 def test_properties_of_every_type(name, mach, alt, flow):
     """recovery <= 1, MFR_max <= 1, pre-entry drag >= 0, no NaN without a flag (method §8, §13)."""
     inlet = Inlet(name, 0.8, 0.6, 0.7, duct_loss_coefficient=0.03, **TYPES[name])
@@ -167,7 +168,9 @@ def test_properties_of_every_type(name, mach, alt, flow):
     if math.isnan(drag):
         assert bits & (F.LOW_SPEED | F.OUTSIDE_ATMOSPHERE)
     elif mach > 1.0:
-        assert drag >= 0.0
+        # zero at full capture up to the round-off the next line allows (hypothesis found -7e-10 N at
+        # MFR = 1 - 1 ulp, pitot at M0 2.875, sea level)
+        assert drag >= -1e-9 * float(pts.static_pressure_pa[0])
         if float(pts.mass_flow_ratio[0]) >= 1.0 - 1e-12:
             assert drag == pytest.approx(0.0, abs=1e-9 * float(pts.static_pressure_pa[0]))
     for key in ("recovery", "face_mach", "mass_flow_kg_s", "external_recovery"):

@@ -40,7 +40,7 @@ def no_allocation(monkeypatch):
 
     monkeypatch.setattr(ev, "grid_axes", refuse)
     monkeypatch.setattr(ev, "envelope_mask", refuse)
-    monkeypatch.setattr(ev, "evaluate_conditions", refuse)
+    monkeypatch.setattr(ev, "run_chain", refuse)  # the chain of stages, run per case
 
 
 @pytest.mark.parametrize("grid, key, allowed", [

@@ -1,4 +1,4 @@
-"""The vectorised match (engine_air.flow.match.evaluate_conditions) against the independent per-point scalar
+"""The vectorised match (engine_air.evaluate_conditions) against the independent per-point scalar
 implementation in bench/scalar_model.py, on every sample project, at random envelope points."""
 
 from __future__ import annotations
@@ -17,7 +17,8 @@ import scalar_model  # noqa: E402
 
 from engine_air.envelope import flags as F  # noqa: E402
 from engine_air.envelope.polygon import envelope_mask  # noqa: E402
-from engine_air.flow.match import REGIMES, evaluate_conditions  # noqa: E402
+from engine_air.envelope.conditions import evaluate_conditions
+from engine_air.flow.match import REGIMES  # noqa: E402
 from engine_air.project import load_project  # noqa: E402
 
 

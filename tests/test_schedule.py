@@ -15,7 +15,7 @@ import numpy as np
 import pytest
 
 from engine_air.cli import main
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.inlets import registry
 from engine_air.inlets.external_ramp import INLET as RAMP
 from engine_air.project.errors import ProjectError

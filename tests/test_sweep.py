@@ -11,7 +11,7 @@ from engine_air.cli import main
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, evaluate_project
 from engine_air.project import load_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.studies.sizing import with_design_values
 from engine_air.studies.sweep import MAX_POINT_EVALUATIONS, parse_vary, sweep, write_sweep_csv
 

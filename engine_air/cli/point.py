@@ -59,7 +59,7 @@ def altitude_m(args) -> float:
 
 def run(args) -> int:
     from engine_air.envelope import flags as F
-    from engine_air.envelope.point import evaluate_point
+    from engine_air.outputs.point import evaluate_point
     from engine_air.outputs.point_record import record_in_us_units
 
     if not math.isfinite(args.mach):

@@ -1,11 +1,6 @@
-"""The names of the checks (``engine-air point --json`` ``checks[].name``), in the order they are built.
-
-Kept apart from ``engine_air.envelope.checks`` (which needs numpy and the physics) so that the project-file
-schema can name them: a ``[limits.region.NAME]`` table must name one of these. A new check adds its name here;
-``build_checks`` refuses a check whose name is not listed.
-"""
+"""The names of the checks: ``engine_air.spec.check_names`` re-exported (the project file names them, so they live
+in the leaf ``spec`` that ``project`` imports; ``envelope.checks`` builds exactly these)."""
 
 from __future__ import annotations
 
-CHECK_NAMES = ("face-mach", "throat-mach", "recovery", "stability", "relative-tip-mach", "spillage", "started",
-               "installation-loss", "dc60", "surge-margin")
+from engine_air.spec.check_names import CHECK_NAMES  # noqa: F401

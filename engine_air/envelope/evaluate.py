@@ -2,7 +2,8 @@
 
 ``evaluate_project(project)`` builds the grid over the envelope's bounding box,
 masks it by the envelope polygon and evaluates every (or the chosen) case with
-``engine_air.flow.match.evaluate_conditions``, one vectorised call per case.
+the chain of ``engine_air.flow.chain.run_chain``, one vectorised call per case, and judges each case's
+points against the limits (``engine_air.envelope.conditions.judge``).
 Grid arrays have shape (altitude_points, mach_points): row i is altitude
 ``altitude_m[i]``, column j is Mach ``mach[j]``.
 
@@ -29,7 +30,8 @@ from engine_air.envelope import flags as F
 from engine_air.envelope import ranking
 from engine_air.envelope.polygon import envelope_mask, grid_axes
 from engine_air.project.errors import ProjectError
-from engine_air.flow.match import OperatingPoints, evaluate_conditions
+from engine_air.envelope.conditions import JudgedPoints, judge
+from engine_air.flow.chain import run_chain
 from engine_air.project.model import Project
 from engine_air.project import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
 
@@ -43,7 +45,7 @@ class Cancelled(Exception):
 @dataclass
 class CaseMap:
     name: str
-    points: OperatingPoints  # arrays of shape (altitude_points, mach_points)
+    points: JudgedPoints  # arrays of shape (altitude_points, mach_points)
 
 
 NOT_JUDGED = "not judged anywhere"
@@ -249,7 +251,7 @@ def evaluate_project(
     for i, case in enumerate(chosen):
         if cancelled is not None and cancelled():
             raise Cancelled()
-        points = evaluate_conditions(project, case, mach_1d[None, :], alt_1d[:, None])
+        points = judge(project, run_chain(project, case, mach_1d[None, :], alt_1d[:, None]))
         points.flags = np.where(inside, points.flags, points.flags | F.OUTSIDE_ENVELOPE)
         maps.append(CaseMap(case.name, points))
         if progress is not None:

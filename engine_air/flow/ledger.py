@@ -25,9 +25,12 @@ Mattingly, Heiser & Pratt, Aircraft Engine Design (2002), installation losses.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
+
+from engine_air.flow import airflow
+from engine_air.flow.flags import NO_THRUST_DATA
 
 from engine_air.physics.reference_recovery import mil_e_5008b_recovery
 from engine_air.project.model import REFERENCE_RECOVERY_NAME, Rating
@@ -108,12 +111,17 @@ def installed_thrust(f_n, exchange, recovery, reference, d_spill, d_bleed, d_byp
 
 @dataclass(frozen=True)
 class Ledger:
+    """The ledger's items at each point (N), the chain's stage after the drag (``ledger``)."""
+
     ram_drag_n: np.ndarray
     net_thrust_n: np.ndarray
     installed_thrust_n: np.ndarray
     installation_loss_fraction: np.ndarray
     thrust_reference_recovery: np.ndarray
     no_thrust_data: bool
+    bleed_drag_n: np.ndarray | float = 0.0
+    bypass_drag_n: np.ndarray | float = 0.0
+    flags: np.ndarray | int = 0
 
 
 def installation_ledger(rating: Rating, flight_mach, altitude_m, recovery, engine_flow_kg_s, velocity_m_s,
@@ -131,3 +139,15 @@ def installation_ledger(rating: Rating, flight_mach, altitude_m, recovery, engin
             f_inst = np.full(np.shape(f_n), np.nan)
             loss = f_inst
     return Ledger(ram, f_n, f_inst, loss, ref, not has_thrust_data(rating))
+
+
+def ledger(rating: Rating, inlet, fs, thr, drag) -> Ledger:
+    """The chain's ledger stage: bleed and bypass drag W_x V0 (1 - V_exit/V0) (``engine_air.flow.airflow``) and
+    ``installation_ledger`` on the throat's flows (``thr``, an ``engine_air.flow.throat.Throat``), the free
+    stream ``fs`` and the spillage drag of ``drag``; ``no-thrust-data`` without a thrust table."""
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        d_bleed = airflow.bleed_drag(thr.bleed_flow_kg_s, fs.velocity_m_s, inlet.bleed_exit_velocity_ratio)
+        d_bypass = airflow.bypass_drag(thr.bypass_flow_kg_s, fs.velocity_m_s, inlet.bypass_exit_velocity_ratio)
+    out = installation_ledger(rating, fs.mach, fs.altitude_m, thr.recovery, thr.engine_flow_kg_s, fs.velocity_m_s,
+                              drag.spillage_drag_n, d_bleed, d_bypass)
+    return replace(out, bleed_drag_n=d_bleed, bypass_drag_n=d_bypass, flags=NO_THRUST_DATA if out.no_thrust_data else 0)

@@ -38,8 +38,8 @@ import numpy as np
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import SHOCK_ON_LIP_MACH
 from engine_air.physics.shocks import normal_shock, oblique_shock
-from engine_air.project.model import Inlet
-from engine_air.project.schema_field import REQUIRED, Field
+from engine_air.spec.project import Inlet
+from engine_air.spec.field import REQUIRED, Field
 
 MAX_CONES = 2
 MAX_CONE_DEG = 40.0

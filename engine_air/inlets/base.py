@@ -14,8 +14,8 @@ from typing import Protocol, runtime_checkable
 
 import numpy as np
 
-from engine_air.project.model import Inlet
-from engine_air.project.schema_field import Field
+from engine_air.spec.project import Inlet
+from engine_air.spec.field import Field
 
 
 @dataclass(frozen=True)

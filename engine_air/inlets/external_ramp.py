@@ -18,8 +18,8 @@ from __future__ import annotations
 import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
-from engine_air.project.model import Inlet
-from engine_air.project.schema_field import REQUIRED, Field
+from engine_air.spec.project import Inlet
+from engine_air.spec.field import REQUIRED, Field
 
 MAX_RAMPS = 3
 MAX_RAMP_DEG = 25.0

@@ -52,8 +52,8 @@ from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import RAMP_ANGLES, SHOCK_ON_LIP_MACH, ramp_problems
 from engine_air.inlets.schedule import is_scheduled, scheduled
 from engine_air.physics.shocks import normal_shock, oblique_shock
-from engine_air.project.model import Inlet
-from engine_air.project.schema_field import Field
+from engine_air.spec.project import Inlet
+from engine_air.spec.field import Field
 
 SCAN_START = 1.0
 """Mach number at which every history starts (unstarted): supersonic flight begins here."""
@@ -101,7 +101,7 @@ def entrance_area_m2(inlet: Inlet) -> float:
 
     Examples
     --------
-    >>> from engine_air.project.model import Inlet
+    >>> from engine_air.spec.project import Inlet
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=2.0, throat_area_m2=1.0, face_area_m2=1.5,
     ...               ramp_angles_deg=(6.0, 6.0), shock_on_lip_mach=2.4)
     >>> print(f"{entrance_area_m2(inlet):.5f}")
@@ -142,7 +142,7 @@ def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
     oblique shocks); the Kantrowitz limit there is 0.8837 and the scheduled contraction 0.62/0.69931 = 0.8866 is
     just above it: it can run started and starts itself.
 
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
@@ -214,7 +214,7 @@ def started_along(inlet: Inlet, mach_history) -> np.ndarray:
     --------
     The throat schedule below self-starts the inlet at M0 1.984 and keeps it started, decelerating, to 1.795:
 
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
@@ -254,7 +254,7 @@ def started_accelerating(inlet: Inlet, flight_mach) -> np.ndarray:
 
     Examples
     --------
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))
@@ -305,7 +305,7 @@ def starting_machs(inlet: Inlet, top_mach: float = TOP_MACH) -> tuple[float | No
 
     Examples
     --------
-    >>> from engine_air.project.model import Inlet, Schedule
+    >>> from engine_air.spec.project import Inlet, Schedule
     >>> inlet = Inlet(type="mixed-compression", capture_area_m2=1.0, throat_area_m2=0.50, face_area_m2=0.9,
     ...               ramp_angles_deg=(5.0, 5.0), shock_on_lip_mach=2.5,
     ...               schedule=Schedule(mach=(2.0, 2.5), throat_area_m2=(0.62, 0.50)))

@@ -18,7 +18,7 @@ import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem, no_shocks
 from engine_air.physics.shocks import normal_shock
-from engine_air.project.model import Inlet
+from engine_air.spec.project import Inlet
 
 
 class PitotInlet:

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from engine_air.project.model import Inlet
+from engine_air.spec.project import Inlet
 
 SCHEDULED_KEYS = ("throat_area_m2", "shock_on_lip_mach", "ramp_angles_deg", "bleed_fraction")
 

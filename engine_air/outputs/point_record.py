@@ -44,6 +44,8 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
     ``outside-envelope`` / ``outside-atmosphere`` say why); else whether every
     judged check holds, and the least relative margin over them.
     """
+    if hasattr(points, "at"):  # the one point only: quantities computed when read then cost one point
+        points, index = points.at(index), ()
     bits = int(_at(points.flags, index))
     limiting = int(_at(points.limiting, index)) if points.limiting is not None else -1
     checks = []

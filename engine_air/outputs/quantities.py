@@ -14,7 +14,7 @@ one place:
 ``kind`` is "margin" (signed, zero is the limit: a diverging scale centred on
 zero) or "level" (a sequential scale). ``judged_by`` names the check of
 ``engine_air.envelope.checks`` that judges the quantity (None: not judged).
-Keys are attribute names of ``engine_air.flow.match.OperatingPoints``.
+Keys are attribute names of ``engine_air.flow.points.OperatingPoints``.
 
 US customary display: ``us_value = si_value / us_factor`` where ``us_factor`` is the
 SI value of one US unit (all conversions are linear; one degree Rankine is 1/1.8 K).

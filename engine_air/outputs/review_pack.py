@@ -64,7 +64,7 @@ from engine_air.outputs.writer import check_not_input, staged_folder
 from engine_air.project import dumps_project, load_project, project_from_dict
 from engine_air.project.load import tomllib  # tomli on Python 3.10
 from engine_air.project.model import Project
-from engine_air.studies.sizing import worst_point
+from engine_air.envelope.worst import worst_point
 
 PDF_NAME = "review.pdf"
 SLUG_CHARS = 24

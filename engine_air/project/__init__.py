@@ -5,8 +5,9 @@
 (``Project`` → TOML; atomic ``save_project``), ``atomic`` (``write_bytes_atomic``), ``errors``
 (``ProjectError``, ``ProjectSaveError``), ``reference_doc`` (the generated ``docs/project-file.md``).
 
-The names below are imported lazily, so that the inlet-type modules may import ``engine_air.project.model``
-without importing the loader.
+``model`` and ``schema_field`` re-export ``engine_air.spec`` (the leaf the inlet types import, since the schema
+and the loader here read the inlet types' registry). The names below are imported lazily, so that importing
+``engine_air.project`` stays light.
 """
 
 from __future__ import annotations

@@ -7,11 +7,11 @@ from __future__ import annotations
 
 import dataclasses
 
-from engine_air.envelope.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
+from engine_air.project.polygon import polygon_area, polygon_crossing_edges, vertices_collinear
 from engine_air.project import schema as S
 from engine_air.project.key_checks import Reader, number_text
 from engine_air.project.limit_data import limit_data_rules
-from engine_air.envelope.check_names import CHECK_NAMES
+from engine_air.spec.check_names import CHECK_NAMES
 from engine_air.project.model import Envelope, Grid, Inlet, Limits, Project
 
 REGION_LIMIT_KEYS = {"recovery": "recovery_min", "stability": "stable_flow_fraction",

@@ -10,6 +10,7 @@ import sys
 from pathlib import Path
 
 from engine_air.project import schema as S
+from engine_air.project.atomic import write_bytes_atomic
 from engine_air.project.schema_field import REQUIRED, Field
 
 DOC_PATH = Path(__file__).resolve().parents[2] / "docs" / "project-file.md"
@@ -106,9 +107,9 @@ def main(argv: list[str] | None = None) -> int:
             return 1
         return 0
     DOC_PATH.parent.mkdir(parents=True, exist_ok=True)
-    from engine_air.outputs.writer import write_output_text
-
-    write_output_text(DOC_PATH, text)  # whole or not at all
+    # whole or not at all: what the output writer (engine_air.outputs.writer) does for a file that no run reads;
+    # called directly, since the project package sits below the outputs and never imports them
+    write_bytes_atomic(DOC_PATH, text.encode("utf-8"))
     print(f"wrote {DOC_PATH}")
     return 0
 

@@ -16,7 +16,7 @@ from __future__ import annotations
 import difflib
 from dataclasses import dataclass, replace
 
-from engine_air.envelope.check_names import CHECK_NAMES
+from engine_air.spec.check_names import CHECK_NAMES
 from engine_air.project.inlet_keys import DECLARED
 from engine_air.project.model import REFERENCE_RECOVERY_NAME
 from engine_air.project.schema_field import REQUIRED, Field

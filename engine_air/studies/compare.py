@@ -47,7 +47,7 @@ from engine_air.envelope import flags as F
 from engine_air.envelope.polygon import envelope_mask, grid_axes
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import WORST, CaseMap, LimitSummary, MapResult, summarise
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.project.model import Project
 from engine_air.project import schema as _pf
 from engine_air.project import MAX_AXIS_POINTS, MAX_GRID_POINTS

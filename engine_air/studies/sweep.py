@@ -65,7 +65,7 @@ import numpy as np
 
 from engine_air.project.errors import ProjectError
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.project.model import Project
 from engine_air.project import dumps_project, project_from_dict
 from engine_air.studies.sizing import parse_variable, resolve_point, variable_unit, with_design_values, worst_point

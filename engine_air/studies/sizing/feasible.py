@@ -19,6 +19,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from engine_air.envelope.evaluate import Cancelled, MapResult, evaluate_project
+from engine_air.envelope.worst import WorstPoint, worst_point  # noqa: F401  (re-exported by studies.sizing)
 from engine_air.project.errors import ProjectError
 from engine_air.project.model import Project
 from engine_air.studies.sizing.limit_choice import chosen_limits, judged_by
@@ -39,48 +40,6 @@ MIN_SCAN_POINTS, MAX_SCAN_POINTS = 3, 201
 """Values scanned before refining, unless told otherwise."""
 RTOL = 1e-6
 """Relative width to which each end of a feasible interval is closed."""
-
-
-@dataclass(frozen=True)
-class WorstPoint:
-    """The least relative margin over every check, envelope point and case of one evaluation.
-
-    ``relative_margin`` >= 0 exactly when every limit holds (``holds``).
-    ``check`` is None when no check applies anywhere.
-    """
-
-    relative_margin: float
-    margin: float
-    value: float
-    check: str | None
-    label: str
-    limit_text: str
-    mach: float
-    altitude_m: float
-    case: str
-    holds: bool
-    index: tuple = ()  # (row, column) into the map arrays; () when no check applies
-
-    def where(self) -> str:
-        return f"Mach {self.mach:.3f}, {self.altitude_m:.0f} m, case {self.case!r}"
-
-
-def worst_point(result: MapResult) -> WorstPoint:
-    """The worst relative margin of an envelope evaluation and where it occurs."""
-    from engine_air.envelope.ranking import worst_point as _worst
-
-    best = _worst([cm.points for cm in result.cases], result.inside)
-    holds = result.holds  # a limit judged nowhere (outside its region everywhere) does not fail
-    if best is None:
-        return WorstPoint(math.inf, math.nan, math.nan, None, "", "", math.nan, math.nan, "", holds)
-    cm = result.cases[best.case]
-    chk, j = cm.points.checks[best.check], best.index
-    rel = float(chk.relative_margin[j])
-    return WorstPoint(
-        relative_margin=rel, margin=float(chk.margin[j]), value=float(chk.value[j]), check=chk.name,
-        label=chk.label, limit_text=chk.limit_text, mach=float(result.mach[j[1]]),
-        altitude_m=float(result.altitude_m[j[0]]), case=cm.name, holds=holds, index=(int(j[0]), int(j[1])),
-    )
 
 
 class _Evaluator:

@@ -26,7 +26,7 @@ from engine_air.project.model import Project
 def project_check_names(project: Project) -> tuple[str, ...]:
     """The names of the checks ``project`` is judged by, in check order (one point evaluated: which checks
     exist depends on the limits given and the inlet type, not on the point)."""
-    from engine_air.flow.match import evaluate_conditions
+    from engine_air.envelope.conditions import evaluate_conditions
 
     case = project.cases[0]
     points = evaluate_conditions(project, case, np.array([project.envelope.mach[0]]),

@@ -16,7 +16,7 @@ from scipy.optimize import minimize_scalar
 
 from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import Cancelled, evaluate_project
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.project.errors import ProjectError
 from engine_air.project.model import Project
 from engine_air.studies.sizing.feasible import (

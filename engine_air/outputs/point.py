@@ -3,7 +3,8 @@
 ``evaluate_point(project, mach, altitude_m, case=None)`` evaluates the named case (default: the first) at one
 flight Mach number and geopotential altitude, marks the point ``outside-envelope`` when it lies outside the
 envelope polygon (then it is computed but not judged: ``holds`` is None), and returns the JSON-ready record
-(``engine_air.outputs.point_record.point_record``).
+(``engine_air.outputs.point_record.point_record``). It lives with the outputs because the record is one: the
+envelope judges, the outputs write.
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ import numpy as np
 
 from engine_air.envelope import flags as F
 from engine_air.envelope.polygon import polygon_contains
-from engine_air.flow.match import evaluate_conditions
+from engine_air.envelope.conditions import evaluate_conditions
 from engine_air.outputs.point_record import point_record
 from engine_air.project.model import Project
 
