@@ -73,7 +73,7 @@ def per_point(repeats):
     from numpy_floor import floor_face_margin
 
     from engine_air.envelope.polygon import grid_axes
-    from engine_air.flow.match import evaluate_conditions
+    from engine_air.envelope.conditions import evaluate_conditions
     from engine_air.project import load_project
     from engine_air.project.model import Grid
 

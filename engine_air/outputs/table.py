@@ -16,9 +16,9 @@ open for writing: the caller's atomic writer may hand its temporary file):
   line breaks).
 
 CSV is written in batches of rows (``BATCH_ROWS``): each batch's columns are
-turned into text by Arrow (in threads; Arrow releases the interpreter lock),
-joined into lines and written, so no Python code runs per row or per cell and
-the text of the whole table never stands in memory at once. A column with few
+turned into text by Arrow, joined into lines and written, so no Python code
+runs per row or per cell and the text of the whole table never stands in
+memory at once. A column with few
 distinct values (an axis of the grid, a quantity of the altitude or the Mach
 number only, a constant, a text column) is turned into text once per distinct
 value and taken.
@@ -38,9 +38,6 @@ from __future__ import annotations
 
 import csv
 import io
-import os
-from collections import deque
-from concurrent.futures import ThreadPoolExecutor
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Iterable, Mapping, Sequence
@@ -237,24 +234,18 @@ def _write(fh, lines: pa.Array) -> None:
 def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], dest) -> int:
     """CSV of ``names`` from ``parts``: (rows, columns ready for ``text(a, b)``) each; returns the rows written.
 
-    Batches of ``BATCH_ROWS`` rows are turned into lines in worker threads (Arrow's kernels release the
-    interpreter lock), at most one more batch than workers at a time, and written in order."""
+    Batches of ``BATCH_ROWS`` rows are turned into lines and written one after the other (worker threads were
+    no faster on two cores and held more memory)."""
     head = io.StringIO()
     csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in names])
     rows = 0
-    workers = max(1, min(4, os.cpu_count() or 1))
-    with _binary_sink(dest) as fh, ThreadPoolExecutor(workers) as ex:
+    with _binary_sink(dest) as fh:
         fh.write(head.getvalue().encode("utf-8"))
-        pending: deque = deque()
         for n, cols in parts:
             for a in range(0, n if cols else 0, BATCH_ROWS):
-                pending.append(ex.submit(_lines, cols, a, min(n, a + BATCH_ROWS)))
-                while len(pending) > workers:
-                    _write(fh, pending.popleft().result())
+                _write(fh, _lines(cols, a, min(n, a + BATCH_ROWS)))
             rows += n if cols else 0
-            del cols  # before the next part is built (batches in flight keep theirs)
-        while pending:
-            _write(fh, pending.popleft().result())
+            del cols  # before the next part is built
     return rows
 
 
