@@ -28,7 +28,6 @@ from PySide6.QtGui import QAction, QActionGroup, QFont, QKeySequence
 from PySide6.QtWidgets import (
     QApplication,
     QComboBox,
-    QDockWidget,
     QLabel,
     QMainWindow,
     QMessageBox,
@@ -43,18 +42,16 @@ from engine_air.outputs.quantities import DEFAULT_QUANTITY, QUANTITIES
 from . import APPLICATION, ORGANISATION, style
 from .views import analysis
 from .about import about_html
-from .views.detail_panel import DetailPanel
 from .document import ProjectDocument
-from .editors import ProjectEditors
-from .views.findings import FindingsList, mechanisms
-from .views.inlet_sketch_view import InletSketchView
+from .views.findings import mechanisms
 from .views.map_view import EnvelopeMap
 from .recovery import AUTOSAVE_MS, RecoveryStore
-from .views.section_plots_view import SectionPlots
 from .template import new_project
 from .units import SI, SYSTEM_LABELS, US, Units
 from .window.autosave import AutosaveActions
 from .window.files import FileActions
+from .window.layout import WindowLayout
+from .window.point_views import AfterPaint, PointViews
 from .window.verdict import VerdictBanner
 from .worker import MapRunner
 
@@ -62,7 +59,6 @@ log = logging.getLogger(__name__)
 
 BUSY_DELAY_MS = 120
 WORST_LABEL = "Worst of all cases"
-MAP_MIN_SHARE = 0.45  # the map keeps at least this share of the window's width when the point panel widens
 LEAST_MARGIN = "worst_relative_margin"
 
 
@@ -74,8 +70,8 @@ def default_quantity(result) -> str:
     return DEFAULT_QUANTITY
 
 
-class MainWindow(FileActions, AutosaveActions, QMainWindow):
-    """The program's window; file actions and autosave come from ``app.window``."""
+class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
+    """The program's window; file actions, autosave and the docks' layout come from ``app.window``."""
 
     def __init__(self, project=None, path=None, settings: QSettings | None = None, runner: MapRunner | None = None,
                  parent=None, recovery: RecoveryStore | None = None, autosave_ms: int | None = None) -> None:
@@ -107,13 +103,18 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self._build_central()
         self._build_docks()
         self._build_menus()
+        self.point_views = PointViews(self)  # the sketch and the sections: after the map, only when shown
+        self.point_views.add("sketch", self.sketch_dock, self._draw_sketch)
+        self.point_views.add("sections", self.sections_dock, self._draw_sections)
+        self._after_map_paint = AfterPaint(self.map.canvas.viewport(), parent=self)
+        self._deferring = False
         self.setStyleSheet(style.stylesheet(False))
         self.verdict.fit_height()
         self.autosave_label = QLabel("")
         self.autosave_label.setObjectName("autosaveNote")
         self.statusBar().addPermanentWidget(self.autosave_label)
         self.resize(1600, 1000)
-        self._size_point_docks()
+        self._size_docks()
 
         self.document.changed.connect(self._on_project_changed)
         self.document.stateChanged.connect(self._update_title)
@@ -122,7 +123,7 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.runner.finished.connect(self._on_finished)
         self.runner.failed.connect(self._on_failed)
         self.map.pointSelected.connect(self._on_point_selected)
-        self.detail.neededWidthChanged.connect(self._fit_detail_dock)
+        self.detail.neededWidthChanged.connect(lambda _w: self._fit_detail_dock(grow_only=True))
         self.findings.findingActivated.connect(self.go_to_finding)
         self.editors.projectEdited.connect(lambda p: self.document.edit(p, validated=True))
         self.document.stateChanged.connect(self._sync_recovery)
@@ -172,48 +173,6 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self.case_combo.currentIndexChanged.connect(lambda _i: self._on_case_changed())
         self.units_combo.currentIndexChanged.connect(lambda _i: self.set_units(self.units_combo.currentData()))
 
-    def _build_docks(self) -> None:
-        self.detail = DetailPanel()
-        self.detail_dock = QDockWidget("Selected point", self)
-        self.detail_dock.setObjectName("detailDock")
-        self.detail_dock.setWidget(self.detail)
-        self.addDockWidget(Qt.RightDockWidgetArea, self.detail_dock)
-        # the inlet at the selected point, below its detail
-        self.sketch = InletSketchView()
-        self.sketch.setMinimumHeight(150)
-        self.sketch_dock = QDockWidget("Inlet at the selected point", self)
-        self.sketch_dock.setObjectName("sketchDock")
-        self.sketch_dock.setWidget(self.sketch)
-        self.addDockWidget(Qt.RightDockWidgetArea, self.sketch_dock, Qt.Vertical)
-        # cuts through the map at the selected point, below the inlet
-        self.sections = SectionPlots()
-        self.sections.setMinimumHeight(150)
-        self.sections_dock = QDockWidget("Sections through the selected point", self)
-        self.sections_dock.setObjectName("sectionsDock")
-        self.sections_dock.setWidget(self.sections)
-        self.addDockWidget(Qt.RightDockWidgetArea, self.sections_dock, Qt.Vertical)
-        self.editors = ProjectEditors()
-        self.editor_dock = QDockWidget("Edit project", self)
-        self.editor_dock.setObjectName("editorDock")
-        self.editor_dock.setWidget(self.editors)
-        self.addDockWidget(Qt.RightDockWidgetArea, self.editor_dock)
-        self.tabifyDockWidget(self.detail_dock, self.editor_dock)
-        self.detail_dock.raise_()
-        self.findings = FindingsList()
-        self.findings_dock = QDockWidget("Findings over the envelope (all cases)", self)
-        self.findings_dock.setObjectName("findingsDock")
-        self.findings_dock.setWidget(self.findings)
-        self.addDockWidget(Qt.BottomDockWidgetArea, self.findings_dock)
-        self.resizeDocks([self.detail_dock], [560], Qt.Horizontal)
-        self.resizeDocks([self.findings_dock], [190], Qt.Vertical)
-        self._size_point_docks()
-
-    def _size_point_docks(self) -> None:
-        """The right column: the point's detail on top, the inlet and the sections below it."""
-        h = max(600, self.height())
-        self.resizeDocks([self.detail_dock, self.sketch_dock, self.sections_dock],
-                         [int(0.46 * h), int(0.24 * h), int(0.26 * h)], Qt.Vertical)
-
     def _action(self, menu, text, slot, shortcut=None, checkable=False) -> QAction:
         a = QAction(text, self)
         if shortcut is not None:
@@ -262,7 +221,10 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self.unit_actions[system] = a
         self.unit_actions[SI].setChecked(True)
         v.addSeparator()
-        for dock in (self.detail_dock, self.sketch_dock, self.editor_dock, self.findings_dock, self.sections_dock):
+        for k, (name, dock) in enumerate(self.view_docks.items()):
+            self._action(v, f"Show “{dock.windowTitle()}”", lambda _c=False, n=name: self.show_view(n), f"Alt+{k + 1}")
+        v.addSeparator()
+        for dock in (*self.view_docks.values(), self.findings_dock):
             v.addAction(dock.toggleViewAction())
 
         self.design_menu = self._add_design_menu()
@@ -332,23 +294,29 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         self._redraw(sections=False)  # the panels (sections, sketch) follow with the selection
         self.map.set_current()
         self.verdict.show_result(result)
-        # The side panels follow in the next turn of the event loop, so that the map's repaint is
-        # not held up behind them and the GUI thread never stalls for their sum.
-        QTimer.singleShot(0, lambda g=gen: self._update_panels(g))
+        # The side panels follow once the map has painted, so that its repaint is not held up behind
+        # them; the sketch and the sections then each take their own turn (``PointViews``).
+        self._after_map_paint.call(lambda g=gen: self._update_panels(g))
 
     def _update_panels(self, gen: int) -> None:
         if gen != self.result_generation or self.result is None:
             return  # a newer result arrived meanwhile; it schedules its own update
         self.detail.set_stale(None)
         self.findings.set_summary(self.result.summary, self.units, mechanisms(self.result, self.units))
-        self._restore_selection()
+        self._fit_findings_dock()
+        self._deferring = True  # the selection's sketch and sections are drawn in later turns
+        try:
+            self._restore_selection()
+        finally:
+            self._deferring = False
         self.panels_generation = gen
 
     @property
     def up_to_date(self) -> bool:
         """The newest request's result is on the map and in every panel."""
         return (self.result is not None and self.result_generation == self.runner.generation
-                and self.panels_generation == self.result_generation and not self.runner.busy)
+                and self.panels_generation == self.result_generation and not self.runner.busy
+                and not self.point_views.pending)
 
     def _on_failed(self, gen: int, message: str) -> None:
         self._busy_timer.stop()
@@ -409,9 +377,8 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
         if self.result is None:
             return
         self.map.show_result(self.result, self.current_case(), self.current_quantity(), self.units)
-        sel = self.map.selected()
-        if sections and sel is not None:
-            self._show_sections(*sel)
+        if sections and self.map.selected() is not None:
+            self.point_views.invalidate(["sections"], now=not self._deferring)
 
     def _on_case_changed(self) -> None:
         self._redraw()
@@ -438,17 +405,27 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             return
         case = analysis.case_at(self.result, self.current_case(), (i, j))
         self.detail.show_point(self.result, case, (i, j))
+        self.point_views.invalidate(now=not self._deferring)
+
+    def _draw_sketch(self) -> None:
+        """The inlet at the selected point as the window shows it now (the newest result, case, selection)."""
+        sel = self.map.selected()
+        if self.result is None or sel is None:
+            return
+        i, j = sel
+        case = analysis.case_at(self.result, self.current_case(), (i, j))
         self.sketch.show_point(self.result.project, self.result.case_map(case).points, (i, j))
         self.sketch.setTitle(f"Inlet at M0 = {float(self.result.mach[j]):.2f}, "
                              f"{self.units.to_display('altitude', float(self.result.altitude_m[i])):,.0f} "
                              f"{self.units.label('altitude')} (case “{case}”)")
-        self._show_sections(i, j)
 
-    def _show_sections(self, i: int, j: int) -> None:
-        if self.result is None:
+    def _draw_sections(self) -> None:
+        """The cuts through the selected point as the window shows it now."""
+        sel = self.map.selected()
+        if self.result is None or sel is None:
             return
         try:
-            self.sections.show_sections(self.result, self.current_case(), self.current_quantity(), i, j, self.units)
+            self.sections.show_sections(self.result, self.current_case(), self.current_quantity(), *sel, self.units)
         except Exception as exc:  # noqa: BLE001 - a cut that cannot be drawn must not stop the window
             log.exception("sections could not be drawn")
             self.sections.clear_sections()
@@ -499,44 +476,31 @@ class MainWindow(FileActions, AutosaveActions, QMainWindow):
             self._redraw()
 
     def set_presentation(self, on: bool) -> None:
+        """Presentation mode: larger type, heavier lines, high contrast; the map, the verdict and the point's
+        tables get the room. In a small window (``style.compact``: a 1280 x 720 projector) the type is a
+        step smaller, so the map keeps its room."""
         on = bool(on)
+        small = on and style.compact(self.width(), self.height())
+        was = self.presentation
         self.presentation = on
+        self._presentation_small = small
         self.presentation_action.setChecked(on)
-        self.setStyleSheet(style.stylesheet(on))
-        self.verdict.set_presentation(on)
-        if on:
-            # the map and the verdict get the room; the editors and findings come back afterwards
-            self._docks_before = {d: d.isVisible() for d in (self.editor_dock, self.findings_dock)}
-            self.editor_dock.hide()
-            self.findings_dock.hide()
-            self.detail_dock.show()
-            self.detail_dock.raise_()
-            self.sketch_dock.show()
-            self.sections_dock.show()
-        else:
-            for dock, was_visible in getattr(self, "_docks_before", {}).items():
-                dock.setVisible(was_visible)
-            self.detail_dock.raise_()
-        self.map.set_presentation(on)
+        self.setStyleSheet(style.stylesheet(on, small))
+        self.verdict.set_presentation(on, small)
+        if on != was:
+            self._layout_presentation(on)
+        self.sections.set_scale((1.15 if small else 1.3) if on else 1.0)
+        self.map.set_presentation(on, small)
         self.detail.refresh()
         if self.result is not None and self.verdict.state in ("holds", "fails"):
             self.verdict.show_result(self.result)
-        self.resizeDocks([self.detail_dock], [max(600, int(0.38 * self.width())) if on else 560], Qt.Horizontal)
-        self._size_point_docks()
-        self._fit_detail_dock()
+        self._size_docks()
 
-    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt override
-        super().resizeEvent(event)
-        QTimer.singleShot(0, self._fit_detail_dock)
-
-    def _fit_detail_dock(self, *_args) -> None:
-        """The point's panel as wide as its tables (no sideways scrolling), leaving the map at least
-        ``MAP_MIN_SHARE`` of the window."""
-        if not self.detail_dock.isVisible() or self.detail_dock.isFloating():
-            return
-        need = min(self.detail.needed_width(), int(self.width() * (1.0 - MAP_MIN_SHARE)))
-        if self.detail_dock.width() < need:
-            self.resizeDocks([self.detail_dock], [need], Qt.Horizontal)
+    def _restyle_for_size(self) -> None:
+        """Presentation mode's type follows the window's size class (only when it changes)."""
+        if self.presentation and style.compact(self.width(), self.height()) != self._presentation_small:
+            self.set_presentation(True)
+            QTimer.singleShot(0, self.detail.refresh)  # the tables' wrapped rows again, once the new type is laid out
 
     def show_about(self) -> None:
         QMessageBox.about(self, f"About {APPLICATION}", about_html())

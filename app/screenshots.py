@@ -2,12 +2,15 @@
 
     QT_QPA_PLATFORM=offscreen python -m app.screenshots docs
 
-writes ``supersonic_face_mach_margin.png`` (supersonic sample, face Mach
-margin, a supersonic point selected), ``presentation_mode.png``,
-``least_margin_with_sketch.png`` (a failing sample on its default least-margin
-map, its worst point selected, the inlet sketch and the sections beside it) and
-``mixed_compression_started.png`` (the mixed-compression sample: the unstarted
-region hatched, the self-start Mach line).
+Each picture at a 1280 x 720 projector's size and at 1920 x 1080 (``<name>_<w>x<h>.png``):
+
+- ``supersonic_face_mach_margin``: supersonic sample, face Mach margin, a supersonic point selected;
+- ``presentation_mode``: the same in presentation mode (F5), worst of all cases;
+- ``least_margin_with_sketch``: a failing sample on its default least-margin map, its worst point selected,
+  the inlet's tab in front;
+- ``sections``: the same point with the sections' tab in front;
+- ``mixed_compression_started``: the mixed-compression sample, the unstarted region hatched, the self-start
+  Mach line.
 """
 
 from __future__ import annotations
@@ -20,12 +23,25 @@ from pathlib import Path
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
+SIZES = ((1280, 720), (1920, 1080))
 
-def _settle(app, seconds: float = 0.4) -> None:
+
+def _settle(app, seconds: float = 0.5) -> None:
     end = time.perf_counter() + seconds
     while time.perf_counter() < end:
         app.processEvents()
         time.sleep(0.01)
+
+
+def _shoot(app, w, folder: Path, name: str) -> list[Path]:
+    out = []
+    for width, height in SIZES:
+        w.resize(width, height)
+        _settle(app)
+        path = folder / f"{name}_{width}x{height}.png"
+        w.grab().save(str(path))
+        out.append(path)
+    return out
 
 
 def take(folder: str | Path) -> list[Path]:
@@ -45,17 +61,10 @@ def take(folder: str | Path) -> list[Path]:
     w.set_quantity("face_mach_margin")
     w.set_case(w.result.cases[0].name)
     w.select_condition(1.8, 12000.0)
-    _settle(app)
-    out = []
-    first = folder / "supersonic_face_mach_margin.png"
-    w.grab().save(str(first))
-    out.append(first)
+    out = _shoot(app, w, folder, "supersonic_face_mach_margin")
     w.set_case(WORST)
     w.set_presentation(True)
-    _settle(app)
-    second = folder / "presentation_mode.png"
-    w.grab().save(str(second))
-    out.append(second)
+    out += _shoot(app, w, folder, "presentation_mode")
     w.set_presentation(False)
     w.document._saved = w.document.project
     w.close()
@@ -85,14 +94,13 @@ def _sample_shots(app, folder: Path, settings) -> list[Path]:
 
     from engine_air.envelope import flags as F
 
-    out = []
     w = _open(app, "supersonic_two_ramp", settings)  # fails somewhere: least margin is its default map
     worst = next(s for s in w.result.summary if s.fails)
     w.select_condition(worst.worst_mach, worst.worst_altitude_m)
-    _settle(app)
-    path = folder / "least_margin_with_sketch.png"
-    w.grab().save(str(path))
-    out.append(path)
+    w.show_view("sketch")
+    out = _shoot(app, w, folder, "least_margin_with_sketch")
+    w.show_view("sections")
+    out += _shoot(app, w, folder, "sections")
     w.close()
     w = _open(app, "mixed_compression_throat_schedule", settings)
     r = w.result
@@ -101,10 +109,7 @@ def _sample_shots(app, folder: Path, settings) -> list[Path]:
     if len(unstarted):
         i, j = unstarted[len(unstarted) // 2]
         w.select_point(int(i), int(j))
-    _settle(app)
-    path = folder / "mixed_compression_started.png"
-    w.grab().save(str(path))
-    out.append(path)
+    out += _shoot(app, w, folder, "mixed_compression_started")
     w.close()
     return out
 

@@ -4,6 +4,21 @@ from __future__ import annotations
 
 BASE_PT = 11
 PRESENTATION_PT = 15
+COMPACT_PT = 13  # presentation mode in a window under COMPACT_BELOW (a 1280 x 720 projector)
+COMPACT_BELOW = (1500, 900)
+
+
+def compact(width: int, height: int) -> bool:
+    """Presentation mode's smaller type for a window this size: fewer pixels, the same share of the screen."""
+    return width < COMPACT_BELOW[0] or height < COMPACT_BELOW[1]
+
+
+def banner_pt(presentation: bool, small_window: bool = False) -> int:
+    return (22 if small_window else 28) if presentation else 16
+
+
+def presentation_pt(small_window: bool = False) -> int:
+    return COMPACT_PT if small_window else PRESENTATION_PT
 
 # verdict banner colours (text always white on a dark field, so contrast stays high)
 HOLDS_BG = "#1d4f91"   # blue: every limit holds
@@ -12,9 +27,9 @@ BUSY_BG = "#4d4d4d"    # grey: computing
 STALE_BG = "#000000"   # black: out of date
 
 
-def stylesheet(presentation: bool) -> str:
-    pt = PRESENTATION_PT if presentation else BASE_PT
-    banner_pt = 28 if presentation else 16
+def stylesheet(presentation: bool, small_window: bool = False) -> str:
+    pt = presentation_pt(small_window) if presentation else BASE_PT
+    banner = banner_pt(presentation, small_window)
     extra = ""
     if presentation:
         extra = """
@@ -24,7 +39,7 @@ def stylesheet(presentation: bool) -> str:
         """
     return f"""
     QWidget {{ font-size: {pt}pt; }}
-    QLabel#verdict {{ font-size: {banner_pt}pt; font-weight: bold; color: white; padding: {10 if presentation else 6}px; }}
+    QLabel#verdict {{ font-size: {banner}pt; font-weight: bold; color: white; padding: {10 if presentation else 6}px; }}
     QLabel#detailHeader {{ font-size: {pt + 1}pt; }}
     QToolBar QLabel {{ font-weight: bold; padding-left: 8px; }}
     QDockWidget::title {{ font-weight: bold; padding: 4px; }}

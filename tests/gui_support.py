@@ -47,10 +47,21 @@ def window_factory(qtbot, tmp_path, default_path):
             w.deleteLater()
 
 
+def wait_laid_out(qtbot, w, ms: int = 150) -> None:
+    """Wait until a window's deferred fits (dock sizes, wrapped table rows, the map's title, legend and
+    scene) have run after a resize or a change of style."""
+    qtbot.wait(ms)
+    qtbot.waitUntil(lambda: not getattr(w.map, "_canvas_fit_pending", False) and not w.detail._refit_pending,
+                    timeout=5000)
+    qtbot.wait(ms)
+
+
 # -- what a reader cannot see: clipped or elided text, cut table columns -------------------------------------
 
 def _shown(widget, window) -> bool:
-    return widget.isVisible() and widget.isVisibleTo(window) and widget.width() > 0 and widget.height() > 0
+    """On screen: visible, with a size, and not in a dock tab behind another (Qt moves those off screen)."""
+    return (widget.isVisible() and widget.isVisibleTo(window) and widget.width() > 0 and widget.height() > 0
+            and not widget.visibleRegion().isEmpty())
 
 
 def _clipped_by_ancestor(widget, window) -> bool:

@@ -165,7 +165,7 @@ def test_design_menu_and_review_pack(qtbot, tmp_path):
     assert menu.title() == "&Design"
     texts = [a.text() for a in menu.actions()]
     assert texts == ["Feasible range and optimum…", "Compare with project file…", "Trade sweep…",
-                     "Write review pack…", "Engine-face distortion…"]
+                     "Write review pack…", "Engine-face distortion…", "Calibrate against characteristics…"]
     menu.actions()[0].trigger()  # opens the sizing dialog
     assert len(menu.open_dialogs) == 1 and isinstance(menu.open_dialogs[0], SizingDialog)
     menu.open_dialogs[0].close()

@@ -32,7 +32,7 @@ from engine_air.outputs import point_record as report  # noqa: E402
 from engine_air.envelope.evaluate import WORST, evaluate_project  # noqa: E402
 from engine_air.project import load_project  # noqa: E402
 from engine_air.outputs.quantities import QUANTITIES  # noqa: E402
-from gui_support import WAIT_MS, wait_result, window_factory  # noqa: E402,F401
+from gui_support import WAIT_MS, wait_laid_out, wait_result, window_factory  # noqa: E402,F401
 
 SAMPLE_NAMES = ["subsonic_transport_nacelle", "supersonic_two_ramp", "undersized_business_jet"]
 
@@ -374,7 +374,7 @@ def test_presentation_mode_is_readable_without_clipping_at_common_screen_sizes(m
         for width, height in ((1366, 768), (1600, 1000), (1920, 1080)):
             w.resize(width, height)
             qtbot.waitUntil(lambda: w.width() == width and w.height() == height, timeout=5000)
-            qtbot.wait(150)  # the deferred fits (panel widths, wrapped rows, dock width) run
+            wait_laid_out(qtbot, w)  # the deferred fits (panel widths, wrapped rows, dock width) run
             image = w.grab()
             assert image.save(str(tmp_path / f"{name}_{width}x{height}.png"))
             problems = layout_problems(w) + map_problems(w)

@@ -56,6 +56,7 @@ def _supersonic_inside(result, mach_min: float = 1.7, mach_max: float = 2.0):
 
 def test_sketch_follows_selection_and_edit_with_the_computed_shock_angles(make_window, qtbot):
     w = make_window(sample("supersonic_two_ramp"))
+    w.show_view("sketch")  # the inlet's tab in front: it follows every selection and result
     w.set_case(w.result.cases[0].name)
     i, j = _supersonic_inside(w.result)
     w.select_point(i, j)
@@ -78,13 +79,16 @@ def test_sketch_follows_selection_and_edit_with_the_computed_shock_angles(make_w
 
 def test_sketch_draws_a_pitot_and_a_mixed_inlet(make_window):
     w = make_window(sample("subsonic_transport_nacelle"))
+    w.show_view("sketch")
     assert w.sketch.sketch is not None and w.sketch.sketch.of_role("stream-tube")
     w2 = make_window(sample("mixed_compression_throat_schedule"))
+    w2.show_view("sketch")
     assert w2.sketch.sketch is not None and w2.sketch.sketch.of_role("wall")
 
 
 def test_sections_follow_selection_quantity_and_case(make_window):
     w = make_window(sample("undersized_business_jet"))
+    w.show_view("sections")
     r = w.result
     ii, jj = np.nonzero(r.inside)
     for k in (0, len(ii) // 2):
@@ -110,7 +114,12 @@ def test_sections_export_png_and_svg(make_window, tmp_path, monkeypatch):
 
     monkeypatch.setattr(QMessageBox, "critical", fail)
     w = make_window(sample("undersized_business_jet"))
+    assert not w.point_views.shown("sections")  # behind its tab: drawn for the export all the same
     assert w.export("sections-png", tmp_path / "cuts.png")
+    i, j = w.map.selected()
+    case = w.result.cases[0].name
+    np.testing.assert_array_equal(w.sections.lines[("mach", case)][1],
+                                  w.result.quantity(case, w.current_quantity())[i, :])
     assert w.export("sections-svg", tmp_path / "cuts.svg")
     assert (tmp_path / "cuts.png").stat().st_size > 1000
     assert "<svg" in (tmp_path / "cuts.svg").read_text(errors="replace")[:2000]

@@ -630,6 +630,8 @@ def _nones(record, prefix=""):
         if key in ("started", "self_start_contraction", "entrance_area_m2", "internal_contraction_ratio") \
                 and record["started"] is None:
             continue  # null by contract unless the inlet is mixed-compression (interfaces, point JSON)
+        if key in ("dc60", "surge_margin_loss", "remaining_surge_margin", "angle_of_attack_deg", "sideslip_deg"):
+            continue  # null by contract without measured data / a case incidence (interfaces, Additions 2)
         if isinstance(value, dict):
             yield from _nones(value, prefix + key + ".")
         elif value is None:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import dataclasses
+
 import copy
 import math
 import os
@@ -120,7 +122,11 @@ def test_sample_project_loads_and_round_trips(path, tmp_path):
     assert pf.project_from_dict(tomllib.loads(pf.dumps_project(project))) == project
     out = tmp_path / path.name
     pf.save_project(project, out)
-    assert pf.load_project(out) == project
+    again = pf.load_project(out)
+    if project.characteristics is not None:  # saved elsewhere, the table is named from the new folder
+        assert os.path.samefile(again.characteristics.table.path, project.characteristics.table.path)
+        again = dataclasses.replace(again, characteristics_file=project.characteristics_file)
+    assert again == project
 
 
 def test_three_samples_exist():

@@ -103,7 +103,11 @@ def test_pack_pictures_are_valid_pngs(ramp_pack):
     judged = [s for s in result.summary if s.worst_case]
     assert len(ramp_pack.section_pictures) == 2 * len(judged)
     assert Path(ramp_pack.section_pictures[0]).name == f"{judged[0].name}__along-mach.png"
-    assert len(page.images) == len(ramp_pack.pictures) + len(ramp_pack.section_pictures)
+    # the characteristics (method 16) at the supersonic Mach numbers of interest: the failing recovery limit's worst
+    # point (Mach 2.1, the top of the envelope) and the design Mach 2.0, one figure each
+    assert [Path(p).name for p in ramp_pack.characteristic_pictures] == ["mach_2_00.png", "mach_2_10.png"]
+    assert len(page.images) == (len(ramp_pack.pictures) + len(ramp_pack.section_pictures)
+                                + len(ramp_pack.characteristic_pictures))
     for img in page.images:
         prefix = "data:image/png;base64,"
         assert img["src"].startswith(prefix)

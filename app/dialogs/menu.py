@@ -81,12 +81,29 @@ def add_design_menu(main_window, get_project: Callable[[], object]):
         if path:
             open_distortion(main_window, p, path, keep)
 
+    def calibration():
+        p = project_or_warn()
+        if p is None:
+            return
+        if p.characteristics is None:
+            QMessageBox.information(main_window, "Calibrate",
+                                    "This project names no characteristics table. Add [characteristics] file = "
+                                    "\"table.csv\" (CSV or Parquet, beside the project file) and open it again.")
+            return
+        from .calibrate import CalibrateDialog
+
+        document = getattr(main_window, "document", None)
+        path = getattr(document, "path", None)
+        keep(CalibrateDialog(p, None if path is None else str(path), main_window))
+
     for text, slot, tip in (
         ("Feasible range and optimum…", sizing, "Range of one design variable for which every limit holds"),
         ("Compare with project file…", compare, "This project against another on one grid"),
         ("Trade sweep…", trade, "Every combination of up to four design variables"),
         ("Write review pack…", pack, "HTML page with verdict, maps, findings and inputs"),
         ("Engine-face distortion…", distortion, "Descriptors and surge-margin stack-up of a rake file (method §18)"),
+        ("Calibrate against characteristics…", calibration,
+         "Fit model parameters to the project's measured characteristics (method §17)"),
     ):
         action = QAction(text, main_window)
         action.setStatusTip(tip)

@@ -226,10 +226,12 @@ class DetailPanel(QScrollArea):
         self.started_label = QLabel("")
         self.started_label.setObjectName("startedState")
         self.started_label.setWordWrap(True)
-        self.checks.setWordWrap(True)
-        self.checks.horizontalHeader().setSectionResizeMode(0, QHeaderView.Stretch)
-        self.checks.horizontalHeader().setStretchLastSection(False)
-        # the rule texts wrap: their rows follow the column's width; no table is narrower than its columns
+        # the rule texts and the shocks' names (long for a mixed-compression inlet) wrap: their rows follow the
+        # column's width; no table is narrower than its columns
+        for t in (self.checks, self.shocks):
+            t.setWordWrap(True)
+            t.horizontalHeader().setSectionResizeMode(0, QHeaderView.Stretch)
+            t.horizontalHeader().setStretchLastSection(False)
         for t in (self.checks, self.stations, self.flow, self.shocks, self.ledger):
             t.horizontalHeader().sectionResized.connect(self._schedule_refit)
         self.flags_label = QLabel("")
@@ -338,10 +340,11 @@ class DetailPanel(QScrollArea):
     def _refit_layout(self) -> None:
         self._refit_pending = False
         for t in (self.checks, self.stations, self.flow, self.shocks, self.ledger):
-            _fit_width(t, 0 if t is self.checks else None)
-        if self.checks.rowCount():
-            self.checks.resizeRowsToContents()
-            _fit_height(self.checks)
+            _fit_width(t, 0 if t in (self.checks, self.shocks) else None)
+        for t in (self.checks, self.shocks):
+            if t.rowCount():
+                t.resizeRowsToContents()
+                _fit_height(t)
         need = self.needed_width()
         if need != self._needed_width:
             self._needed_width = need

@@ -23,7 +23,6 @@ line; a click selects the nearest grid point (``pointSelected(i, j)``).
 
 from __future__ import annotations
 
-import html
 import math
 
 import numpy as np
@@ -35,33 +34,15 @@ from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 from engine_air.envelope import flags as F
 from engine_air.envelope.evaluate import WORST
 from engine_air.envelope.ranking import limiting_map, nearest_index
-from engine_air.outputs.marks import marked_points
 from engine_air.outputs.quantities import QUANTITIES
-from engine_air.outputs.sections import judged_map
 
 from . import analysis
-from .colour_maps import NOT_JUDGED_GREY, colour_map_for, levels_for
-from .colour_maps import OUTSIDE_GREY as _OUTSIDE_RGB
+from .colour_maps import colour_map_for, levels_for
+from .contours import iso_line  # noqa: F401 - the map's contour tracer, named here for its tests
+from .map_legend import MapLegend
+from .map_overlays import (LEAST_MARGIN, OUTSIDE_GREY, START_COLOUR, UNSTART_COLOUR,  # noqa: F401 - re-exported
+                           UNSTARTED_COLOUR, MapOverlays)
 from ..units import Units, dimension_of_si_unit, group_digits
-
-OUTSIDE_GREY = "#%02x%02x%02x" % tuple(_OUTSIDE_RGB[:3])
-LEAST_MARGIN = "worst_relative_margin"
-UNSTARTED_COLOUR = (200, 0, 200)  # the unstarted region's hatch and outline (magenta: seen on both arms)
-START_COLOUR = (0, 130, 130)  # the self-start Mach line (teal)
-UNSTART_COLOUR = (180, 110, 0)  # the unstart Mach line
-
-
-def _hatch_symbol():
-    """A slanted stroke (a hatch mark) as a scatter symbol."""
-    from PySide6.QtGui import QPainterPath
-
-    path = QPainterPath()
-    path.moveTo(-0.5, 0.5)
-    path.lineTo(0.5, -0.5)
-    return path
-
-
-_HATCH = _hatch_symbol()
 
 
 def _no_si_prefix(axis) -> None:
@@ -69,29 +50,6 @@ def _no_si_prefix(axis) -> None:
     if hasattr(axis, "setSIPrefixEnableRanges"):
         axis.setSIPrefixEnableRanges(())
     axis.enableAutoSIPrefix(False)
-
-
-def iso_line(x: np.ndarray, y: np.ndarray, field: np.ndarray, level: float):
-    """The ``level`` line of ``field`` (rows along ``y``) in data coordinates, by pyqtgraph's isocurve.
-
-    Returns ``(xs, ys)``: polylines separated by NaN (for ``PlotDataItem(connect='finite')``). An edge
-    with a NaN end gives a NaN point, so the line stops at the envelope instead of following the NaN fill.
-    """
-    f = np.asarray(field, dtype=float)
-    if f.ndim != 2 or min(f.shape) < 2:
-        return np.empty(0), np.empty(0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        lines = pg.functions.isocurve(f, level, connected=True)
-    xs, ys = [], []
-    for line in lines:
-        pts = np.asarray(line, dtype=float).reshape(-1, 2) - 0.5  # pixel centres -> (row, column) indices
-        ys.append(np.interp(pts[:, 0], np.arange(len(y)), y))
-        xs.append(np.interp(pts[:, 1], np.arange(len(x)), x))
-        xs.append([np.nan])
-        ys.append([np.nan])
-    if not xs:
-        return np.empty(0), np.empty(0)
-    return np.concatenate(xs), np.concatenate(ys)
 
 
 def quantity_dimension(key: str) -> str:
@@ -114,7 +72,7 @@ def format_value(x: float, digits: int = 4) -> str:
     return f"{x:.{digits}g}" if abs(x) >= 1 else f"{x:.{digits - 1}f}"
 
 
-class EnvelopeMap(QWidget):
+class EnvelopeMap(MapOverlays, MapLegend, QWidget):
     """The map widget; ``show_result`` draws, ``values()`` gives the array drawn."""
 
     pointSelected = Signal(int, int)
@@ -272,7 +230,10 @@ class EnvelopeMap(QWidget):
         self.image.setRect(self._image_rect())
         self.colour_bar.setColorMap(cmap)
         self.colour_bar.setLevels(values=(lo, hi))
-        self.colour_bar.getAxis("right").setLabel(quantity_axis_label(key, units))
+        label = quantity_axis_label(key, units)
+        unit = label[len(q.label):].strip()
+        self._bar_labels = (label, "" if unit == "(–)" else unit)  # the whole label, or its unit alone
+        self._fit_bar_label()
         self.plot.setLabel("bottom", "Flight Mach number M0")
         self.plot.setLabel("left", units.with_unit("Pressure altitude", "altitude"))
         case_text = "worst of all cases" if case == WORST else f"case “{case}”"
@@ -336,8 +297,8 @@ class EnvelopeMap(QWidget):
     def state(self) -> str:
         return self._state
 
-    def set_presentation(self, on: bool) -> None:
-        self._scale = 1.45 if on else 1.0
+    def set_presentation(self, on: bool, small_window: bool = False) -> None:
+        self._scale = (1.25 if small_window else 1.45) if on else 1.0
         self._high_contrast = on
         self._apply_style()
         if self._result is not None:
@@ -383,228 +344,6 @@ class EnvelopeMap(QWidget):
         return "   ·   ".join(parts)
 
     # -- drawing ---------------------------------------------------------------
-    def _image_rect(self) -> QRectF:
-        x, y = self._x, self._y
-        dx = (x[-1] - x[0]) / (len(x) - 1) if len(x) > 1 else 0.01
-        dy = (y[-1] - y[0]) / (len(y) - 1) if len(y) > 1 else 1.0
-        return QRectF(x[0] - dx / 2, y[0] - dy / 2, (x[-1] - x[0]) + dx, (y[-1] - y[0]) + dy)
-
-    def _pen(self, colour, width, style=Qt.SolidLine):
-        return pg.mkPen(colour, width=width * self._scale, style=style, cap=Qt.FlatCap)
-
-    def _draw_not_judged(self, result, case, key, kind, values) -> None:
-        """Grey over the points inside the envelope where the quantity is not judged: for a margin, where its
-        check does not apply or the margin is not defined; for any quantity, where it is not defined or the
-        point lies outside its case's region (``outside-case-region``)."""
-        inside = np.asarray(result.inside, dtype=bool)
-        with np.errstate(invalid="ignore"):
-            finite = np.isfinite(values)
-        if kind == "margin" and key != LEAST_MARGIN:
-            judged = judged_map(result, case, key)
-        else:
-            judged = inside & finite
-        cases = result.cases if case == WORST else [result.case_map(case)]
-        if cases:
-            out_region = np.ones(inside.shape, bool)
-            for c in cases:  # for the worst of all cases: grey only where no case is judged
-                out_region &= (np.asarray(c.points.flags).astype(np.int64) & F.OUTSIDE_CASE_REGION) != 0
-            judged = judged & ~out_region
-        grey = inside & ~judged
-        self._judged = judged | ~inside
-        self.not_judged_count = int(grey.sum())
-        rgba = np.zeros(grey.shape + (4,), dtype=np.ubyte)
-        rgba[grey, :3] = NOT_JUDGED_GREY[:3]
-        rgba[grey, 3] = 255
-        self.not_judged_image.setImage(rgba, autoLevels=False)
-        self.not_judged_image.setRect(self._image_rect())
-
-    def not_judged_mask(self) -> np.ndarray | None:
-        """(ny, nx) bool: drawn in the not-judged grey (inside the envelope, not judged)."""
-        if self._judged is None or self._result is None:
-            return None
-        return ~self._judged & np.asarray(self._result.inside, bool)
-
-    def _draw_starting(self, result, case) -> None:
-        """Mixed compression: unstarted points hatched and outlined; self-start and unstart Mach lines."""
-        cases = result.cases if case == WORST else [result.case_map(case)]
-        flags = [np.asarray(c.points.flags).astype(np.int64) for c in cases]
-        mixed = any(c.points.started is not None for c in cases)
-        unstarted = np.zeros(result.inside.shape, bool)
-        for f in flags:
-            unstarted |= (f & F.UNSTARTED) != 0
-        unstarted &= np.asarray(result.inside, bool)
-        self.unstarted_count = int(unstarted.sum())
-        # outline of the unstarted region
-        xs, ys = iso_line(self._x, self._y, np.where(result.inside, unstarted.astype(float), np.nan), 0.5)
-        self.unstarted_outline.setData(xs, ys)
-        self.unstarted_outline.setPen(self._pen(UNSTARTED_COLOUR, 2.4))
-        # hatch: a slanted stroke on a regular subset of the unstarted points
-        ii, jj = marked_points(unstarted, half_step=True)
-        self.unstarted_hatch.setData(self._x[jj], self._y[ii], symbol=_HATCH, size=12 * self._scale,
-                                     pen=pg.mkPen(UNSTARTED_COLOUR, width=2.2 * self._scale), brush=None)
-        # self-start and unstart Mach numbers (the same on every altitude row)
-        start = unstart = None
-        if mixed:
-            try:
-                from engine_air.inlets.mixed_compression import starting_machs
-
-                start, unstart = starting_machs(result.project.inlet)
-            except Exception:  # noqa: BLE001 - a missing line must never stop the map from drawing
-                start = unstart = None
-        self.starting_machs = (start, unstart)
-        pen_start = self._pen(START_COLOUR, 3.0, Qt.DashLine)
-        pen_unstart = self._pen(UNSTART_COLOUR, 3.0, Qt.DashDotLine)
-        for line, at, pen in ((self.self_start_line, start, pen_start), (self.unstart_line, unstart, pen_unstart)):
-            line.setPen(pen)
-            line.setVisible(at is not None)
-            if at is not None:
-                line.setValue(float(at))
-        band = start is not None and unstart is not None and start > unstart
-        self.hysteresis_band.setVisible(band)
-        if band:
-            self.hysteresis_band.setRegion((float(unstart), float(start)))
-
-    def _draw_outline(self, project) -> None:
-        env = project.envelope
-        mx = list(env.mach) + [env.mach[0]]
-        hy = self._units.to_display("altitude", np.array(list(env.altitude_m) + [env.altitude_m[0]], dtype=float))
-        self.outline.setData(np.array(mx, dtype=float), hy)
-        self.outline.setPen(self._pen("#202020", 2.2))
-
-    def _draw_zero_line(self, result, case, key, kind, values) -> None:
-        field = values if kind == "margin" else analysis.limiting_field(result, case)
-        xs, ys = iso_line(self._x, self._y, field, 0.0)
-        self._zero_found = int(np.isfinite(xs).sum()) >= 2
-        self.zero_halo.setData(xs, ys)
-        self.zero_line.setData(xs, ys)
-        self.zero_halo.setPen(self._pen("w", 6.0))
-        self.zero_line.setPen(self._pen("k", 3.0))
-
-    def _draw_ram_line(self, result, case) -> None:
-        ratio = np.asarray(result.quantity(case, "face_static_to_ambient"), dtype=float)
-        xs, ys = iso_line(self._x, self._y, ratio, 1.0)
-        self._ram_found = int(np.isfinite(xs).sum()) >= 2
-        self.ram_halo.setData(xs, ys)
-        self.ram_line.setData(xs, ys)
-        self.ram_halo.setPen(self._pen("w", 5.5))
-        pen = self._pen("#3d1466", 3.2, Qt.CustomDashLine)
-        pen.setDashPattern([2.5, 1.5])
-        self.ram_line.setPen(pen)
-
-    def _draw_fail_marks(self, result, case) -> None:
-        failing = np.asarray(result.failing(case), dtype=bool)
-        ii, jj = marked_points(failing)
-        if ii.size > 4000:
-            keep = np.linspace(0, ii.size - 1, 4000).astype(int)
-            ii, jj = ii[keep], jj[keep]
-        self.fail_marks.setData(self._x[jj], self._y[ii], symbol="x", size=9 * self._scale,
-                                pen=pg.mkPen("w", width=0.8), brush=pg.mkBrush("k"))
-        self.fail_mark_count = int(ii.size)
-
-    def _draw_selection(self, i: int, j: int) -> None:
-        x, y = float(self._x[j]), float(self._y[i])
-        self.selection.setData([x, x], [y, y], symbol=["o", "o"], size=[24 * self._scale, 10 * self._scale],
-                               pen=[pg.mkPen("k", width=3.5 * self._scale), pg.mkPen("w", width=2.5 * self._scale)],
-                               brush=[None, pg.mkBrush("k")])
-
-    def _build_legend(self) -> None:
-        """Legend entries are made once (clearing a legend is unsafe with some Qt bindings); texts update."""
-        self._legend_fail = pg.ScatterPlotItem(symbol="x", size=12, pen=pg.mkPen("w", width=0.8),
-                                               brush=pg.mkBrush("k"))
-        self._legend_sel = pg.ScatterPlotItem(symbol="o", size=16, pen=pg.mkPen("k", width=3), brush=None)
-        entries = [(self.outline, "flight envelope"), (self.zero_line, "margin = 0"),
-                   (self.ram_line, "face static = ambient (p2/p0 = 1)"),
-                   (self._legend_fail, "a limit fails here"), (self._legend_sel, "selected point")]
-        for item, text in entries:
-            self.legend.addItem(item, text)
-        self._legend_labels = [label for _sample, label in self.legend.items]
-        self._legend_texts = [text for _item, text in entries]
-
-    def _rebuild_legend(self, margin_shown: bool) -> None:
-        none = " (none here)"
-        zero = "least margin = 0" if self._key == LEAST_MARGIN else f"{QUANTITIES[self._key].label} = 0"
-        self._legend_texts[1] = (zero if margin_shown
-                                 else "limit boundary (least margin = 0)") + ("" if self._zero_found else none)
-        self._legend_texts[2] = "face static = ambient (p2/p0 = 1)" + ("" if self._ram_found else none)
-        self._legend_texts[3] = "a limit fails here" + ("" if self.fail_mark_count else " (nowhere)")
-        self._sync_optional_legend(self._optional_legend(margin_shown))
-        self._update_legend_text()
-
-    def _optional_legend(self, margin_shown: bool) -> list[tuple[str, str]]:
-        """(entry, text) of the legend entries this map needs beyond the fixed five."""
-        out = []
-        if self.not_judged_count:  # the two greys side by side, so that neither is mistaken for the other
-            out.append(("not-judged", "not judged here"))
-            out.append(("outside", "outside the envelope"))
-        if self._key == LEAST_MARGIN:
-            labels = [html.escape(x) for x in self.limiting_labels] or ["nothing judged"]
-            one = "limiting: " + " / ".join(labels)
-            # one check a line when they do not fit on one short line, so the legend keeps its columns
-            text = one if len(one) <= 26 else "limiting:<br>" + " /<br>".join(labels)
-            out.append(("limiting", text))
-        start, unstart = self.starting_machs
-        if self.unstarted_count or start is not None:
-            out.append(("unstarted", "unstarted (hatched)" + ("" if self.unstarted_count else " (nowhere)")))
-        if start is not None:
-            if unstart is not None and unstart < start:
-                out.append(("self-start", f"self-start M0 {start:.3f}"))
-                out.append(("unstart", f"unstart M0 {unstart:.3f}"))
-                out.append(("band", "hysteresis: started only if reached from above"))
-            else:
-                out.append(("self-start", f"self-start = unstart M0 {start:.3f}"))
-        return out
-
-    def _legend_sample(self, entry: str):
-        samples = getattr(self, "_legend_samples", None)
-        if samples is None:
-            samples = self._legend_samples = {}
-        if entry not in samples:
-            if entry in ("outside", "not-judged", "band"):
-                colour = {"outside": OUTSIDE_GREY, "not-judged": pg.mkColor(*NOT_JUDGED_GREY[:3]),
-                          "band": pg.mkColor(255, 200, 0, 110)}[entry]
-                item = pg.ScatterPlotItem(symbol="s", size=14, pen=pg.mkPen("#555555", width=0.8),
-                                          brush=pg.mkBrush(colour))
-            elif entry == "unstarted":
-                item = pg.ScatterPlotItem(symbol=_HATCH, size=12, pen=pg.mkPen(UNSTARTED_COLOUR, width=2.2),
-                                          brush=None)
-            elif entry == "self-start":
-                item = pg.PlotDataItem(pen=pg.mkPen(START_COLOUR, width=3.0, style=Qt.DashLine))
-            elif entry == "unstart":
-                item = pg.PlotDataItem(pen=pg.mkPen(UNSTART_COLOUR, width=3.0, style=Qt.DashDotLine))
-            else:  # a text entry
-                item = pg.PlotDataItem(pen=None)
-            samples[entry] = item
-        return samples[entry]
-
-    def _sync_optional_legend(self, wanted: list[tuple[str, str]]) -> None:
-        """Add or remove the optional entries (only when the set changes); texts are updated in place."""
-        keys = [k for k, _t in wanted]
-        if keys != getattr(self, "_optional_keys", []):
-            for k in getattr(self, "_optional_keys", []):
-                self.legend.removeItem(self._legend_sample(k))
-            for k, text in wanted:
-                self.legend.addItem(self._legend_sample(k), text)
-            self._optional_keys = keys
-            n = self.legend.columnCount
-            self.legend.columnCount = -1
-            self.legend.setColumnCount(n)  # lays every entry out again
-            self._legend_labels = [label for _sample, label in self.legend.items]
-            self._legend_shown = None
-        self._legend_texts = self._legend_texts[:5] + [t for _k, t in wanted]
-        self.legend_entries = list(self._legend_texts)
-
-    def _update_legend_text(self) -> None:
-        self._legend_shown = None
-        self._fit_legend()
-
-    def _set_legend_text(self, pt: float) -> None:
-        shown = (tuple(self._legend_texts), round(pt, 1))
-        if shown == getattr(self, "_legend_shown", None):
-            return
-        self._legend_shown = shown
-        for label, text in zip(self._legend_labels, self._legend_texts):
-            label.setText(text, size=f"{pt:.0f}pt", color="k")
-
     def _apply_style(self) -> None:
         s = self._scale
         tick = QFont()
@@ -629,7 +368,9 @@ class EnvelopeMap(QWidget):
         self.colour_bar.layout.setColumnFixedWidth(1, int(24 * s))
         self.colour_bar.setMinimumWidth(bar_width)
         self.colour_bar.setMaximumWidth(bar_width)
-        self.legend.setColumnCount(2 if s > 1.2 else 4)  # fewer when the map is narrow (``_fit_legend``)
+        self.legend.setColumnCount(5)  # fewer when the map is narrow (``_fit_legend``)
+        self._span_limiting()
+        self._legend_fit_key = None
         self.plot.titleLabel.opts["size"] = f"{15 * s:.0f}pt"
         self.plot.titleLabel.opts["color"] = "#000"
         if hasattr(self, "_legend_labels"):
@@ -693,64 +434,8 @@ class EnvelopeMap(QWidget):
         ci.layout.invalidate()
         ci.setGeometry(QRectF(0, 0, self.canvas.width(), self.canvas.height()))
         ci.layout.activate()
+        self._fit_bar_label()
         self.canvas.viewport().update()
-
-    def _fit_legend(self) -> None:
-        """As many legend columns as the style asks (4, or 2 in presentation) and the width allows; in a
-        narrow window the legend's type first shrinks (to 75 %), then it drops columns."""
-        if not getattr(self, "_legend_labels", None):
-            return
-        room = self.canvas.width() - 30
-        full = 11 * self._scale
-        wanted = 2 if self._scale > 1.2 else 4
-        tries = [(wanted, full), (wanted, 0.85 * full), (wanted, 0.75 * full)]
-        tries += [(n, 0.75 * full) for n in range(wanted - 1, 0, -1)]
-        before = getattr(self, "_legend_shown", None)
-        moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
-        for n, pt in tries:
-            self._set_legend_text(pt)
-            if self.legend.columnCount != n:
-                self.legend.setColumnCount(n)
-                moved = True
-            self.legend.layout.invalidate()
-            if self.legend.layout.effectiveSizeHint(Qt.MinimumSize).width() <= room:
-                break
-        if moved or self._legend_shown != before:
-            self._schedule_canvas_fit()
-
-    def _fit_title(self) -> None:
-        """The title on one line when it fits beside the colour bar, else on two (quantity / case), so a
-        narrow window never widens the map beyond its place; the title row is as high as its lines."""
-        parts = getattr(self, "_title_parts", None)
-        if parts is None:
-            return
-        font = QFont()
-        font.setPointSizeF(15 * self._scale)
-        fm = QFontMetrics(font)
-        one = f"{parts[0]} — {parts[1]}"
-        room = (self.canvas.width() - self.colour_bar.maximumWidth()
-                - self.plot.getAxis("left").width() - 40)
-        lines = [one] if fm.horizontalAdvance(one) <= room else []
-        if not lines:  # one line per part, each part wrapped at its words when it is still too wide
-            for part in parts:
-                line = ""
-                for word in part.split(" "):
-                    trial = f"{line} {word}".strip()
-                    if line and fm.horizontalAdvance(trial) > room:
-                        lines.append(line)
-                        line = word
-                    else:
-                        line = trial
-                lines.append(line)
-        text = "<br>".join(html.escape(line) for line in lines)
-        if (text, self._scale) == getattr(self, "_title_shown", None):
-            return
-        self._title_shown = (text, self._scale)
-        self.plot.setTitle(text)
-        height = len(lines) * fm.lineSpacing() + 12
-        self.plot.titleLabel.setMaximumHeight(height)
-        self.plot.layout.setRowFixedHeight(0, height)
-        self._schedule_canvas_fit()
 
     # -- mouse -----------------------------------------------------------------
     def _grid_index_at_scene(self, scene_pos) -> tuple[int, int] | None:

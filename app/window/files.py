@@ -197,7 +197,8 @@ class FileActions:
     # -- export --------------------------------------------------------------------
     def input_files(self) -> tuple:
         """Every file this window reads: an export may never be written over one of them."""
-        return tuple(p for p in (self.document.path,) if p is not None)
+        table = getattr(getattr(self.document.project, "characteristics", None), "table", None)
+        return tuple(p for p in (self.document.path, None if table is None else table.path) if p is not None)
 
     def _export_dialog(self, kind: str) -> None:
         if self.result is None:
@@ -221,8 +222,8 @@ class FileActions:
             "png": lambda: exports.write_map_png(self.map, path, inputs=inputs),
             "svg": lambda: exports.write_map_svg(self.map, path, inputs),
             "csv": lambda: exports.write_grid_csv(self.result, path, inputs),
-            "sections-png": lambda: self.sections.export(str(path), inputs),
-            "sections-svg": lambda: self.sections.export(str(path), inputs),
+            "sections-png": lambda: self.export_sections(path, inputs),
+            "sections-svg": lambda: self.export_sections(path, inputs),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
                                                        self.document.display_name, inputs),
         }

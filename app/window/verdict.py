@@ -28,10 +28,12 @@ class VerdictBanner(QLabel):
         self.setTextFormat(Qt.RichText)
         self.state = "busy"
         self.presentation = False
+        self.small_window = False  # presentation mode's smaller type (``style.compact``)
         self._sized_text = ""  # the last result's (or error's) text: the height is kept for it
 
-    def set_presentation(self, on: bool) -> None:
+    def set_presentation(self, on: bool, small_window: bool = False) -> None:
         self.presentation = bool(on)
+        self.small_window = bool(small_window)
         self.fit_height()
 
     def show_state(self, state: str, text: str) -> None:
@@ -54,7 +56,7 @@ class VerdictBanner(QLabel):
         envelope point is named apart and not counted among those that hold."""
         failing, total = analysis.failing_count(result)
         n_cases = len(result.cases)
-        small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
+        small = style.presentation_pt(self.small_window) + 3 if self.presentation else style.BASE_PT + 1
         over = f"whole envelope, {n_cases} case{'s' if n_cases != 1 else ''}"
         unjudged = [s for s in result.summary if s.holds is None]  # outside their regions everywhere (§15)
         if unjudged:
@@ -68,8 +70,8 @@ class VerdictBanner(QLabel):
 
     def fit_height(self) -> None:
         """Room for two lines of banner text, or more when the last verdict wraps to more at this width."""
-        big = 28 if self.presentation else 16
-        small = style.PRESENTATION_PT + 3 if self.presentation else style.BASE_PT + 1
+        big = style.banner_pt(self.presentation, self.small_window)
+        small = style.presentation_pt(self.small_window) + 3 if self.presentation else style.BASE_PT + 1
         pad = 10 if self.presentation else 6
         height = int(1.45 * (big + small) * 96 / 72) + 2 * pad + 4
         if self._sized_text and self.width() > 0:

@@ -38,8 +38,9 @@ class _Parser(argparse.ArgumentParser):
         sys.exit(EXIT_UNUSABLE)
 
 
-COMMANDS = {"check": "check", "map": "maps", "point": "point", "size": "size", "compare": "compare",
-            "sweep": "sweep", "pack": "pack", "distortion": "distortion"}
+COMMANDS = {"check": "check", "map": "maps", "point": "point", "characteristic": "characteristic",
+            "calibrate": "calibrate", "size": "size", "compare": "compare", "sweep": "sweep", "pack": "pack",
+            "distortion": "distortion"}
 """Each command and the module (in ``engine_air.cli``) that defines it."""
 
 

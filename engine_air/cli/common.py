@@ -82,6 +82,21 @@ def check_output_path(path, option: str, inputs=()) -> None:
         raise UsageError(f"{option} {safe_path(text)}: cannot write there (permission denied)")
 
 
+def with_tables(inputs, *projects) -> tuple:
+    """The run's inputs once its projects are read: each project's characteristics table is read too, so an
+    output must not be it either."""
+    tables = [p.characteristics.table.path for p in projects
+              if getattr(getattr(p, "characteristics", None), "table", None) is not None]
+    return tuple(inputs) + tuple(tables)
+
+
+def recheck_outputs(outputs, inputs, folder_option: str | None = None) -> None:
+    """``check_not_inputs`` again for each (option, path) once every input is known (after loading)."""
+    for option, path in outputs:
+        if path:
+            check_not_inputs(path, option, inputs, folder=option == folder_option)
+
+
 def check_not_inputs(path, option: str, inputs=(), folder: bool = False) -> None:
     """UsageError when the output ``path`` is (or, for a folder, holds) one of the run's ``inputs``."""
     from engine_air.outputs.writer import OutputIsInputError, check_not_input
@@ -154,4 +169,4 @@ def write_error(path, what: str, exc: OSError) -> UsageError:
 
 __all__ = ["EXIT_FAILS", "EXIT_HOLDS", "EXIT_NOT_JUDGED", "EXIT_UNUSABLE", "FT", "UsageError", "cases",
            "check_input_path", "check_not_inputs", "check_output_path", "err", "finite", "fmt", "load", "name", "out",
-           "path_text", "progress_printer", "quiet_stdout", "warn", "write_error"]
+           "path_text", "progress_printer", "quiet_stdout", "recheck_outputs", "warn", "with_tables", "write_error"]

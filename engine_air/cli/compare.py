@@ -6,7 +6,7 @@ import math
 
 from engine_air import __version__
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, check_output_path, fmt, load, name, out, path_text,
-                                   write_error)
+                                   write_error, recheck_outputs, with_tables)
 
 
 def add_parser(sub) -> None:
@@ -32,6 +32,8 @@ def run(args) -> int:
         check_output_path(args.csv, "--csv", inputs)
     a = load(args.a, "A")
     b = load(args.b, "B")
+    inputs = with_tables(inputs, a, b)
+    recheck_outputs([("--csv", args.csv)], inputs)
     c = compare_projects(a, b, grid_from=args.grid_from)
     out(f"engine-air {__version__} compare: A = {path_text(args.a)}, B = {path_text(args.b)}")
     out(f"  grid from {args.grid_from}: {len(c.mach)} Mach x {len(c.altitude_m)} altitude; "

@@ -5,7 +5,7 @@ from __future__ import annotations
 import os
 
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, load, name, out,
-                                   path_text, write_error)
+                                   path_text, recheck_outputs, with_tables, write_error)
 
 
 def add_parser(sub) -> None:
@@ -43,6 +43,8 @@ def run(args) -> int:
     if len({os.path.realpath(p) for _, p in targets}) < len(targets):
         raise UsageError("map: --csv, --parquet and --png must name different files")
     project = load(args.project)
+    inputs = with_tables(inputs, project)  # its characteristics table is read too
+    recheck_outputs(targets, inputs)
     result = evaluate_project(project, cases(project, args.case))
     if args.csv or args.parquet:
         for fmt, p in (("csv", args.csv), ("parquet", args.parquet)):

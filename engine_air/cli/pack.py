@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_input_path, check_not_inputs,
-                                   load, out, path_text, write_error)
+                                   load, out, path_text, write_error, recheck_outputs, with_tables)
 
 
 def add_parser(sub) -> None:
@@ -30,6 +30,8 @@ def run(args) -> int:
         if q not in QUANTITIES:
             raise UsageError(f"--quantity {q!r}: unknown quantity; choose from {', '.join(QUANTITIES)}")
     project = load(args.project)
+    inputs = with_tables(inputs, project)
+    recheck_outputs([("--out", args.out)], inputs, folder_option="--out")
     chosen = cases(project, args.case)
     try:
         pack = write_review_pack(args.project, args.out, quantities=quantities, case_names=chosen,

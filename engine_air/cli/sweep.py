@@ -4,7 +4,8 @@ from __future__ import annotations
 
 from engine_air import __version__
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_UNUSABLE, UsageError, cases, check_output_path,
-                                   err, finite, load, name, out, path_text, progress_printer, write_error)
+                                   err, finite, load, name, out, path_text, progress_printer, recheck_outputs,
+                                   with_tables, write_error)
 
 
 def add_parser(sub) -> None:
@@ -50,6 +51,8 @@ def run(args) -> int:
         check_output_path(args.csv, "--csv", inputs)
     variables = [parse_vary(v) for v in args.vary]
     project = load(args.project)
+    inputs = with_tables(inputs, project)
+    recheck_outputs([("--csv", args.csv)], inputs)
     chosen = cases(project, args.case)
     cruise = None
     if args.cruise_mach is not None or args.cruise_altitude_m is not None:

@@ -161,18 +161,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
                 )
             )
     if limits.stable_flow_fraction is not None:
-        with np.errstate(invalid="ignore", divide="ignore"):
-            fraction = points.mass_flow_ratio / points.max_mass_flow_ratio
-        subcritical = points.regime == 1
-        if getattr(points, "oblique_ahead_of_cowl", None) is not None:  # buzz needs an oblique shock (§10)
-            subcritical = subcritical & points.oblique_ahead_of_cowl
-        checks.append(
-            _check(
-                "stability", "Stable capture (buzz)", f"MFR/MFR_max >= {limits.stable_flow_fraction:g}",
-                fraction, fraction - limits.stable_flow_fraction, limits.stable_flow_fraction,
-                inside & subcritical,
-            )
-        )
+        checks.append(_stability_check(limits, points, inside))
     if limits.relative_tip_mach_max is not None:
         checks.append(
             _check(
@@ -210,6 +199,28 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         )
     checks.extend(distortion_checks(limits, points, inside, stability))
     return checks
+
+
+def _stability_check(limits: Limits, points, inside) -> Check:
+    """``stability``: MFR/MFR_max - the stable fraction, subcritical where an oblique or conical shock stands ahead
+    of the cowl (§10); where measured characteristics decide (§17) their own stability limit is the threshold and
+    is judged wherever they give one."""
+    with np.errstate(invalid="ignore", divide="ignore"):
+        fraction = points.mass_flow_ratio / points.max_mass_flow_ratio
+    subcritical = points.regime == 1
+    applies = subcritical
+    if getattr(points, "oblique_ahead_of_cowl", None) is not None:  # buzz needs an oblique shock (§10)
+        applies = applies & points.oblique_ahead_of_cowl
+    threshold = limits.stable_flow_fraction
+    text = f"MFR/MFR_max >= {threshold:g}"
+    used = getattr(points, "from_data", None)
+    if used is not None:
+        measured = np.asarray(points.data_stable_flow_fraction, float)
+        applies = np.where(used, subcritical & np.isfinite(measured), applies)
+        threshold = np.where(used, measured, threshold)
+        text += " (measured limit where data decide)"
+    return _check("stability", "Stable capture (buzz)", text, fraction, fraction - threshold,
+                  limits.stable_flow_fraction, inside & applies)
 
 
 def distortion_checks(limits: Limits, points, inside, stability=None) -> list[Check]:

@@ -54,10 +54,11 @@ class JudgedPoints(OperatingPoints):
         raise KeyError(name)
 
 
-def judge(project: Project, points: OperatingPoints) -> JudgedPoints:
+def judge(project: Project, points: OperatingPoints, case: Case | None = None) -> JudgedPoints:
     """``points`` with every check the project's limits ask for, and the limiting one at each point."""
     judged = JudgedPoints(**{f.name: getattr(points, f.name) for f in fields(OperatingPoints)})
-    judged.checks = build_checks(project.limits, judged)
+    stability = None if case is None else project.rating(case.rating).stability  # the surge-margin stack-up
+    judged.checks = build_checks(project.limits, judged, stability)
     judged.limiting = limiting_index(judged.checks, judged.flags)
     return judged
 
@@ -71,4 +72,4 @@ def evaluate_conditions(project: Project, case: Case, mach, altitude_m, demand=N
     or infinite included, and an ISA offset that leaves no positive temperature are flagged
     ``outside-atmosphere`` instead. ``demand``: corrected flow W_c2 (kg/s) in place of the rating's table;
     ``sources``: ``compression_source`` and ``recovery_law`` of ``engine_air.flow.chain.run_chain``."""
-    return judge(project, run_chain(project, case, mach, altitude_m, demand, **sources))
+    return judge(project, run_chain(project, case, mach, altitude_m, demand, **sources), case)

@@ -251,7 +251,7 @@ def evaluate_project(
     for i, case in enumerate(chosen):
         if cancelled is not None and cancelled():
             raise Cancelled()
-        points = judge(project, run_chain(project, case, mach_1d[None, :], alt_1d[:, None]))
+        points = judge(project, run_chain(project, case, mach_1d[None, :], alt_1d[:, None]), case)
         points.flags = np.where(inside, points.flags, points.flags | F.OUTSIDE_ENVELOPE)
         maps.append(CaseMap(case.name, points))
         if progress is not None:

@@ -59,13 +59,15 @@ from engine_air.project.model import Case, Project
 
 def run_chain(project: Project, case: Case, mach, altitude_m, demand=None, *,
               compression_source: CompressionSource | None = None,
-              recovery_law: RecoveryLaw | None = None) -> OperatingPoints:
+              recovery_law: RecoveryLaw | None = None, data: bool = True) -> OperatingPoints:
     """The inlet-engine match of ``project`` for ``case`` at flight Mach ``mach`` and geopotential altitude
     ``altitude_m`` (m), arrays that broadcast; the rating's demand, or corrected flow ``demand`` (kg/s, an
     array that broadcasts against the conditions). Returns ``OperatingPoints`` of the common shape, unjudged.
 
     ``compression_source`` replaces the inlet type's model of the compression system and ``recovery_law`` the
-    capture's recovery law (measured characteristics, method §17). See ``free_stream`` for bad input."""
+    capture's recovery law. A project with a characteristics table (method §17) has its capture stage from the
+    data wherever they cover (``engine_air.flow.measured``) unless ``data`` is False (the model alone).
+    See ``free_stream`` for bad input."""
     inlet, rating = project.inlet, project.rating(case.rating)
     if demand is not None:  # the free stream takes the sweep's shape, so every stage sees one shape
         shape = np.broadcast_shapes(np.shape(mach), np.shape(altitude_m), np.shape(demand))
@@ -74,14 +76,43 @@ def run_chain(project: Project, case: Case, mach, altitude_m, demand=None, *,
     dem = rating_demand(rating, fs) if demand is None else swept_demand(fs, demand)
     fc = face(inlet, rating, fs, dem)
     comp = compression(project, fs, compression_source)
-    cap = capture(inlet, fs, dem, fc, comp, recovery_law)
+    measured = data and project.characteristics is not None and recovery_law is None
+    if measured:  # measured characteristics over the model where they cover (method §17)
+        from engine_air.flow.measured import data_capture
+
+        comp, cap = data_capture(project, case, fs, dem, fc, comp)
+    else:
+        cap = capture(inlet, fs, dem, fc, comp, recovery_law)
     thr = throat_and_doors(inlet, project.limits, fs, comp, cap)
     drag = pre_entry_drag(inlet_type(inlet.type), inlet, fs, comp, thr)
+    if measured:
+        from engine_air.flow.measured import measured_drag
+
+        drag = measured_drag(comp, fs, thr, drag)
     led = ledger(rating, inlet, fs, thr, drag)
-    return assemble(fs, dem, fc, comp, cap, thr, drag, led)
+    points = assemble(fs, dem, fc, comp, cap, thr, drag, led)
+    if case.angle_of_attack_deg is not None or case.sideslip_deg is not None:  # the case's incidence (§17)
+        points = _with_incidence(points, case, fs)
+    if measured:
+        from engine_air.flow.measured import measured_fields
+
+        points = measured_fields(points, comp, rating)
+    return points
 
 
-def characteristic(project: Project, case: Case, mach, altitude_m, corrected_flow_kg_s) -> OperatingPoints:
+def _with_incidence(points: OperatingPoints, case: Case, fs: FreeStream) -> OperatingPoints:
+    """The points with the case's angle of attack and sideslip at each flight Mach number (degrees)."""
+    from dataclasses import replace
+
+    from engine_air.project.model import incidence_at
+
+    shape = np.shape(points.flags)
+    return replace(points, angle_of_attack_deg=lean(incidence_at(case.angle_of_attack_deg, fs.mach), shape),
+                   sideslip_deg=lean(incidence_at(case.sideslip_deg, fs.mach), shape))
+
+
+def characteristic(project: Project, case: Case, mach, altitude_m, corrected_flow_kg_s,
+                   data: bool = True) -> OperatingPoints:
     """The inlet characteristic (method §16): the chain at the conditions (``mach``, ``altitude_m``, arrays that
     broadcast to a shape S) with the demand swept over ``corrected_flow_kg_s`` (a 1-D array of W_c2, kg/s) along
     a new first axis: points of shape (len(corrected_flow_kg_s), *S). Recovery against mass-flow ratio at
@@ -92,7 +123,7 @@ def characteristic(project: Project, case: Case, mach, altitude_m, corrected_flo
     shape = np.broadcast_shapes(np.shape(mach), np.shape(altitude_m))
     sweep = wc2.reshape(wc2.shape + (1,) * len(shape))
     return run_chain(project, case, np.asarray(mach, float)[None, ...], np.asarray(altitude_m, float)[None, ...],
-                     demand=sweep)
+                     demand=sweep, data=data)
 
 
 def lean(value, shape: tuple[int, ...]) -> np.ndarray:

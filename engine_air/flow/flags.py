@@ -38,6 +38,10 @@ FLAG_BITS: dict[str, int] = {
     "no-thrust-data": 1 << 22,
     "outside-case-region": 1 << 23,
     "bypass-insufficient": 1 << 24,
+    # measured characteristics over the model (method section 17)
+    "from-data": 1 << 25,
+    "outside-data": 1 << 26,
+    "incidence-not-modelled": 1 << 27,
 }
 
 FLAG_DTYPE = np.int32
@@ -61,6 +65,9 @@ UNSTART_RISK = FLAG_BITS["unstart-risk"]
 NO_THRUST_DATA = FLAG_BITS["no-thrust-data"]
 OUTSIDE_CASE_REGION = FLAG_BITS["outside-case-region"]
 BYPASS_INSUFFICIENT = FLAG_BITS["bypass-insufficient"]
+FROM_DATA = FLAG_BITS["from-data"]
+OUTSIDE_DATA = FLAG_BITS["outside-data"]
+INCIDENCE_NOT_MODELLED = FLAG_BITS["incidence-not-modelled"]
 
 DESCRIPTIONS: dict[str, str] = {
     "ok": "No flag: every modelled quantity is defined and no special regime applies.",
@@ -97,6 +104,12 @@ DESCRIPTIONS: dict[str, str] = {
     "bypass-insufficient": "The bypass doors cannot pass all the air the inlet captures at critical and the engine "
     "and bleed do not take: the rest spills ahead of the cowl (external compression) or would unstart a "
     "mixed-compression inlet.",
+    "from-data": "Recovery, maximum mass-flow ratio and the stability limit come from the project's measured or "
+    "computed characteristics (interpolated in Mach and incidence), not from the shock model.",
+    "outside-data": "The project has a characteristics table, but it does not cover this condition (Mach number or "
+    "incidence outside the tested ones, or less flow than tested): the shock model is used here.",
+    "incidence-not-modelled": "The case gives an angle of attack or sideslip here, but no characteristics cover it: "
+    "the shock model is at zero incidence, so incidence effects are not included.",
 }
 
 

@@ -82,6 +82,12 @@ class OperatingPoints:
     internal_contraction_ratio: np.ndarray | None = None  # CR = A_th/A_e, mixed compression only
     dc60: np.ndarray | None = None  # distortion DC(60) from data (method §18); None: no data, not judged
     surge_margin_loss: np.ndarray | None = None  # ΔPRS from data (method §18); None: no data, not judged
+    # measured characteristics (method §17); None without a characteristics table
+    from_data: np.ndarray | None = None  # bool: the data decide recovery, MFR_max and stability here
+    data_stable_flow_fraction: np.ndarray | None = None  # the data's stability limit / MFR_crit (NaN: none)
+    angle_of_attack_deg: np.ndarray | None = None  # the case's incidence at the point
+    sideslip_deg: np.ndarray | None = None
+    remaining_surge_margin: np.ndarray | None = None  # available - ΔPRS - other items (method §18), from data
 
     # quantities computed when read (the same relations, in the same order, as the chain's stages)
     @property

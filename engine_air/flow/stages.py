@@ -178,6 +178,7 @@ class Compression:
     bleed_fraction: np.ndarray  # of the captured flow, scheduled in M0
     started: np.ndarray | None  # bool (supersonic and started), mixed compression only
     flags: np.ndarray | int
+    measured: object | None = None  # where measured characteristics decide (method §17): see flow.measured
 
 
 class CompressionSource(Protocol):

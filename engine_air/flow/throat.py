@@ -95,6 +95,23 @@ def _choke(fs: FreeStream, comp: Compression, cap: Capture, a_throat, w_bp):
     return pi * scale, w * scale, w_bp, m_th, F.flag_where(choked, F.THROAT_CHOKED)
 
 
+def _buzz(limits: Limits, fs: FreeStream, comp: Compression, cap: Capture, critical, mfr):
+    """Buzz risk (method §10): subcritical below the stable fraction of MFR_max, where an oblique or conical shock
+    stands ahead of the cowl (with only a normal shock ahead, pitot or every ramp shock detached, subcritical
+    spillage is stable). Where measured characteristics decide (§17) their own stability limit replaces both the
+    fraction and the shock rule (no limit measured there: no buzz judged)."""
+    shocks = comp.shocks
+    below = fs.supersonic & ~cap.supercritical & ~critical
+    buzz = below & (mfr / shocks.max_mass_flow_ratio < limits.stable_flow_fraction)
+    if shocks.oblique_ahead_of_cowl is not None:
+        buzz = buzz & shocks.oblique_ahead_of_cowl
+    if comp.measured is not None:
+        measured = comp.measured
+        buzz = np.where(measured.used, below & (mfr / shocks.max_mass_flow_ratio < measured.stable_flow_fraction),
+                        buzz)
+    return buzz
+
+
 def throat_and_doors(inlet: Inlet, limits: Limits, fs: FreeStream, comp: Compression, cap: Capture) -> Throat:
     """The throat, the doors and the regime; see the module text for the relations."""
     shocks, bleed = comp.shocks, comp.bleed_fraction
@@ -123,14 +140,10 @@ def throat_and_doors(inlet: Inlet, limits: Limits, fs: FreeStream, comp: Compres
                       * choked_mass_flow_parameter() / np.sqrt(fs.total_temperature_k))
         mfr_max = np.where(fs.supersonic, shocks.max_mass_flow_ratio,
                            np.where(fs.low_speed, np.nan, choke_flow / cap.capture_flow_kg_s))
+        if comp.measured is not None:  # measured characteristics: their critical flow at every Mach number
+            mfr_max = np.where(comp.measured.used, shocks.max_mass_flow_ratio, mfr_max)
         if limits.stable_flow_fraction is not None:
-            # buzz needs an oblique or conical shock ahead of the cowl (method §10); with only a normal
-            # shock ahead (pitot, or every ramp shock detached) subcritical spillage is stable
-            buzz = (fs.supersonic & ~cap.supercritical & ~critical
-                    & (mfr / shocks.max_mass_flow_ratio < limits.stable_flow_fraction))
-            if shocks.oblique_ahead_of_cowl is not None:
-                buzz = buzz & shocks.oblique_ahead_of_cowl
-            bits = bits | F.flag_where(buzz, F.BUZZ_RISK)
+            bits = bits | F.flag_where(_buzz(limits, fs, comp, cap, critical, mfr), F.BUZZ_RISK)
         return Throat(
             recovery=pi, engine_flow_kg_s=w, throat_mach=m_th, captured_flow_kg_s=captured,
             bleed_flow_kg_s=bleed * captured, bypass_flow_kg_s=w_bp,

@@ -26,7 +26,7 @@ from engine_air.flow.match import REGIMES
 from engine_air.outputs.ledger_table import NO_THRUST_DATA, ledger_rows
 from engine_air.outputs.point_record import point_record, shock_table, station_table
 
-SECTION_IDS = ("verdict", "findings", "maps", "sections", "stations", "shocks", "ledger", "inputs", "version", "sources",
+SECTION_IDS = ("verdict", "findings", "maps", "sections", "characteristics", "stations", "shocks", "ledger", "inputs", "version", "sources",
                "caution")
 """Element ids of the pack's sections, in page order."""
 SOURCES = (
@@ -274,7 +274,8 @@ FOLDER</code> this pack.</p>
 </section>"""
 
 
-def page(project, result, worst, *, text, source_name, notes, maps_html, sections_html, units="si") -> str:
+def page(project, result, worst, *, text, source_name, notes, maps_html, sections_html, units="si",
+         characteristics_html: str = "") -> str:
     """The whole page (see the module text); ``worst`` is the overall worst point (``studies.sizing.worst_point``)."""
     verdict, findings = verdict_and_findings(project, result, units)
     none = "<p>No check applies at any envelope point.</p>"
@@ -313,6 +314,13 @@ carries the envelope outline, the zero-margin line and the face static = ambient
 <p>Each limit's own quantity against flight Mach number and against altitude through that limit's own worst point,
 one line per case (and the worst of all cases); thin dotted where the quantity is not judged.</p>
 {sections_html}
+</section>
+
+<section id="characteristics"><h2>Inlet characteristics</h2>
+<p>Total-pressure recovery against captured mass-flow ratio at the supersonic Mach numbers of interest (method
+sections 16 and 17): from measured characteristics where the project's table covers the condition, else from the
+model.</p>
+{characteristics_html or "<p>No characteristic drawn.</p>"}
 </section>
 
 <section id="stations"><h2>Station table at the worst point</h2>

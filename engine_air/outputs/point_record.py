@@ -81,6 +81,8 @@ def point_record(points: OperatingPoints, index, case_name: str) -> dict:
         record["worst_relative_margin"] = None  # nothing is judged here; the flags say why
     record.update({
         "regime": REGIMES[int(_at(points.regime, index))],
+        # where measured characteristics decide the point (method §17): "data"; elsewhere "model"
+        "data_source": "data" if bits & F.FROM_DATA else "model",
         # mixed compression only (method §11); null for the other types (self_start_contraction,
         # entrance_area_m2 and internal_contraction_ratio likewise)
         "started": None if points.started is None else bool(_at(points.started, index)),

@@ -155,6 +155,16 @@ _ALL = (
     _q("internal_contraction_ratio", "Internal contraction ratio", "",
        "A_th / A_e, throat over cowl entrance; the inlet self-starts where it reaches the self-start contraction "
        "(mixed compression only)"),
+    # measured characteristics and distortion (method sections 17 and 18): from the data where they decide
+    _q("angle_of_attack_deg", "Angle of attack", "deg", "The case's angle of attack at the point (picks the "
+       "characteristics-table curves; the model is at zero incidence)"),
+    _q("sideslip_deg", "Sideslip", "deg", "The case's sideslip angle at the point"),
+    _q("dc60", "Distortion DC(60)", "", "Face distortion coefficient DC(60) at the operating point, from the "
+       "characteristics table's distortion columns (method 18); not defined without them", judged_by="dc60"),
+    _q("surge_margin_loss", "Loss of surge margin", "", "Loss of surge pressure ratio from distortion, "
+       "sum of KC (dPC/P) + KR (dPR/P), from the characteristics table (method 18)"),
+    _q("remaining_surge_margin", "Remaining surge margin", "", "Available surge margin less the distortion loss "
+       "and the other stack-up items of the rating (method 18)", judged_by="surge-margin"),
     _q("worst_relative_margin", "Least relative margin (all limits)", "",
        "Least relative margin (margin over the limit's magnitude) over every check judged at the point; a failing "
        "check ranks first. Not defined (NaN / null) where nothing is judged: outside the atmosphere model "

@@ -54,6 +54,7 @@ from engine_air import CAUTION, __version__
 from engine_air.envelope.evaluate import WORST, MapResult, evaluate_project
 from engine_air.envelope.explain import finding_mechanism
 from engine_air.outputs.ledger_table import ledger_rows
+from engine_air.outputs.pack_characteristics import write_characteristics
 from engine_air.outputs.pack_folder import MANIFEST, PackFolderError, StagingFolder, check_pack_target
 from engine_air.outputs.pack_html import SECTION_IDS, SOURCES, banner_text, inlet_text, page
 from engine_air.outputs.pack_pictures import (PACK_QUANTITIES, Book, Steps, pack_quantities, section_targets,
@@ -83,10 +84,11 @@ class ReviewPack:
     manifest_path: str = ""
     pdf_path: str = ""
     quantities: tuple[str, ...] = ()  # the quantities mapped
+    characteristic_pictures: list[str] = field(default_factory=list)  # one per supersonic Mach of interest
 
     @property
     def all_pictures(self) -> list[str]:
-        return self.pictures + self.section_pictures
+        return self.pictures + self.section_pictures + self.characteristic_pictures
 
 
 def _slug(text: str, limit: int = SLUG_CHARS) -> str:
@@ -252,11 +254,15 @@ def _write(out: StagingFolder, project, text, source_name, notes, result, quanti
                                               steps)
     section_pictures, names, sections_html = write_sections(out, project, result, targets, cases, units, book, steps)
     written += names
+    characteristic_pictures, names, characteristics_html = write_characteristics(out, project, result, book, steps)
+    written += names
     steps.check()
     project_path = out.write("project.toml", text.encode("utf-8"))
+    written += _copy_table(out, project)
     pdf_path = out.write(PDF_NAME, book.close())
     index_path = out.write("index.html", page(project, result, worst, text=text, source_name=source_name,
                                               notes=notes, maps_html=maps_html, sections_html=sections_html,
+                                              characteristics_html=characteristics_html,
                                               units=units).encode("utf-8"))
     written += ["project.toml", PDF_NAME, "index.html"]
     missing = [r for r in written if r.endswith(".png") and not out.is_picture(r)]
@@ -269,7 +275,19 @@ def _write(out: StagingFolder, project, text, source_name, notes, result, quanti
     out.manifest(sorted(keep), complete=True)
     steps.tick(finished=True)
     return ReviewPack(folder, index_path, project_path, pictures, result.holds, result, notes, section_pictures,
-                      os.path.join(folder, MANIFEST), pdf_path, tuple(quantities))
+                      os.path.join(folder, MANIFEST), pdf_path, tuple(quantities), characteristic_pictures)
+
+
+def _copy_table(out, project) -> list[str]:
+    """The characteristics table beside the pack's project.toml, under the name the project gives it (a plain
+    file name only), so that the pack's project loads with its data."""
+    table = getattr(project.characteristics, "table", None)
+    name = project.characteristics_file
+    if table is None or name is None or "/" in name or "\\" in name or name.startswith("."):
+        return []
+    with open(table.path, "rb") as handle:
+        out.write(name, handle.read())
+    return [name]
 
 
 __all__ = ["MANIFEST", "PACK_QUANTITIES", "PDF_NAME", "SECTION_IDS", "SOURCES", "PackFolderError", "ReviewPack",

@@ -139,6 +139,8 @@ def check_value(r: Reader, f: Field, value: object, keypath: str):
         if too_low or too_high:
             r.fail(keypath, value, f"must be {f.allowed_text()}")
         return x
+    if k == "number or Mach table":
+        return _number_or_mach_table(r, f, value, keypath)
     if k == "number list":
         items = _sequence(r, f, value, keypath, "a list of numbers")
         out = tuple(_number(r, f, v, f"{keypath}[{i}]", f.key) for i, v in enumerate(items))
@@ -157,6 +159,27 @@ def check_value(r: Reader, f: Field, value: object, keypath: str):
     if k == "named numbers":
         return _named_numbers(r, f, value, keypath)
     raise AssertionError(f"unknown kind {k!r} of {f.path}")
+
+
+def _number_or_mach_table(r: Reader, f: Field, value: object, keypath: str):
+    """A number, or ``{ mach = [...], deg = [...] }`` (two lists, or the pair of tuples a Project holds)."""
+    if isinstance(value, tuple) and len(value) == 2 and all(isinstance(v, (list, tuple)) for v in value):
+        value = {"mach": list(value[0]), "deg": list(value[1])}
+    if not isinstance(value, dict):
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            r.fail(keypath, value, f"must be {f.allowed_text()}, not {kind_name(value)}")
+        return _number(r, f, value, keypath, f.key)
+    if set(value) != {"mach", "deg"}:
+        r.fail(keypath, value, f"must be {f.allowed_text()}; the table has the keys {', '.join(map(str, value))}")
+    machs = _sequence(r, f, value["mach"], f"{keypath}.mach", "a list of numbers")
+    degs = _sequence(r, f, value["deg"], f"{keypath}.deg", "a list of numbers")
+    mach_field = Field("mach", f.table, "number list", "", lo=0.0, hi=S.MAX_MACH, order="increasing")
+    m = tuple(_number(r, mach_field, v, f"{keypath}.mach[{i}]", "mach") for i, v in enumerate(machs))
+    d = tuple(_number(r, f, v, f"{keypath}.deg[{i}]", "deg") for i, v in enumerate(degs))
+    _ordered(r, mach_field, m, f"{keypath}.mach")
+    if len(m) < 2 or len(m) != len(d):
+        r.fail(keypath, value, f"must be {f.allowed_text()}")
+    return (m, d)
 
 
 def _named_numbers(r: Reader, f: Field, value: object, keypath: str) -> tuple[tuple[str, float], ...]:

@@ -124,4 +124,19 @@ def load_project(path: str | os.PathLike) -> Project:
         line = raw[: exc.start].count(b"\n") + 1
         raise ProjectError(p, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
                                               "cannot be decoded; save the file as UTF-8") from exc
-    return loads_project(text, p)
+    return with_characteristics(loads_project(text, p), p)
+
+
+def with_characteristics(project: Project, path: str | os.PathLike) -> Project:
+    """The project with its characteristics table read (``[characteristics] file``, relative to ``path``'s
+    folder); unchanged without one. ``ProjectError`` names the table file, row and column of a bad cell."""
+    if project.characteristics_file is None:
+        return project
+    import dataclasses
+
+    from engine_air.characteristics.curves import find_curves
+    from engine_air.characteristics.table import read_characteristics
+
+    folder = os.path.dirname(os.path.abspath(os.fspath(path)))
+    table_path = os.path.join(folder, project.characteristics_file)
+    return dataclasses.replace(project, characteristics=find_curves(read_characteristics(table_path)))

@@ -15,4 +15,5 @@ from engine_air.spec.project import (  # noqa: F401
     Rating,
     Schedule,
     Stability,
+    incidence_at,
 )

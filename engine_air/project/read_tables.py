@@ -196,7 +196,7 @@ def project_from_dict(data: dict, path: str | os.PathLike | None = None) -> Proj
     r = Reader(path)
     if not isinstance(data, dict):
         r.fail("(file)", data, f"must be a table of project tables, not {kind_name(data)}")
-    top = ("project", "limits", "inlet", "engine", "envelope", "grid", "case")
+    top = ("project", "limits", "inlet", "engine", "envelope", "grid", "case", "characteristics")
     for name in data:
         if name not in top:
             hint = S.suggestion(name, top)
@@ -214,8 +214,10 @@ def project_from_dict(data: dict, path: str | os.PathLike | None = None) -> Proj
     items = _table_array(r, data, "case", "case")
     case_count(r, len(items), grid)
     cases = _read_rows(r, items, "case", Case)
+    data_table = _read_plain(r, data, "characteristics", None, False)
     project = Project(limits=limits, inlet=inlet, ratings=ratings, envelope=envelope, grid=grid, cases=cases,
-                      title=meta["title"], notes=meta["notes"], format=meta["format"])
+                      title=meta["title"], notes=meta["notes"], format=meta["format"],
+                      characteristics_file=None if data_table is None else data_table["file"])
     project_rules(r, project)
     return dataclasses.replace(project, warnings=tuple(r.warnings))
 

@@ -50,6 +50,7 @@ def _allowed(f: Field) -> str:
 
 def _kind(f: Field) -> str:
     return {"number or name": "number or text", "choice": "text", "number table": "list of number lists",
+            "number or Mach table": "number or { mach, deg } table",
                    "named numbers": "table of numbers"}.get(
         f.kind, f.kind)
 

@@ -61,9 +61,20 @@ def project_to_dict(project: Project) -> dict:
         "engine": {"rating": [_rating_body(x) for x in project.ratings]},
         "envelope": _body(project.envelope, S.ENVELOPE_FIELDS),
         "grid": _body(project.grid, S.GRID_FIELDS, keep_defaults=True),  # the resolution is always shown
-        "case": [_body(c, S.CASE_FIELDS) for c in project.cases],
+        "case": [_incidence_tables(_body(c, S.CASE_FIELDS)) for c in project.cases],
     }
+    if project.characteristics_file is not None:
+        out["characteristics"] = {"file": project.characteristics_file}
     return out
+
+
+def _incidence_tables(body: dict) -> dict:
+    """An incidence held as (mach list, deg list) is written as the inline table { mach = [...], deg = [...] }."""
+    for key in ("angle_of_attack_deg", "sideslip_deg"):
+        value = body.get(key)
+        if isinstance(value, list):
+            body[key] = {"mach": value[0], "deg": value[1]}
+    return body
 
 
 def _rating_body(rating) -> dict:
@@ -105,7 +116,7 @@ def dumps_project(project: Project) -> str:
     def table(header: str, body: dict, inline_tables: bool = False) -> None:
         out.append(header)
         out.extend(f"{key} = {_toml_value(value)}" for key, value in body.items()
-                   if inline_tables or not isinstance(value, dict))
+                   if inline_tables or not isinstance(value, dict) or header == "[[case]]")
         out.append("")
 
     table("[project]", d["project"])
@@ -123,7 +134,22 @@ def dumps_project(project: Project) -> str:
     table("[grid]", d["grid"])
     for item in d["case"]:
         table("[[case]]", item)
+    if "characteristics" in d:
+        table("[characteristics]", d["characteristics"])
     return "\n".join(out)
+
+
+def table_path_from(project: Project, path: str | os.PathLike) -> Project:
+    """The project with its characteristics table named relative to ``path``'s folder (Save As to another
+    folder keeps pointing at the same table); unchanged when no table was read."""
+    table = getattr(project.characteristics, "table", None)
+    if project.characteristics_file is None or table is None:
+        return project
+    import dataclasses
+
+    folder = os.path.dirname(os.path.abspath(os.fspath(path)))
+    relative = os.path.relpath(os.path.abspath(table.path), folder).replace(os.sep, "/")
+    return dataclasses.replace(project, characteristics_file=relative)
 
 
 def save_project(project: Project, path: str | os.PathLike, overwrite_read_only: bool = False, *,
@@ -145,7 +171,7 @@ def save_project(project: Project, path: str | os.PathLike, overwrite_read_only:
     if not overwrite_read_only and is_read_only(path):
         raise ProjectSaveError(os.fspath(path), "the file is read-only; it was not replaced (save under another "
                                                 "name, or make the file writable first)", errno.EACCES)
-    data = dumps_project(project).encode("utf-8")
+    data = dumps_project(table_path_from(project, path)).encode("utf-8")
     try:
         write_bytes_atomic(path, data)
     except OSError as exc:

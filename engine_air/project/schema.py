@@ -103,6 +103,9 @@ TABLES: tuple[Table, ...] = (
           "automatically"),
     Table("grid", False, False, "the evaluation grid over the envelope's bounding box"),
     Table("case", True, True, "the cases evaluated: an engine rating at an ISA temperature offset"),
+    Table("characteristics", False, False,
+          "measured or computed inlet characteristics (wind tunnel, CFD) used over the model wherever they cover "
+          "a flight condition (method section 17)"),
 )
 TABLE_NAMES = tuple(t.name for t in TABLES)
 
@@ -300,6 +303,20 @@ CASE_FIELDS = (
     Field("altitude_range_m", "case", "number list",
           "[lowest, highest] geopotential altitude where the case is judged (bounds included); absent: everywhere",
           unit="m", lo=MIN_ALTITUDE_M, hi=MAX_ALTITUDE_M, length=(2, 2), order="non-decreasing", decimals=0),
+    Field("angle_of_attack_deg", "case", "number or Mach table",
+          "angle of attack of the inlet: a number, or { mach = [...], deg = [...] } linear in flight Mach (ends "
+          "held); picks the characteristics-table curves; the model itself is at zero incidence",
+          unit="deg", lo=-90.0, hi=90.0, decimals=1, step=1.0),
+    Field("sideslip_deg", "case", "number or Mach table",
+          "sideslip angle of the inlet: a number, or { mach = [...], deg = [...] } as angle_of_attack_deg",
+          unit="deg", lo=-90.0, hi=90.0, decimals=1, step=1.0),
+)
+
+CHARACTERISTICS_FIELDS = (
+    Field("file", "characteristics", "text",
+          "CSV or Parquet table of characteristics (columns mach, mass_flow_ratio, recovery; optional alpha_deg, "
+          "beta_deg, stable, additive_drag_coefficient, dc60, surge_margin_loss), relative to the project file",
+          length=(1, None), default=REQUIRED),
 )
 
 
@@ -381,6 +398,7 @@ def fields(table_name: str, inlet_type: str | None = None) -> tuple[Field, ...]:
         "envelope": ENVELOPE_FIELDS,
         "grid": GRID_FIELDS,
         "case": CASE_FIELDS,
+        "characteristics": CHARACTERISTICS_FIELDS,
     }[table_name]
 
 

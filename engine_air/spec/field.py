@@ -14,7 +14,7 @@ import math
 from dataclasses import dataclass
 
 KINDS = ("number", "integer", "text", "boolean", "number list", "number table", "number or name", "choice",
-         "named numbers")
+         "named numbers", "number or Mach table")
 
 
 @dataclass(frozen=True)
@@ -110,6 +110,10 @@ class Field:
         if k == "number or name":
             names = " or ".join(f'"{n}"' for n in self.names)
             return f"a finite number with {self.bounds_text()}, or the name {names}"
+        if k == "number or Mach table":
+            return (f"a finite number with {self.bounds_text()}, or a table {{ mach = [...], deg = [...] }} of at "
+                    "least 2 entries each, as many deg as mach, mach from 0 to 6 strictly increasing, each deg with "
+                    f"{self.bounds_text('deg')}")
         if k == "named numbers":
             return ("a table of name = number, e.g. { tolerances = 0.04 }, with " + self.bounds_text("each value")
                     + (f", at most {self.length[1]} names" if self.length and self.length[1] else ""))

@@ -131,6 +131,9 @@ class Case:
     isa_offset_K: float = 0.0
     mach_range: tuple[float, float] | None = None  # region where the case is judged (bounds included)
     altitude_range_m: tuple[float, float] | None = None
+    # incidence (method section 17): a number, or ((mach...), (deg...)) linear in M0, ends held; None: 0
+    angle_of_attack_deg: float | tuple[tuple[float, ...], tuple[float, ...]] | None = None
+    sideslip_deg: float | tuple[tuple[float, ...], tuple[float, ...]] | None = None
 
 
 @dataclass(frozen=True)
@@ -145,6 +148,8 @@ class Project:
     notes: str = ""
     format: int = 1
     warnings: tuple[str, ...] = field(default=(), compare=False)  # e.g. a limit no rating lets be checked
+    characteristics_file: str | None = None  # [characteristics] file, as written (relative to the project file)
+    characteristics: object = field(default=None, compare=False, repr=False)  # its curves, read at load time
 
     def rating(self, name: str) -> Rating:
         for r in self.ratings:
@@ -157,3 +162,19 @@ class Project:
             if c.name == name:
                 return c
         raise KeyError(name)
+
+
+def incidence_at(value, mach):
+    """An incidence key (number, Mach table or None) at flight Mach ``mach``, degrees (arrays broadcast).
+
+    >>> float(incidence_at(((0.2, 0.9), (8.0, 4.0)), 0.55))
+    6.0
+    """
+    import numpy as np
+
+    if value is None:
+        return np.zeros(np.shape(mach))
+    if isinstance(value, (int, float)):
+        return np.full(np.shape(mach), float(value))
+    machs, degs = value
+    return np.interp(mach, np.asarray(machs, float), np.asarray(degs, float))
