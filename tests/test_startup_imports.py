@@ -47,6 +47,8 @@ def test_check_command_imports_nothing_heavy():
         "with contextlib.redirect_stdout(io.StringIO()):\n"
         f"    main(['check', {str(PITOT)!r}])")
     assert _heavy(mods) == []
+    others = ("maps", "point", "characteristic", "calibrate", "size", "compare", "sweep", "pack", "distortion")
+    assert not [m for m in others if f"engine_air.cli.{m}" in mods]  # only the named command's module
 
 
 def test_registry_imports_a_type_module_when_asked():
