@@ -4,7 +4,8 @@
   "Characteristic", "Edit project"), each with the column's full height (they no longer share it three ways). Any tab can be
   pulled out as its own window (the float button in its title bar, or a double click on the title) for a larger
   view on demand, and put back the same way. View → "Show …" (Alt+1…5) raises a tab.
-- Width: the column is as wide as the shown tab needs (the point's tables, the editors' tables), between
+- Width: the column is as wide as the shown tab needs (the point's tables, the editors' tables) and its tab
+  titles need (never elided), between
   ``COLUMN_MIN_SHARE`` and ``COLUMN_MAX_SHARE`` of the window's width (``EDITOR_MAX_SHARE`` while editing in
   a large window), so the map keeps the rest.
 - Bottom: the findings across the whole width (their seven columns need it), as high as their rows up to
@@ -27,7 +28,7 @@
 from __future__ import annotations
 
 from PySide6.QtCore import Qt, QTimer
-from PySide6.QtWidgets import QDockWidget, QFrame, QScrollArea, QTabWidget, QWidget
+from PySide6.QtWidgets import QDockWidget, QFrame, QScrollArea, QTabBar, QTabWidget, QWidget
 
 from ..views.characteristic_view import CharacteristicView
 from ..views.detail_panel import DetailPanel
@@ -148,11 +149,18 @@ class WindowLayout:
             want = max(int(COLUMN_MIN_SHARE * w), min(self.detail.needed_width() + chrome, int(COLUMN_MAX_SHARE * w)))
         else:  # the inlet, the sections: their share, or the least width their drawing lays out in
             want = max(int(PLOT_SHARE * w), min(self._plot_minimum_width(shown), int(EDITOR_MAX_SHARE * w)))
+        want = max(want, min(self._tab_titles_width(), int(EDITOR_MAX_SHARE * w)))  # every tab title whole
         dock = self.view_docks[shown]
         if grow_only and dock.width() >= want:
             return
         if abs(dock.width() - want) > 2:
             self.resizeDocks([dock], [want], Qt.Horizontal)
+
+    def _tab_titles_width(self) -> int:
+        """The width the right column's tab bar needs to show every title whole (0 without tabs)."""
+        bars = [b for b in self.findChildren(QTabBar, options=Qt.FindDirectChildrenOnly)
+                if b.isVisible() and b.count() > 1]
+        return max((sum(b.tabSizeHint(k).width() for k in range(b.count())) + 4 for b in bars), default=0)
 
     def _plot_minimum_width(self, name: str) -> int:
         """The least width of the pyqtgraph scene shown in tab ``name`` (its axes, legend and plot), plus the
