@@ -1,0 +1,252 @@
+"""Sweeps, comparisons, sizing and the review pack of a project with a characteristics table (method §17).
+
+A project's table is read at load time into ``Project.characteristics``; the project file only names it. Every
+study that rebuilds or ships the project (the sweep's workers get its TOML text) must keep the data attached, so
+that each variant is evaluated on the data where they cover, exactly as the single-map evaluation of that variant.
+
+References: the single-map evaluation of each variant (``evaluate_project``, itself tested against the data by
+hand in tests/test_data_over_model.py); the §17 interpolation done by hand on the table's own rows at a tested
+Mach number (a curve is piecewise linear in MFR below its critical point, method §17); continuity
+MFR = W/(ρ0·V0·A_c) (method §5); the model alone (``characteristics`` removed) where the data do not cover.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import pathlib
+import shutil
+
+import numpy as np
+import pytest
+
+from engine_air import evaluate_conditions
+from engine_air.cli import main
+from engine_air.envelope.evaluate import WORST, evaluate_project
+from engine_air.envelope.worst import worst_point
+from engine_air.flow import flags as F
+from engine_air.project import dumps_project, load_project
+from engine_air.project.model import Grid
+from engine_air.studies.compare import compare_projects
+from engine_air.studies.sizing import with_design_values, worst_margin
+from engine_air.studies.sweep import run_chunk, sweep
+
+SAMPLES = pathlib.Path(__file__).resolve().parents[1] / "sample_projects"
+DATA = SAMPLES / "tunnel_data" / "two_ramp_with_tunnel_data.toml"
+MODEL = SAMPLES / "supersonic_two_ramp.toml"
+VARY = {"capture_area_m2": [0.50, 0.55, 0.60], "duct_loss_coefficient": [0.02, 0.06]}
+
+
+@pytest.fixture(scope="module")
+def small():
+    """The data sample on a coarse grid (sweeps stay fast); its table read at load time."""
+    p = load_project(DATA)
+    assert p.characteristics is not None
+    return dataclasses.replace(p, grid=Grid(mach_points=25, altitude_points=21))
+
+
+def rows_repr(result):
+    return [repr(r) for r in result.rows]  # NaN-safe exact comparison of every field
+
+
+def _from_data(result) -> int:
+    return sum(int(np.count_nonzero((np.asarray(cm.points.flags) & F.FROM_DATA) != 0)) for cm in result.cases)
+
+
+def _branch(project, mach):
+    """The tested curve at ``mach`` (zero incidence) by hand from the table's rows: its subcritical branch closed
+    by the critical point (largest MFR; the highest recovery within 0.5 % of it), method §17."""
+    t = project.characteristics.table
+    sel = (t.column("mach") == mach) & (t.column("alpha_deg") == 0.0)
+    x, y = t.column("mass_flow_ratio")[sel], t.column("recovery")[sel]
+    crit = x.max()
+    band = x >= 0.995 * crit
+    bx, by = np.append(x[~band], crit), np.append(y[~band], y[band].max())
+    order = np.argsort(bx)
+    return bx[order], by[order], crit
+
+
+def test_sweep_of_a_data_project_equals_each_variant_evaluated_directly(small):
+    r = sweep(small, VARY, workers=1)
+    assert r.mode == "in-process" and r.shape == (3, 2)
+    margins_model = []
+    for row in r.rows:
+        variant = with_design_values(small, dict(zip(r.variables, row.values)))
+        assert variant.characteristics is small.characteristics  # an edit keeps the data attached
+        direct = evaluate_project(variant)
+        assert _from_data(direct) > 0
+        w = worst_point(direct)
+        assert row.verdict == ("holds" if direct.holds else "fails")
+        assert row.worst_relative_margin == w.relative_margin
+        assert (row.worst_check, row.worst_case, row.worst_mach, row.worst_altitude_m) == \
+            (w.check, w.case, w.mach, w.altitude_m)
+        assert set(row.failing_limits) == {s.name for s in direct.summary if s.fails}
+        margins_model.append(worst_point(evaluate_project(dataclasses.replace(variant, characteristics=None)))
+                             .relative_margin)
+    # the data matter here: the model alone gives other margins, so the rows above did use the table
+    assert any(m != row.worst_relative_margin for m, row in zip(margins_model, r.rows))
+
+
+def test_a_swept_capture_area_moves_the_operating_point_along_the_tested_curve(small):
+    """At Mach 1.7 (a tested curve) every capture area's point lies on the table's branch by hand (§17) and obeys
+    continuity (§5); a larger capture area asks a smaller MFR of the same curve."""
+    case = small.cases[0]
+    x, y, crit = _branch(small, 1.7)
+    mfrs = []
+    for area in VARY["capture_area_m2"]:
+        variant = with_design_values(small, {"capture_area_m2": area})
+        p = evaluate_conditions(variant, case, np.array([1.7]), np.array([11000.0]))
+        assert F.has(p.flags, F.FROM_DATA)[0]
+        mfr, rec = float(p.mass_flow_ratio[0]), float(p.recovery[0])
+        if mfr < 0.995 * crit:
+            assert rec == pytest.approx(np.interp(mfr, x, y), abs=1e-9)
+        else:
+            assert mfr == pytest.approx(crit)
+        capture_flow = float(p.density_kg_m3[0] * p.velocity_m_s[0]) * area
+        assert mfr == pytest.approx(float(p.mass_flow_kg_s[0]) / capture_flow, rel=1e-9)
+        mfrs.append(mfr)
+    assert mfrs[0] > mfrs[1] > mfrs[2]
+
+
+def test_a_chunk_rebuilt_from_toml_text_gets_the_data_back(small):
+    """The text names the table only; the worker gets the curves beside it (without them: the model alone)."""
+    text = dumps_project(small)
+    chunk = [((0,), (0.55,))]
+    cruise = (1.7, 11000.0, small.cases[0].name)  # on a tested curve: the data decide the spillage there
+    with_data = run_chunk(text, ("capture_area_m2",), chunk, cruise, characteristics=small.characteristics)[0]
+    without = run_chunk(text, ("capture_area_m2",), chunk, cruise)[0]
+    model_project = dataclasses.replace(small, characteristics=None)
+    for row, project in ((with_data, small), (without, model_project)):
+        assert row.worst_relative_margin == worst_point(evaluate_project(project)).relative_margin
+        point = evaluate_conditions(project, small.cases[0], np.array([1.7]), np.array([11000.0]))
+        assert row.cruise_spillage_fraction == float(point.spillage_fraction[0])
+    assert with_data.cruise_spillage_fraction != without.cruise_spillage_fraction
+
+
+CRUISE = (1.7, 11000.0, None)  # on a tested curve (first case, zero incidence): the data decide the spillage
+
+
+def _check_cruise_from_data(small, result):
+    """Each row's cruise spillage is the variant's own point on the data (and not the model's)."""
+    for row in result.rows:
+        variant = with_design_values(small, dict(zip(result.variables, row.values)))
+        m, h = np.array([CRUISE[0]]), np.array([CRUISE[1]])
+        point = evaluate_conditions(variant, variant.cases[0], m, h)
+        assert F.has(point.flags, F.FROM_DATA)[0]
+        assert row.cruise_spillage_fraction == float(point.spillage_fraction[0])
+
+
+def test_local_processes_carry_the_data(small):
+    one = sweep(small, {"capture_area_m2": VARY["capture_area_m2"]}, workers=1, cruise=CRUISE)
+    many = sweep(small, {"capture_area_m2": VARY["capture_area_m2"]}, workers=2, chunk_size=1, cruise=CRUISE)
+    assert many.mode == "local" and rows_repr(many) == rows_repr(one)
+    _check_cruise_from_data(small, many)
+
+
+def test_dask_workers_carry_the_data(small):
+    distributed = pytest.importorskip("distributed")
+    v = {"capture_area_m2": VARY["capture_area_m2"][:2]}
+    local = sweep(small, v, workers=1, cruise=CRUISE)
+    cluster = distributed.LocalCluster(n_workers=1, threads_per_worker=1, host="127.0.0.1", dashboard_address=None,
+                                       processes=True)
+    try:
+        remote = sweep(small, v, scheduler=cluster.scheduler_address, chunk_size=1, cruise=CRUISE)
+    finally:
+        cluster.close()
+    assert remote.mode == "dask" and rows_repr(remote) == rows_repr(local)
+    _check_cruise_from_data(small, remote)
+
+
+def test_sizing_judges_the_data(small):
+    """Sizing edits the project in place of a file: the stability check (the table's own buzz limit, §17) is
+    judged on the data, as in the project's own map, and not on the model's stable_flow_fraction."""
+    from engine_air.studies.sizing.limit_choice import judged_by
+
+    w = worst_margin(small, "capture_area_m2", 0.55, limits=("stability",))
+    direct = worst_point(judged_by(evaluate_project(small), ("stability",)))
+    assert (w.relative_margin, w.mach, w.altitude_m, w.case) == \
+        (direct.relative_margin, direct.mach, direct.altitude_m, direct.case)
+    model = worst_margin(dataclasses.replace(small, characteristics=None), "capture_area_m2", 0.55,
+                         limits=("stability",))
+    assert model.relative_margin != w.relative_margin
+
+
+def test_compare_with_the_model_sample_differs_only_where_the_data_decide():
+    """Same inlet, same engine demand, same zero-incidence cases: outside the data region B's model equals A's
+    exactly; inside it the table's recovery differs from the model's."""
+    a, b = load_project(MODEL), load_project(DATA)
+    assert a.inlet == b.inlet and a.characteristics is None and b.characteristics is not None
+    c = compare_projects(a, b)
+    assert c.has_data
+    for case in c.cases[:-1]:  # the shared cases (WORST mixes B's incidence case in)
+        region = c.data_region(case)
+        assert region.any() and not (region & ~c.judged_both(case)).any()
+        outside = c.judged_both(case) & ~region
+        for key in ("recovery", "mass_flow_ratio"):
+            d = c.difference(case, key)
+            assert np.all(d[outside & np.isfinite(d)] == 0.0)
+        s = c.data_stat(case, "recovery")
+        d = c.difference(case, "recovery")
+        assert s.points == int(np.count_nonzero(region & np.isfinite(d))) and s.max_abs > 0.0
+        assert s.max_abs == float(np.nanmax(np.abs(d)))
+        # the largest difference sits at a point where B is from data, and equals B's point less A's point there
+        i = int(np.flatnonzero(c.altitude_m == s.max_abs_altitude_m)[0])
+        j = int(np.flatnonzero(c.mach == s.max_abs_mach)[0])
+        assert region[i, j]
+        m, h = np.array([c.mach[j]]), np.array([c.altitude_m[i]])
+        pb = evaluate_conditions(b, b.case(case), m, h)
+        pa = evaluate_conditions(a, a.case(case), m, h)
+        assert F.has(pb.flags, F.FROM_DATA)[0] and not F.has(pa.flags, F.FROM_DATA)[0]
+        assert abs(float(pb.recovery[0] - pa.recovery[0])) == pytest.approx(s.max_abs, abs=1e-12)
+    same = compare_projects(b, b)
+    assert same.identical and same.data_stat(WORST, "recovery").max_abs == 0.0
+
+
+def test_compare_and_sweep_commands_on_the_data_sample(tmp_path, capsys):
+    code = main(["compare", str(MODEL), str(DATA)])
+    text, err = capsys.readouterr()
+    assert code in (0, 1) and "Traceback" not in err
+    assert "characteristics tables: A none, B tunnel_characteristics.csv" in text
+    assert "from-data points" in text
+    folder = tmp_path / "elsewhere"
+    folder.mkdir()
+    small = dataclasses.replace(load_project(DATA), grid=Grid(mach_points=21, altitude_points=17))
+    from engine_air.project import save_project
+
+    save_project(small, folder / "data.toml")  # the table named relative to the new folder
+    out_csv = tmp_path / "sweep.csv"
+    code = main(["sweep", str(folder / "data.toml"), "--vary", "capture_area_m2=0.5:0.6:2", "--workers", "1",
+                 "--csv", str(out_csv)])
+    text, err = capsys.readouterr()
+    assert code in (0, 1) and "Traceback" not in err
+    import csv
+
+    rows = list(csv.DictReader(out_csv.open()))
+    reloaded = load_project(folder / "data.toml")
+    assert reloaded.characteristics is not None
+    for row in rows:
+        direct = worst_point(evaluate_project(with_design_values(reloaded, {"capture_area_m2":
+                                                                            float(row["capture_area_m2"])})))
+        assert math.isclose(float(row["worst_relative_margin"]), direct.relative_margin, rel_tol=1e-12)
+
+
+def test_review_pack_of_a_data_project_reloads_with_its_data(tmp_path):
+    """The pack's project.toml loads with the copied table and reproduces the verdict; a project in memory with
+    its file's text gives the same pack."""
+    from engine_air.outputs.review_pack import write_review_pack
+
+    src = tmp_path / "src"
+    src.mkdir()
+    shutil.copy(DATA.parent / "tunnel_characteristics.csv", src / "tunnel_characteristics.csv")
+    p = dataclasses.replace(load_project(DATA), grid=Grid(mach_points=21, altitude_points=17))
+    (src / "data.toml").write_text(dumps_project(p), encoding="utf-8")
+    pack = write_review_pack(src / "data.toml", tmp_path / "pack", quantities=("recovery",))
+    again = load_project(pack.project_path)
+    assert again.characteristics is not None
+    result = evaluate_project(again)
+    assert _from_data(result) > 0 and result.holds == pack.holds
+    assert worst_point(result).relative_margin == worst_point(pack.result).relative_margin
+    memory = write_review_pack(load_project(src / "data.toml"), tmp_path / "pack2", quantities=("recovery",),
+                               source_text=(src / "data.toml").read_text(encoding="utf-8"))
+    assert not memory.notes and memory.holds == pack.holds
+    assert worst_point(memory.result).relative_margin == worst_point(pack.result).relative_margin
