@@ -250,3 +250,71 @@ def test_review_pack_of_a_data_project_reloads_with_its_data(tmp_path):
                                source_text=(src / "data.toml").read_text(encoding="utf-8"))
     assert not memory.notes and memory.holds == pack.holds
     assert worst_point(memory.result).relative_margin == worst_point(pack.result).relative_margin
+
+
+# -- the data path made fast keeps its answers (bench/bench_characteristics.py times it) ---------------------------
+
+def test_location_agrees_with_scipy_linear_interpolation():
+    """Barycentric weights on the curves' Delaunay triangulation in (Mach, alpha): the critical MFR blended by them
+    equals scipy's LinearNDInterpolator on the same nodes (NaN outside the hull), at random conditions."""
+    from scipy.interpolate import LinearNDInterpolator
+
+    from engine_air.characteristics.interpolate import locate
+
+    curves = load_project(DATA).characteristics
+    rng = np.random.default_rng(7)
+    m, a = rng.uniform(0.4, 2.3, 4000), rng.uniform(-0.5, 4.5, 4000)
+    at = locate(curves, m, a)
+    reference = LinearNDInterpolator(np.stack([curves.mach, curves.alpha_deg], 1), curves.critical_mass_flow_ratio)
+    expected = reference(m, a)
+    assert np.array_equal(np.isnan(expected), ~at.covered)
+    assert np.allclose(at.critical_mass_flow_ratio[at.covered], expected[at.covered], rtol=0, atol=1e-12)
+    # the same conditions as one row per Mach column of a map give the same weights
+    column = locate(curves, m[None, :200], a[None, :200])
+    assert np.array_equal(column.critical_mass_flow_ratio[0], at.critical_mass_flow_ratio[:200], equal_nan=True)
+
+
+def test_a_condition_on_a_tested_curve_uses_that_curve_alone():
+    """At (Mach 1.5, alpha 4), a tested curve, and one rounding step away from it, the stability limit is that
+    curve's own: the smallest MFR of its stable rows (it has unstable rows), by hand from the table (§17)."""
+    from engine_air.characteristics.interpolate import locate
+
+    p = load_project(DATA)
+    t = p.characteristics.table
+    sel = (t.column("mach") == 1.5) & (t.column("alpha_deg") == 4.0)
+    stable = t.column("stable")[sel]
+    assert (stable == 0).any() and (stable == 1).any()
+    own = t.column("mass_flow_ratio")[sel][stable == 1].min()
+    at = locate(p.characteristics, np.array([1.5, np.nextafter(1.5, 2.0), np.nextafter(1.5, 1.0)]), 4.0)
+    assert at.covered.all() and np.all(at.stability_limit == own)
+
+
+def test_root_on_a_map_equals_a_scalar_root():
+    """The match on data over a map-shaped demand (one located condition per Mach column) equals, point by point,
+    scipy's brentq on g(f) = f MFR_crit - c pi(f) with pi the tested curve's branch by hand (§17)."""
+    from scipy.optimize import brentq
+
+    from engine_air.characteristics.interpolate import locate
+    from engine_air.characteristics.root import match_on_data
+
+    p = load_project(DATA)
+    machs = (1.3, 1.7, 2.1)
+    at = locate(p.characteristics, np.array([machs]))
+    c = np.linspace(0.55, 1.1, 60)[:, None] * np.ones((1, 3))
+    op = match_on_data(at, c)
+    checked = 0
+    for j, mach in enumerate(machs):
+        x, y, crit = _branch(p, mach)
+        f_nodes, lowest = x / crit, x.min() / crit
+        for i in range(c.shape[0]):
+            g = lambda f: f * crit - c[i, j] * np.interp(f, f_nodes, y)  # noqa: E731
+            if g(1.0) <= 0.0:  # supercritical: MFR held at MFR_crit, pi = MFR_crit / c (§6)
+                assert op.supercritical[i, j] and op.recovery[i, j] == pytest.approx(crit / c[i, j], rel=1e-12)
+            elif g(lowest) > 0.0:  # below the smallest tested flow: the model stands
+                assert not op.covered[i, j]
+            else:
+                f = brentq(g, lowest, 1.0, xtol=1e-15, rtol=1e-15)
+                assert op.fraction[i, j] == pytest.approx(f, abs=1e-12)
+                assert op.recovery[i, j] == pytest.approx(np.interp(f, f_nodes, y), abs=1e-12)
+                checked += 1
+    assert checked > 60
