@@ -231,24 +231,33 @@ def test_compare_and_sweep_commands_on_the_data_sample(tmp_path, capsys):
 
 
 def test_review_pack_of_a_data_project_reloads_with_its_data(tmp_path):
-    """The pack's project.toml loads with the copied table and reproduces the verdict; a project in memory with
-    its file's text gives the same pack."""
+    """The pack's project.toml loads with the copied table (kept in its folder) and reproduces the verdict; a
+    project in memory with its file's text, whose table lies outside its folder, gives the same verdict and says
+    that the pack holds no copy of the table."""
     from engine_air.outputs.review_pack import write_review_pack
+    from engine_air.project.load import with_characteristics
 
-    src = tmp_path / "src"
-    src.mkdir()
-    shutil.copy(DATA.parent / "tunnel_characteristics.csv", src / "tunnel_characteristics.csv")
+    src, tables = tmp_path / "src", tmp_path / "tables"
+    (src / "data").mkdir(parents=True)
+    tables.mkdir()
+    shutil.copy(DATA.parent / "tunnel_characteristics.csv", src / "data" / "tunnel_characteristics.csv")
+    shutil.copy(DATA.parent / "tunnel_characteristics.csv", tables / "tunnel_characteristics.csv")
     p = dataclasses.replace(load_project(DATA), grid=Grid(mach_points=21, altitude_points=17))
-    (src / "data.toml").write_text(dumps_project(p), encoding="utf-8")
-    pack = write_review_pack(src / "data.toml", tmp_path / "pack", quantities=("recovery",))
+    inside = src / "data.toml"
+    inside.write_text(dumps_project(dataclasses.replace(p, characteristics_file="data/tunnel_characteristics.csv")),
+                      encoding="utf-8")
+    pack = write_review_pack(inside, tmp_path / "pack", quantities=("recovery",))
+    assert (tmp_path / "pack" / "data" / "tunnel_characteristics.csv").is_file() and not pack.notes
     again = load_project(pack.project_path)
     assert again.characteristics is not None
     result = evaluate_project(again)
     assert _from_data(result) > 0 and result.holds == pack.holds
     assert worst_point(result).relative_margin == worst_point(pack.result).relative_margin
-    memory = write_review_pack(load_project(src / "data.toml"), tmp_path / "pack2", quantities=("recovery",),
-                               source_text=(src / "data.toml").read_text(encoding="utf-8"))
-    assert not memory.notes and memory.holds == pack.holds
+    far = dataclasses.replace(load_project(inside), characteristics_file="../tables/tunnel_characteristics.csv")
+    far = with_characteristics(far, inside)  # the table outside the project's folder
+    memory = write_review_pack(far, tmp_path / "pack2", quantities=("recovery",), source_text=dumps_project(far))
+    assert len(memory.notes) == 1 and "no copy" in memory.notes[0]
+    assert memory.holds == pack.holds
     assert worst_point(memory.result).relative_margin == worst_point(pack.result).relative_margin
 
 
