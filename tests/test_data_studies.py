@@ -327,3 +327,30 @@ def test_root_on_a_map_equals_a_scalar_root():
                 assert op.recovery[i, j] == pytest.approx(np.interp(f, f_nodes, y), abs=1e-12)
                 checked += 1
     assert checked > 60
+
+
+def test_unsaved_work_on_a_data_project_is_recovered_with_its_table(tmp_path, monkeypatch):
+    """The program's recovery copy lives in another folder than the project: it names the table relative to
+    itself, so the recovered project has its data again (and evaluates as the original)."""
+    pytest.importorskip("PySide6")
+    from app import recovery
+    from app.recovery.slot import Slot
+
+    folder = tmp_path / "recovery"
+    folder.mkdir()
+    monkeypatch.setenv(recovery.ENV_DIR, str(folder))
+    p = dataclasses.replace(load_project(DATA), grid=Grid(mach_points=21, altitude_points=17))
+    slot = Slot(folder, "20240101-000000-1-deadbeef")
+    slot.write(p, DATA)
+    slot.release()
+    found = recovery.find_recovered(folder)
+    try:
+        assert len(found) == 1
+        again = found[0].load()
+    finally:
+        for entry in found:
+            entry.release()
+    assert again.characteristics is not None and again == dataclasses.replace(
+        p, characteristics_file=again.characteristics_file)
+    assert pathlib.Path(again.characteristics.table.path).resolve() == (DATA.parent / "tunnel_characteristics.csv")
+    assert worst_point(evaluate_project(again)).relative_margin == worst_point(evaluate_project(p)).relative_margin
