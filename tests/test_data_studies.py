@@ -354,3 +354,37 @@ def test_unsaved_work_on_a_data_project_is_recovered_with_its_table(tmp_path, mo
         p, characteristics_file=again.characteristics_file)
     assert pathlib.Path(again.characteristics.table.path).resolve() == (DATA.parent / "tunnel_characteristics.csv")
     assert worst_point(evaluate_project(again)).relative_margin == worst_point(evaluate_project(p)).relative_margin
+
+
+def test_compare_and_sweep_dialogs_with_a_data_project(qtbot, tmp_path):
+    """In the program: the compare dialog states the differences where the table decides; the sweep dialog's rows
+    are the variants matched on the data (the same rows as the sweep itself, which the tests above check)."""
+    pytest.importorskip("pytestqt")
+    from app.dialogs import CompareDialog, SweepDialog
+
+    p = dataclasses.replace(load_project(DATA), grid=Grid(mach_points=31, altitude_points=26))
+    d = CompareDialog(p, MODEL)
+    qtbot.addWidget(d)
+    d.show()
+    d.start()
+    qtbot.waitUntil(lambda: not d.running, timeout=30000)
+    assert d.result is not None and d.result.has_data
+    assert "characteristics table decides" in d.stats.text()
+    assert d.stats.height() >= 3 * d.stats.fontMetrics().lineSpacing()
+    assert d.grab().save(str(tmp_path / "compare_data.png"))
+    s = SweepDialog(p)
+    qtbot.addWidget(s)
+    s.show()
+    (u1, c1, lo1, hi1, n1), (u2, *_rest) = s.rows[0], s.rows[1]
+    c1.setCurrentIndex(c1.findData("capture_area_m2"))
+    lo1.setValue(0.50)
+    hi1.setValue(0.60)
+    n1.setValue(3)
+    u2.setChecked(False)
+    s.workers.setValue(1)
+    s.start()
+    qtbot.waitUntil(lambda: not s.running, timeout=30000)
+    assert s.last_error == "", s.last_error
+    expected = sweep(p, {"capture_area_m2": [0.50, 0.55, 0.60]}, workers=1)
+    assert [r.worst_relative_margin for r in s.result.rows] == pytest.approx(
+        [r.worst_relative_margin for r in expected.rows], rel=1e-12)
