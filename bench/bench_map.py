@@ -46,12 +46,9 @@ TYPE_RATIO_GOAL = 3.0
 
 def clear_caches():
     """Empty the per-Mach-column caches of the shock systems (conical flow), for a cold timing."""
-    from engine_air.inlets import axisymmetric_spike
     from engine_air.physics import conical
 
     conical.clear_cache()
-    axisymmetric_spike._column.cache_clear()
-    axisymmetric_spike._detached_values.cache_clear()
 
 
 def main(argv=None):

@@ -28,6 +28,7 @@ DOCUMENTED = [
     "engine_air.physics.starting",
     "engine_air.inlets.mixed_compression",
     "engine_air.physics.conical",
+    "engine_air.physics.taylor_maccoll",
     "engine_air.physics.detached_shock",
 ]
 

@@ -16,14 +16,12 @@ spelling Python reads as a number (``--altitude-m -1000``, ``--lower -1e3``,
 from __future__ import annotations
 
 import argparse
+import importlib
 import sys
 
 from engine_air import __version__
-from engine_air.cli import calibrate, characteristic, check, compare, distortion, maps, pack, point, size, sweep
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, EXIT_NOT_JUDGED, EXIT_UNUSABLE, UsageError, err,
                                    quiet_stdout)
-from engine_air.cli.maps import write_map_csv
-from engine_air.cli.size import SIZE_OBJECTIVES
 from engine_air.outputs.safe_text import safe_path, safe_text
 from engine_air.project.errors import ProjectError
 
@@ -40,7 +38,14 @@ class _Parser(argparse.ArgumentParser):
         sys.exit(EXIT_UNUSABLE)
 
 
-def _parser() -> argparse.ArgumentParser:
+COMMANDS = {"check": "check", "map": "maps", "point": "point", "characteristic": "characteristic",
+            "calibrate": "calibrate", "size": "size", "compare": "compare", "sweep": "sweep", "pack": "pack",
+            "distortion": "distortion"}
+"""Each command and the module (in ``engine_air.cli``) that defines it."""
+
+
+def _parser(argv=None) -> argparse.ArgumentParser:
+    """The parser; with ``argv`` naming a command first, only that command's module is imported (start-up time)."""
     p = _Parser(
         prog="engine-air",
         description="Inlet operability over the flight envelope: face Mach, recovery, spillage, throat choking.",
@@ -48,9 +53,19 @@ def _parser() -> argparse.ArgumentParser:
     )
     p.add_argument("--version", action="version", version=f"engine-air {__version__}")
     sub = p.add_subparsers(dest="command", required=True)
-    for module in (check, maps, point, characteristic, calibrate, size, compare, sweep, pack, distortion):
-        module.add_parser(sub)
+    first = next((a for a in argv or () if not a.startswith("-")), None)
+    names = [first] if first in COMMANDS else list(COMMANDS)
+    for name in names:
+        importlib.import_module(f"engine_air.cli.{COMMANDS[name]}").add_parser(sub)
     return p
+
+
+def __getattr__(name: str):
+    """Names kept importable from here, imported with their command's module on first use."""
+    home = {"write_map_csv": "maps", "SIZE_OBJECTIVES": "size"}.get(name)
+    if home is None:
+        raise AttributeError(f"module 'engine_air.cli.commands' has no attribute {name!r}")
+    return getattr(importlib.import_module(f"engine_air.cli.{home}"), name)
 
 
 def _value_options(parser: argparse.ArgumentParser) -> set[str]:
@@ -97,9 +112,9 @@ def join_negative_values(argv: list[str], options: set[str]) -> list[str]:
 
 
 def main(argv=None) -> int:
-    parser = _parser()
     argv = list(sys.argv[1:] if argv is None else argv)
     argv = [a if isinstance(a, str) else safe_path(a) for a in argv]
+    parser = _parser(argv)
     try:
         args = parser.parse_args(join_negative_values(argv, _value_options(parser)))
     except SystemExit as exc:  # argparse's own usage message (exit 2) or --help/--version (exit 0)

@@ -134,7 +134,7 @@ def warn(project) -> None:
 
 
 def load(path, option: str = "project"):
-    from engine_air.project.toml_file import load_project
+    from engine_air.project.load import load_project
 
     check_input_path(path, option)
     project = load_project(path)

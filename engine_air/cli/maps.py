@@ -30,7 +30,7 @@ def write_map_csv(result, path) -> int:
 def run(args) -> int:
     from engine_air.envelope.evaluate import evaluate_project
     from engine_air.outputs.quantities import QUANTITIES
-    from engine_air.outputs.table import point_table, write_table
+    from engine_air.outputs.table import write_point_table
 
     if not (args.csv or args.parquet or args.png):
         raise UsageError("map: give at least one of --csv FILE, --parquet FILE, --png FILE")
@@ -47,12 +47,11 @@ def run(args) -> int:
     recheck_outputs(targets, inputs)
     result = evaluate_project(project, cases(project, args.case))
     if args.csv or args.parquet:
-        table = point_table(result)
-        for opt, fmt, p in (("--csv", "csv", args.csv), ("--parquet", "parquet", args.parquet)):
+        for fmt, p in (("csv", args.csv), ("parquet", args.parquet)):
             if not p:
                 continue
             try:
-                rows = write_table(table, p, fmt, inputs)
+                rows = write_point_table(result, p, fmt, inputs)  # CSV batch by batch, never the whole table
             except OSError as exc:
                 raise write_error(p, f"{fmt.upper() if fmt == 'csv' else 'Parquet'} file", exc) from None
             out(f"wrote {rows} rows to {path_text(p)}")

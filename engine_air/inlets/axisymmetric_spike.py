@@ -33,15 +33,10 @@ has beta about 37.8 deg and a surface Mach number about 1.57; with M_d = 2 its M
 from __future__ import annotations
 
 import math
-from functools import lru_cache
-
 import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import SHOCK_ON_LIP_MACH
-from engine_air.inlets.ramp_layout import terminal_spill_drag
-from engine_air.physics.conical import cone_solution, detachment_mach, solve_columns
-from engine_air.physics.detached_shock import detached_cone_capture_blend
 from engine_air.physics.shocks import normal_shock, oblique_shock
 from engine_air.spec.project import Inlet
 from engine_air.spec.field import REQUIRED, Field
@@ -69,6 +64,8 @@ def spike_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
         return [(key, cones, "the second cone must be steeper than the first (it turns the flow further)")]
     if md is None:
         return [("inlet.shock_on_lip_mach", None, "required for an axisymmetric-spike inlet")]
+    from engine_air.physics.conical import cone_solution, detachment_mach  # the conical solver only where used
+
     first = cone_solution(md, cones[0])
     if first is None:
         return [(key, cones, f"the first cone's shock must stay attached at inlet.shock_on_lip_mach = {md:g}: "
@@ -85,35 +82,27 @@ def spike_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
     return []
 
 
-@lru_cache(maxsize=256)
-def _detached_values(cone: float, design_mach: float) -> tuple[float, float, float]:
-    """(detachment Mach, MFR_max and pressure integral just attached) of the first cone, for the blend."""
+def first_cone_columns(flight_mach, cone: float, design_mach: float) -> np.ndarray:
+    """The first cone at flight Mach columns ``flight_mach`` (1-D, supersonic), all solved together
+    (``engine_air.physics.conical.cone_columns``, cached per column): rows wave angle (rad), surface Mach,
+    p_t ratio, p_c/p0, MFR_max and the pressure integral; the first four NaN where the cone's shock is detached,
+    where capture and integral are carried linearly in M0 from just attached (1e-7 above the detachment Mach
+    number) to their normal-shock values at M0 = 1."""
+    from engine_air.physics.conical import cone_columns, detachment_mach
+    from engine_air.physics.detached_shock import detached_cone_capture_blend
+
+    m0 = np.asarray(flight_mach, dtype=float)
     m_det = detachment_mach(cone)
-    lip_ray = cone_solution(design_mach, cone).wave_angle_deg
-    at_det = cone_solution(m_det * (1.0 + 1e-7), cone)  # just attached
-    if at_det is None or not m_det < design_mach:
-        return m_det, 1.0, 0.0
-    return m_det, at_det.captured_flow_ratio(lip_ray), at_det.stream_surface_pressure_integral(lip_ray)[0]
-
-
-@lru_cache(maxsize=16384)
-def _column(m0: float, cone: float, design_mach: float) -> tuple[float, ...]:
-    """The first cone at one flight Mach column: (wave angle rad, surface Mach, p_t ratio, p_c/p0, MFR_max,
-    pressure integral); the first four NaN where the cone's shock is detached."""
-    first = cone_solution(m0, cone)
-    if first is None:
-        # detached first cone: normal shock at M0; capture and drag carried from the detachment point
-        m_det, mfr_det, integral_det = _detached_values(cone, design_mach)
-        return (np.nan, np.nan, np.nan, np.nan, float(detached_cone_capture_blend(m0, m_det, mfr_det, 1.0)),
-                float(detached_cone_capture_blend(m0, m_det, integral_det, 0.0)))
-    if m0 < design_mach:
-        lip_ray = cone_solution(design_mach, cone).wave_angle_deg
-        mfr = first.captured_flow_ratio(lip_ray)
-        integral = first.stream_surface_pressure_integral(lip_ray)[0]
-    else:
-        mfr, integral = 1.0, 0.0
-    return (math.radians(first.wave_angle_deg), first.surface_mach, first.shock_total_pressure_ratio,
-            first.surface_pressure_ratio, mfr, integral)
+    just = round(m_det * (1.0 + 1e-7), _ROUND)  # just attached
+    cols = cone_columns(np.append(m0, just), cone, design_mach)
+    out, at_det = cols[:, :-1], cols[:, -1]
+    detached = ~np.isfinite(out[0])
+    if detached.any():
+        ok = m_det < design_mach and np.isfinite(at_det[4])
+        mfr_det, integral_det = (at_det[4], at_det[5]) if ok else (1.0, 0.0)
+        out[4] = np.where(detached, detached_cone_capture_blend(m0, m_det, mfr_det, 1.0), out[4])
+        out[5] = np.where(detached, detached_cone_capture_blend(m0, m_det, integral_det, 0.0), out[5])
+    return out
 
 
 class AxisymmetricSpikeInlet:
@@ -134,12 +123,10 @@ class AxisymmetricSpikeInlet:
         uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)
         inverse = inverse.reshape(m0.shape)
         sup = uniq > 1.0
-        solve_columns(uniq[sup], cones[0])  # every new column of the first cone in one batch
         first = np.full((6, uniq.size), np.nan)
-        first[4] = np.nan
         first[5] = 0.0
-        for i in np.nonzero(sup)[0]:
-            first[:, i] = _column(float(uniq[i]), cones[0], design)
+        if sup.any():
+            first[:, sup] = first_cone_columns(uniq[sup], cones[0], design)
         beta1, mc, pt1, pc = first[:4]
         attached1 = np.isfinite(beta1)
         per = np.full((4, n, uniq.size), np.nan)
@@ -186,6 +173,8 @@ class AxisymmetricSpikeInlet:
         )
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
+        from engine_air.inlets.ramp_layout import terminal_spill_drag
+
         m0, sc, _ = self._columns(inlet, state.flight_mach)
         recovery, entry, angle, integral = sc[0], np.where(np.isnan(sc[1]), m0, sc[1]), sc[2], sc[5]
         spill = terminal_spill_drag(m0, entry, recovery, angle, state.mass_flow_ratio, shocks.max_mass_flow_ratio)

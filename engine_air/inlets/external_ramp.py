@@ -18,7 +18,6 @@ from __future__ import annotations
 import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
-from engine_air.inlets.ramp_layout import ramp_design_problems, ramp_pre_entry_drag, ramp_shock_system
 from engine_air.spec.project import Inlet
 from engine_air.spec.field import REQUIRED, Field
 
@@ -42,6 +41,8 @@ def ramp_problems(inlet: Inlet) -> list[tuple[str, object, str]]:
     if sum(inlet.ramp_angles_deg) > MAX_TOTAL_RAMP_DEG:
         return [("inlet.ramp_angles_deg", list(inlet.ramp_angles_deg),
                  f"total deflection {sum(inlet.ramp_angles_deg):g} deg exceeds {MAX_TOTAL_RAMP_DEG:g} deg")]
+    from engine_air.inlets.ramp_layout import ramp_design_problems  # the shock physics only where used
+
     problems = ramp_design_problems(inlet.ramp_angles_deg, inlet.shock_on_lip_mach)
     if not problems:
         return []
@@ -59,9 +60,13 @@ class ExternalRampInlet:
         return ramp_problems(inlet)
 
     def shock_system(self, inlet: Inlet, flight_mach) -> ShockSystem:
+        from engine_air.inlets.ramp_layout import ramp_shock_system
+
         return ramp_shock_system(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, flight_mach)
 
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
+        from engine_air.inlets.ramp_layout import ramp_pre_entry_drag
+
         return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:

@@ -50,10 +50,8 @@ import numpy as np
 
 from engine_air.inlets.base import CaptureState, ShockSystem
 from engine_air.inlets.external_ramp import RAMP_ANGLES, SHOCK_ON_LIP_MACH, ramp_problems
-from engine_air.inlets.ramp_layout import cowl_entrance_area_ratio, ramp_pre_entry_drag, ramp_shock_system
 from engine_air.inlets.schedule import is_scheduled, scheduled
 from engine_air.physics.shocks import normal_shock, oblique_shock
-from engine_air.physics.starting import self_start_contraction, started_throat_mach_by_continuity
 from engine_air.spec.project import Inlet
 from engine_air.spec.field import Field
 
@@ -109,6 +107,8 @@ def entrance_area_m2(inlet: Inlet) -> float:
     >>> print(f"{entrance_area_m2(inlet):.5f}")
     1.34431
     """
+    from engine_air.inlets.ramp_layout import cowl_entrance_area_ratio
+
     return inlet.capture_area_m2 * cowl_entrance_area_ratio(inlet.ramp_angles_deg, inlet.shock_on_lip_mach)
 
 
@@ -153,6 +153,9 @@ def mixed_state(inlet: Inlet, flight_mach) -> MixedState:
     >>> bool(st.can_run), bool(st.starts)
     (True, True)
     """
+    from engine_air.inlets.ramp_layout import cowl_entrance_area_ratio, ramp_shock_system  # physics where used
+    from engine_air.physics.starting import self_start_contraction, started_throat_mach_by_continuity
+
     m0 = np.asarray(flight_mach, dtype=float)
     supersonic = m0 > 1.0
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -377,6 +380,8 @@ class MixedCompressionInlet:
     def supersonic_pre_entry_drag(self, inlet: Inlet, shocks: ShockSystem, state: CaptureState):
         # the external ramps' pressure along the dividing stream line, and the spillage behind the normal shock
         # at the cowl entrance (unstarted, or started with excess air): method section 13
+        from engine_air.inlets.ramp_layout import ramp_pre_entry_drag
+
         return ramp_pre_entry_drag(inlet.ramp_angles_deg, inlet.shock_on_lip_mach, shocks, state)
 
     def design_variables(self, inlet: Inlet) -> list[str]:

@@ -3,15 +3,46 @@
 Adding a type: write its module (one object implementing ``engine_air.inlets.base.InletType``), list it
 here, add a sample project and its tests. The loader, the match, the studies, the file reference and the
 program's editor read the type's keys and behaviour from that object.
+
+A type's module is imported the first time its entry is read (``inlet_type(name)``, ``INLET_TYPES[name]``),
+not when the registry is imported: a pitot study never loads the spike's conical-flow solver.
 """
 
 from __future__ import annotations
 
-from engine_air.inlets import axisymmetric_spike, external_ramp, mixed_compression, pitot
+import importlib
+
 from engine_air.inlets.base import InletType
 
-INLET_TYPES: dict[str, InletType] = {
-    module.INLET.name: module.INLET for module in (pitot, external_ramp, mixed_compression, axisymmetric_spike)}
+_MODULES = {
+    "pitot": "engine_air.inlets.pitot",
+    "external-ramp": "engine_air.inlets.external_ramp",
+    "mixed-compression": "engine_air.inlets.mixed_compression",
+    "axisymmetric-spike": "engine_air.inlets.axisymmetric_spike",
+}
+
+
+class _Registry(dict):
+    """A dict of inlet types whose values are imported on first read (entries set by hand are kept as set)."""
+
+    def __getitem__(self, name: str) -> InletType:
+        value = super().__getitem__(name)
+        if isinstance(value, str):  # a module path not imported yet
+            value = importlib.import_module(value).INLET
+            super().__setitem__(name, value)
+        return value
+
+    def get(self, name, default=None):
+        return self[name] if name in self else default
+
+    def values(self):
+        return [self[name] for name in self]
+
+    def items(self):
+        return [(name, self[name]) for name in self]
+
+
+INLET_TYPES: dict[str, InletType] = _Registry(_MODULES)
 
 
 def inlet_type(name: str) -> InletType:

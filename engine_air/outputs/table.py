@@ -1,8 +1,9 @@
 """The one table writer: CSV or Parquet from named columns, vectorised with pyarrow.
 
-``write_table(columns, path, fmt="csv")`` takes an ordered mapping of column
+``write_table(columns, dest, fmt="csv")`` takes an ordered mapping of column
 name -> values (a numpy array of floats, ints or bools, or a sequence of texts)
-and writes every row at once:
+or an Arrow table, and writes it to ``dest`` (a path, or a binary file object
+open for writing: the caller's atomic writer may hand its temporary file):
 
 - floats are written in the shortest text that reads back to the same double
   (the round trip is exact, as Python's ``repr``); a value that is not finite
@@ -14,6 +15,14 @@ and writes every row at once:
   numbers are never changed. Texts are quoted where needed (commas, quotes,
   line breaks).
 
+CSV is written in batches of rows (``BATCH_ROWS``): each batch's columns are
+turned into text by Arrow, joined into lines and written, so no Python code
+runs per row or per cell and the text of the whole table never stands in
+memory at once. A column with few
+distinct values (an axis of the grid, a quantity of the altitude or the Mach
+number only, a constant, a text column) is turned into text once per distinct
+value and taken.
+
 ``point_table(result)`` builds the columns of ``engine-air map`` (and of the
 program's CSV export) from an ``engine_air.envelope.evaluate.MapResult``: ``case``,
 ``inside_envelope``, the historic quantities (``HISTORIC_TABLE_KEYS``), ``regime``,
@@ -21,13 +30,17 @@ program's CSV export) from an ``engine_air.envelope.evaluate.MapResult``: ``case
 holds, as computed, inside or outside the envelope), ``flags``, ``judged`` (1 where
 the point is judged: inside the envelope with some check applying; read ``holds``
 only there), then the quantities added since (e.g. ``worst_relative_margin``), all
-from ``engine_air.outputs.quantities``.
+from ``engine_air.outputs.quantities``. ``write_point_table(result, dest)`` writes
+the same columns case by case and batch by batch without building that table.
 """
 
 from __future__ import annotations
 
+import csv
+import io
+from contextlib import contextmanager
 from pathlib import Path
-from typing import Mapping, Sequence
+from typing import Iterable, Mapping, Sequence
 
 import numpy as np
 import pyarrow as pa
@@ -35,6 +48,9 @@ import pyarrow.compute as pc
 
 FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
 """First characters a spreadsheet may take as the start of a formula."""
+
+BATCH_ROWS = 4_096
+"""Rows turned into CSV text at a time (a few MB of text)."""
 
 
 def neutralise(text: str) -> str:
@@ -81,122 +97,208 @@ def to_arrow(columns: Mapping[str, object]) -> pa.Table:
     return pa.table({name: _array(values) for name, values in columns.items()})
 
 
+# -- CSV text, batch by batch -----------------------------------------------------------------------------------------
+
 def _csv_quote(text: str) -> str:
     if any(ch in text for ch in ',"\n\r'):
         return '"' + text.replace('"', '""') + '"'
     return text
 
 
-def _column_csv_text(arr) -> tuple[pa.Array, bool]:
-    """One column as CSV cell texts (nulls stay null: empty cells) and whether a cell needs quoting.
-
-    Numbers are cast by Arrow to their shortest round-trip text; a column with
-    few distinct values (an axis, a free-stream quantity that depends on the
-    altitude only, a text column) is cast once per distinct value and taken.
-    """
-    if isinstance(arr, pa.ChunkedArray):
-        arr = arr.combine_chunks()
-    text = pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type) or (
-        pa.types.is_dictionary(arr.type) and pa.types.is_string(arr.type.value_type))
-    n = len(arr)
-    if text:
-        enc = arr if pa.types.is_dictionary(arr.type) else arr.dictionary_encode()
-        values = enc.dictionary.to_pylist()
-        needs = any(v is not None and any(ch in v for ch in ',"\n\r') for v in values)
-        if needs:  # quoted here; written by the caller's own join, never by Arrow's unquoted writer
-            quoted = pa.array([None if v is None else _csv_quote(v) for v in values], type=pa.string())
-            return pc.take(quoted, enc.indices), True
-        return pc.take(enc.dictionary, enc.indices), False
-    few = False
-    if n > 4096:
-        step = max(1, n // 1024)
-        sample = pc.take(arr, pa.array(np.arange(0, n, step)))
-        few = len(pc.unique(sample)) < 0.9 * len(sample)
-    if few:
-        enc = arr.dictionary_encode()
-        return pc.take(pc.cast(enc.dictionary, pa.string()), enc.indices), False
-    return pc.cast(arr, pa.string()), False
+def _pool() -> pa.MemoryPool:
+    """The C allocator's pool for the CSV text: it gives freed batches back, where Arrow's default pool keeps them
+    (a written map would otherwise hold some 100 MB more at its peak)."""
+    return pa.system_memory_pool()
 
 
-def write_csv(table: pa.Table, path) -> None:
-    """``table`` as CSV: a header, then one line per row, cells joined by commas, nulls as empty cells.
+def _number_text(arr: pa.Array) -> pa.Array:
+    """Numbers as their shortest round-trip text (Arrow's cast); nulls stay null (empty cells)."""
+    return pc.cast(arr, pa.string(), memory_pool=_pool())
 
-    The columns are turned into text in parallel threads (Arrow releases the
-    interpreter lock) and written by Arrow's CSV writer, so no Python code runs
-    per row or per cell. Text cells are quoted where needed (a comma, a quote, a
-    line break); numbers never are.
-    """
-    import csv
-    import io
-    import os
-    from concurrent.futures import ThreadPoolExecutor
 
-    import pyarrow.csv as pacsv
+def _numbers(v: np.ndarray) -> pa.Array:
+    """A numpy array of numbers as an Arrow array on the same memory (floats not finite as nulls). Built from its
+    buffers: ``pa.array`` would import pandas (some 40 MB) to ask whether the input is one of its types."""
+    if v.dtype.kind == "b":
+        v = v.astype(np.int8)
+    v = np.ascontiguousarray(v)
+    validity = None
+    if v.dtype.kind == "f":
+        v = v.astype(np.float64, copy=False)
+        finite = np.isfinite(v)
+        if not finite.all():
+            validity = pa.py_buffer(np.packbits(finite, bitorder="little"))
+    return pa.Array.from_buffers(pa.from_numpy_dtype(v.dtype), v.size, [validity, pa.py_buffer(v)])
 
-    head = io.StringIO()
-    csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in table.column_names])
-    columns = [table.column(k) for k in range(table.num_columns)]
-    workers = max(1, min(len(columns), os.cpu_count() or 1))
-    if workers > 1 and table.num_rows > 10_000:
-        with ThreadPoolExecutor(workers) as ex:
-            texts = list(ex.map(_column_csv_text, columns))
+
+def _strings(texts: Sequence[str | None]) -> pa.Array:
+    """Texts as an Arrow string array (None: null), from buffers (see ``_numbers``)."""
+    data = [b"" if t is None else t.encode("utf-8") for t in texts]
+    offsets = np.zeros(len(data) + 1, dtype=np.int32)
+    np.cumsum([len(d) for d in data], out=offsets[1:])
+    valid = np.array([t is not None for t in texts], dtype=bool)
+    validity = None if valid.all() else pa.py_buffer(np.packbits(valid, bitorder="little"))
+    buffers = [validity, pa.py_buffer(offsets), pa.py_buffer(b"".join(data))]
+    return pa.Array.from_buffers(pa.string(), len(data), buffers)
+
+
+class _Coded:
+    """A column of few distinct values: their CSV texts once, and each row's code into them."""
+
+    def __init__(self, texts: pa.Array, codes: np.ndarray):
+        self.texts, self.codes = texts, np.ascontiguousarray(codes, dtype=np.int32)
+
+    def text(self, a: int, b: int) -> pa.Array:
+        return pc.take(self.texts, _numbers(self.codes[a:b]), memory_pool=_pool())
+
+
+class _Plain:
+    """A column turned into text batch by batch: numbers (floats not finite empty) or an Arrow array."""
+
+    def __init__(self, values):
+        self.values = values
+
+    def text(self, a: int, b: int) -> pa.Array:
+        v = self.values
+        return _number_text(_numbers(v[a:b]) if isinstance(v, np.ndarray) else v.slice(a, b - a))
+
+
+def _coded_text(texts: Sequence[str | None], codes) -> _Coded:
+    """Texts (neutralised and quoted once) with codes into them."""
+    return _Coded(_strings([None if t is None else _csv_quote(neutralise(str(t))) for t in texts]), np.asarray(codes))
+
+
+def _column(values) -> _Coded | _Plain:
+    """One column of ``write_table``'s input, ready to be turned into text batch by batch."""
+    if isinstance(values, pa.ChunkedArray):
+        values = values.combine_chunks()
+    if isinstance(values, pa.DictionaryArray):
+        texts = values.dictionary.cast(pa.string()).to_pylist()  # an Arrow input: pandas is no matter then
+        codes = pc.fill_null(values.indices, len(texts)).to_numpy(zero_copy_only=False)
+        return _coded_text(texts + [None], codes)
+    if isinstance(values, pa.Array):
+        if pa.types.is_string(values.type) or pa.types.is_large_string(values.type):
+            return _column(values.dictionary_encode())
+        return _few(values) or _Plain(values)
+    if isinstance(values, np.ndarray) and values.dtype.kind in "fiub":
+        return _Plain(values.ravel())
+    texts = [None if v is None else str(v) for v in (values.ravel().tolist() if isinstance(values, np.ndarray)
+                                                      else values)]
+    unique = sorted(set(t for t in texts if t is not None))
+    index = {t: k for k, t in enumerate(unique)}
+    return _coded_text(unique + [None], [index.get(t, len(unique)) for t in texts])
+
+
+def _few(values: pa.Array) -> _Coded | None:
+    """An Arrow column of numbers with few distinct values (an axis, a quantity of one axis, a constant: a sample
+    of every n-th value repeats) as the texts of its distinct values and codes; None otherwise."""
+    n = len(values)
+    if n <= 4096:
+        return None
+    sample = pc.take(values, _numbers(np.arange(0, n, max(1, n // 1024))))
+    if len(pc.unique(sample)) >= 0.5 * len(sample):
+        return None
+    enc = values.dictionary_encode()
+    codes = pc.fill_null(enc.indices, len(enc.dictionary)).to_numpy(zero_copy_only=False)
+    texts = pa.concat_arrays([_number_text(enc.dictionary), _strings([None])])
+    return _Coded(texts, codes)
+
+
+@contextmanager
+def _binary_sink(dest):
+    """``dest`` as a binary file: a path is opened (and closed) here, a file object is used as it is."""
+    if hasattr(dest, "write"):
+        yield dest
     else:
-        texts = [_column_csv_text(c) for c in columns]
-    with pa.OSFile(str(path), "wb") as fh:
+        with open(Path(dest), "wb") as fh:
+            yield fh
+
+
+def _lines(cols: list, a: int, b: int) -> pa.Array:
+    """Rows a..b of the columns as CSV lines (nulls as empty cells), each ending in a line feed."""
+    texts = [c.text(a, b) for c in cols]
+    empty, line_feed, comma = _strings(["", "\n", ","])  # scalars from an array: no pandas import (``_numbers``)
+    texts[-1] = pc.binary_join_element_wise(texts[-1], empty, line_feed, null_handling="replace",
+                                            null_replacement="", memory_pool=_pool())
+    lines = pc.binary_join_element_wise(*texts, comma, null_handling="replace", null_replacement="",
+                                        memory_pool=_pool())
+    return lines.combine_chunks() if isinstance(lines, pa.ChunkedArray) else lines
+
+
+def _write(fh, lines: pa.Array) -> None:
+    offsets = np.frombuffer(lines.buffers()[1], dtype=np.int32 if lines.type == pa.string() else np.int64)
+    start, end = int(offsets[lines.offset]), int(offsets[lines.offset + len(lines)])
+    fh.write(memoryview(lines.buffers()[2])[start:end])
+
+
+def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], dest) -> int:
+    """CSV of ``names`` from ``parts``: (rows, columns ready for ``text(a, b)``) each; returns the rows written.
+
+    Batches of ``BATCH_ROWS`` rows are turned into lines and written one after the other (worker threads were
+    no faster on two cores and held more memory)."""
+    head = io.StringIO()
+    csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in names])
+    rows = 0
+    with _binary_sink(dest) as fh:
         fh.write(head.getvalue().encode("utf-8"))
-        if not table.num_columns:
-            return
-        quoted = [k for k, (_, needs) in enumerate(texts) if needs]
-        if not quoted:
-            strings = pa.table([t for t, _ in texts], names=[f"c{k}" for k in range(len(texts))])
-            pacsv.write_csv(strings, fh, pacsv.WriteOptions(include_header=False, quoting_style="none"))
-        elif quoted[-1] == len(quoted) - 1 < len(texts) - 1:
-            # quoted text only in leading columns (e.g. case names with commas): the rest is written unquoted
-            # by Arrow, split into lines without a copy, and each line joined behind its leading cells
-            rest = pa.table([t for t, _ in texts[len(quoted):]], names=[f"c{k}" for k in range(len(texts) -
-                                                                                             len(quoted))])
-            sink = pa.BufferOutputStream()
-            pacsv.write_csv(rest, sink, pacsv.WriteOptions(include_header=False, quoting_style="none"))
-            buf = sink.getvalue()
-            # line lengths from the cells' lengths: cells, a comma between them, a line end
-            length = np.full(rest.num_rows, rest.num_columns, dtype=np.int64)
-            for col in rest.columns:
-                length += np.asarray(pc.fill_null(pc.binary_length(col), 0), dtype=np.int64)
-            ends = np.cumsum(length)
-            if ends.size and ends[-1] != buf.size:  # pragma: no cover - Arrow's writer changed its layout
-                ends = np.flatnonzero(np.frombuffer(buf, dtype=np.uint8) == 10) + 1
-            offsets = np.concatenate([[0], ends]).astype(np.int64)
-            lines = pa.LargeStringArray.from_buffers(len(ends), pa.py_buffer(offsets), buf)
-            lead = [pc.fill_null(texts[k][0], "").cast(pa.large_string()) for k in quoted]
-            joined = pc.binary_join_element_wise(*lead, lines, pa.scalar(",", pa.large_string()))
-            offs = np.frombuffer(joined.buffers()[1], dtype=np.int64)
-            data = joined.buffers()[2]
-            fh.write(data[int(offs[joined.offset]):int(offs[joined.offset + len(joined)])])
-        else:
-            # quoted text elsewhere: Arrow quotes every text cell and no number
-            pacsv.write_csv(table, fh, pacsv.WriteOptions(include_header=False, quoting_style="needed"))
+        for n, cols in parts:
+            for a in range(0, n if cols else 0, BATCH_ROWS):
+                _write(fh, _lines(cols, a, min(n, a + BATCH_ROWS)))
+            rows += n if cols else 0
+            del cols  # before the next part is built
+    return rows
 
 
-def write_table(columns: Mapping[str, object] | pa.Table, path, fmt: str = "csv", inputs=()) -> int:
-    """Write ``columns`` to ``path`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows.
+class Streamed:
+    """A table given part by part (``write_point_table``): column ``names`` and ``parts``, an iterable of
+    (rows, columns ready for ``text(a, b)``)."""
 
-    Through the one output writer (``engine_air.outputs.writer.output_path``): ``OutputIsInputError`` when
-    ``path`` is one of ``inputs`` (links followed); the table goes to a temporary file renamed over ``path`` when
-    complete, so a failed write (a full disk) leaves the old file as it was and no partial file.
-    """
+    def __init__(self, names: Sequence[str], parts: Iterable[tuple[int, list]]):
+        self.names, self.parts = list(names), parts
+
+
+def write_csv(table, dest) -> int:
+    """``table`` (an Arrow table, a mapping of name -> values or a ``Streamed`` table) as CSV to ``dest`` (a path
+    or a binary file): a header, then one line per row, cells joined by commas, nulls and non-finite numbers as
+    empty cells. Returns the number of rows."""
+    if isinstance(table, Streamed):
+        return write_csv_batches(table.names, table.parts, dest)
+    columns = dict(zip(table.column_names, table.columns)) if isinstance(table, pa.Table) else dict(table)
+    n = len(next(iter(columns.values()))) if columns else 0
+    return write_csv_batches(list(columns), [(n, [_column(v) for v in columns.values()])], dest)
+
+
+@contextmanager
+def _output(dest, inputs):
+    """Where to write: a binary file object as it is, a path through the one output writer
+    (``engine_air.outputs.writer.output_path``: never an input, a temporary file renamed over it when complete)."""
+    if hasattr(dest, "write"):
+        yield dest
+        return
     from engine_air.outputs.writer import output_path
 
+    with output_path(str(Path(dest)), inputs) as tmp:
+        yield tmp
+
+
+def write_table(columns: Mapping[str, object] | pa.Table, dest, fmt: str = "csv", inputs=()) -> int:
+    """Write ``columns`` to ``dest`` as CSV (``fmt="csv"``) or Parquet (``"parquet"``); returns the number of rows.
+
+    ``dest`` is a binary file object, or a path written through the one output writer
+    (``engine_air.outputs.writer.output_path``): ``OutputIsInputError`` when ``path`` is one of ``inputs`` (links
+    followed); the table goes to a temporary file renamed over ``path`` when complete, so a failed write (a full
+    disk) leaves the old file as it was and no partial file.
+    """
     if fmt not in ("csv", "parquet"):
         raise ValueError(f"unknown table format {fmt!r}: csv or parquet")
-    table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
-    with output_path(str(Path(path)), inputs) as tmp:
+    with _output(dest, inputs) as target:
         if fmt == "csv":
-            write_csv(table, tmp)
-        else:
-            import pyarrow.parquet as pq
+            return write_csv(columns, target)
+        import pyarrow.parquet as pq
 
-            pq.write_table(table, tmp)
-    return table.num_rows
+        table = columns if isinstance(columns, pa.Table) else to_arrow(columns)
+        pq.write_table(table, target)
+        return table.num_rows
 
 
 def coded_text(codes: np.ndarray, names: Sequence[str], missing: str = "") -> pa.Array:
@@ -266,10 +368,92 @@ def point_table(result, keys: Sequence[str] | None = None) -> pa.Table:
     return pa.concat_tables(parts)
 
 
-def write_point_table(result, path, fmt: str = "csv", inputs=()) -> int:
-    """``point_table(result)`` written to ``path`` as CSV or Parquet (``write_table``); returns the number of rows."""
-    return write_table(point_table(result), path, fmt, inputs)
+def _grid_column(values, shape: tuple[int, int], by_mach: np.ndarray, by_alt: np.ndarray) -> _Coded | _Plain:
+    """A float quantity over the (altitude, Mach) grid of one case: texts of its distinct values once where it
+    depends on one axis only (or on neither; ``by_mach``, ``by_alt``: each row's code into the axis), else turned
+    into text batch by batch."""
+    v = np.asarray(values, dtype=float)
+    if v.ndim == 1 and v.size == shape[0] * shape[1]:
+        v = v.reshape(shape)
+    full = np.broadcast_to(v, shape)
+    if v.shape == shape:
+        mach_only = shape[0] == 1 or np.array_equal(v, np.broadcast_to(v[:1], shape), equal_nan=True)
+        alt_only = not mach_only and np.array_equal(v, np.broadcast_to(v[:, :1], shape), equal_nan=True)
+    else:  # stored on one axis: (n_mach,), (1, n_mach), a scalar, or (n_alt, 1)
+        mach_only = v.ndim < 2 or v.shape[0] == 1
+        alt_only = not mach_only
+    if mach_only:
+        return _Coded(_number_text(_numbers(full[0])), by_mach)
+    if alt_only:
+        return _Coded(_number_text(_numbers(full[:, 0])), by_alt)
+    return _Plain(np.ascontiguousarray(v.ravel()))
 
 
-__all__ = ["FORMULA_LEADS", "coded_text", "flag_text", "neutralise", "point_table", "point_table_columns", "to_arrow",
-           "write_csv", "write_point_table", "write_table"]
+def _grid(values, shape) -> np.ndarray:
+    """``values`` over the (altitude, Mach) grid: reshaped when stored flat, else broadcast (a view)."""
+    a = np.asarray(values)
+    return a.reshape(shape) if a.ndim == 1 and a.size == shape[0] * shape[1] else np.broadcast_to(a, shape)
+
+
+def _codes(values, shape) -> np.ndarray:
+    """Integer codes (< 0: none) as indices into a list with the empty text first."""
+    c = _grid(values, shape).ravel()
+    return np.where(c < 0, 0, c + 1)
+
+
+def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain]:
+    """The columns of ``point_table`` for one case, ready to be turned into text batch by batch."""
+    from engine_air.envelope import flags as F
+    from engine_air.flow.match import REGIMES
+    from engine_air.outputs.quantities import REGISTRY
+
+    shape = np.shape(result.inside)
+    inside = np.asarray(result.inside, dtype=bool).ravel()
+    pts = cm.points
+    n = inside.size
+    fails = np.zeros(n, bool)
+    for c in pts.checks:
+        fails |= _grid(np.asarray(c.fails, dtype=bool), shape).ravel()
+    limiting = _grid(pts.limiting if pts.limiting is not None else -1, shape).ravel()
+    by_mach = np.tile(np.arange(shape[1], dtype=np.int32), shape[0])  # each row's code into an axis, shared
+    by_alt = np.repeat(np.arange(shape[0], dtype=np.int32), shape[1])
+    judged = inside & (limiting >= 0)
+    if hasattr(pts, "judged"):  # inside the case's region too
+        judged &= _grid(pts.judged, shape).ravel()
+    bits, bit_codes = np.unique(_grid(pts.flags, shape).ravel(), return_inverse=True)
+    zero_one = ["0", "1"]
+    cols = {
+        "case": _coded_text([cm.name], np.zeros(n)),
+        "inside_envelope": _coded_text(zero_one, inside),
+        "regime": _coded_text(["", *REGIMES], _codes(pts.regime, shape)),
+        "limiting": _coded_text(["", *(c.name for c in pts.checks)], _codes(limiting, shape)),
+        "holds": _coded_text(zero_one, ~fails),
+        "flags": _coded_text([";".join(F.names_of(int(b))) for b in bits], bit_codes.ravel()),
+        "judged": _coded_text(zero_one, judged),
+    }
+    for k in keys:
+        cols[k] = _grid_column(REGISTRY[k].values(pts), shape, by_mach, by_alt)
+    return cols
+
+
+def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
+    """``point_table(result)`` written to ``dest`` (a path through the one output writer, or a binary file) as CSV
+    or Parquet; returns the number of rows. CSV is written case by case and batch by batch, without the whole
+    table in memory."""
+    if fmt != "csv":
+        return write_table(point_table(result), dest, fmt, inputs)
+    from engine_air.outputs.quantities import TABLE_KEYS
+
+    order = point_table_columns(TABLE_KEYS)
+    n = int(np.size(result.inside))
+
+    def parts():
+        for cm in result.cases:
+            cols = _point_columns(result, cm, TABLE_KEYS)
+            yield n, [cols.pop(name) for name in order]  # one case's columns at a time
+    with _output(dest, inputs) as target:
+        return write_csv(Streamed(order, parts()), target)
+
+
+__all__ = ["BATCH_ROWS", "FORMULA_LEADS", "Streamed", "coded_text", "flag_text", "neutralise", "point_table",
+           "point_table_columns", "to_arrow", "write_csv", "write_csv_batches", "write_point_table", "write_table"]

@@ -8,29 +8,33 @@ to it, V_w < 0 towards the axis) the Taylor-Maccoll equation [1; 2, eq. 10.15] i
     dV_r/dw = V_w
     dV_w/dw = [V_w^2 V_r - (g-1)/2 (1 - V_r^2 - V_w^2)(2 V_r + V_w cot w)] / [(g-1)/2 (1 - V_r^2 - V_w^2) - V_w^2]
 
-Here it is integrated outwards from the cone surface (w = theta_c, V_w = 0, V_r = V_c' from the surface
-Mach number) with scipy ``solve_ivp`` until the shock condition holds: the free stream of speed
-V0' = V_r/cos(w) (tangential component continuous) and the flow behind satisfy Prandtl's oblique-shock
-relation V_n1 V_n2 = a*^2 - (g-1)/(g+1) V_t^2 [4, eq. 137], in V_max units
+On the shock the tangential component is continuous and the normal one falls by the normal-shock density
+ratio at M0 sin(beta) [4, eqs. 93, 137]: V_r = V0' cos(beta), V_w = -V0' sin(beta) rho0/rho. Equivalently
+(Prandtl's relation V_n1 V_n2 = a*^2 - (g-1)/(g+1) V_t^2 in V_max units [4, eq. 137]) the shock stands where
 
-    f(w) = -V_w V_r tan(w) - (g-1)/(g+1) (1 - V_r^2) = 0   at w = beta,
+    f(w) = -V_w V_r tan(w) - (g-1)/(g+1) (1 - V_r^2) = 0.
 
-so that each surface Mach number gives one (M0, beta) exactly. For one cone the family over the surface
-Mach number is tabulated once (``_family``): the flight Mach number falls to a minimum (the detachment Mach
-number of the cone: below it no attached shock exists) and rises again; the weak branch is the one with the
-higher surface Mach number. A flight Mach column is then solved by Newton/secant steps on the surface Mach
-number started from a cubic spline through the table (mostly one integration), until its flight Mach number
-is matched to 1e-6 relative (beta to about 1e-6 rad), and its dense solution is kept.
+Two ways of integrating, both with the fixed-step order-8 Runge-Kutta of ``engine_air.physics.rk8`` over many
+members at once (numpy; never a Python loop over points or columns):
+
+- outwards from the cone surface (w = theta_c, V_w = 0, V_r from the surface Mach number) to where f = 0, for
+  the family of one cone over the surface Mach number (``taylor_maccoll.cone_family``): the flight Mach number
+  falls to a minimum, the detachment Mach number of the cone (below it no attached shock exists), and rises
+  again; the weak branch is the one with the higher surface Mach number;
+- inwards from the shock (the state above at a trial beta) to the cone angle, for flight Mach columns
+  (``cone_columns``): V_w must vanish on the cone, so beta is found by secant steps on V_w(theta_c) started
+  from the family, every column of a map in the same steps, until a step is below 1e-12 rad. One more inward
+  pass carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
+  and its pressure integral (method section 13). Behind a weak shock (normal Mach near 1, the equation's
+  denominator nearly zero) the first fifth of the way is taken in graded steps.
 
 Local Mach: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2). Total pressure behind the shock: the normal-shock ratio
 at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), rho/rho0 likewise with 1/(g-1).
 
-Cost: never per point. ``cone_solution`` (one flight Mach number) is cached (``functools.lru_cache``) on
-(M0, angle) rounded to 1e-9. A map's Mach columns go through ``solve_columns`` first: every new column of a
-cone is solved in one vectorised ``solve_ivp`` per Newton step (each column on its own ray scale
-w = theta_c + s (w_end - theta_c), s in [0, 1], w_end just beyond the shock angle from the table), two or
-three in all, and kept as a Chebyshev series of V_r and V_w on [theta_c, beta] in the same per-column cache.
-The vectorised front end ``cone_flow`` solves the unique Mach numbers of an array once and maps back.
+Cost: never per point; per cone a family of 144 surface Mach numbers and a refinement of the detachment point
+on 17 more (about 100 steps of the integrator, once per cone), then three or four inward passes for all the
+columns of a map together (20 to 50 steps each). Results are kept per cone and flight Mach number (rounded to
+1e-9); ``clear_cache`` empties them. Wave angles agree with a tight ``solve_ivp`` to about 1e-10 rad.
 
 Worked example (checked in the tests against NACA Report 1135's cone charts, NASA SP-3004's tables and
 ``pygasflow``): a 20 deg cone at M0 = 2 has beta = 37.80 deg and a surface Mach number of 1.568.
@@ -49,108 +53,30 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property
 
 import numpy as np
-from scipy.integrate import cumulative_simpson, simpson, solve_ivp
-from scipy.interpolate import CubicSpline
-from scipy.optimize import minimize_scalar
 
 from engine_air.physics.constants import GAMMA
+from engine_air.physics.rk8 import integrate
+from engine_air.physics.taylor_maccoll import (  # the equation and one cone's family (same package)
+    _E,
+    _G1,
+    _behind_shock,
+    _cot,
+    _interpolate,
+    _mach_from_speed,
+    _normal_shock_pt,
+    _speed_from_mach,
+    _steps,
+    _taylor_maccoll,
+    _tm_cot,
+    cone_family as _family,
+)
 
-_G1 = 0.5 * (GAMMA - 1.0)
-_K = (GAMMA - 1.0) / (GAMMA + 1.0)
-_RTOL = 1e-9
-_ATOL = 1e-13
 _ROUND = 9  # decimals of the cache keys (Mach number, degrees)
-_MACH_TOL = 1e-6  # relative: a column's flight Mach number is matched to this (beta then to ~1e-6 rad)
-
-
-def _speed_from_mach(m: float) -> float:
-    """V/V_max from Mach number: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2)."""
-    x = _G1 * m * m
-    return math.sqrt(x / (1.0 + x))
-
-
-def _mach_from_speed(v):
-    """Mach number from V/V_max (the inverse of ``_speed_from_mach``), arrays."""
-    v2 = np.asarray(v) ** 2
-    return np.sqrt(v2 / (_G1 * (1.0 - v2)))
-
-
-def _rhs(w, y):
-    vr, vw = y
-    a = _G1 * (1.0 - vr * vr - vw * vw)
-    return [vw, (vw * vw * vr - a * (2.0 * vr + vw / math.tan(w))) / (a - vw * vw)]
-
-
-def _shock_condition(w, y):
-    return -y[1] * y[0] * math.tan(w) - _K * (1.0 - y[0] * y[0])
-
-
-_shock_condition.terminal = True
-_shock_condition.direction = 1.0
-
-
-def _normal_shock_pt(mn1: float) -> float:
-    """Normal-shock total-pressure ratio at normal Mach ``mn1`` [4, eq. 99]."""
-    m2 = mn1 * mn1
-    return ((GAMMA + 1.0) * m2 / ((GAMMA - 1.0) * m2 + 2.0)) ** (GAMMA / (GAMMA - 1.0)) * (
-        (GAMMA + 1.0) / (2.0 * GAMMA * m2 - (GAMMA - 1.0))) ** (1.0 / (GAMMA - 1.0))
-
-
-def _outward(theta_c: float, surface_mach: float, dense: bool = False):
-    """Integrate from the cone surface outwards to the shock. Returns (M0, beta, solution) or None when the
-    surface Mach number belongs to no free stream (past the hypersonic limit, or no shock before 90 deg)."""
-    sol = solve_ivp(_rhs, (theta_c, 0.5 * math.pi - 1e-9), [_speed_from_mach(surface_mach), 0.0],
-                    events=_shock_condition, rtol=_RTOL, atol=_ATOL, dense_output=dense)
-    if not sol.t_events[0].size:
-        return None
-    beta = float(sol.t_events[0][0])
-    vr = float(sol.y_events[0][0][0])
-    v0 = vr / math.cos(beta)
-    if not v0 < 1.0:
-        return None
-    return float(_mach_from_speed(v0)), beta, sol
-
-
-@dataclass(frozen=True)
-class _Family:
-    detachment_mach: float
-    detachment_surface_mach: float
-    weak: CubicSpline  # surface Mach against sqrt(M0 - M_det) on the weak branch
-    top_mach: float  # largest tabulated flight Mach number
-    wave_angle: CubicSpline  # beta (rad) against sqrt(M0 - M_det) on the weak branch
-
-
-@lru_cache(maxsize=64)
-def _family(cone_deg: float) -> _Family:
-    """Tabulate (M0, surface Mach) over the surface Mach number for one cone; find the detachment point."""
-    th = math.radians(cone_deg)
-    mcs, m0s, betas = [], [], []
-    for mc in np.concatenate([np.linspace(0.3, 1.0, 6, endpoint=False), np.geomspace(1.0, 40.0, 12)]):
-        r = _outward(th, float(mc))
-        if r is None:
-            if mcs:
-                break
-            continue
-        mcs.append(float(mc))
-        m0s.append(r[0])
-        betas.append(r[1])
-        if r[0] > 6.2 and mc > 1.0:  # far enough up the weak branch (maps reach Mach 6)
-            break
-    mcs, m0s = np.array(mcs), np.array(m0s)
-    k = int(np.argmin(m0s))
-    lo, hi = mcs[max(k - 1, 0)], mcs[min(k + 1, mcs.size - 1)]
-    res = minimize_scalar(lambda mc: _outward(th, mc)[0], bounds=(lo, hi), method="bounded",
-                          options={"xatol": 1e-6})  # M0 is flat there: M_det to ~1e-12
-    m_det, mc_det = float(res.fun), float(res.x)
-    beta_det = _outward(th, mc_det)[1]
-    keep = mcs > mc_det
-    x = np.concatenate([[0.0], np.sqrt(np.maximum(m0s[keep] - m_det, 0.0))])
-    y = np.concatenate([[mc_det], mcs[keep]])
-    b = np.concatenate([[beta_det], np.array(betas)[keep]])
-    return _Family(m_det, mc_det, CubicSpline(x, y), float(m0s[keep][-1]), CubicSpline(x, b))
+_BETA_TOL = 1e-12  # rad: a column is settled when its secant step on beta is below this
+_CHEB = 32  # Chebyshev series degree + 1 of a single solution's rays
 
 
 def detachment_mach(cone_half_angle_deg: float) -> float:
@@ -178,6 +104,185 @@ def detachment_mach(cone_half_angle_deg: float) -> float:
     return _family(round(float(cone_half_angle_deg), _ROUND)).detachment_mach
 
 
+# -- inwards: flight Mach columns ------------------------------------------------------------------------------------
+
+def _lip_rhs(pt, v0):
+    """dy/dw for y = (V_r, V_w, Q, J): Taylor-Maccoll, the conical stream line Q = R^2 (R from the tip, 1 on the
+    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it."""
+    def rhs(w, y):
+        out = _taylor_maccoll(w, y)  # rows 2, 3 are overwritten
+        vr, vw, q = y[0], y[1], y[2]
+        p = pt * ((1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)) ** (GAMMA * _E)
+        s = np.sin(w)
+        ratio = vr / vw
+        out[2] = 2.0 * q * ratio
+        out[3] = (p - 1.0) * q * (2.0 * ratio * s * s + np.sin(2.0 * w))
+        return out
+    return rhs
+
+
+def _from_shock(rhs, beta, end, y0, near: float, at=None):
+    """Integrate inwards from the shock rays ``beta`` to ``end``. Behind a weak shock the normal Mach number is
+    close to 1 and the equation's denominator nearly vanishes: there the first fifth of the way is taken in 12
+    steps growing as s^3 (s from 0 at the shock), the rest in equal steps."""
+    vr, vw = y0[0], y0[1]
+    if np.max(vw * vw / (_G1 * (1.0 - vr * vr - vw * vw))) > 0.9:
+        mid = beta + 0.2 * (end - beta)
+        span = mid - beta
+
+        def graded(s):  # w = beta + span s^3: the stage rays (or what ``at`` makes of them) and dw/ds
+            w = beta + span * s ** 3
+            return np.stack([at(w) if at is not None else w, 3.0 * s * s * span], axis=-2)
+        y0 = integrate(lambda a, y: rhs(a[0], y) * a[1], np.zeros(beta.shape), np.ones(beta.shape), y0, 12,
+                       at=graded)
+        beta = mid
+    return integrate(rhs, beta, end, y0, _steps(beta - end, near=near), at=at)
+
+
+def _lip_values(m0, beta, lip):
+    """Per member, from its shock inwards to the lip ray ``lip`` (rad, < beta): MFR_max, the pressure integral,
+    and the stream line's (r_s/r_L)^2 at the shock."""
+    vr, vw, pt, v0 = _behind_shock(m0, beta)
+    y0 = np.stack([vr, vw, np.ones(m0.size), np.zeros(m0.size)])
+    with np.errstate(all="ignore"):
+        vr, vw, q, j = _from_shock(_lip_rhs(pt, v0), beta, lip, y0, float(np.min(lip)))
+    x = (1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)
+    mfr = pt * x ** _E * np.abs(vw) / (v0 * np.sin(lip))
+    rl2 = q * np.sin(lip) ** 2  # (r_L / R_shock)^2
+    return mfr, j / rl2, np.sin(beta) ** 2 / rl2
+
+
+def _inward_pass(th: float, m0, beta):
+    """From trial wave angles to the cone: V_w there (zero at the solution) and the surface speed."""
+    vr, vw, _, _ = _behind_shock(m0, beta)
+    with np.errstate(all="ignore"):
+        y = _from_shock(_tm_cot, beta, np.full(m0.size, th), np.stack([vr, vw]), th, at=_cot)
+    return y[1], np.hypot(y[0], y[1])
+
+
+def _solve(th: float, m0, beta):
+    """Secant steps on the wave angles of all columns together, started from ``beta`` with a finite-difference
+    slope, until every step is below 1e-12 rad. Returns (beta, surface speed)."""
+    n = m0.size
+    eps = 1e-7
+    r, speed = _inward_pass(th, np.concatenate([m0, m0]), np.concatenate([beta, beta + eps]))
+    slope = (r[n:] - r[:n]) / eps
+    r, speed = r[:n], speed[:n]
+    for _ in range(12):
+        step = np.clip(-r / np.where(slope != 0.0, slope, 1.0), -0.05, 0.05)
+        idx = np.nonzero(~(np.abs(step) < _BETA_TOL))[0]
+        if not idx.size:
+            break
+        new = np.clip(beta[idx] + step[idx], th + 1e-9, 0.5 * math.pi - 1e-9)
+        r_new, speed[idx] = _inward_pass(th, m0[idx], new)
+        moved = new - beta[idx]
+        slope[idx] = np.where(moved != 0.0, (r_new - r[idx]) / np.where(moved != 0.0, moved, 1.0), slope[idx])
+        beta[idx], r[idx] = new, r_new
+    return beta, speed
+
+
+_COLUMNS: dict[tuple[float, float | None], dict[float, tuple[float, ...]]] = {}
+
+
+def cone_columns(flight_mach, cone_half_angle_deg: float, design_mach: float | None = None) -> np.ndarray:
+    """The first cone's flow at flight Mach columns, all columns solved together (cached per column).
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach numbers M0 (dimensionless), 1-D.
+    cone_half_angle_deg : float
+        Cone half-angle, deg.
+    design_mach : float, optional
+        The spike's shock-on-lip Mach number M_d: the lip lies on the ray of the shock angle there
+        (method section 9). Without it the last two rows are NaN.
+
+    Returns
+    -------
+    numpy.ndarray
+        Shape (6, n): wave angle (rad), surface Mach, shock total-pressure ratio, p_c/p0, MFR_max and the
+        pre-entry pressure integral int (p/p0 - 1) d(r^2/r_L^2) along the dividing stream line (1 and 0 at
+        and above M_d); NaN where M0 <= 1 or the shock is detached (M0 below ``detachment_mach``).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> c = cone_columns(np.array([1.1, 1.8, 2.0]), 20.0, design_mach=2.0)
+    >>> print(np.round(np.degrees(c[0]), 2), np.round(c[4], 4))
+    [  nan 41.13 37.8 ] [  nan 0.949 1.   ]
+    """
+    cone = round(float(cone_half_angle_deg), _ROUND)
+    design = None if design_mach is None else round(float(design_mach), _ROUND)
+    ms = np.round(np.asarray(flight_mach, dtype=float).ravel(), _ROUND)
+    out = np.full((6, ms.size), np.nan)
+    fam = _family(cone) if cone > 0.0 else None
+    if fam is None:
+        return out
+    if len(_COLUMNS) >= 64 and (cone, design) not in _COLUMNS:
+        _COLUMNS.clear()
+    cache = _COLUMNS.setdefault((cone, design), {})
+    attached = (ms > 1.0) & (ms >= fam.detachment_mach)
+    if design is not None and design < fam.detachment_mach:
+        attached[:] = False  # no lip ray: the spike's design check refuses this inlet
+    new = np.unique(ms[attached & np.array([m not in cache for m in ms])])
+    if new.size:
+        m = new if design is None or design in cache else np.unique(np.append(new, design))
+        th = math.radians(cone)
+        beta, speed = _solve(th, m, _interpolate(fam.x, fam.beta, np.sqrt(m - fam.detachment_mach)))
+        v0 = _speed_from_mach(m)
+        pt = _normal_shock_pt(m * np.sin(beta))
+        pc = pt * ((1.0 - speed ** 2) / (1.0 - v0 ** 2)) ** (GAMMA * _E)
+        mfr, integral = np.full(m.size, np.nan), np.full(m.size, np.nan)
+        if design is not None:
+            lip = beta[m == design][0] if design not in cache else cache[design][0]
+            below = m < design
+            mfr[~below], integral[~below] = 1.0, 0.0
+            if below.any():
+                mfr[below], integral[below], _ = _lip_values(m[below], beta[below], np.full(below.sum(), lip))
+        for row in zip(m.tolist(), beta.tolist(), _mach_from_speed(speed).tolist(), pt.tolist(), pc.tolist(),
+                       mfr.tolist(), integral.tolist()):
+            cache[row[0]] = row[1:]
+    for i in np.nonzero(attached)[0]:
+        out[:, i] = cache[float(ms[i])]
+    return out
+
+
+def solve_columns(flight_mach, cone_half_angle_deg: float) -> None:
+    """Solve every attached column of ``flight_mach`` for one cone together and keep the results
+    (``cone_columns`` without a lip); ``cone_solution`` and ``cone_flow`` then read them.
+
+    Parameters
+    ----------
+    flight_mach : array_like
+        Flight Mach numbers M0 (dimensionless), any shape.
+    cone_half_angle_deg : float
+        Cone half-angle, deg.
+
+    Examples
+    --------
+    The batch and the single-column solve agree (the same columns, solved to 1e-12 rad in beta):
+
+    >>> import numpy as np
+    >>> solve_columns(np.linspace(1.5, 2.5, 11), 20.0)
+    >>> round(cone_solution(2.0, 20.0).wave_angle_deg, 4)
+    37.7959
+    """
+    cone_columns(np.unique(np.asarray(flight_mach, dtype=float)), cone_half_angle_deg)
+
+
+def clear_cache() -> None:
+    """Empty every per-column and per-cone cache (for timing from cold).
+
+    Examples
+    --------
+    >>> clear_cache()
+    >>> round(cone_solution(2.0, 20.0).surface_mach, 3)
+    1.568
+    """
+    _COLUMNS.clear()
+    _family.cache_clear()
+
+
 @dataclass(frozen=True)
 class ConicalRay:
     """The conical flow on rays: Mach number, velocity components over V0 (radial V_r and normal V_w,
@@ -200,23 +305,33 @@ class ConeSolution:
     surface_mach: float
     shock_total_pressure_ratio: float  # p_t behind / p_t0 (normal shock at M0 sin beta)
     surface_pressure_ratio: float  # p_c / p0
-    _velocity: object  # w (rad, array) -> (V_r, V_w) over [theta_c, beta]: dense ODE solution or series
-    _v0: float  # V0 / V_max
 
-    def _state(self, w):
-        vr, vw = self._velocity(np.ravel(w))
-        return vr.reshape(np.shape(w)), vw.reshape(np.shape(w))
+    @cached_property
+    def _series(self):
+        """Chebyshev series of (V_r, V_w) over [theta_c, beta]: one inward integration to its nodes."""
+        th, beta = math.radians(self.cone_half_angle_deg), math.radians(self.wave_angle_deg)
+        t = np.cos(np.pi * (np.arange(_CHEB) + 0.5) / _CHEB)
+        nodes = th + 0.5 * (t + 1.0) * (beta - th)
+        vr, vw, _, _ = _behind_shock(self.flight_mach, beta)
+        y = _from_shock(_tm_cot, np.full(_CHEB, beta), nodes, np.stack([np.full(_CHEB, vr), np.full(_CHEB, vw)]), th,
+                        at=_cot)
+        return np.polynomial.chebyshev.chebfit(t, y.T, _CHEB - 1)
 
     def ray(self, omega_deg) -> ConicalRay:
         """Flow on rays ``omega_deg`` (deg, clipped to cone <= omega <= beta; array)."""
+        th, beta = math.radians(self.cone_half_angle_deg), math.radians(self.wave_angle_deg)
         w = np.radians(np.clip(np.asarray(omega_deg, dtype=float), self.cone_half_angle_deg, self.wave_angle_deg))
-        vr, vw = self._state(w)
+        vr, vw = np.polynomial.chebyshev.chebval(2.0 * (w - th) / (beta - th) - 1.0, self._series)
+        v0 = float(_speed_from_mach(self.flight_mach))
         v2 = vr * vr + vw * vw
-        e = 1.0 / (GAMMA - 1.0)
-        x = (1.0 - v2) / (1.0 - self._v0 ** 2)
-        return ConicalRay(mach=_mach_from_speed(np.sqrt(v2)), radial_velocity_ratio=vr / self._v0,
-                          normal_velocity_ratio=vw / self._v0, density_ratio=self.shock_total_pressure_ratio * x ** e,
-                          pressure_ratio=self.shock_total_pressure_ratio * x ** (GAMMA * e))
+        x = (1.0 - v2) / (1.0 - v0 ** 2)
+        return ConicalRay(mach=_mach_from_speed(np.sqrt(v2)), radial_velocity_ratio=vr / v0,
+                          normal_velocity_ratio=vw / v0, density_ratio=self.shock_total_pressure_ratio * x ** _E,
+                          pressure_ratio=self.shock_total_pressure_ratio * x ** (GAMMA * _E))
+
+    def _lip(self, lip_ray_deg: float):
+        m0, beta = np.array([self.flight_mach]), np.array([math.radians(self.wave_angle_deg)])
+        return [float(v[0]) for v in _lip_values(m0, beta, np.array([math.radians(lip_ray_deg)]))]
 
     def captured_flow_ratio(self, lip_ray_deg: float) -> float:
         """Flow through the cone-shaped surface of half-angle omega_L from the tip to the lip circle, over the
@@ -224,238 +339,20 @@ class ConeSolution:
         MFR = rho(w_L) |V_w(w_L)| / (rho0 V0 sin w_L); 1 for omega_L at or beyond the shock."""
         if lip_ray_deg >= self.wave_angle_deg:
             return 1.0
-        r = self.ray(lip_ray_deg)
-        return float(r.density_ratio * abs(r.normal_velocity_ratio) / math.sin(math.radians(lip_ray_deg)))
+        return self._lip(lip_ray_deg)[0]
 
-    def stream_surface_pressure_integral(self, lip_ray_deg: float, n: int = 65) -> tuple[float, float]:
+    def stream_surface_pressure_integral(self, lip_ray_deg: float) -> tuple[float, float]:
         """Along the conical stream line that ends on the lip (ray omega_L), from the shock to the lip:
         (I, s) with I = integral (p/p0 - 1) d(r^2/r_L^2) (r the radius from the axis) and s = (r_s/r_L)^2
         at the shock crossing; (0, 1) when omega_L lies at or beyond the shock.
 
-        The stream line obeys dR/(R dw) = V_r/V_w (R the distance from the tip, r = R sin w); both integrals
-        by Simpson's rule on ``n`` rays of the solution (smooth integrands, error below 1e-8).
+        The stream line obeys dR/(R dw) = V_r/V_w (R the distance from the tip, r = R sin w); both are integrated
+        with the flow from the shock inwards (the same integration as a map's columns).
         """
-        wl, wb = math.radians(lip_ray_deg), math.radians(self.wave_angle_deg)
-        if not wl < wb:
+        if not lip_ray_deg < self.wave_angle_deg:
             return 0.0, 1.0
-        w = np.linspace(wl, wb, n)
-        vr, vw = self._state(w)
-        ln_r = cumulative_simpson(vr / vw, x=w, initial=0.0)
-        s = (np.exp(ln_r) * np.sin(w) / math.sin(wl)) ** 2
-        v2 = vr * vr + vw * vw
-        p = self.shock_total_pressure_ratio * ((1.0 - v2) / (1.0 - self._v0 ** 2)) ** (GAMMA / (GAMMA - 1.0))
-        # from the shock (w = beta, s_shock) to the lip (w = w_L, s = 1)
-        integral = -float(simpson(p - 1.0, x=s))
-        return integral, float(s[-1])
-
-
-def _solve(m0: float, cone_deg: float):
-    """(surface Mach, beta, dense solution) for the weak conical shock at ``m0``; None where detached.
-
-    Newton steps on the surface Mach number: the first from the tabulated family and its slope, then secant
-    steps on the last two integrations, until the flight Mach number is matched to ``_MACH_TOL``.
-    """
-    fam = _family(cone_deg)
-    if m0 < fam.detachment_mach:
-        return None
-    th = math.radians(cone_deg)
-    x = min(math.sqrt(m0 - fam.detachment_mach), math.sqrt(fam.top_mach - fam.detachment_mach))
-    mc = float(fam.weak(x))
-    slope = float(fam.weak(x, 1)) / (2.0 * x) if x > 0.0 else 0.0  # d(surface Mach)/d(M0)
-    floor = fam.detachment_surface_mach
-    prev = None
-    r = None
-    for _ in range(40):
-        r = _outward(th, mc, dense=True)
-        if r is None:  # stepped past the hypersonic limit: halve the step
-            mc = 0.5 * (mc + (prev[0] if prev else floor))
-            continue
-        err = r[0] - m0
-        if abs(err) <= _MACH_TOL * m0:
-            break
-        if prev is not None and r[0] != prev[1]:
-            slope = (mc - prev[0]) / (r[0] - prev[1])
-        prev = (mc, r[0])
-        mc = max(mc - slope * err, 0.5 * (mc + floor))
-    return mc, r[1], r[2]
-
-
-@lru_cache(maxsize=16384)
-def _cone_solution_cached(m0: float, cone_deg: float) -> ConeSolution | None:
-    found = _solve(m0, cone_deg)
-    if found is None:
-        return None
-    mc, beta, sol = found
-    return _make_solution(m0, cone_deg, mc, beta, lambda w: tuple(sol.sol(w)))
-
-
-def _make_solution(m0, cone_deg, mc, beta, velocity) -> ConeSolution:
-    pt = _normal_shock_pt(m0 * math.sin(beta))
-    v0 = _speed_from_mach(m0)
-    vc = _speed_from_mach(mc)
-    pc = pt * ((1.0 - vc * vc) / (1.0 - v0 * v0)) ** (GAMMA / (GAMMA - 1.0))
-    return ConeSolution(m0, cone_deg, math.degrees(beta), mc, pt, pc, velocity, v0)
-
-
-_CHEB = 32  # Chebyshev series degree + 1 kept per column of a batch
-_BATCH_MARGIN = 0.004  # rad integrated beyond the estimated shock angle
-
-
-def _outward_batch(theta_c: float, surface_mach: np.ndarray, end: np.ndarray):
-    """Columns integrated together (one ``solve_ivp`` on 2n states): member i runs from the cone to the ray
-    end[i] (rad, just beyond its expected shock) on its own scale w_i = theta_c + s (end_i - theta_c),
-    s in [0, 1]. Returns (M0, beta, Chebyshev coefficients of V_r and V_w on [theta_c, beta], ok)."""
-    n = surface_mach.size
-    span = end - theta_c
-    y0 = np.concatenate([np.array([_speed_from_mach(m) for m in surface_mach]), np.zeros(n)])
-
-    def rhs(s_, y):
-        w = theta_c + s_ * span
-        vr, vw = y[:n], y[n:]
-        a = _G1 * (1.0 - vr * vr - vw * vw)
-        d = a - vw * vw
-        live = d > 1e-3 * a  # past a member's shock its continuation may reach a characteristic: hold it
-        dvw = np.where(live, (vw * vw * vr - a * (2.0 * vr + vw / np.tan(w))) / np.where(live, d, 1.0), 0.0)
-        return np.concatenate([np.where(live, vw, 0.0) * span, dvw * span])
-
-    with np.errstate(all="ignore"):
-        sol = solve_ivp(rhs, (0.0, 1.0), y0, rtol=_RTOL, atol=_ATOL, dense_output=True)
-        if not sol.success:
-            return None
-        grid = np.linspace(0.0, 1.0, 257)
-        y = sol.sol(grid)
-        w = theta_c + grid[None, :] * span[:, None]
-        vr, vw = y[:n], y[n:]
-        f = -vw * vr * np.tan(w) - _K * (1.0 - vr * vr)
-        pos = f > 0.0
-        ok = pos.any(axis=1) & ~pos[:, 0]
-        i1 = np.where(ok, np.argmax(pos, axis=1), 1)
-        i0 = i1 - 1
-        rows = np.arange(n)
-        f0, f1 = f[rows, i0], f[rows, i1]
-        sb = grid[i0] + (grid[i1] - grid[i0]) * f0 / (f0 - f1)
-        for _ in range(4):  # Newton on the dense solution: f(s) = 0
-            yb = sol.sol(sb)
-            vr_b, vw_b = yb[rows, rows], yb[n + rows, rows]
-            wb = theta_c + sb * span
-            a = _G1 * (1.0 - vr_b ** 2 - vw_b ** 2)
-            dvw = (vw_b * vw_b * vr_b - a * (2.0 * vr_b + vw_b / np.tan(wb))) / (a - vw_b * vw_b)
-            fb = -vw_b * vr_b * np.tan(wb) - _K * (1.0 - vr_b ** 2)
-            dfdw = -(dvw * vr_b + vw_b * vw_b) * np.tan(wb) - vw_b * vr_b / np.cos(wb) ** 2 + 2.0 * _K * vr_b * vw_b
-            sb = np.clip(sb - fb / (dfdw * span), 0.0, 1.0)
-        yb = sol.sol(sb)
-        vr_b = yb[rows, rows]
-        beta = theta_c + sb * span
-        v0 = vr_b / np.cos(beta)
-        ok &= np.isfinite(v0) & (v0 < 1.0) & (sb < 1.0)
-        m0 = np.where(ok, _mach_from_speed(np.where(ok, v0, 0.5)), np.nan)
-        # Chebyshev series of V_r, V_w on [theta_c, beta] per member
-        t = np.cos(np.pi * (np.arange(_CHEB) + 0.5) / _CHEB)
-        s_nodes = sb[:, None] * 0.5 * (t[None, :] + 1.0)
-        yn = sol.sol(s_nodes.ravel()).reshape(2 * n, n, _CHEB)
-        vr_n, vw_n = yn[rows, rows], yn[n + rows, rows]  # (n, _CHEB)
-        cheb = np.polynomial.chebyshev
-        c_r = cheb.chebfit(t, vr_n.T, _CHEB - 1).T
-        c_w = cheb.chebfit(t, vw_n.T, _CHEB - 1).T
-    return m0, beta, c_r, c_w, ok
-
-
-def _series(theta_c, beta, c_r, c_w):
-    coef = np.stack([c_r, c_w], axis=1)  # (degree + 1, 2): both series in one Clenshaw recurrence
-
-    def velocity(w):
-        t = 2.0 * (np.asarray(w) - theta_c) / (beta - theta_c) - 1.0
-        vr, vw = np.polynomial.chebyshev.chebval(t, coef)
-        return vr, vw
-    return velocity
-
-
-def solve_columns(flight_mach, cone_half_angle_deg: float) -> None:
-    """Solve every not yet cached attached column of ``flight_mach`` for one cone together: one vectorised
-    ``solve_ivp`` per Newton step on the surface Mach numbers (two or three in all), started from the family
-    table; the results fill the per-column cache of ``cone_solution``. Columns a batch does not settle are
-    left to ``cone_solution``'s own per-column solve. Fewer than four new columns: nothing is done.
-
-    Parameters
-    ----------
-    flight_mach : array_like
-        Flight Mach numbers M0 (dimensionless), any shape.
-    cone_half_angle_deg : float
-        Cone half-angle, deg.
-
-    Examples
-    --------
-    The batch and the single-column solve agree to the column matching (1e-6 in M0):
-
-    >>> import numpy as np
-    >>> solve_columns(np.linspace(1.5, 2.5, 11), 20.0)
-    >>> round(cone_solution(2.0, 20.0).wave_angle_deg, 4)
-    37.7959
-    """
-    cone = round(float(cone_half_angle_deg), _ROUND)
-    if not cone > 0.0:
-        return
-    fam = _family(cone)
-    ms = np.unique(np.round(np.asarray(flight_mach, dtype=float).ravel(), _ROUND))
-    ms = ms[(ms > 1.0) & (ms >= fam.detachment_mach) & (ms <= fam.top_mach)]
-    if len(_BATCH_SOLUTIONS) >= 64 and cone not in _BATCH_SOLUTIONS:  # bounded like the lru caches
-        _BATCH_SOLUTIONS.clear()
-    cached = _BATCH_SOLUTIONS.setdefault(cone, {})
-    ms = np.array([m for m in ms if m not in cached])
-    if ms.size < 4:
-        return
-    th = math.radians(cone)
-    x = np.sqrt(np.maximum(ms - fam.detachment_mach, 0.0))
-    mc = fam.weak(x)
-    beta_est = fam.wave_angle(x)
-    slope = fam.weak(x, 1) / (2.0 * np.maximum(x, 1e-12))
-    todo = np.ones(ms.size, bool)
-    prev = None
-    for _ in range(4):
-        idx = np.nonzero(todo)[0]
-        res = _outward_batch(th, mc[idx], beta_est[idx] + _BATCH_MARGIN)
-        if res is None:
-            return
-        m0, beta, c_r, c_w, ok = res
-        err = m0 - ms[idx]
-        done = ok & (np.abs(err) <= _MACH_TOL * ms[idx])
-        for j in np.nonzero(done)[0]:
-            i = idx[j]
-            cached[float(ms[i])] = _make_solution(float(ms[i]), cone, float(mc[i]), float(beta[j]),
-                                                  _series(th, float(beta[j]), c_r[j], c_w[j]))
-        todo[idx[done]] = False
-        if not todo.any():
-            return
-        move = idx[~done & ok]
-        keep = ~done & ok
-        if prev is not None:
-            pm, pm0 = prev
-            d = m0[keep] - pm0[move]
-            good = np.isfinite(d) & (np.abs(d) > 0.0)
-            slope[move] = np.where(good, (mc[move] - pm[move]) / np.where(good, d, 1.0), slope[move])
-        prev_mc, prev_m0 = mc.copy(), np.full(ms.size, np.nan)
-        prev_m0[idx] = m0
-        prev = (prev_mc, prev_m0)
-        mc[move] = np.maximum(mc[move] - slope[move] * err[keep], 0.5 * (mc[move] + fam.detachment_surface_mach))
-        beta_est[move] = beta[keep]  # the last shock angle found
-        todo[idx[~ok]] = False  # left to the per-column solve
-
-
-_BATCH_SOLUTIONS: dict[float, dict[float, ConeSolution]] = {}
-
-
-def clear_cache() -> None:
-    """Empty every per-column and per-cone cache (for timing from cold).
-
-    Examples
-    --------
-    >>> clear_cache()
-    >>> round(cone_solution(2.0, 20.0).surface_mach, 3)
-    1.568
-    """
-    _BATCH_SOLUTIONS.clear()
-    _family.cache_clear()
-    _cone_solution_cached.cache_clear()
+        _, integral, s_shock = self._lip(lip_ray_deg)
+        return integral, s_shock
 
 
 def cone_solution(flight_mach: float, cone_half_angle_deg: float) -> ConeSolution | None:
@@ -488,10 +385,10 @@ def cone_solution(flight_mach: float, cone_half_angle_deg: float) -> ConeSolutio
     cone = round(float(cone_half_angle_deg), _ROUND)
     if not (m0 > 1.0 and cone > 0.0):
         return None
-    batch = _BATCH_SOLUTIONS.get(cone)
-    if batch is not None and m0 in batch:
-        return batch[m0]
-    return _cone_solution_cached(m0, cone)
+    beta, mc, pt, pc = cone_columns(np.array([m0]), cone)[:4, 0]
+    if not np.isfinite(beta):
+        return None
+    return ConeSolution(m0, cone, math.degrees(beta), float(mc), float(pt), float(pc))
 
 
 @dataclass(frozen=True)
@@ -508,8 +405,7 @@ class ConeFlow:
 def cone_flow(flight_mach, cone_half_angle_deg: float) -> ConeFlow:
     """Wave angle, surface Mach and pressure ratios for one cone at an array of flight Mach numbers.
 
-    The unique Mach numbers of the array are solved once each (``solve_columns``, then ``cone_solution``,
-    cached) and mapped back.
+    The unique Mach numbers of the array are solved together once (``cone_columns``, cached) and mapped back.
 
     Parameters
     ----------
@@ -533,17 +429,7 @@ def cone_flow(flight_mach, cone_half_angle_deg: float) -> ConeFlow:
     """
     m0 = np.asarray(flight_mach, dtype=float)
     uniq, inverse = np.unique(np.round(m0, _ROUND), return_inverse=True)
-    solve_columns(uniq, cone_half_angle_deg)
-    out = np.full((4, uniq.size), np.nan)
-    det = np.zeros(uniq.size, bool)
-    for i, m in enumerate(uniq):
-        if not m > 1.0:
-            continue
-        s = cone_solution(m, cone_half_angle_deg)
-        if s is None:
-            det[i] = True
-            continue
-        out[:, i] = (math.radians(s.wave_angle_deg), s.surface_mach, s.shock_total_pressure_ratio,
-                     s.surface_pressure_ratio)
+    cols = cone_columns(uniq, cone_half_angle_deg)
+    det = (uniq > 1.0) & ~np.isfinite(cols[0])
     inverse = inverse.reshape(m0.shape)
-    return ConeFlow(out[0][inverse], out[1][inverse], out[2][inverse], out[3][inverse], det[inverse])
+    return ConeFlow(cols[0][inverse], cols[1][inverse], cols[2][inverse], cols[3][inverse], det[inverse])

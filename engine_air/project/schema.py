@@ -13,7 +13,6 @@ out), the program's editors (ranges, decimals, tooltips) and the generated file 
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass, replace
 
 from engine_air.spec.check_names import CHECK_NAMES
@@ -429,5 +428,7 @@ def suggestion(name: str, candidates) -> str | None:
     lowered = {c.lower(): c for c in candidates}
     if str(name).lower() in lowered:
         return lowered[str(name).lower()]
+    import difflib  # only when a name is wrong (start-up time)
+
     close = difflib.get_close_matches(str(name), candidates, n=1, cutoff=0.6)
     return close[0] if close else None

@@ -1,0 +1,200 @@
+"""Every speed figure of the README's performance table, one line each, as ratios measured in the same run.
+
+    python bench/run_all.py [--repeats R]
+
+1. start-up: ``engine-air check`` on a copy of sample_projects/subsonic_transport_nacelle.toml with a 3 x 3 grid
+   against ``python -c "import numpy, tomllib"`` (best of R wall times each; goal <= 2x);
+2. cost per point of ``evaluate_conditions`` on a 201 x 201 grid against the numpy floor (bench/numpy_floor.py,
+   pitot) and against the scalar script (bench/scalar_model.py) for pitot and external-ramp (goal >= 100x);
+3. peak resident memory of ``map --csv`` against ``check`` on the two-ramp sample at 401 x 301 (two cases;
+   each in a fresh interpreter; goal <= 1.5x);
+4. the table writer against polars' ``write_csv`` on the same table (the two-ramp map, 401 x 301; goal: at
+   least as fast; polars only for this comparison, skipped when it is not installed);
+5. a cold axisymmetric-spike map (conical caches empty) against the external-ramp map, 401 x 301 (goal <= 1.5x);
+6. the pixel size of ``map --png`` (goal >= 900 x 600, with axes).
+
+Figures are noisy on a shared machine: each is the best of several runs; CPU-time ratios are printed beside
+the wall-time ones where threads do not enter.
+"""
+
+from __future__ import annotations
+
+import argparse
+import dataclasses
+import datetime
+import json
+import pathlib
+import re
+import subprocess
+import sys
+import tempfile
+import time
+
+import numpy as np
+
+HERE = pathlib.Path(__file__).resolve().parent
+ROOT = HERE.parent
+sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(HERE))
+
+from timing import best_time  # noqa: E402
+
+SAMPLES = ROOT / "sample_projects"
+
+
+def _grid_copy(sample: str, nm: int, na: int, folder: pathlib.Path) -> pathlib.Path:
+    text = (SAMPLES / f"{sample}.toml").read_text(encoding="utf-8")
+    text = re.sub(r"(?m)^mach_points\s*=.*$", f"mach_points = {nm}", text)
+    text = re.sub(r"(?m)^altitude_points\s*=.*$", f"altitude_points = {na}", text)
+    path = folder / f"{sample}_{nm}x{na}.toml"
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def _wall(cmd, repeats: int) -> float:
+    best = float("inf")
+    for _ in range(repeats):
+        t = time.perf_counter()
+        subprocess.run(cmd, capture_output=True, cwd=ROOT)
+        best = min(best, time.perf_counter() - t)
+    return best
+
+
+def startup(folder, repeats):
+    tiny = _grid_copy("subsonic_transport_nacelle", 3, 3, folder)
+    bare = _wall([sys.executable, "-c", "import numpy, tomllib"], repeats)
+    check = _wall([sys.executable, "-m", "engine_air.cli", "check", str(tiny)], repeats)
+    print(f"start-up: check 3 x 3 / bare 'import numpy, tomllib' = {check / bare:.2f}x "
+          f"({check * 1e3:.0f} ms / {bare * 1e3:.0f} ms; goal <= 2x)")
+
+
+def per_point(repeats):
+    import scalar_model
+    from numpy_floor import floor_face_margin
+
+    from engine_air.envelope.polygon import grid_axes
+    from engine_air.envelope.conditions import evaluate_conditions
+    from engine_air.project import load_project
+    from engine_air.project.model import Grid
+
+    for sample in ("subsonic_transport_nacelle", "supersonic_two_ramp"):
+        project = load_project(SAMPLES / f"{sample}.toml")
+        project = dataclasses.replace(project, grid=Grid(mach_points=201, altitude_points=201))
+        mach, alt = grid_axes(project.envelope, project.grid)
+        case = project.cases[0]
+        m2, a2 = np.broadcast_arrays(mach[None, :], alt[:, None])
+        evaluate_conditions(project, case, m2, a2)
+        t_vec = best_time(lambda: evaluate_conditions(project, case, m2, a2), repeats) / m2.size
+        rng = np.random.default_rng(1)
+        pts = [(mach[i], alt[j]) for i, j in zip(rng.integers(0, mach.size, 200), rng.integers(0, alt.size, 200))]
+        t_scalar = best_time(lambda: [scalar_model.evaluate_point(project, case, m, h) for m, h in pts], 3) / len(pts)
+        rating = project.rating(case.rating)
+        floor_args = (mach, alt, case.isa_offset_K, np.asarray(rating.theta, float),
+                      np.asarray(rating.corrected_flow_kg_s, float), project.inlet.face_area_m2,
+                      project.limits.face_mach_max)
+        t_floor = best_time(lambda: floor_face_margin(*floor_args), repeats) / m2.size
+        print(f"per point, {project.inlet.type}: {t_vec * 1e9:.0f} ns; scalar script / package = "
+              f"{t_scalar / t_vec:,.0f}x (goal >= 100x); package / numpy floor = {t_vec / t_floor:.1f}x "
+              f"({t_floor * 1e9:.0f} ns per point, bench/numpy_floor.py)")
+
+
+_PEAK = ("import resource, sys, contextlib, io\nsys.path.insert(0, {root!r})\nfrom engine_air.cli import main\n"
+         "with contextlib.redirect_stdout(io.StringIO()):\n    main({argv!r})\n"
+         "print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)")
+
+
+def _peak_kb(argv) -> int:
+    code = _PEAK.format(root=str(ROOT), argv=argv)
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
+    return int(done.stdout.strip().splitlines()[-1])
+
+
+def memory(folder, repeats):
+    big = _grid_copy("supersonic_two_ramp", 401, 301, folder)
+    check = min(_peak_kb(["check", str(big)]) for _ in range(max(1, repeats // 2)))
+    csv = min(_peak_kb(["map", str(big), "--csv", str(folder / "m.csv")]) for _ in range(max(1, repeats // 2)))
+    print(f"map --csv peak RSS / check = {csv / check:.2f}x ({csv / 1024:.0f} MB / {check / 1024:.0f} MB, "
+          f"401 x 301, 2 cases; goal <= 1.5x)")
+    return big
+
+
+def csv_speed(big, folder, repeats):
+    try:
+        import polars as pl
+    except ImportError:
+        print("CSV vs polars: skipped (polars is not installed; pip install polars for this comparison)")
+        return
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.outputs.table import point_table, write_point_table, write_table
+    from engine_air.project import load_project
+
+    result = evaluate_project(load_project(big))
+    table = point_table(result)
+    frame = pl.from_arrow(table)
+    ours = theirs = streamed = float("inf")
+    for _ in range(repeats):  # interleaved, so both see the same machine
+        ours = min(ours, best_time(lambda: write_table(table, folder / "a.csv"), 1))
+        theirs = min(theirs, best_time(lambda: frame.write_csv(folder / "b.csv"), 1))
+        streamed = min(streamed, best_time(lambda: write_point_table(result, folder / "c.csv"), 1))
+    print(f"CSV: polars write_csv / ours on the same table = {theirs / ours:.2f} (>= 1: ours at least as fast; "
+          f"ours {ours * 1e3:.0f} ms, polars {theirs * 1e3:.0f} ms; map's streamed writer from the result "
+          f"{streamed * 1e3:.0f} ms)")
+
+
+def spike_vs_ramp(repeats):
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.physics import conical
+    from engine_air.project import load_project
+    from engine_air.project.model import Grid
+
+    def project(sample):
+        p = load_project(SAMPLES / f"{sample}.toml")
+        return dataclasses.replace(p, grid=Grid(mach_points=401, altitude_points=301))
+
+    ramp, spike = project("supersonic_two_ramp"), project("supersonic_spike_nacelle")
+    evaluate_project(ramp), evaluate_project(spike)
+
+    def best(fn, clock):
+        out = float("inf")
+        for _ in range(repeats):
+            conical.clear_cache()
+            t = clock()
+            fn()
+            out = min(out, clock() - t)
+        return out
+    wall = best(lambda: evaluate_project(spike), time.perf_counter) / best(lambda: evaluate_project(ramp),
+                                                                            time.perf_counter)
+    cpu = best(lambda: evaluate_project(spike), time.process_time) / best(lambda: evaluate_project(ramp),
+                                                                          time.process_time)
+    print(f"cold spike map / ramp map (401 x 301) = {wall:.2f}x wall, {cpu:.2f}x CPU (goal <= 1.5x)")
+
+
+def png_size(folder):
+    import matplotlib.image as mpimg
+
+    out = folder / "map.png"
+    subprocess.run([sys.executable, "-m", "engine_air.cli", "map", str(SAMPLES / "supersonic_two_ramp.toml"),
+                    "--png", str(out)], capture_output=True, cwd=ROOT)
+    h, w = mpimg.imread(out).shape[:2]
+    print(f"map --png: {w} x {h} px (goal >= 900 x 600, with axes)")
+
+
+def main(argv=None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--repeats", type=int, default=5)
+    args = ap.parse_args(argv)
+    print(f"{datetime.date.today()}  python {sys.version.split()[0]}, numpy {np.__version__}; "
+          f"load average {json.dumps(round(__import__('os').getloadavg()[0], 1))}")
+    with tempfile.TemporaryDirectory() as tmp:
+        folder = pathlib.Path(tmp)
+        startup(folder, args.repeats)
+        per_point(args.repeats)
+        big = memory(folder, args.repeats)
+        csv_speed(big, folder, args.repeats)
+        spike_vs_ramp(args.repeats)
+        png_size(folder)
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
