@@ -278,6 +278,22 @@ def test_location_agrees_with_scipy_linear_interpolation():
     expected = reference(m, a)
     assert np.array_equal(np.isnan(expected), ~at.covered)
     assert np.allclose(at.critical_mass_flow_ratio[at.covered], expected[at.covered], rtol=0, atol=1e-12)
+    # in (Mach, alpha, beta): a synthetic table of 27 curves, the same comparison (tetrahedra)
+    from engine_air.characteristics.curves import find_curves
+    from engine_air.characteristics.table import CharacteristicsTable
+
+    grid3 = np.array([(m, al, be) for m in (1.2, 1.6, 2.0) for al in (0.0, 4.0, 8.0) for be in (-3.0, 0.0, 3.0)])
+    crit3 = 0.9 - 0.05 * grid3[:, 0] + 0.003 * grid3[:, 1] ** 2 - 0.01 * np.abs(grid3[:, 2])  # not linear
+    cols = {"mach": np.repeat(grid3[:, 0], 2), "alpha_deg": np.repeat(grid3[:, 1], 2),
+            "beta_deg": np.repeat(grid3[:, 2], 2), "mass_flow_ratio": np.ravel(np.stack([0.6 * crit3, crit3], 1)),
+            "recovery": np.tile([0.9, 0.92], 27)}
+    curves3 = find_curves(CharacteristicsTable("t3", cols))
+    q = np.stack([rng.uniform(1.1, 2.1, 3000), rng.uniform(-0.5, 8.5, 3000), rng.uniform(-3.5, 3.5, 3000)], 1)
+    at3 = locate(curves3, q[:, 0], q[:, 1], q[:, 2])
+    nodes3 = np.stack([curves3.mach, curves3.alpha_deg, curves3.beta_deg], 1)
+    expected3 = LinearNDInterpolator(nodes3, curves3.critical_mass_flow_ratio)(q)
+    assert np.array_equal(np.isnan(expected3), ~at3.covered) and at3.covered.sum() > 1500
+    assert np.allclose(at3.critical_mass_flow_ratio[at3.covered], expected3[at3.covered], rtol=0, atol=1e-12)
     # the same conditions as one row per Mach column of a map give the same weights
     column = locate(curves, m[None, :200], a[None, :200])
     assert np.array_equal(column.critical_mass_flow_ratio[0], at.critical_mass_flow_ratio[:200], equal_nan=True)
