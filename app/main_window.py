@@ -183,6 +183,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         a.setCheckable(checkable)
         a.triggered.connect(slot)
         menu.addAction(a)
+        self.addAction(a)  # its key works while the menu bar is hidden (presentation mode)
         return a
 
     def _build_menus(self) -> None:
@@ -215,6 +216,14 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
 
         v = mb.addMenu("&View")
         self.presentation_action = self._action(v, "&Presentation mode", self.set_presentation, "F5", checkable=True)
+        self.panels_action = self._action(v, "Point &panels (right column)", self.set_panels_shown, "F6",
+                                          checkable=True)
+        self.panels_action.setChecked(True)
+        self.toolbar.addSeparator()
+        self.toolbar.addAction(self.presentation_action)
+        self.toolbar.addAction(self.panels_action)
+        self.presentation_action.setIconText("Presentation (F5)")
+        self.panels_action.setIconText("Point panels (F6)")
         v.addSeparator()
         group = QActionGroup(self)
         self.unit_actions = {}

@@ -11,9 +11,12 @@ At each size the window is grabbed to ``<tmp_path>/<mode>_<w>x<h>.png`` (to look
 - every findings row can be reached: it is inside the findings view or the view scrolls to it.
 
 The shares are a judgement for a chart that carries the message of the screen ("common practice", not a
-standard): the map's plot at least 9 % of a 1280 x 720 window (about 580 x 140 px for the mixed-compression
-sample with its five findings and three-line verdict; 11 % for the two-ramp sample), a sixth from 1600 x 1000
-up. Before this layout presentation mode at 1280 x 720 left it 0 px high.
+standard), set a little under what the layout gives (``min_plot_share``): docked at least 11.5 % of a 1280 x 720
+window (the mixed-compression sample with its five findings and ten legend entries; 14.8 % for the two-ramp
+sample), a fifth from 1600 x 1000 up; presentation mode (the right column put away, the findings a strip, the
+hover readout over the map) 24 % at 1280 x 720 (30 % for the two-ramp sample), 36 % and more from 1600 x 1000
+up. Before the first layout rework
+presentation mode at 1280 x 720 left the plot 0 px high.
 """
 
 from __future__ import annotations
@@ -35,8 +38,13 @@ from gui_support import layout_problems, map_problems, wait_laid_out, window_fac
 SIZES = ((1280, 720), (1600, 1000), (1920, 1080))
 
 
-def min_plot_share(width: int, height: int) -> float:
-    return 0.09 if width * height < 1600 * 1000 else 0.16
+def min_plot_share(width: int, height: int, presentation: bool = False) -> float:
+    """A little under the least share measured over the three samples (before this layout's rework in
+    brackets): docked 0.126 (0.095) at 1280 x 720, 0.223 (0.189) at 1600 x 1000, 0.258 (0.232) at 1920 x 1080
+    (the column as wide as its five tab titles need); presentation 0.259 (0.106), 0.394 (0.198), 0.437 (0.245)."""
+    if presentation:
+        return {1280: 0.24, 1600: 0.36, 1920: 0.40}[width]
+    return {1280: 0.115, 1600: 0.20, 1920: 0.23}[width]
 
 
 @pytest.fixture
@@ -64,7 +72,7 @@ def plot_share(w) -> float:
 
 
 def tab_problems(w) -> list[str]:
-    """Dock tab titles that are elided (their text wider than the tab)."""
+    """Dock tab titles that are elided (the tab narrower than its title and the style's padding need)."""
     from PySide6.QtWidgets import QTabBar
 
     problems = []
@@ -72,8 +80,8 @@ def tab_problems(w) -> list[str]:
         if not bar.isVisible() or bar.parent() is not w:
             continue
         for k in range(bar.count()):
-            need = bar.fontMetrics().horizontalAdvance(bar.tabText(k))
-            if need > bar.tabRect(k).width():
+            need = bar.tabSizeHint(k).width()  # the title and the style's padding around it
+            if need > bar.tabRect(k).width() + 1:
                 problems.append(f"tab {bar.tabText(k)!r} needs {need} px, has {bar.tabRect(k).width()}")
     return problems
 
@@ -125,14 +133,21 @@ def test_layout_is_readable_from_1280x720_to_1920x1080(make_window, qtbot, tmp_p
         settle(w, qtbot, width, height)
         assert w.grab().save(str(tmp_path / f"{name}_{'presentation' if presentation else 'docked'}_{width}x{height}.png"))
         share = plot_share(w)
-        assert share >= min_plot_share(width, height), f"{width} x {height}: map plot {share:.3f} of the window"
+        assert share >= min_plot_share(width, height, presentation), \
+            f"{width} x {height}: map plot {share:.3f} of the window"
         problems = layout_problems(w) + map_problems(w) + tab_problems(w)
+        assert w.findings_dock.isVisible()  # presentation mode: a strip of a few rows, more scroll
+        rows = w.findings.topLevelItemCount()
+        assert rows == len(w.result.summary) and rows > 0
+        problems += findings_reachable(w, qtbot)
+        if presentation:
+            assert not w.panels_shown and not w.menuBar().isVisible()
+            w.set_panels_shown(True)  # the point's views on demand (F6): readable too
+            wait_laid_out(qtbot, w, 100)
+            problems += layout_problems(w) + tab_problems(w)
         problems += plot_tab_problems(w, qtbot)
-        if not presentation:
-            assert w.findings_dock.isVisible()
-            rows = w.findings.topLevelItemCount()
-            assert rows == len(w.result.summary) and rows > 0
-            problems += findings_reachable(w, qtbot)
+        if presentation:
+            w.set_panels_shown(False)
         assert problems == [], f"{width} x {height}: " + "; ".join(problems)
 
 
@@ -172,29 +187,79 @@ def test_presentation_mode_gives_back_the_docks_after_a_change_of_window_size(ma
     w = make_window(SAMPLES / "supersonic_two_ramp.toml")
     settle(w, qtbot, 1600, 1000)
     w.set_presentation(True)
-    assert not w.findings_dock.isVisible() and not w.editor_dock.isVisible()
+    assert w.findings_dock.isVisible() and not w.editor_dock.isVisible() and not w.panels_shown
+    assert not w.menuBar().isVisible() and not w.statusBar().isVisible()
     settle(w, qtbot, 1280, 720)
     assert "13pt" in w.styleSheet() and "22pt" in w.styleSheet()  # the smaller presentation type
     settle(w, qtbot, 1600, 1000)
     assert "15pt" in w.styleSheet() and "28pt" in w.styleSheet()
     w.set_presentation(False)
     qtbot.wait(50)
-    assert w.findings_dock.isVisible() and w.editor_dock.isVisible()
+    assert w.findings_dock.isVisible() and w.editor_dock.isVisible() and w.panels_shown
+    assert w.menuBar().isVisible() and w.statusBar().isVisible()
+    assert all(not w.findings.header().isSectionHidden(c) for c in range(w.findings.header().count()))
 
 
-def test_editor_tab_needs_no_sideways_scrolling(make_window, qtbot, base_font):
+def test_editor_tab_keeps_the_map_in_sight(make_window, qtbot, base_font):
     """With "Edit project" in front the column widens to the editors' widest table (schedule, engine ratings)
-    within its share, at the smallest and the largest size; back on the point's tables it narrows again."""
+    within its share in a large window; in a 1280 x 720 window it keeps the point's width and the widest tables
+    scroll sideways inside the tab (every column reachable), so the map keeps its room. Back on the point's
+    tables the column narrows again."""
     w = make_window(SAMPLES / "supersonic_two_ramp.toml")
     for width, height in ((1280, 720), (1920, 1080)):
         settle(w, qtbot, width, height)
         narrow = w.detail_dock.width()
         w.show_view("editor")
+        area = w.editor_dock.widget()
         for k in range(w.editors.tabs.count()):
             w.editors.tabs.setCurrentIndex(k)
             qtbot.wait(60)
             problems = layout_problems(w)
+            if width < 1500:  # the editors' scroll area may scroll sideways here: all of it within reach
+                problems = [p for p in problems if not p.startswith("scroll area editorScroll")]
+                bar = area.horizontalScrollBar()
+                assert area.widget().width() <= area.viewport().width() + bar.maximum() + 1
             assert problems == [], f"{width} x {height}, {w.editors.tabs.tabText(k)}: " + "; ".join(problems)
-        assert plot_share(w) >= 0.04  # the map stays in sight while editing (a 1280 x 720 window: 0.047)
+        # the map in sight while editing (two-ramp sample at 1280 x 720: 0.115, before 0.063)
+        assert plot_share(w) >= (0.10 if width < 1500 else 0.21), f"{width} x {height}: {plot_share(w):.3f}"
         w.show_view("detail")
         qtbot.waitUntil(lambda: abs(w.detail_dock.width() - narrow) <= 4, timeout=3000)
+
+
+def test_panels_key_and_presentation_key_work_without_the_menu_bar(make_window, qtbot):
+    """In presentation mode the menu bar is hidden: F6 still shows and puts away the right column, F5 still
+    ends presentation mode (the actions belong to the window as well as to the menus)."""
+    from PySide6.QtCore import Qt
+
+    w = make_window(SAMPLES / "supersonic_two_ramp.toml")
+    settle(w, qtbot, 1280, 720)
+    w.activateWindow()
+    w.set_presentation(True)
+    qtbot.wait(50)
+    assert not w.panels_shown and not w.panels_action.isChecked()
+    qtbot.keyClick(w, Qt.Key_F6)
+    assert w.panels_shown and w.detail_dock.isVisible() and not w.editor_dock.isVisible()
+    assert w.panels_action.isChecked()
+    qtbot.keyClick(w, Qt.Key_F6)
+    assert not w.panels_shown
+    qtbot.keyClick(w, Qt.Key_F5)
+    assert not w.presentation and w.menuBar().isVisible() and w.panels_shown
+
+
+def test_hover_readout_over_the_map_when_the_window_is_short(make_window, qtbot, base_font):
+    """At 1280 x 720 (and in presentation mode) the readout has no row of its own: hovering the plot shows its
+    text in a box over the foot of the map, whole (its lines fit), and moving off the plot hides it; at
+    1600 x 1000 docked the readout row is back."""
+    w = make_window(SAMPLES / "supersonic_two_ramp.toml")
+    settle(w, qtbot, 1280, 720)
+    m = w.map
+    assert m.readout_over_map and not m.readout.isVisible()
+    m._on_mouse_moved(m.view.sceneBoundingRect().center())
+    box = m.hover_label
+    assert box.isVisible() and box.text().startswith("M0 ")
+    assert box.height() >= box.heightForWidth(box.width()) and box.geometry().bottom() <= m.canvas.height()
+    assert layout_problems(w) == []
+    m._on_mouse_moved(m.view.sceneBoundingRect().topLeft() - m.view.sceneBoundingRect().center())
+    assert not box.isVisible()
+    settle(w, qtbot, 1600, 1000)
+    assert not m.readout_over_map and m.readout.isVisible()

@@ -157,17 +157,24 @@ class MapLegend:
 
 
     def _fit_legend(self) -> None:
-        """Five or four legend columns when the width allows (few rows leave the plot its height); in a
-        narrow window the legend's type first shrinks (to 85 %, then 75 %), then it drops columns."""
+        """Five or four legend columns when the width allows (few rows leave the plot its height: five columns
+        in type shrunk to 85 % before four in full type); in a narrow window the type shrinks to 75 %, then the
+        legend drops columns."""
         if not getattr(self, "_legend_labels", None):
             return
         room = self.canvas.width() - 30
+        if getattr(self, "_optional_keys", [])[-1:] == ["limiting"]:  # its lines as long as the legend is wide
+            font = QFont()
+            font.setPointSizeF(11 * self._scale)
+            chars = max(40, int(0.9 * room / max(1, QFontMetrics(font).averageCharWidth())))
+            self._legend_texts[-1] = limiting_text(self.limiting_labels, chars)
         key = (tuple(self._legend_texts), room, self._scale)
         if key == getattr(self, "_legend_fit_key", None):
             return  # the same texts in the same room: laid out already (a new result must not re-lay it)
         self._legend_fit_key = key
         full = 11 * self._scale
-        tries = [(n, f * full) for f in (1.0, 0.85) for n in (5, 4)] + [(n, 0.75 * full) for n in (5, 4, 3, 2, 1)]
+        tries = [(5, full), (5, 0.85 * full), (4, full), (4, 0.85 * full)]  # few rows first: the plot's height
+        tries += [(n, 0.75 * full) for n in (5, 4, 3, 2, 1)]
         before = getattr(self, "_legend_shown", None)
         moved = False  # LegendItem.setColumnCount puts the legend at (0, 0) until the scene is laid out again
         for n, pt in tries:

@@ -18,7 +18,8 @@ are hatched and outlined, and the self-start and unstart Mach numbers are
 vertical lines with the hysteresis band between them shaded.
 
 Hovering shows Mach, altitude, value and the limiting check in the readout
-line; a click selects the nearest grid point (``pointSelected(i, j)``).
+line (in presentation mode and a short window in a box over the foot of the map, so that the plot keeps the
+readout's row); a click selects the nearest grid point (``pointSelected(i, j)``).
 """
 
 from __future__ import annotations
@@ -163,6 +164,10 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         self.state_label.setObjectName("mapState")
         self.state_label.setAlignment(Qt.AlignCenter)
         self.state_label.hide()
+        self.hover_label = QLabel(self.canvas)  # presentation mode's readout, over the foot of the map
+        self.hover_label.setObjectName("mapHover")
+        self.hover_label.setWordWrap(True)
+        self.hover_label.hide()
         self.empty_label = QLabel(self.canvas)
         self.empty_label.setAlignment(Qt.AlignCenter)
         self.empty_label.setWordWrap(True)
@@ -308,6 +313,19 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         if self._result is not None:
             self.show_result(self._result, self._case, self._key, self._units)
 
+    def set_readout_over_map(self, on: bool) -> None:
+        """The hover readout without a row of its own below the map (presentation mode, a short window: the
+        plot gets its height): shown in a box over the foot of the map while the pointer is on the plot."""
+        on = bool(on)
+        if on != self.readout.isHidden():
+            self.readout.setVisible(not on)
+        if not on:
+            self.hover_label.hide()
+
+    @property
+    def readout_over_map(self) -> bool:
+        return self.readout.isHidden()
+
     def hover_text_at(self, i: int, j: int) -> str:
         """The readout for grid point (i, j)."""
         r = self._result
@@ -380,6 +398,8 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         if hasattr(self, "_legend_labels"):
             self._update_legend_text()
         self.readout.setStyleSheet(f"font-size: {12 * s:.0f}pt; padding: 4px; color: black; background: #f2f2f2;")
+        self.hover_label.setStyleSheet(f"font-size: {12 * s:.0f}pt; padding: 4px; color: black; "
+                                       "background: rgba(242,242,242,240); border: 1px solid #333;")
         # the readout wraps instead of widening the window; two lines reserved, so hovering never resizes the map
         font = QFont(self.readout.font())
         font.setPointSizeF(12 * s)
@@ -452,6 +472,27 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         idx = self._grid_index_at_scene(scene_pos)
         if idx is not None:
             self.readout.setText(self.hover_text_at(*idx))
+        if self.readout_over_map:
+            self._show_hover(None if idx is None else self.readout.text())
+
+    def _show_hover(self, text: str | None) -> None:
+        """The readout's text in a box across the foot of the canvas (over the legend), or no box when the
+        pointer is off the plot (``set_readout_over_map``)."""
+        lab = self.hover_label
+        if not text:
+            lab.hide()
+            return
+        lab.setText(text)
+        width = max(200, self.canvas.width() - 16)
+        lab.setFixedWidth(width)
+        lab.setFixedHeight(lab.heightForWidth(width))
+        lab.move(8, max(0, self.canvas.height() - lab.height() - 8))
+        lab.show()
+        lab.raise_()
+
+    def leaveEvent(self, event) -> None:  # noqa: N802 - Qt override
+        super().leaveEvent(event)
+        self.hover_label.hide()
 
     def _on_mouse_clicked(self, event) -> None:
         if event.button() != Qt.LeftButton:

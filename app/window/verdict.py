@@ -5,12 +5,21 @@ from __future__ import annotations
 import html
 
 from PySide6.QtCore import Qt
+from PySide6.QtGui import QFont, QFontMetrics
 from PySide6.QtWidgets import QLabel
 
 from .. import style
 from ..views import analysis
 
 STATES = ("holds", "fails", "busy", "stale")
+
+
+def _line_height(pt: float, bold: bool = False) -> int:
+    """One line of the banner's type at ``pt`` points (its font's line spacing)."""
+    font = QFont()
+    font.setPointSizeF(pt)
+    font.setBold(bold)
+    return QFontMetrics(font).lineSpacing()
 
 
 class VerdictBanner(QLabel):
@@ -73,7 +82,7 @@ class VerdictBanner(QLabel):
         big = style.banner_pt(self.presentation, self.small_window)
         small = style.presentation_pt(self.small_window) + 3 if self.presentation else style.BASE_PT + 1
         pad = 10 if self.presentation else 6
-        height = int(1.45 * (big + small) * 96 / 72) + 2 * pad + 4
+        height = _line_height(big, bold=True) + _line_height(small) + 2 * pad + 12  # 12: the text's margins
         if self._sized_text and self.width() > 0:
             shown = self.text()
             if shown != self._sized_text:
