@@ -173,11 +173,11 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         )
     if limits.spillage_fraction_max is not None:
         cap = limits.spillage_fraction_max
+        spill = points.spillage_fraction  # computed when read: once
         checks.append(
             _check(
                 "spillage", "Spillage fraction", f"spillage <= {cap:g}",
-                points.spillage_fraction, cap - points.spillage_fraction, max(cap, 0.01),
-                inside & np.isfinite(points.spillage_fraction),
+                spill, cap - spill, max(cap, 0.01), inside & np.isfinite(spill),
             )
         )
     started = getattr(points, "started", None)
