@@ -106,6 +106,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self.point_views = PointViews(self)  # the sketch and the sections: after the map, only when shown
         self.point_views.add("sketch", self.sketch_dock, self._draw_sketch)
         self.point_views.add("sections", self.sections_dock, self._draw_sections)
+        self.point_views.add("characteristic", self.characteristic_dock, self._draw_characteristic)
         self._after_map_paint = AfterPaint(self.map.canvas.viewport(), parent=self)
         self._deferring = False
         self.setStyleSheet(style.stylesheet(False))
@@ -129,6 +130,8 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self.document.stateChanged.connect(self._sync_recovery)
         self.recovery.reported.connect(self._on_recovery_report)
 
+        self.editors.project_path = self.document.path
+        self.document.stateChanged.connect(lambda: setattr(self.editors, "project_path", self.document.path))
         self.editors.set_project(self.document.project)
         self._update_title()
         self.recompute()
@@ -198,6 +201,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self._action(ex, "Map as &SVG…", lambda: self._export_dialog("svg"))
         self._action(ex, "Sections as P&NG…", lambda: self._export_dialog("sections-png"))
         self._action(ex, "Sections as S&VG…", lambda: self._export_dialog("sections-svg"))
+        self._action(ex, "C&haracteristic as PNG…", lambda: self._export_dialog("characteristic-png"))
         self._action(ex, "Grid as &CSV (every point, every case)…", lambda: self._export_dialog("csv"))
         self._action(ex, "&Findings as text…", lambda: self._export_dialog("txt"))
         f.addSeparator()
@@ -316,7 +320,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         """The newest request's result is on the map and in every panel."""
         return (self.result is not None and self.result_generation == self.runner.generation
                 and self.panels_generation == self.result_generation and not self.runner.busy
-                and not self.point_views.pending)
+                and not self.point_views.pending and not self.characteristic.busy)
 
     def _on_failed(self, gen: int, message: str) -> None:
         self._busy_timer.stop()
@@ -419,6 +423,18 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
                              f"{self.units.to_display('altitude', float(self.result.altitude_m[i])):,.0f} "
                              f"{self.units.label('altitude')} (case “{case}”)")
 
+    def _draw_characteristic(self) -> None:
+        """The characteristic at the selected point's Mach and its neighbours, for the window's newest state
+        (computed on the view's worker: ``app.views.characteristic_view``)."""
+        sel = self.map.selected()
+        if self.result is None or sel is None:
+            return
+        i, j = sel
+        case = analysis.case_at(self.result, self.current_case(), (i, j))
+        mach, altitude = float(self.result.mach[j]), float(self.result.altitude_m[i])
+        self.characteristic.request(self.result.project, case, mach, altitude,
+                                    f"M0 = {mach:.2f} and neighbours<br>case “{case}”")
+
     def _draw_sections(self) -> None:
         """The cuts through the selected point as the window shows it now."""
         sel = self.map.selected()
@@ -514,6 +530,7 @@ class MainWindow(FileActions, AutosaveActions, WindowLayout, QMainWindow):
         self._shutdown = True
         self.autosave_timer.stop()
         self.runner.shutdown()
+        self.characteristic.worker.shutdown()
         self.recovery.close(remove=True)  # a clean close: saved or discarded
         event.accept()
 

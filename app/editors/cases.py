@@ -1,5 +1,7 @@
-"""The "Cases" tab: case name, rating, ISA offset and the optional region where the case is judged
-(``mach_range``, ``altitude_range_m``: two cells each, both blank for no bound).
+"""The "Cases" tab: case name, rating, ISA offset, the optional region where the case is judged
+(``mach_range``, ``altitude_range_m``: two cells each, both blank for no bound) and the incidence (angle of attack
+and sideslip, method §17: a number of degrees, blank for none; a Mach table from the file is shown as
+"table: N Mach numbers" and kept unless a number is typed over it).
 
 A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``, ``apply_now``,
 ``show_error``, ``_field_spin``) of ``app.editors.pipeline.EditPipeline``.
@@ -7,6 +9,7 @@ A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``,
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 
 from PySide6.QtWidgets import (
@@ -29,6 +32,34 @@ from .widgets import CellError, cell_si, make_table, number_item, range_cells
 
 
 REGION_HEADERS = ("M0 from", "M0 to", "H from", "H to")
+INCIDENCE_HEADERS = ("α (deg)", "β (deg)")
+INCIDENCE_KEYS = ("angle_of_attack_deg", "sideslip_deg")
+
+
+def incidence_text(value) -> str:
+    """A case's incidence as the cell shows it: blank (none), the number, or "table: N Mach numbers"."""
+    if value is None:
+        return ""
+    if isinstance(value, tuple):
+        return f"table: {len(value[0])} Mach numbers"
+    return f"{float(value):g}"
+
+
+def incidence_cell(table, row: int, col: int, old, what: str):
+    """The incidence in a cell: the old value while its text is unchanged, None when blank, else the number."""
+    item = table.item(row, col)
+    text = "" if item is None else item.text().strip()
+    if text == incidence_text(old):
+        return old
+    if not text:
+        return None
+    try:
+        value = float(text.replace(",", "."))
+    except ValueError:
+        raise CellError(f"row {row + 1}, {what}: {text!r} is not a number of degrees (blank: none)") from None
+    if not math.isfinite(value):
+        raise CellError(f"row {row + 1}, {what}: {text!r} is not a finite number")
+    return value
 
 
 class CasesTab:
@@ -37,7 +68,8 @@ class CasesTab:
     def _build_cases(self) -> None:
         w = QWidget()
         lay = QVBoxLayout(w)
-        self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT", *REGION_HEADERS])
+        self.case_table = make_table(["Case name", "Engine rating", "ISA offset ΔT", *REGION_HEADERS,
+                                      *INCIDENCE_HEADERS])
         self.case_table.cellChanged.connect(lambda _r, _c: self._cases_changed())
         self.case_table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)  # long names wrap
         for c, key in ((3, "mach_range"), (4, "mach_range"), (5, "altitude_range_m"), (6, "altitude_range_m")):
@@ -45,10 +77,14 @@ class CasesTab:
                 tooltip(S.field(f"case.{key}")) + "\nLeave both cells blank for no limit on this axis.")
         for c, key in ((0, "name"), (1, "rating"), (2, "isa_offset_K")):
             self.case_table.horizontalHeaderItem(c).setToolTip(tooltip(S.field(f"case.{key}")))
+        for c, key in ((7, "angle_of_attack_deg"), (8, "sideslip_deg")):
+            self.case_table.horizontalHeaderItem(c).setToolTip(
+                f"{key}: the case's incidence in degrees (picks the measured characteristics' curve); blank: "
+                "none. A Mach table from the file is kept unless you type a number over it.")
         lay.addWidget(self.case_table, 1)
         note = QLabel("Region (optional): the case is judged only for M0 and altitude inside these bounds "
                       "(included); outside it its points are computed, shown grey and judged by no check. Blank "
-                      "cells: no bound on that axis.")
+                      "cells: no bound on that axis. α, β: the case's incidence (blank: none).")
         note.setWordWrap(True)
         lay.addWidget(note)
         buttons = QHBoxLayout()
@@ -65,7 +101,8 @@ class CasesTab:
         t.blockSignals(True)
         t.setHorizontalHeaderLabels(["Case name", "Engine rating",
                                      u.with_unit("ISA offset ΔT", "temperature_difference"), "M0 from", "M0 to",
-                                     u.with_unit("H from", "altitude"), u.with_unit("H to", "altitude")])
+                                     u.with_unit("H from", "altitude"), u.with_unit("H to", "altitude"),
+                                     *INCIDENCE_HEADERS])
         t.setRowCount(len(p.cases))
         names = [r.name for r in p.ratings]
         for k, c in enumerate(p.cases):
@@ -80,12 +117,15 @@ class CasesTab:
                 for j in range(2):
                     t.setItem(k, col + j, number_item(values[j], dim, u) if values is not None
                               else QTableWidgetItem(""))
+            for col, key in ((7, "angle_of_attack_deg"), (8, "sideslip_deg")):
+                t.setItem(k, col, QTableWidgetItem(incidence_text(getattr(c, key))))
         t.blockSignals(False)
 
     def _cases_changed(self) -> None:
         if self._loading:
             return
         t, u = self.case_table, self._units
+        old = self._project.cases if self._project is not None else ()
         try:
             cases = []
             for r in range(t.rowCount()):
@@ -95,7 +135,11 @@ class CasesTab:
                 dt = cell_si(t, r, 2, "temperature_difference", u, "ISA offset")
                 mach = range_cells(t, r, 3, "none", u, "Mach range")
                 alt = range_cells(t, r, 5, "altitude", u, "altitude range")
-                cases.append(Case(name=name, rating=rating, isa_offset_K=dt, mach_range=mach, altitude_range_m=alt))
+                base = old[r] if r < len(old) else Case(name=name, rating=rating)
+                alpha = incidence_cell(t, r, 7, base.angle_of_attack_deg, "angle of attack")
+                beta = incidence_cell(t, r, 8, base.sideslip_deg, "sideslip")
+                cases.append(replace(base, name=name, rating=rating, isa_offset_K=dt, mach_range=mach,
+                                     altitude_range_m=alt, angle_of_attack_deg=alpha, sideslip_deg=beta))
         except CellError as exc:
             self.show_error(str(exc))
             return

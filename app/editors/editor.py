@@ -42,6 +42,7 @@ class ProjectEditors(EditPipeline, GeneralTab, InletTab, ScheduleTab, LimitsTab,
         self._pending: list = []
         self._timer = Debouncer(DEBOUNCE_MS, self.flush, self)
         self._loading = False
+        self.project_path = None  # the project file (the characteristics table is named relative to it)
 
         self.error = QLabel("")
         self.error.setObjectName("editorError")

@@ -59,3 +59,31 @@ def failing_count(result) -> tuple[int, int]:
     """(checks failing, checks judged somewhere) over the summary; a check judged nowhere is in neither."""
     judged = [s for s in result.summary if s.holds is not None]
     return sum(1 for s in judged if not s.holds), len(judged)
+
+
+def source_text(project, case, record: dict) -> str:
+    """Plain text: where the point's recovery, MFR_max and stability come from (measured characteristics or the
+    model, method §17), and the case's incidence when it gives one ("incidence not modelled" where flagged)."""
+    from pathlib import Path
+
+    curves = getattr(project, "characteristics", None)
+    table = getattr(curves, "table", None)
+    what = "Recovery, MFR_max and stability: "
+    if curves is None:
+        line = what + "model (no characteristics table)"
+    elif record.get("data_source") == "data":
+        name = Path(table.path).name if table is not None and getattr(table, "path", None) else "in the project"
+        line = what + f"measured characteristics (table {name})"
+    else:
+        line = what + "model (outside the tested conditions)"
+    given = case is not None and (case.angle_of_attack_deg is not None or case.sideslip_deg is not None)
+    if given:
+        alpha, beta = record.get("angle_of_attack_deg"), record.get("sideslip_deg")
+        line += f"\nIncidence: alpha = {_deg(alpha)}, beta = {_deg(beta)}"
+    if "incidence-not-modelled" in record.get("flags", ()):
+        line += ("; " if given else "\n") + "incidence not modelled (the model's numbers are for zero incidence)"
+    return line
+
+
+def _deg(value) -> str:
+    return "—" if value is None or not np.isfinite(value) else f"{float(value):.1f}°"

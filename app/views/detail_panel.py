@@ -28,6 +28,7 @@ from engine_air.outputs import point_record as report
 from engine_air.outputs.ledger_table import NO_THRUST_DATA, has_thrust, ledger_rows
 
 from ..units import Units, group_digits
+from . import analysis
 
 SI_ROLE = Qt.UserRole + 1
 
@@ -240,6 +241,10 @@ class DetailPanel(QScrollArea):
         self.flags_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
         self.regime_label = QLabel("")
         self.regime_label.setWordWrap(True)
+        self.source_label = QLabel("")  # measured characteristics or the model (method §17), the incidence
+        self.source_label.setObjectName("dataSource")
+        self.source_label.setWordWrap(True)
+        self.source_label.setTextInteractionFlags(Qt.TextSelectableByMouse)
 
         def heading(text):
             h = QLabel(text)
@@ -249,6 +254,7 @@ class DetailPanel(QScrollArea):
 
         lay.addWidget(self.stale_label)
         lay.addWidget(self.header)
+        lay.addWidget(self.source_label)
         lay.addWidget(heading("Limits at this point"))
         lay.addWidget(self.checks)
         lay.addWidget(heading("Stations (SAE AS755 numbering)"))
@@ -378,6 +384,7 @@ class DetailPanel(QScrollArea):
         self.header.setText("No point selected. Click the map to select a flight condition.")
         self.flags_label.setText("")
         self.regime_label.setText("")
+        self.source_label.setText("")
 
     def show_point(self, result, case_name: str, index: tuple[int, int]) -> None:
         """Show grid point ``index`` (row, column) of case ``case_name`` from ``result``."""
@@ -391,6 +398,7 @@ class DetailPanel(QScrollArea):
         rating = result.project.rating(case.rating) if case is not None else None
         self._ledger = ledger_rows(self._record, getattr(rating, "recovery_thrust_exchange", None))
         self._inside = bool(result.inside[self._index])
+        self.source_label.setText(analysis.source_text(result.project, case, self._record))
         self._fill()
 
     def _fill(self) -> None:

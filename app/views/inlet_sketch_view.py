@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 import pyqtgraph as pg
+from PySide6.QtWidgets import QSizePolicy
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QFont
 
@@ -71,9 +72,10 @@ class InletSketchView(pg.PlotWidget):
         # covers the geometry; the unit note below it, beside the bottom axis
         self.legend = pg.LegendItem(colCount=2, labelTextColor=INK, labelTextSize=f"{FONT_PT}pt",
                                     verSpacing=-6, horSpacing=6)
-        item.layout.addItem(self.legend, 2, 3)
+        self.legend.setSizePolicy(QSizePolicy.Preferred, QSizePolicy.Maximum)  # rows keep their own height
         self.unit_note = pg.LabelItem("", color="#191919", size=f"{FONT_PT}pt", justify="left")
-        item.layout.addItem(self.unit_note, 3, 3)
+        self._legend_place = None
+        self._place_legend(beside=True)
         self.sketch: InletSketch | None = None
         self.curves: dict[str, pg.PlotDataItem] = {}
         self.texts: list[pg.TextItem] = []
@@ -147,6 +149,30 @@ class InletSketchView(pg.PlotWidget):
         return float(np.degrees(np.arctan2(y[-1] - y[0], x[-1] - x[0])))
 
     # -- inside ---------------------------------------------------------------------------------------------
+    def resizeEvent(self, event) -> None:  # noqa: N802 (Qt naming)
+        """Wide and low (docked under the map): the legend in a column right of the drawing; tall (a tab of its
+        own): in rows under it, so that it never spreads down the whole height."""
+        super().resizeEvent(event)
+        if "_legend_place" in self.__dict__:  # not while the plot itself is being built
+            self._place_legend(beside=self.width() > 1.4 * self.height())
+
+    def _place_legend(self, beside: bool) -> None:
+        if self._legend_place == beside:
+            return
+        layout = self.getPlotItem().layout
+        if self._legend_place is not None:
+            layout.removeItem(self.legend)
+            layout.removeItem(self.unit_note)
+        if beside:
+            self.legend.setColumnCount(2)
+            layout.addItem(self.legend, 2, 3)
+            layout.addItem(self.unit_note, 3, 3)
+        else:
+            self.legend.setColumnCount(3)
+            layout.addItem(self.legend, 4, 1)
+            layout.addItem(self.unit_note, 5, 1)
+        self._legend_place = beside
+
     def _clear(self) -> None:
         self.clear()
         self.legend.clear()

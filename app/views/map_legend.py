@@ -15,7 +15,8 @@ from PySide6.QtGui import QFont, QFontMetrics
 from engine_air.outputs.quantities import QUANTITIES
 
 from .colour_maps import NOT_JUDGED_GREY
-from .map_overlays import HATCH, LEAST_MARGIN, OUTSIDE_GREY, START_COLOUR, UNSTART_COLOUR, UNSTARTED_COLOUR
+from .map_overlays import (DATA_COLOUR, HATCH, LEAST_MARGIN, OUTSIDE_GREY, START_COLOUR, UNSTART_COLOUR,
+                           UNSTARTED_COLOUR)
 
 
 def limiting_text(labels: list[str], line_chars: int = 70) -> str:
@@ -76,6 +77,8 @@ class MapLegend:
                 out.append(("band", "hysteresis: started only if reached from above"))
             else:
                 out.append(("self-start", f"self-start = unstart M0 {start:.3f}"))
+        if self.data_count is not None:
+            out.append(("data", "data back the verdict here" + ("" if self.data_count else " (nowhere)")))
         if self._key == LEAST_MARGIN:  # last: it gets a row of its own across the legend (``_span_limiting``)
             out.append(("limiting", limiting_text(self.limiting_labels)))
         return out
@@ -97,6 +100,8 @@ class MapLegend:
                 item = pg.PlotDataItem(pen=pg.mkPen(START_COLOUR, width=3.0, style=Qt.DashLine))
             elif entry == "unstart":
                 item = pg.PlotDataItem(pen=pg.mkPen(UNSTART_COLOUR, width=3.0, style=Qt.DashDotLine))
+            elif entry == "data":
+                item = pg.PlotDataItem(pen=pg.mkPen(DATA_COLOUR, width=3.0, style=Qt.DashLine))
             else:  # a text entry
                 item = pg.PlotDataItem(pen=None)
             samples[entry] = item

@@ -26,6 +26,7 @@ LEAST_MARGIN = "worst_relative_margin"
 UNSTARTED_COLOUR = (200, 0, 200)  # the unstarted region's hatch and outline (magenta: seen on both arms)
 START_COLOUR = (0, 130, 130)  # the self-start Mach line (teal)
 UNSTART_COLOUR = (180, 110, 0)  # the unstart Mach line
+DATA_COLOUR = (0, 150, 60)  # the outline of the points where measured characteristics back the verdict
 
 
 def _hatch_symbol():
@@ -39,6 +40,16 @@ def _hatch_symbol():
 
 
 HATCH = _hatch_symbol()
+
+
+def _padded(x, y, mask):
+    """The grid widened by one step on each side, ``mask`` as 0/1 with 0 in the new border: its 0.5 line closes."""
+    def wider(v):
+        v = np.asarray(v, float)
+        step = (v[-1] - v[0]) / (len(v) - 1) if len(v) > 1 else 1.0
+        return np.concatenate([[v[0] - step], v, [v[-1] + step]])
+
+    return wider(x), wider(y), np.pad(np.asarray(mask, float), 1)
 
 
 class MapOverlays:
@@ -124,6 +135,33 @@ class MapOverlays:
         self.hysteresis_band.setVisible(band)
         if band:
             self.hysteresis_band.setRegion((float(unstart), float(start)))
+
+    def _draw_data_region(self, result, case) -> None:
+        """Measured characteristics (method §17): the grid points flagged ``from-data`` outlined (dashed green),
+        only for a project with a characteristics table; for the worst of all cases, where any case is."""
+        if getattr(result.project, "characteristics", None) is None:
+            self.data_count = None
+            self.data_outline.setData([], [])
+            return
+        cases = result.cases if case == WORST else [result.case_map(case)]
+        from_data = np.zeros(result.inside.shape, bool)
+        for c in cases:
+            from_data |= (np.asarray(c.points.flags).astype(np.int64) & F.FROM_DATA) != 0
+        from_data &= np.asarray(result.inside, bool)
+        self.data_count = int(from_data.sum())
+        xs, ys = iso_line(*_padded(self._x, self._y, from_data), 0.5)  # closed round the region, also at the grid's edge
+        self.data_outline.setData(xs, ys)
+        self.data_outline.setPen(self._pen(DATA_COLOUR, 3.2, Qt.DashLine))
+
+    def data_mask(self) -> np.ndarray | None:
+        """(ny, nx) bool: the points outlined as backed by data, or None without a characteristics table."""
+        if self._result is None or self.data_count is None:
+            return None
+        cases = self._result.cases if self._case == WORST else [self._result.case_map(self._case)]
+        out = np.zeros(self._result.inside.shape, bool)
+        for c in cases:
+            out |= (np.asarray(c.points.flags).astype(np.int64) & F.FROM_DATA) != 0
+        return out & np.asarray(self._result.inside, bool)
 
     def _draw_outline(self, project) -> None:
         env = project.envelope

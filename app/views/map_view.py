@@ -120,8 +120,10 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         self.unstart_line = pg.InfiniteLine(angle=90, movable=False)
         self.unstarted_outline = pg.PlotDataItem(connect="finite")
         self.unstarted_hatch = pg.ScatterPlotItem()
+        self.data_outline = pg.PlotDataItem(connect="finite")  # where measured characteristics decide
+        self.data_count = None  # grid points flagged from-data (None: the project has no characteristics table)
         for z, item in enumerate((self.self_start_line, self.unstart_line, self.unstarted_outline,
-                                  self.unstarted_hatch)):
+                                  self.unstarted_hatch, self.data_outline)):
             item.setZValue(0.5 + 0.01 * z)
             self.plot.addItem(item)
         self.starting_machs = (None, None)
@@ -146,6 +148,7 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
                                   self.fail_marks, self.selection)):
             item.setZValue(z)
             self.plot.addItem(item)
+        self.data_outline.setZValue(0.5)  # over the envelope's outline where they meet, under the margin lines
 
         self.legend = pg.LegendItem(colCount=4, labelTextColor="k", brush=pg.mkBrush(255, 255, 255, 230),
                                     pen=pg.mkPen("#888888"))
@@ -243,6 +246,7 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         self._draw_not_judged(result, case, key, q.kind, values)
         self._draw_outline(result.project)
         self._draw_starting(result, case)
+        self._draw_data_region(result, case)
         self._draw_zero_line(result, case, key, q.kind, values)
         self._draw_ram_line(result, case)
         self._draw_fail_marks(result, case)

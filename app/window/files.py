@@ -206,10 +206,10 @@ class FileActions:
             return
         stem = Path(self.document.display_name).stem
         filters = {"png": "PNG image (*.png)", "svg": "SVG drawing (*.svg)", "csv": "CSV table (*.csv)",
-                   "txt": "Text (*.txt)", "sections-png": "PNG image (*.png)", "sections-svg": "SVG drawing (*.svg)"}
+                   "txt": "Text (*.txt)", "sections-png": "PNG image (*.png)", "sections-svg": "SVG drawing (*.svg)", "characteristic-png": "PNG image (*.png)"}
         suggested = {"png": f"{stem}_map.png", "svg": f"{stem}_map.svg", "csv": f"{stem}_grid.csv",
                      "txt": f"{stem}_findings.txt", "sections-png": f"{stem}_sections.png",
-                     "sections-svg": f"{stem}_sections.svg"}[kind]
+                     "sections-svg": f"{stem}_sections.svg", "characteristic-png": f"{stem}_characteristic.png"}[kind]
         folder = self.document.path.parent if self.document.path else Path.cwd()
         path, _ = QFileDialog.getSaveFileName(self, "Export", str(folder / suggested), filters[kind])
         if path:
@@ -224,6 +224,7 @@ class FileActions:
             "csv": lambda: exports.write_grid_csv(self.result, path, inputs),
             "sections-png": lambda: self.export_sections(path, inputs),
             "sections-svg": lambda: self.export_sections(path, inputs),
+            "characteristic-png": lambda: self.export_characteristic(path, inputs),
             "txt": lambda: exports.write_findings_text(self.result, self.units, path, self.document.project.title,
                                                        self.document.display_name, inputs),
         }

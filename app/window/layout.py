@@ -1,9 +1,9 @@
 """The window's layout: the map in the middle, the selected point's views as tabs on the right, the findings below.
 
 - Right column: one tab per view of the selected point ("Selected point" tables, "Inlet" sketch, "Sections",
-  "Edit project"), each with the column's full height (they no longer share it three ways). Any tab can be
+  "Characteristic", "Edit project"), each with the column's full height (they no longer share it three ways). Any tab can be
   pulled out as its own window (the float button in its title bar, or a double click on the title) for a larger
-  view on demand, and put back the same way. View → "Show …" (Alt+1…4) raises a tab.
+  view on demand, and put back the same way. View → "Show …" (Alt+1…5) raises a tab.
 - Width: the column is as wide as the shown tab needs (the point's tables, the editors' tables), between
   ``COLUMN_MIN_SHARE`` and ``COLUMN_MAX_SHARE`` of the window's width (``EDITOR_MAX_SHARE`` while editing), so
   the map keeps the rest.
@@ -21,6 +21,7 @@ from __future__ import annotations
 from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QDockWidget, QFrame, QScrollArea, QTabWidget
 
+from ..views.characteristic_view import CharacteristicView
 from ..views.detail_panel import DetailPanel
 from ..views.findings import FindingsList
 from ..views.inlet_sketch_view import InletSketchView
@@ -35,7 +36,8 @@ FINDINGS_MAX_SHARE = 0.28
 FINDINGS_MAX_SHARE_SHORT = 0.18  # four rows and the header in a 720 px window; more rows scroll
 SHORT_WINDOW = 800
 FINDINGS_MIN_ROWS = 4  # shown without scrolling whenever the findings have that many
-TAB_TITLES = {"detail": "Selected point", "sketch": "Inlet", "sections": "Sections", "editor": "Edit project"}
+TAB_TITLES = {"detail": "Selected point", "sketch": "Inlet", "sections": "Sections",
+              "characteristic": "Characteristic", "editor": "Edit project"}
 
 
 class WindowLayout:
@@ -48,10 +50,12 @@ class WindowLayout:
         self.detail = DetailPanel()
         self.sketch = InletSketchView()  # it draws itself readably (app.views.inlet_sketch_view); hosted here
         self.sections = SectionPlots()
+        self.characteristic = CharacteristicView()
         self.editors = ProjectEditors()
         self.detail_dock = self._dock("detail", "detailDock", self.detail)
         self.sketch_dock = self._dock("sketch", "sketchDock", self.sketch)
         self.sections_dock = self._dock("sections", "sectionsDock", self.sections)
+        self.characteristic_dock = self._dock("characteristic", "characteristicDock", self.characteristic)
         editor_scroll = QScrollArea()  # so the editors' widest table never sets the whole column's minimum
         editor_scroll.setObjectName("editorScroll")
         editor_scroll.setWidgetResizable(True)
@@ -59,7 +63,7 @@ class WindowLayout:
         editor_scroll.setWidget(self.editors)
         self.editor_dock = self._dock("editor", "editorDock", editor_scroll)
         self.addDockWidget(Qt.RightDockWidgetArea, self.detail_dock)
-        for dock in (self.sketch_dock, self.sections_dock, self.editor_dock):
+        for dock in (self.sketch_dock, self.sections_dock, self.characteristic_dock, self.editor_dock):
             self.tabifyDockWidget(self.detail_dock, dock)
         self.detail_dock.raise_()
         self.findings = FindingsList()
@@ -79,14 +83,14 @@ class WindowLayout:
     @property
     def view_docks(self) -> dict[str, QDockWidget]:
         return {"detail": self.detail_dock, "sketch": self.sketch_dock, "sections": self.sections_dock,
-                "editor": self.editor_dock}
+                "characteristic": self.characteristic_dock, "editor": self.editor_dock}
 
     def show_view(self, name: str) -> None:
         """Show the right column's tab ``name`` ("detail", "sketch", "sections", "editor"), drawn up to date."""
         dock = self.view_docks[name]
         dock.show()
         dock.raise_()
-        if name in ("sketch", "sections"):
+        if name in ("sketch", "sections", "characteristic"):
             self.point_views.flush(name)
 
     def export_sections(self, path, inputs=()) -> None:
@@ -95,6 +99,10 @@ class WindowLayout:
         drawn for the newest result."""
         self._draw_sections()
         self.sections.export(str(path), inputs)
+
+    def export_characteristic(self, path, inputs=()) -> None:
+        """Write the characteristic as the tab shows it (PNG or SVG by the ending; never over one of ``inputs``)."""
+        self.characteristic.export(str(path), inputs)
 
     def _size_docks(self) -> None:
         """The right column's width and the findings' height for the window's present size."""
@@ -129,7 +137,7 @@ class WindowLayout:
     def _plot_minimum_width(self, name: str) -> int:
         """The least width of the pyqtgraph scene shown in tab ``name`` (its axes, legend and plot), plus the
         dock's frame: narrower, the scene would be cut at the right."""
-        view = self.sketch if name == "sketch" else self.sections
+        view = {"sketch": self.sketch, "characteristic": self.characteristic}.get(name, self.sections)
         scene = view.getPlotItem() if hasattr(view, "getPlotItem") else getattr(view, "ci", None)
         if scene is None:
             return 0

@@ -13,7 +13,7 @@ import sys
 
 from engine_air.cli.common import (EXIT_FAILS, EXIT_HOLDS, UsageError, cases, check_output_path, err, load, out,
                                    path_text, recheck_outputs, with_tables)
-from engine_air.cli.point import altitude_m
+from engine_air.cli.point import add_altitude_options, altitude_m
 
 EPILOG = ("The characteristic: recovery against captured mass-flow ratio as the engine's corrected flow is swept "
           "from 2 %% to 99.5 %% of face choking, from the project's characteristics table where it covers the "
@@ -26,10 +26,7 @@ def add_parser(sub) -> None:
                        epilog=EPILOG)
     c.add_argument("project")
     c.add_argument("--mach", type=float, action="append", required=True, help="flight Mach number (repeatable)")
-    alt = c.add_mutually_exclusive_group(required=True)
-    alt.add_argument("--altitude-m", type=float, help="geopotential pressure altitude, m")
-    alt.add_argument("--altitude-ft", type=float, help="geopotential pressure altitude, ft")
-    alt.add_argument("--fl", type=float, help="flight level (hundreds of feet)")
+    add_altitude_options(c)
     c.add_argument("--case", help="case whose rating and incidence pick the curve; default the first")
     c.add_argument("--json", action="store_true", help="write the curves as JSON on stdout")
     c.add_argument("--csv", help="CSV file: one row per point of each curve")

@@ -29,16 +29,21 @@ def add_parser(sub) -> None:
     q = sub.add_parser("point", help="one flight condition, station by station", epilog=EPILOG)
     q.add_argument("project")
     q.add_argument("--mach", type=float, required=True)
-    alt = q.add_mutually_exclusive_group(required=True)
-    alt.add_argument("--altitude-m", type=float, help="geopotential pressure altitude, m")
-    alt.add_argument("--altitude-ft", type=float, help="geopotential pressure altitude, ft")
-    alt.add_argument("--fl", type=float, help="flight level: pressure altitude in hundreds of feet (350 = 35 000 ft)")
+    add_altitude_options(q)
     q.add_argument("--case", help="case name; default the first case")
     q.add_argument("--json", action="store_true", help="write JSON (the default and only format)")
     q.add_argument("--units", choices=("si", "us"), default="si",
                    help="us: the JSON keeps its SI keys and values and adds \"units\": \"us\" and a \"us\" block: "
                         "every dimensional value in US customary units, as {\"value\": ..., \"unit\": ...}")
     q.set_defaults(handler=run)
+
+
+def add_altitude_options(parser) -> None:
+    """--altitude-m | --altitude-ft | --fl, one of them required (read back by ``altitude_m``)."""
+    alt = parser.add_mutually_exclusive_group(required=True)
+    alt.add_argument("--altitude-m", type=float, help="geopotential pressure altitude, m")
+    alt.add_argument("--altitude-ft", type=float, help="geopotential pressure altitude, ft")
+    alt.add_argument("--fl", type=float, help="flight level: pressure altitude in hundreds of feet (350 = 35 000 ft)")
 
 
 def altitude_m(args) -> float:

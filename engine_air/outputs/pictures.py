@@ -271,8 +271,11 @@ def missing_reason(result: MapResult, quantity_key: str, case: str) -> str:
     if quantity_key in THRUST_KEYS and bits.size and np.all(bits & F.NO_THRUST_DATA):
         what = "installation loss" if quantity_key == "installation_loss_fraction" else q.label.lower()
         return f"no thrust data: {what} is not computed"
-    if quantity_key in ("started", "self_start_contraction"):
+    if quantity_key in ("started", "self_start_contraction", "internal_contraction_ratio"):
         return f"{q.label}: defined for a mixed-compression inlet only"
+    if quantity_key in ("dc60", "remaining_surge_margin"):
+        return (f"{q.label}: needs a characteristics table with distortion columns (method 17-18); "
+                "defined only where its data decide")
     return f"{q.label}: not defined at any point of the envelope"
 
 

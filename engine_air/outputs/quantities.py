@@ -195,6 +195,8 @@ MAP_KEYS: tuple[str, ...] = (
     # mixed compression (method §11) and the installation ledger (method §13)
     "started", "self_start_contraction", "internal_contraction_ratio", "ram_drag_n", "additive_drag_n", "spillage_drag_n", "bleed_drag_n",
     "bypass_drag_n", "net_thrust_n", "installed_thrust_n", "installation_loss_fraction",
+    # from measured characteristics (method §17, §18): defined only where the data decide
+    "dc60", "remaining_surge_margin",
 )
 """The quantities a map can be coloured by, in the order offered."""
 
