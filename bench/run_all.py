@@ -7,7 +7,7 @@
 2. cost per point of ``evaluate_conditions`` (match and checks) on a 201 x 201 grid given as two full arrays, first
    case, warm, against the numpy floor (bench/numpy_floor.py) and the scalar script (bench/scalar_model.py), the
    three timed in turns, for pitot and external-ramp (goals: >= 100x the script; <= 4x the floor for
-   pitot, <= 6x for the others);
+   pitot, <= 6x for the others); then ``evaluate_project``'s whole-map cost per case-point (201 x 201, 121 x 101);
 3. peak resident memory of ``map --csv`` against ``check`` on the two-ramp sample at 401 x 301 (two cases;
    each in a fresh interpreter; goal <= 1.5x);
 4. the table writer against polars' ``write_csv`` on the same table (the two-ramp map, 401 x 301; goal: at
@@ -118,6 +118,28 @@ def per_point(repeats):
               f"{cpu['package'] / cpu['floor']:.1f}x CPU ({wall['floor'] * 1e9:.0f} ns per point, "
               f"bench/numpy_floor.py; goal <= 4x pitot, <= 6x the others)")
 
+def per_case_point(repeats):
+    """Whole-map cost per case-point of ``evaluate_project`` (match, checks, envelope mask, summary), least of R
+    runs after one, wall and CPU time, at 201 x 201 and 121 x 101."""
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.project import load_project
+    from engine_air.project.model import Grid
+
+    for sample in ("subsonic_transport_nacelle", "undersized_business_jet", "supersonic_two_ramp"):
+        project = load_project(SAMPLES / f"{sample}.toml")
+        for nm, na in ((201, 201), (121, 101)):
+            p = dataclasses.replace(project, grid=Grid(mach_points=nm, altitude_points=na))
+            n = nm * na * len(p.cases)
+            evaluate_project(p)
+            wall = cpu = float("inf")
+            for _ in range(max(1, repeats)):
+                t, c = time.perf_counter(), time.process_time()
+                evaluate_project(p)
+                wall, cpu = min(wall, time.perf_counter() - t), min(cpu, time.process_time() - c)
+            print(f"evaluate_project per case-point, {sample} {nm} x {na} x {len(p.cases)}: "
+                  f"{cpu / n * 1e9:.0f} ns CPU, {wall / n * 1e9:.0f} ns wall")
+
+
 _PEAK = ("import resource, sys, contextlib, io\nsys.path.insert(0, {root!r})\nfrom engine_air.cli import main\n"
          "with contextlib.redirect_stdout(io.StringIO()):\n    main({argv!r})\n"
          "print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)")
@@ -211,6 +233,7 @@ def main(argv=None) -> int:
         folder = pathlib.Path(tmp)
         startup(folder, args.repeats)
         per_point(args.repeats)
+        per_case_point(args.repeats)
         big = memory(folder, args.repeats)
         csv_speed(big, folder, args.repeats)
         spike_vs_ramp(args.repeats)
