@@ -106,6 +106,7 @@ class CompareDialog(TaskDialog):
             maps.addWidget(m)
         self.stats = QLabel("")
         self.stats.setWordWrap(True)
+        self.stats.setMinimumHeight(3 * self.stats.fontMetrics().lineSpacing() + 6)  # up to 3 wrapped lines
         self.verdicts = QTableWidget(0, 6)
         self.verdicts.setHorizontalHeaderLabels(["limit", "A", "A worst margin", "B", "B worst margin", "change"])
         self.verdicts.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeToContents)
@@ -182,7 +183,11 @@ class CompareDialog(TaskDialog):
         s = c.stat(case, key)
         where = (f", largest |B − A| at Mach {s.max_abs_mach:.3f}, {s.max_abs_altitude_m:.0f} m"
                  if s.points and s.max_abs > 0 else "")
+        data = ""
+        if c.has_data:  # the differences where a characteristics table decides the match (method §17)
+            r = c.data_stat(case, key)
+            data = f" Where a characteristics table decides ({r.points} points): from {fmt(r.min)} to {fmt(r.max)}."
         self.stats.setText(f"{QUANTITIES[key].label}, case {case}: B − A from {fmt(s.min)} to {fmt(s.max)} "
-                           f"over {s.points} points both judge (inside both envelopes and the case's region){where}. "
-                           "A and B share one colour scale; "
+                           f"over {s.points} points both judge (inside both envelopes and the case's region){where}."
+                           f"{data} A and B share one colour scale; "
                            "crosses mark points where some limit fails; grey is outside the envelope.")

@@ -12,7 +12,7 @@ from pathlib import Path
 from PySide6.QtCore import QLockFile
 
 from engine_air.project.errors import ProjectError
-from engine_air.project.load import loads_project
+from engine_air.project.load import loads_project, with_characteristics
 from engine_air.project.schema import MAX_FILE_BYTES
 
 from .slot import MAX_SIDECAR_BYTES, Slot, reason_of, read_regular, recovery_dir, regular_or_missing
@@ -48,7 +48,7 @@ class Recovered:
             text = raw.decode("utf-8-sig")
         except UnicodeDecodeError:
             raise ProjectError(path, "(file)", None, "is not UTF-8 text") from None
-        return loads_project(text, path)
+        return with_characteristics(loads_project(text, path), path)  # its table, named relative to the copy
 
     def original_changed_since(self) -> bool:
         """True if the project's own file was modified after this copy was autosaved."""

@@ -16,7 +16,7 @@ from PySide6.QtCore import QLockFile, QStandardPaths
 
 from engine_air.project.atomic import write_bytes_atomic
 from engine_air.project.errors import ProjectSaveError
-from engine_air.project.save import dumps_project
+from engine_air.project.save import dumps_project, table_path_from
 
 
 ENV_DIR = "ENGINE_AIR_RECOVERY_DIR"
@@ -139,7 +139,10 @@ class Slot:
         self.folder.mkdir(parents=True, exist_ok=True)
         self.acquire()
         try:
-            write_bytes_atomic(self.project_file, dumps_project(project).encode("utf-8"), follow_links=False)
+            # a characteristics table named relative to this copy, so that it is found again wherever the
+            # project's own file lives (method §17)
+            text = dumps_project(table_path_from(project, self.project_file))
+            write_bytes_atomic(self.project_file, text.encode("utf-8"), follow_links=False)
         except OSError as exc:
             raise ProjectSaveError(self.project_file, exc.strerror or str(exc), exc.errno) from exc
         meta = {

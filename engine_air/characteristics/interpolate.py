@@ -67,7 +67,38 @@ def _locate_1d(m_nodes: np.ndarray, order: np.ndarray, m: np.ndarray):
     return index, weight, covered
 
 
+INSIDE_TOLERANCE = 100 * np.finfo(float).eps
+"""A query is in a simplex when every barycentric weight is within this of [0, 1] (as scipy's ``find_simplex``)."""
+_CHUNK = 1_000_000
+
+
+def _barycentric_maps(nodes: np.ndarray, simplices: np.ndarray):
+    """Each simplex's affine map x -> barycentric weights: (inverse of the edge matrix, last vertex, usable).
+
+    The same map as ``scipy.spatial.Delaunay.transform``, written out for d = 2 or 3 (adjugate over determinant)
+    with numpy alone: scipy computes it through its threaded BLAS, which can stall for tenths of a second on a
+    busy machine. A degenerate simplex (no volume) is not usable."""
+    d = nodes.shape[1]
+    verts = nodes[simplices]  # (S, d+1, d)
+    last = verts[:, d, :]
+    cols = [verts[:, i, :] - last for i in range(d)]  # the edge matrix's columns r_i - r_d
+    if d == 2:
+        (a, c), (b, e) = cols[0].T, cols[1].T
+        det = a * e - b * c
+        adjugate = np.stack([np.stack([e, -b], -1), np.stack([-c, a], -1)], 1)
+    else:
+        rows = [np.cross(cols[1], cols[2]), np.cross(cols[2], cols[0]), np.cross(cols[0], cols[1])]
+        det = np.einsum("si,si->s", cols[0], rows[0])
+        adjugate = np.stack(rows, 1)
+    size = np.max(np.abs(np.stack(cols, 1)), axis=(1, 2)) ** d
+    usable = np.abs(det) > 1e-12 * size
+    inverse = adjugate / np.where(usable, det, 1.0)[:, None, None]
+    return inverse, last, usable
+
+
 def _locate_nd(nodes: np.ndarray, query: np.ndarray):
+    """Barycentric location in the Delaunay triangulation of ``nodes`` (scipy's qhull); each distinct query
+    once, against every simplex (in chunks of queries)."""
     from scipy.spatial import Delaunay, QhullError
 
     try:
@@ -75,18 +106,25 @@ def _locate_nd(nodes: np.ndarray, query: np.ndarray):
     except QhullError:
         raise ValueError("the curves' (mach, alpha_deg, beta_deg) must not all lie on one line or plane "
                          "when the angles vary") from None
-    flat = query.reshape(-1, nodes.shape[1])
-    simplex = tri.find_simplex(flat)
-    covered = simplex >= 0
-    s = np.where(covered, simplex, 0)
-    transform = tri.transform[s]  # (n, d+1, d)
     d = nodes.shape[1]
-    bary = np.einsum("nij,nj->ni", transform[:, :d, :], flat - transform[:, d, :])
-    weight = np.concatenate([bary, 1.0 - bary.sum(axis=1, keepdims=True)], axis=1)
+    inverse, last, usable = _barycentric_maps(nodes, tri.simplices)
+    distinct, back = np.unique(query.reshape(-1, d), axis=0, return_inverse=True)
+    n, rows = len(distinct), max(1, _CHUNK // max(1, len(usable)))
+    simplex, weight = np.zeros(n, int), np.zeros((n, d + 1))
+    covered = np.zeros(n, bool)
+    for lo in range(0, n, rows):  # chunks of distinct queries, never a loop over points
+        q = distinct[lo:lo + rows]
+        bary = np.einsum("sij,qsj->qsi", inverse, q[:, None, :] - last[None, :, :])
+        w = np.concatenate([bary, 1.0 - bary.sum(axis=-1, keepdims=True)], axis=-1)
+        inside = usable & np.all((w >= -INSIDE_TOLERANCE) & (w <= 1.0 + INSIDE_TOLERANCE), axis=-1)
+        s = np.argmax(inside, axis=1)
+        simplex[lo:lo + rows], covered[lo:lo + rows] = s, inside.any(axis=1)
+        weight[lo:lo + rows] = w[np.arange(len(q)), s]
     weight = np.where(covered[:, None], np.clip(weight, 0.0, 1.0), 0.0)
-    index = tri.simplices[s]
+    back = np.asarray(back).ravel()
     shape = query.shape[:-1]
-    return index.reshape(shape + (d + 1,)), weight.reshape(shape + (d + 1,)), covered.reshape(shape)
+    return (tri.simplices[simplex][back].reshape(shape + (d + 1,)), weight[back].reshape(shape + (d + 1,)),
+            covered[back].reshape(shape))
 
 
 def locate(curves, mach, alpha_deg=0.0, beta_deg=0.0) -> Located:
@@ -106,7 +144,11 @@ def locate(curves, mach, alpha_deg=0.0, beta_deg=0.0) -> Located:
         nodes = np.stack([cols[d] for d in varying], axis=1)
         index, weight, covered = _locate_nd(nodes, np.stack([queries[d] for d in varying], axis=-1))
     covered = covered & fixed_ok
-    weight = np.where(covered[..., None], weight, 0.0)
+    # a weight of rounding size (a query on a tested condition, a node or an edge, reached with a last-bit error)
+    # is none: the curves that decide there are the ones the query sits on, whichever simplex found it
+    weight = np.where(covered[..., None] & (weight > INSIDE_TOLERANCE), weight, 0.0)
+    total = np.sum(weight, axis=-1, keepdims=True)
+    weight = weight / np.where(total > 0.0, total, 1.0)
 
     def blend(values):
         return np.where(covered, np.sum(weight * values[index], axis=-1), np.nan)

@@ -65,6 +65,8 @@ def run(args) -> int:
             f"{s.max_abs_mach:.3f}, {s.max_abs_altitude_m:.0f}"
         out(f"{QUANTITIES[s.quantity].label[:34]:<34} {name(s.case[:24]):<24} {fmt(s.min):>9} {fmt(s.max):>9} "
             f"{where:>24}")
+    if c.has_data:
+        _data_region(c)
     if args.csv:
         try:
             rows = write_compare_csv(c, args.csv, inputs=inputs)
@@ -75,3 +77,27 @@ def run(args) -> int:
     out(f"\nVERDICT: A {'holds' if c.holds_a else 'FAILS'}, B {'holds' if c.holds_b else 'FAILS'}"
         + (" (identical results)." if c.identical else "."))
     return EXIT_HOLDS if both else EXIT_FAILS
+
+
+def _table_name(project) -> str:
+    return "none" if project.characteristics is None else name(project.characteristics_file or "(in memory)")
+
+
+def _data_region(c) -> None:
+    """The differences where a characteristics table decides the match (method §17) in A or B."""
+    from engine_air.envelope.evaluate import WORST
+    from engine_air.outputs.quantities import QUANTITIES
+
+    region = c.data_region(WORST)
+    out()
+    out(f"characteristics tables: A {_table_name(c.a)}, B {_table_name(c.b)}; {int(region.sum())} of "
+        f"{int(c.judged_both(WORST).sum())} points both judge are from data in A or B (flag from-data)")
+    head = f"{'difference B - A, from-data points':<34} {'case':<24} {'min':>9} {'max':>9} {'max |d| at Mach, alt m':>24}"
+    out(head)
+    out("-" * len(head))
+    for case in c.cases:
+        for key in SHOWN:
+            s = c.data_stat(case, key)
+            where = "-" if not (math.isfinite(s.max_abs_mach) and s.max_abs > 0) else \
+                f"{s.max_abs_mach:.3f}, {s.max_abs_altitude_m:.0f}"
+            out(f"{QUANTITIES[key].label[:34]:<34} {name(case[:24]):<24} {fmt(s.min):>9} {fmt(s.max):>9} {where:>24}")

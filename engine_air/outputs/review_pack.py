@@ -258,7 +258,7 @@ def _write(out: StagingFolder, project, text, source_name, notes, result, quanti
     written += names
     steps.check()
     project_path = out.write("project.toml", text.encode("utf-8"))
-    written += _copy_table(out, project)
+    written += _copy_table(out, project, notes)
     pdf_path = out.write(PDF_NAME, book.close())
     index_path = out.write("index.html", page(project, result, worst, text=text, source_name=source_name,
                                               notes=notes, maps_html=maps_html, sections_html=sections_html,
@@ -278,13 +278,21 @@ def _write(out: StagingFolder, project, text, source_name, notes, result, quanti
                       os.path.join(folder, MANIFEST), pdf_path, tuple(quantities), characteristic_pictures)
 
 
-def _copy_table(out, project) -> list[str]:
-    """The characteristics table beside the pack's project.toml, under the name the project gives it (a plain
-    file name only), so that the pack's project loads with its data."""
+def _copy_table(out, project, notes: list[str]) -> list[str]:
+    """The characteristics table beside the pack's project.toml, under the name the project gives it (a file name,
+    or one folder and a file name), so that the pack's project loads with its data; another name (one that climbs
+    out of the project's folder, or deeper) is said in the notes."""
     table = getattr(project.characteristics, "table", None)
     name = project.characteristics_file
-    if table is None or name is None or "/" in name or "\\" in name or name.startswith("."):
+    if table is None or name is None:
         return []
+    parts = name.split("/")
+    if len(parts) > 2 or any(not p or p.startswith(".") or "\\" in p or ":" in p for p in parts):
+        notes.append(f"The characteristics table is named {name!r} relative to the project file; the pack holds no "
+                     "copy of it, so the pack's project.toml loads only beside a table at that path.")
+        return []
+    if len(parts) == 2:
+        out.subfolder(parts[0])
     with open(table.path, "rb") as handle:
         out.write(name, handle.read())
     return [name]

@@ -148,7 +148,10 @@ def table_path_from(project: Project, path: str | os.PathLike) -> Project:
     import dataclasses
 
     folder = os.path.dirname(os.path.abspath(os.fspath(path)))
-    relative = os.path.relpath(os.path.abspath(table.path), folder).replace(os.sep, "/")
+    try:
+        relative = os.path.relpath(os.path.abspath(table.path), folder).replace(os.sep, "/")
+    except ValueError:  # another drive (Windows): no relative path exists, the absolute one still reads
+        relative = os.path.abspath(table.path).replace(os.sep, "/")
     return dataclasses.replace(project, characteristics_file=relative)
 
 

@@ -29,6 +29,11 @@ A and B at a point). Both projects go through the same evaluation code, so
 comparing a project with itself gives exactly zero wherever a quantity is
 defined.
 
+A project with a characteristics table (method §17; ``Project.characteristics``, read by ``load_project``) is
+evaluated on its data where they cover, like its own map. ``data_region(case)`` marks the points both judge where
+A's or B's data decide the match (flag ``from-data``), and ``data_stat(case, key)`` gives B - A there only: the
+differences a table makes against the model, or between two tables.
+
 Example::
 
     c = compare_projects(load_project("v1.toml"), load_project("v2.toml"))
@@ -207,6 +212,20 @@ class CompareResult:
         return self.result_a.inside & self.result_b.inside
 
     @property
+    def has_data(self) -> bool:
+        """True when A or B has a characteristics table read (method §17)."""
+        return self.a.characteristics is not None or self.b.characteristics is not None
+
+    def data_region(self, case: str) -> np.ndarray:
+        """(ny, nx) bool: points both projects judge for ``case`` (WORST: in some case) where A's or B's
+        characteristics table decides the match (flag ``from-data``); all False without a table."""
+        return self.judged_both(case) & (from_data(self.result_a, case) | from_data(self.result_b, case))
+
+    def data_stat(self, case: str, key: str) -> DifferenceStats:
+        """B - A of ``key`` for ``case`` over ``data_region(case)`` only (no points: NaN statistics)."""
+        return _stats(self, case, key, self.data_region(case))
+
+    @property
     def holds_a(self) -> bool:
         return self.result_a.holds
 
@@ -262,8 +281,20 @@ def _same(x: float, y: float) -> bool:
     return x == y or (math.isnan(x) and math.isnan(y))
 
 
-def _stats(c: CompareResult, case: str, key: str) -> DifferenceStats:
+def from_data(result: MapResult, case: str) -> np.ndarray:
+    """(ny, nx) bool: where the project's characteristics table decides the match for ``case`` (WORST: in any
+    case) and the point is judged; all False for a project without one."""
+    out = np.zeros(result.inside.shape, bool)
+    for cm in result.cases:
+        if case in (WORST, cm.name):
+            out |= (np.asarray(cm.points.flags) & F.FROM_DATA) != 0
+    return out & result.judged(case)
+
+
+def _stats(c: CompareResult, case: str, key: str, where: np.ndarray | None = None) -> DifferenceStats:
     d = c.difference(case, key)
+    if where is not None:
+        d = np.where(where, d, np.nan)
     ok = np.isfinite(d)
     label = QUANTITIES[key].label if key in QUANTITIES else key
     if not ok.any():
@@ -356,5 +387,5 @@ def write_compare_csv(c: CompareResult, path, quantities: tuple[str, ...] = DIFF
 
 __all__ = [
     "DIFFERENCE_QUANTITIES", "GRID_CHOICES", "CompareResult", "DifferenceStats", "VerdictRow", "common_axes",
-    "compare_columns", "compare_projects", "evaluate_on_axes", "judged_value", "write_compare_csv",
+    "compare_columns", "compare_projects", "evaluate_on_axes", "from_data", "judged_value", "write_compare_csv",
 ]

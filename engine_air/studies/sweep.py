@@ -22,12 +22,13 @@ Execution
 - Locally (default) on all cores: ``concurrent.futures.ProcessPoolExecutor``
   (``forkserver`` start method where available, else ``spawn``, so a GUI's
   threads are never forked). Each task receives the project as its TOML text
-  (``dumps_project``) and a chunk of variants; nothing is read from files and
-  no project object is pickled. ``workers=1`` runs in this process.
+  (``dumps_project``) and a chunk of variants, and the characteristics read with it
+  (method §17; plain arrays) when it has a table: nothing is read from files and no
+  project object is pickled. ``workers=1`` runs in this process.
 - On a dask.distributed cluster when ``scheduler`` is given: an address such as
   ``"tcp://127.0.0.1:8786"`` (a ``distributed.Client`` is opened and closed) or an
-  existing ``Client``. The same chunks go through ``Client.map``. Every worker
-  must be able to import ``engine_air``.
+  existing ``Client``. The same chunks go through ``Client.map`` (the characteristics
+  scattered to the workers once). Every worker must be able to import ``engine_air``.
 
 Both paths run ``run_chunk``, so a variant's row equals ``variant_row`` of the
 single-map evaluation of the same inputs exactly, whichever path ran it.
@@ -53,6 +54,8 @@ Example::
 from __future__ import annotations
 
 import asyncio
+import dataclasses
+import functools
 import math
 import multiprocessing
 import os
@@ -241,24 +244,20 @@ def _invalid_row(index, values, message: str) -> SweepRow:
                     "", nan, (), nan, message)
 
 
-_BASE: dict[str, Project] = {}
-
-
+@functools.lru_cache(maxsize=1)  # a worker reads each sweep's project once
 def _base_project(project_toml: str) -> Project:
     from engine_air.project.load import tomllib  # tomli on Python 3.10
 
-    base = _BASE.get(project_toml)
-    if base is None:
-        base = project_from_dict(tomllib.loads(project_toml))
-        _BASE.clear()
-        _BASE[project_toml] = base
-    return base
+    return project_from_dict(tomllib.loads(project_toml))
 
 
 def run_chunk(project_toml: str, variables: tuple[str, ...], chunk: Sequence[tuple[tuple[int, ...], tuple[float, ...]]],
-              cruise=None, case_names=None) -> list[SweepRow]:
-    """Evaluate a chunk of variants of the project given as TOML text (the task both paths run)."""
+              cruise=None, case_names=None, characteristics=None) -> list[SweepRow]:
+    """Evaluate a chunk of variants of the project given as TOML text (the task both paths run);
+    ``characteristics``: the curves its table holds (``Project.characteristics``; the text only names the file)."""
     base = _base_project(project_toml)
+    if characteristics is not None:
+        base = dataclasses.replace(base, characteristics=characteristics)
     rows = []
     for index, values in chunk:
         try:
@@ -281,11 +280,12 @@ def _context():
     return multiprocessing.get_context("spawn")
 
 
-def _run_local(text, variables, chunks, cruise, case_names, workers, on_chunk, cancelled) -> None:
+def _run_local(text, variables, chunks, cruise, case_names, workers, on_chunk, cancelled, data=None) -> None:
     ex = ProcessPoolExecutor(max_workers=workers, mp_context=_context())
     stop = False
     try:
-        futures = {ex.submit(run_chunk, text, variables, chunk, cruise, case_names): i for i, chunk in enumerate(chunks)}
+        futures = {ex.submit(run_chunk, text, variables, chunk, cruise, case_names, data): i
+                   for i, chunk in enumerate(chunks)}
         pending = set(futures)
         while pending:
             done, pending = wait(pending, timeout=0.1, return_when=FIRST_COMPLETED)
@@ -408,7 +408,7 @@ def probe_scheduler(address: str, timeout: float) -> None:
         sock.close()
 
 
-def _run_dask(text, variables, chunks, cruise, case_names, scheduler, on_chunk, cancelled, timeout) -> None:
+def _run_dask(text, variables, chunks, cruise, case_names, scheduler, on_chunk, cancelled, timeout, data=None) -> None:
     from distributed import Client, wait as dask_wait
 
     own = isinstance(scheduler, str)
@@ -425,8 +425,10 @@ def _run_dask(text, variables, chunks, cruise, case_names, scheduler, on_chunk, 
     else:
         client = scheduler
     try:
+        if data is not None:  # sent once to every worker, not with each task
+            data = client.scatter(data, broadcast=True)
         futures = client.map(run_chunk, [text] * len(chunks), [variables] * len(chunks), list(chunks),
-                             [cruise] * len(chunks), [case_names] * len(chunks), pure=False)
+                             [cruise] * len(chunks), [case_names] * len(chunks), [data] * len(chunks), pure=False)
         order = {f.key: i for i, f in enumerate(futures)}
         pending = set(futures)
         while pending:
@@ -511,7 +513,7 @@ def sweep(
         raise ProjectError(None, "chunk_size", chunk_size, "must be a whole number of 1 or more")
     variants = [(idx, tuple(axes[k][i] for k, i in enumerate(idx))) for idx in np.ndindex(*shape)]
     chunks = [variants[i:i + chunk_size] for i in range(0, n, chunk_size)]
-    text = dumps_project(project)
+    text, data = dumps_project(project), project.characteristics
     results: list[list[SweepRow] | None] = [None] * len(chunks)
     done = [0]
 
@@ -523,7 +525,7 @@ def sweep(
 
     if scheduler is not None:
         mode, used = "dask", 0
-        _run_dask(text, names, chunks, cruise, case_names, scheduler, on_chunk, cancelled, timeout)
+        _run_dask(text, names, chunks, cruise, case_names, scheduler, on_chunk, cancelled, timeout, data)
     else:
         used = max(1, min(want, len(chunks)))
         if used == 1:
@@ -531,10 +533,10 @@ def sweep(
             for i, chunk in enumerate(chunks):
                 if cancelled is not None and cancelled():
                     raise Cancelled()
-                on_chunk(i, run_chunk(text, names, chunk, cruise, case_names))
+                on_chunk(i, run_chunk(text, names, chunk, cruise, case_names, data))
         else:
             mode = "local"
-            _run_local(text, names, chunks, cruise, case_names, used, on_chunk, cancelled)
+            _run_local(text, names, chunks, cruise, case_names, used, on_chunk, cancelled, data)
     rows = [row for part in results for row in part]
     return SweepResult(names, axes, rows, cruise, mode, used, time.perf_counter() - t0, grid_points, n_cases)
 
@@ -593,7 +595,6 @@ def format_rows(result: SweepResult, limit: int | None = None) -> list[str]:
 
 __all__ = [
     "MAX_POINT_EVALUATIONS", "MAX_VARIABLES", "MAX_VARIANTS", "SchedulerError", "SweepResult", "SweepRow", "check_size",
-    "parse_scheduler", "probe_scheduler",
-    "cruise_spillage", "format_rows", "parse_vary", "run_chunk", "sweep", "sweep_columns", "variant_row",
-    "write_sweep_csv",
+    "parse_scheduler", "probe_scheduler", "cruise_spillage", "format_rows", "parse_vary", "run_chunk", "sweep",
+    "sweep_columns", "variant_row", "write_sweep_csv",
 ]
