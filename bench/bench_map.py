@@ -45,10 +45,12 @@ TYPE_RATIO_GOAL = 3.0
 
 
 def clear_caches():
-    """Empty the per-Mach-column caches of the shock systems (conical flow), for a cold timing."""
+    """Empty the per-Mach-column caches of the shock systems (conical flow, ramp traces), for a cold timing."""
+    from engine_air.inlets import ramp_layout
     from engine_air.physics import conical
 
     conical.clear_cache()
+    ramp_layout.clear_cache()
 
 
 def main(argv=None):

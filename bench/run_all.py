@@ -4,13 +4,16 @@
 
 1. start-up: ``engine-air check`` on a copy of sample_projects/subsonic_transport_nacelle.toml with a 3 x 3 grid
    against ``python -c "import numpy, tomllib"`` (best of R wall times each; goal <= 2x);
-2. cost per point of ``evaluate_conditions`` on a 201 x 201 grid against the numpy floor (bench/numpy_floor.py,
-   pitot) and against the scalar script (bench/scalar_model.py) for pitot and external-ramp (goal >= 100x);
+2. cost per point of ``evaluate_conditions`` (match and checks) on a 201 x 201 grid given as two full arrays, first
+   case, warm, against the numpy floor (bench/numpy_floor.py) and the scalar script (bench/scalar_model.py), the
+   three timed in turns, for pitot and external-ramp (goals: >= 100x the script; <= 4x the floor for
+   pitot, <= 6x for the others); then ``evaluate_project``'s whole-map cost per case-point (201 x 201, 121 x 101);
 3. peak resident memory of ``map --csv`` against ``check`` on the two-ramp sample at 401 x 301 (two cases;
    each in a fresh interpreter; goal <= 1.5x);
 4. the table writer against polars' ``write_csv`` on the same table (the two-ramp map, 401 x 301; goal: at
    least as fast; polars only for this comparison, skipped when it is not installed);
-5. a cold axisymmetric-spike map (conical caches empty) against the external-ramp map, 401 x 301 (goal <= 1.5x);
+5. a cold axisymmetric-spike map (conical caches empty) against the external-ramp map (its ramp-trace caches
+   empty too), 401 x 301 (goal <= 1.5x);
 6. the pixel size of ``map --png`` (goal >= 900 x 600, with axes).
 
 Figures are noisy on a shared machine: each is the best of several runs; CPU-time ratios are printed beside
@@ -69,6 +72,10 @@ def startup(folder, repeats):
 
 
 def per_point(repeats):
+    """Cost per point of ``evaluate_conditions`` (match and judging) on a 201 x 201 grid given as two full arrays
+    (``numpy.broadcast_arrays``), the first case, warm (one call first); the package, the numpy floor and the
+    scalar script (200 random grid points) timed in turns, R rounds, the least of each (wall and CPU time), so
+    that all see the same machine."""
     import scalar_model
     from numpy_floor import floor_face_margin
 
@@ -83,19 +90,54 @@ def per_point(repeats):
         mach, alt = grid_axes(project.envelope, project.grid)
         case = project.cases[0]
         m2, a2 = np.broadcast_arrays(mach[None, :], alt[:, None])
-        evaluate_conditions(project, case, m2, a2)
-        t_vec = best_time(lambda: evaluate_conditions(project, case, m2, a2), repeats) / m2.size
-        rng = np.random.default_rng(1)
-        pts = [(mach[i], alt[j]) for i, j in zip(rng.integers(0, mach.size, 200), rng.integers(0, alt.size, 200))]
-        t_scalar = best_time(lambda: [scalar_model.evaluate_point(project, case, m, h) for m, h in pts], 3) / len(pts)
         rating = project.rating(case.rating)
         floor_args = (mach, alt, case.isa_offset_K, np.asarray(rating.theta, float),
                       np.asarray(rating.corrected_flow_kg_s, float), project.inlet.face_area_m2,
                       project.limits.face_mach_max)
-        t_floor = best_time(lambda: floor_face_margin(*floor_args), repeats) / m2.size
-        print(f"per point, {project.inlet.type}: {t_vec * 1e9:.0f} ns; scalar script / package = "
-              f"{t_scalar / t_vec:,.0f}x (goal >= 100x); package / numpy floor = {t_vec / t_floor:.1f}x "
-              f"({t_floor * 1e9:.0f} ns per point, bench/numpy_floor.py)")
+        rng = np.random.default_rng(1)
+        pts = [(mach[i], alt[j]) for i, j in zip(rng.integers(0, mach.size, 200), rng.integers(0, alt.size, 200))]
+        runs = {"package": lambda: evaluate_conditions(project, case, m2, a2),
+                "map axes": lambda: evaluate_conditions(project, case, mach[None, :], alt[:, None]),
+                "floor": lambda: floor_face_margin(*floor_args),
+                "scalar": lambda: [scalar_model.evaluate_point(project, case, m, h) for m, h in pts]}
+        size = {"scalar": len(pts)}
+        wall = {k: float("inf") for k in runs}
+        cpu = dict(wall)
+        for fn in runs.values():
+            fn()
+        for _ in range(max(1, repeats)):
+            for k, fn in runs.items():
+                t, c = time.perf_counter(), time.process_time()
+                fn()
+                wall[k] = min(wall[k], (time.perf_counter() - t) / size.get(k, m2.size))
+                cpu[k] = min(cpu[k], (time.process_time() - c) / size.get(k, m2.size))
+        print(f"per point, {project.inlet.type}: {wall['package'] * 1e9:.0f} ns wall, {cpu['package'] * 1e9:.0f} ns "
+              f"CPU (given as a row and a column: {wall['map axes'] * 1e9:.0f} ns); scalar script / package = "
+              f"{wall['scalar'] / wall['package']:,.0f}x wall, {cpu['scalar'] / cpu['package']:,.0f}x CPU "
+              f"(goal >= 100x); package / numpy floor = {wall['package'] / wall['floor']:.1f}x wall, "
+              f"{cpu['package'] / cpu['floor']:.1f}x CPU ({wall['floor'] * 1e9:.0f} ns per point, "
+              f"bench/numpy_floor.py; goal <= 4x pitot, <= 6x the others)")
+
+def per_case_point(repeats):
+    """Whole-map cost per case-point of ``evaluate_project`` (match, checks, envelope mask, summary), least of R
+    runs after one, wall and CPU time, at 201 x 201 and 121 x 101."""
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.project import load_project
+    from engine_air.project.model import Grid
+
+    for sample in ("subsonic_transport_nacelle", "undersized_business_jet", "supersonic_two_ramp"):
+        project = load_project(SAMPLES / f"{sample}.toml")
+        for nm, na in ((201, 201), (121, 101)):
+            p = dataclasses.replace(project, grid=Grid(mach_points=nm, altitude_points=na))
+            n = nm * na * len(p.cases)
+            evaluate_project(p)
+            wall = cpu = float("inf")
+            for _ in range(max(1, repeats)):
+                t, c = time.perf_counter(), time.process_time()
+                evaluate_project(p)
+                wall, cpu = min(wall, time.perf_counter() - t), min(cpu, time.process_time() - c)
+            print(f"evaluate_project per case-point, {sample} {nm} x {na} x {len(p.cases)}: "
+                  f"{cpu / n * 1e9:.0f} ns CPU, {wall / n * 1e9:.0f} ns wall")
 
 
 _PEAK = ("import resource, sys, contextlib, io\nsys.path.insert(0, {root!r})\nfrom engine_air.cli import main\n"
@@ -143,6 +185,7 @@ def csv_speed(big, folder, repeats):
 
 def spike_vs_ramp(repeats):
     from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.inlets import ramp_layout
     from engine_air.physics import conical
     from engine_air.project import load_project
     from engine_air.project.model import Grid
@@ -158,6 +201,7 @@ def spike_vs_ramp(repeats):
         out = float("inf")
         for _ in range(repeats):
             conical.clear_cache()
+            ramp_layout.clear_cache()  # both cold: the ramp's traces of a Mach row are cached too
             t = clock()
             fn()
             out = min(out, clock() - t)
@@ -189,6 +233,7 @@ def main(argv=None) -> int:
         folder = pathlib.Path(tmp)
         startup(folder, args.repeats)
         per_point(args.repeats)
+        per_case_point(args.repeats)
         big = memory(folder, args.repeats)
         csv_speed(big, folder, args.repeats)
         spike_vs_ramp(args.repeats)

@@ -245,8 +245,7 @@ def evaluate_project(
             raise KeyError(f"no case named {sorted(unknown)}; cases are {[c.name for c in project.cases]}")
     check_grid_size(project, len(chosen))
     mach_1d, alt_1d = grid_axes(project.envelope, project.grid)
-    mach_2d, alt_2d = np.meshgrid(mach_1d, alt_1d)
-    inside = envelope_mask(project.envelope, mach_2d, alt_2d)
+    inside = envelope_mask(project.envelope, mach_1d[None, :], alt_1d[:, None])
     maps = []
     for i, case in enumerate(chosen):
         if cancelled is not None and cancelled():

@@ -44,37 +44,43 @@ def check_rank(check, mask=None) -> np.ndarray:
         return np.where(applies, np.where(check.fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
 
 
-def _stack(checks, mask=None):
-    return np.stack([check_rank(c, mask) for c in checks])
+def _least(ranks: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
+    """(index, value) of the least of several rank arrays of one shape at each point: ``numpy.argmin`` and
+    ``numpy.min`` along a stacking axis (the first of equal ranks; a NaN, the first, wins, as in numpy),
+    without stacking them or reducing along a strided axis."""
+    if any(np.isnan(np.sum(r)) for r in ranks):  # a NaN somewhere (ranks hold no -inf): numpy's own rule
+        stack = np.stack(ranks)
+        return np.argmin(stack, axis=0), np.min(stack, axis=0)
+    best, index = ranks[0], np.zeros(np.shape(ranks[0]), np.intp)
+    for k, rank in enumerate(ranks[1:], 1):
+        better = rank < best
+        best, index = np.where(better, rank, best), np.where(better, k, index)
+    return index, best
 
 
 def limiting_index(checks, shape=None, mask=None) -> np.ndarray:
     """Index into ``checks`` of the limiting check at each point (int16); -1 where no check is judged."""
     if not checks:
         return np.full(() if shape is None else shape, -1, dtype=np.int16)
-    rank = _stack(checks, mask)
-    index = np.argmin(rank, axis=0)
-    none = np.isposinf(np.min(rank, axis=0))
-    return np.where(none, -1, index).astype(np.int16)
+    index, least = _least([check_rank(c, mask) for c in checks])
+    return np.where(np.isposinf(least), -1, index).astype(np.int16)
 
 
 def worst_relative_margin(checks, shape=None, mask=None) -> np.ndarray:
     """Least relative margin over the checks judged at each point (the limiting check's); NaN where none is."""
     if not checks:
         return np.full(() if shape is None else shape, np.nan)
-    rank = _stack(checks, mask)
-    index = np.argmin(rank, axis=0)
-    rel = np.stack([np.asarray(c.relative_margin, dtype=float) for c in checks])
-    rel = np.broadcast_to(rel, rank.shape)
+    index, least = _least([check_rank(c, mask) for c in checks])
+    rel = np.stack([np.broadcast_to(np.asarray(c.relative_margin, dtype=float), index.shape) for c in checks])
     out = np.take_along_axis(rel, index[None], axis=0)[0]
-    return np.where(np.isposinf(np.min(rank, axis=0)), np.nan, out)
+    return np.where(np.isposinf(least), np.nan, out)
 
 
 def limiting_rank(checks, shape=None, mask=None) -> np.ndarray:
     """Least rank over the checks at each point (+inf where nothing is judged)."""
     if not checks:
         return np.full(() if shape is None else shape, np.inf)
-    return np.min(_stack(checks, mask), axis=0)
+    return _least([check_rank(c, mask) for c in checks])[1]
 
 
 def argworst(rank: np.ndarray) -> tuple[int, ...] | None:
@@ -123,9 +129,8 @@ def worst_point(point_sets, mask=None) -> Worst | None:
 
 def worst_case_index(point_sets, shape=None, mask=None) -> np.ndarray:
     """At each point, the position of the point set (case) whose limiting check ranks least (ties: the first)."""
-    rank = np.stack([limiting_rank(p.checks, shape if shape is not None else np.shape(p.mach), mask)
-                     for p in point_sets])
-    return np.argmin(rank, axis=0)
+    return _least([limiting_rank(p.checks, shape if shape is not None else np.shape(p.mach), mask)
+                   for p in point_sets])[0]
 
 
 def limiting_map(result, case: str) -> tuple[np.ndarray, np.ndarray, list[str], list[str]]:

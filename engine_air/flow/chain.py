@@ -72,6 +72,8 @@ def run_chain(project: Project, case: Case, mach, altitude_m, demand=None, *,
     if demand is not None:  # the free stream takes the sweep's shape, so every stage sees one shape
         shape = np.broadcast_shapes(np.shape(mach), np.shape(altitude_m), np.shape(demand))
         mach, altitude_m = np.broadcast_to(mach, shape), np.broadcast_to(altitude_m, shape)
+    else:  # a grid given as full arrays: each on its own axes, so the shock system is solved per Mach column
+        mach, altitude_m = own_axes(mach, altitude_m)
     fs = free_stream(case, mach, altitude_m)
     dem = rating_demand(rating, fs) if demand is None else swept_demand(fs, demand)
     fc = face(inlet, rating, fs, dem)
@@ -98,6 +100,39 @@ def run_chain(project: Project, case: Case, mach, altitude_m, demand=None, *,
 
         points = measured_fields(points, comp, rating)
     return points
+
+
+def _constant_along(a: np.ndarray, axis: int) -> bool:
+    """True when every slice of ``a`` along ``axis`` holds the same values as the first, bit for bit (a broadcast
+    view, stride 0, at no cost)."""
+    if a.strides[axis] == 0:
+        return True
+    first = np.take(a, [0], axis=axis)
+    if not (np.take(a, [1], axis=axis) == first).all():  # the usual answer for an axis it varies along, cheaply
+        return False
+    return bool(((a == first) & (np.signbit(a) == np.signbit(first))).all())
+
+
+def own_axes(mach, altitude_m) -> tuple[np.ndarray, np.ndarray]:
+    """Flight Mach and altitude each reduced to the axes it varies along, their broadcast shape kept: a map given
+    as two full arrays (``numpy.broadcast_arrays``, ``numpy.meshgrid``) becomes a row of Mach numbers and a column
+    of altitudes, so the quantities of the Mach number alone (the shock system, its pre-entry drag terms) and of
+    the altitude alone (the atmosphere) are computed once per column or row and broadcast, to the same bits.
+
+    >>> m, h = own_axes(*np.meshgrid([0.5, 2.0, 3.0], [0.0, 1e4]))
+    >>> m.shape, h.shape
+    ((1, 3), (2, 1))
+    """
+    m, h = np.asarray(mach, dtype=float), np.asarray(altitude_m, dtype=float)
+    shape = np.broadcast_shapes(m.shape, h.shape)
+    m, h = np.broadcast_to(m, shape), np.broadcast_to(h, shape)
+    for axis, n in enumerate(shape):
+        if n > 1:
+            m_const, h_const = _constant_along(m, axis), _constant_along(h, axis)
+            if m_const != h_const:  # the one that does not vary there keeps one slice (both: the shape is kept)
+                cut = (slice(None),) * axis + (slice(0, 1),)
+                m, h = (m[cut], h) if m_const else (m, h[cut])
+    return m, h
 
 
 def _with_incidence(points: OperatingPoints, case: Case, fs: FreeStream) -> OperatingPoints:
@@ -137,7 +172,8 @@ def lean(value, shape: tuple[int, ...]) -> np.ndarray:
     a = np.asarray(value)
     if a.ndim and a.size > 1 and a.flags.c_contiguous and a.dtype.kind in "fiub" and a.itemsize in (1, 2, 4, 8):
         flat = a.reshape(-1).view(f"u{a.itemsize}")  # the bits, so that NaN equals NaN and -0.0 is not 0.0
-        if (flat == flat[0]).all():
+        # two samples first: an array that varies is (almost always) told without a pass over it
+        if flat[-1] == flat[0] and flat[flat.size // 2] == flat[0] and (flat == flat[0]).all():
             a = a.reshape(-1)[:1].copy().reshape(())
     return np.broadcast_to(a, shape)
 

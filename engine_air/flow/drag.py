@@ -14,7 +14,7 @@ MFR >= 1 likewise).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 
 import numpy as np
 
@@ -22,7 +22,7 @@ from engine_air.flow import flags as F
 from engine_air.flow.schedule_columns import per_column, scheduled_pre_entry_drag
 from engine_air.flow.stages import ERRSTATE, Compression, FreeStream
 from engine_air.flow.throat import Throat
-from engine_air.inlets.base import CaptureState, InletType
+from engine_air.inlets.base import CaptureState, InletType, ShockSystem
 from engine_air.physics.constants import GAMMA
 from engine_air.physics.isentropic import choked_mass_flow_parameter, mach_from_flow_ratio, pressure_ratio
 from engine_air.project.model import Inlet
@@ -62,7 +62,7 @@ def pre_entry_drag(kind: InletType, inlet: Inlet, fs: FreeStream, comp: Compress
             if per_column(kind, inlet):
                 d_super = scheduled_pre_entry_drag(kind, inlet, np.broadcast_to(m0, fs.shape), state)
             else:
-                d_super = kind.supersonic_pre_entry_drag(inlet, comp.shocks, state)
+                d_super = _supersonic_drag(kind, inlet, comp.shocks, state, fs.shape)
         bits = 0
         if d_super is None:
             not_modelled = supersonic
@@ -81,3 +81,37 @@ def pre_entry_drag(kind: InletType, inlet: Inlet, fs: FreeStream, comp: Compress
             spillage_drag_n=np.where(low | (mfr >= 1.0), 0.0, (1.0 - suction) * d_add),
             capture_area_m2=inlet.capture_area_m2, lip_suction_factor=suction, flags=bits,
         )
+
+
+def _supersonic_columns(m0, shape: tuple[int, ...]) -> slice | None:
+    """The columns (a slice of the last axis) of the supersonic points when the Mach numbers are one row along the
+    last axis of the points (a map) and the supersonic ones are adjacent, some of the row subsonic; else None."""
+    m = np.asarray(m0)
+    if m.ndim != len(shape) or m.ndim == 0 or m.size != m.shape[-1] or m.shape[-1] != shape[-1]:
+        return None
+    idx = np.flatnonzero(m.reshape(-1) > 1.0)
+    if idx.size in (0, m.size) or idx[-1] - idx[0] + 1 != idx.size:
+        return None
+    return slice(int(idx[0]), int(idx[-1]) + 1)
+
+
+def _supersonic_drag(kind: InletType, inlet: Inlet, shocks: ShockSystem, state: CaptureState, shape):
+    """The type's supersonic pre-entry drag, on the supersonic columns of a map only (the same relations point by
+    point; the subsonic columns keep the momentum balance), at every point otherwise."""
+    cols = _supersonic_columns(state.flight_mach, shape)
+    if cols is None:
+        return kind.supersonic_pre_entry_drag(inlet, shocks, state)
+
+    def part(a):  # an array along the Mach row (or per ramp, the ramp axis first), or one constant along it
+        return a[..., cols] if isinstance(a, np.ndarray) and a.ndim and a.shape[-1] == shape[-1] else a
+
+    sub_shocks = ShockSystem(**{f.name: part(getattr(shocks, f.name)) for f in fields(ShockSystem)})
+    sub = CaptureState(part(np.asarray(state.flight_mach)), part(np.asarray(state.static_pressure_pa)),
+                       part(np.asarray(state.dynamic_pressure_pa)), part(np.asarray(state.mass_flow_ratio)),
+                       state.capture_area_m2, part(np.asarray(state.momentum_balance_drag_n)))
+    d_sub = kind.supersonic_pre_entry_drag(inlet, sub_shocks, sub)
+    if d_sub is None:
+        return None
+    out = np.array(np.broadcast_to(state.momentum_balance_drag_n, shape))
+    out[..., cols] = d_sub
+    return out

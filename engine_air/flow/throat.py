@@ -58,6 +58,8 @@ def _bypass(inlet: Inlet, fs: FreeStream, comp: Compression, cap: Capture, a_thr
     pi_ext, pt0 = comp.shocks.external_recovery, fs.inlet_total_pressure_pa
     mach_cap = (limits.throat_mach_max if limits.throat_mach_max is not None else 1.0) * (1.0 - 1e-9)
     doors_open = fs.supersonic & ~cap.over & ~fs.low_speed
+    if not np.any(doors_open):  # subsonic flight, or every point above MFR_max: nothing to hold, nothing short
+        return 0.0, np.zeros(np.shape(doors_open)), 0
     needed = np.where(doors_open, np.maximum(comp.shocks.max_mass_flow_ratio * cap.capture_flow_kg_s
                                              * (1.0 - comp.bleed_fraction) - cap.engine_flow_kg_s, 0.0), 0.0)
     if inlet.bypass_area_m2 <= 0.0:
@@ -127,8 +129,11 @@ def throat_and_doors(inlet: Inlet, limits: Limits, fs: FreeStream, comp: Compres
         w_aux = aux_share * (w + w_bp)
         captured = (w + w_bp - w_aux) / (1.0 - bleed)  # through the capture plane; bleed = b x captured
         capture_ratio = captured / cap.capture_flow_kg_s / shocks.max_mass_flow_ratio
-        held = fs.supersonic & (w_bp > 0.0) & (np.abs(capture_ratio - 1.0) <= CRITICAL_BAND)
-        critical = (cap.critical | held) & ~cap.supercritical
+        if np.ndim(w_bp) or w_bp > 0.0:  # bypass doors passing air hold the inlet critical
+            held = fs.supersonic & (w_bp > 0.0) & (np.abs(capture_ratio - 1.0) <= CRITICAL_BAND)
+            critical = (cap.critical | held) & ~cap.supercritical
+        else:
+            critical = cap.critical & ~cap.supercritical
         if comp.started is not None:
             m_th = np.where(comp.started, shocks.terminal_upstream_mach, m_th)
             # started with the capture (after any bypass) below the critical one: the shock may be expelled

@@ -132,6 +132,12 @@ def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
     >>> print(f"{g.lip[0]:.2f} {g.lip[1]:.2f}")
     1.22 1.00
     """
+    return _design_geometry(tuple(float(a) for a in ramp_angles_deg), float(design_mach))
+
+
+@lru_cache(maxsize=256)
+def _design_geometry(ramp_angles_deg: tuple, design_mach: float) -> RampGeometry:
+    """``ramp_design_geometry``, once per layout (the trace needs it at every call)."""
     problems = ramp_design_problems(ramp_angles_deg, design_mach)
     if problems:
         raise ValueError("; ".join(problems))
@@ -152,7 +158,10 @@ def ramp_design_geometry(ramp_angles_deg, design_mach) -> RampGeometry:
             s = _cross(d[0], d[1], np.cos(phi), np.sin(phi)) / _cross(np.cos(flow[k]), np.sin(flow[k]), np.cos(phi), np.sin(phi))
             corners.append(c + s * np.array([np.cos(flow[k]), np.sin(flow[k])]))
         m = float(shock.downstream_mach)
-    return RampGeometry(lip, np.array(corners), flow)
+    arrays = (lip, np.array(corners), flow)
+    for a in arrays:  # shared by every caller (cached): read-only
+        a.setflags(write=False)
+    return RampGeometry(*arrays)
 
 
 def cowl_entrance(geometry: RampGeometry) -> tuple[np.ndarray, float]:
@@ -293,8 +302,41 @@ def ramp_trace(ramp_angles_deg, design_mach, flight_mach) -> RampTrace:
         # one Mach number (a scheduled inlet's column): solved once per geometry and Mach, then broadcast
         one = _ramp_trace_at(tuple(float(a) for a in ramp_angles_deg), float(design_mach), float(m0.flat[0]))
         return RampTrace(**{f.name: _broadcast_trace_field(getattr(one, f.name), m0.shape) for f in fields(RampTrace)})
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        return _ramp_trace(ramp_angles_deg, design_mach, m0)
+    angles = tuple(float(a) for a in ramp_angles_deg)
+    if m0.size > _ROW_MAX:
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            return _ramp_trace(angles, design_mach, m0)
+    # a map's row of Mach numbers: traced once for the shock system, its pre-entry drag and every case
+    key = (angles, float(design_mach), m0.shape, m0.tobytes())
+    if key not in _ROWS:
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            trace = _ramp_trace(angles, design_mach, m0)
+        for f in fields(RampTrace):
+            getattr(trace, f.name).setflags(write=False)
+        while len(_ROWS) >= _ROWS_KEPT:
+            _ROWS.pop(next(iter(_ROWS)))
+        _ROWS[key] = trace
+    return _ROWS[key]
+
+
+_ROW_MAX, _ROWS_KEPT = 4096, 16
+_ROWS: dict = {}
+"""Traces of rows of at most ``_ROW_MAX`` Mach numbers, the ``_ROWS_KEPT`` newest (read-only arrays)."""
+
+
+def clear_cache() -> None:
+    """Forget every cached layout and trace (for timing from cold); the next call solves them again, to the same
+    bits.
+
+    Examples
+    --------
+    >>> clear_cache()
+    >>> print(np.round(ramp_trace([10.0], 2.0, np.array([1.8])).captured_height, 4))
+    [0.9595]
+    """
+    _ROWS.clear()
+    _design_geometry.cache_clear()
+    _ramp_trace_at.cache_clear()
 
 
 @lru_cache(maxsize=4096)

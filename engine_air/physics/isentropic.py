@@ -319,8 +319,8 @@ def mach_from_flow_ratio(flow_ratio, supersonic=False, gamma=GAMMA):
     """
     r = np.asarray(flow_ratio, dtype=float)
     s_sub, m_sub, s_sup, m_sup = _tables(gamma)
-    valid = np.isfinite(r) & (r >= 0.0) & (r <= 1.0 + 1e-12)
-    rc = np.clip(np.where(valid, r, 0.5), 0.0, 1.0)
+    valid = (r >= 0.0) & (r <= 1.0 + 1e-12)  # false for NaN, and for infinities by the bounds
+    rc = np.minimum(np.where(valid, r, 0.5), 1.0)  # in [0, 1]
     s = np.sqrt(1.0 - rc)
     if supersonic:
         m = np.interp(s, s_sup, m_sup)
@@ -330,8 +330,9 @@ def mach_from_flow_ratio(flow_ratio, supersonic=False, gamma=GAMMA):
     # f'(M) = (MFP/MFP*) (1 - M^2) / (M (1 + (g-1)/2 M^2)); the table start is good to ~1e-8.
     polish = (rc > 0.0) & (np.abs(1.0 - m) > 1e-7)
     mm = np.where(polish, m, 2.0)
-    f = 1.0 / area_ratio(mm, gamma)
-    df = f * (1.0 - mm * mm) / (mm * _isentropic_base(mm, gamma))
+    base = _isentropic_base(mm, gamma)  # A/A* and f' share it (the same relations as area_ratio)
+    f = 1.0 / (_power(2.0 / (gamma + 1.0) * base, (gamma + 1.0) / (2.0 * (gamma - 1.0))) / mm)
+    df = f * (1.0 - mm * mm) / (mm * base)
     m = np.where(polish, mm - (f - rc) / df, m)
     if not supersonic:
         m = np.where(rc == 0.0, 0.0, m)

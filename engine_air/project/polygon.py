@@ -76,8 +76,10 @@ def polygon_contains(poly_mach, poly_alt, mach, alt) -> np.ndarray:
     """
     px, py, (x0, sx), (y0, sy) = _frame(poly_mach, poly_alt)
     px, py = (px - x0) / sx, (py - y0) / sy
-    xb, yb = np.broadcast_arrays((np.asarray(mach, dtype=float) - x0) / sx,
-                                 (np.asarray(alt, dtype=float) - y0) / sy)
+    mach, alt = np.asarray(mach, dtype=float), np.asarray(alt, dtype=float)
+    if mach.ndim == 2 and alt.ndim == 2 and mach.shape[0] == 1 and alt.shape[1] == 1:  # a grid: row and column
+        return _grid_contains(px, py, (mach[0] - x0) / sx, (alt[:, 0] - y0) / sy)
+    xb, yb = np.broadcast_arrays((mach - x0) / sx, (alt - y0) / sy)
     shape = xb.shape
     x, y = xb.ravel(), yb.ravel()
     # Sort the points by altitude once: the points an edge can affect then form
@@ -101,6 +103,29 @@ def polygon_contains(poly_mach, poly_alt, mach, alt) -> np.ndarray:
         near = run[(x[run] >= min(ax, bx) - tol) & (x[run] <= max(ax, bx) + tol)]
         on_edge[near] |= _segment_distance(x[near], y[near], ax, ay, bx, by) <= tol
     return (inside | on_edge).reshape(shape)
+
+
+def _grid_contains(px, py, x, y) -> np.ndarray:
+    """``polygon_contains`` on the grid of the row ``x`` and the column ``y`` (normalised units): the same tests,
+    edge by edge, on the rows an edge spans and the block of points near it, without sorting the points."""
+    inside = np.zeros((y.size, x.size), dtype=bool)
+    on_edge = np.zeros((y.size, x.size), dtype=bool)
+    tol = EDGE_TOLERANCE
+    n = px.size
+    for i in range(n):
+        ax, ay = px[i], py[i]
+        bx, by = px[(i + 1) % n], py[(i + 1) % n]
+        lo_y, hi_y = min(ay, by), max(ay, by)
+        if ay != by:
+            rows = (y >= lo_y) & (y < hi_y)
+            x_cross = ax + (y[rows] - ay) * (bx - ax) / (by - ay)
+            inside[rows] ^= x[None, :] < x_cross[:, None]
+        rows = (y >= lo_y - tol) & (y <= hi_y + tol)
+        cols = (x >= min(ax, bx) - tol) & (x <= max(ax, bx) + tol)
+        if rows.any() and cols.any():
+            block = np.ix_(rows, cols)
+            on_edge[block] |= _segment_distance(x[cols][None, :], y[rows][:, None], ax, ay, bx, by) <= tol
+    return inside | on_edge
 
 
 def polygon_area(poly_mach, poly_alt) -> float:
