@@ -148,7 +148,9 @@ class AxisymmetricSpikeInlet:
             entry = np.where(ok2, s2.downstream_mach, entry)
             angle = np.where(ok2, math.radians(cones[1]), angle)
             detached = detached | (live & ~s2.attached)
-        scalars = np.stack([recovery, entry, angle, detached.astype(float), np.where(sup, first[4], np.nan),
+        # a flight Mach that rounds to 1 (less than 1e-9 above it) captures like a normal shock at M0 = 1: 1
+        at_one = np.where(uniq == 1.0, 1.0, np.nan)
+        scalars = np.stack([recovery, entry, angle, detached.astype(float), np.where(sup, first[4], at_one),
                             np.where(sup, first[5], 0.0)])
         return m0, scalars[:, inverse], per[:, :, inverse]
 
