@@ -123,3 +123,17 @@ def test_loader_rejects_bad_cone_lists(cones):
     with pytest.raises(ProjectError) as err:
         project_from_dict(data)
     assert err.value.key.startswith("inlet.cone_half_angles_deg")
+
+
+def test_just_above_mach_one_captures_everything():
+    """A flight Mach number a few ulps above 1 (found by hypothesis: 1 + 2.2e-16) is a bow shock of vanishing
+    strength: MFR_max = 1, as at M0 = 1 (method §10, a normal shock turns nothing), never NaN."""
+    import numpy as np
+
+    from engine_air.flow.chain import run_chain
+    from engine_air.project.load import load_project
+    from pathlib import Path
+
+    project = load_project(Path(__file__).resolve().parent.parent / "sample_projects" / "supersonic_spike_nacelle.toml")
+    points = run_chain(project, project.cases[0], np.array([1.0 + 2.2e-16, 1.0 + 1e-12]), np.array([11000.0]))
+    assert np.asarray(points.max_mass_flow_ratio).tolist() == [1.0, 1.0]
