@@ -219,7 +219,7 @@ def _stability_check(limits: Limits, points, inside) -> Check:
         measured = np.asarray(points.data_stable_flow_fraction, float)
         applies = np.where(used, subcritical & np.isfinite(measured), applies)
         threshold = np.where(used, measured, threshold)
-        text += " (measured limit where data decide)"
+        text += "/data"  # the measured limit where data decide
     return _check("stability", "Stable capture (buzz)", text, fraction, fraction - threshold,
                   limits.stable_flow_fraction, inside & applies)
 
