@@ -109,8 +109,8 @@ def detachment_mach(cone_half_angle_deg: float) -> float:
 def _lip_rhs(pt, v0):
     """dy/dw for y = (V_r, V_w, Q, J): Taylor-Maccoll, the conical stream line Q = R^2 (R from the tip, 1 on the
     shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it."""
-    def rhs(w, y):
-        out = _taylor_maccoll(w, y)  # rows 2, 3 are overwritten
+    def rhs(w, y, out=None):
+        out = _taylor_maccoll(w, y, out=out)  # rows 2, 3 are overwritten
         vr, vw, q = y[0], y[1], y[2]
         p = pt * ((1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)) ** (GAMMA * _E)
         s = np.sin(w)
@@ -118,6 +118,7 @@ def _lip_rhs(pt, v0):
         out[2] = 2.0 * q * ratio
         out[3] = (p - 1.0) * q * (2.0 * ratio * s * s + np.sin(2.0 * w))
         return out
+    rhs.writes_out = True  # rk8.integrate passes each stage's slot as ``out``
     return rhs
 
 
@@ -133,8 +134,13 @@ def _from_shock(rhs, beta, end, y0, near: float, at=None):
         def graded(s):  # w = beta + span s^3: the stage rays (or what ``at`` makes of them) and dw/ds
             w = beta + span * s ** 3
             return np.stack([at(w) if at is not None else w, 3.0 * s * s * span], axis=-2)
-        y0 = integrate(lambda a, y: rhs(a[0], y) * a[1], np.zeros(beta.shape), np.ones(beta.shape), y0, 12,
-                       at=graded)
+
+        def scaled(a, y, out):  # dy/ds = dy/dw dw/ds, written into the stage's slot
+            rhs(a[0], y, out)
+            out *= a[1]
+            return out
+        scaled.writes_out = True
+        y0 = integrate(scaled, np.zeros(beta.shape), np.ones(beta.shape), y0, 12, at=graded)
         beta = mid
     return integrate(rhs, beta, end, y0, _steps(beta - end, near=near), at=at)
 
@@ -224,7 +230,7 @@ def cone_columns(flight_mach, cone_half_angle_deg: float, design_mach: float | N
     attached = (ms > 1.0) & (ms >= fam.detachment_mach)
     if design is not None and design < fam.detachment_mach:
         attached[:] = False  # no lip ray: the spike's design check refuses this inlet
-    new = np.unique(ms[attached & np.array([m not in cache for m in ms])])
+    new = np.unique(ms[attached & np.array([m not in cache for m in ms.tolist()], dtype=bool)])
     if new.size:
         m = new if design is None or design in cache else np.unique(np.append(new, design))
         th = math.radians(cone)
@@ -242,8 +248,9 @@ def cone_columns(flight_mach, cone_half_angle_deg: float, design_mach: float | N
         for row in zip(m.tolist(), beta.tolist(), _mach_from_speed(speed).tolist(), pt.tolist(), pc.tolist(),
                        mfr.tolist(), integral.tolist()):
             cache[row[0]] = row[1:]
-    for i in np.nonzero(attached)[0]:
-        out[:, i] = cache[float(ms[i])]
+    idx = np.nonzero(attached)[0]
+    if idx.size:  # one array from the cached rows (a loop over columns cost a column's lookup each)
+        out[:, idx] = np.array([cache[m] for m in ms[idx].tolist()]).T
     return out
 
 

@@ -49,15 +49,24 @@ def _steps(span, longest: float = _H, near: float | None = None, share: float = 
     return max(4, int(math.ceil(float(np.max(np.abs(span), initial=0.0)) / longest)))
 
 
-def _taylor_maccoll(w, y, cot=None):
+def _taylor_maccoll(w, y, cot=None, out=None):
     """dy/dw for y = (V_r, V_w) (outward past a shock a member may reach the sonic line of V_w and turn to
-    NaN; the callers read nothing beyond); ``cot``: cot(w) when known."""
+    NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it."""
     vr, vw = y[0], y[1]
     q = vw * vw
-    a = _G1 * (1.0 - vr * vr - q)
-    out = np.empty_like(y)
+    a = vr * vr  # a = G1 (1 - vr^2 - q): the same operations in place (this runs thousands of times a map)
+    np.subtract(1.0, a, out=a)
+    a -= q
+    a *= _G1
+    t = vw * (1.0 / np.tan(w) if cot is None else cot)
+    t += 2.0 * vr
+    t *= a
+    num = q * vr
+    num -= t
+    if out is None:
+        out = np.empty_like(y)
     out[0] = vw
-    out[1] = (q * vr - a * (2.0 * vr + vw * (1.0 / np.tan(w) if cot is None else cot))) / (a - q)
+    np.divide(num, np.subtract(a, q, out=q), out=out[1])  # (q vr - a (2 vr + vw cot w)) / (a - q)
     return out
 
 
@@ -65,9 +74,12 @@ def _cot(w):
     return 1.0 / np.tan(w)
 
 
-def _tm_cot(cot, y):
+def _tm_cot(cot, y, out=None):
     """``_taylor_maccoll`` with the cotangents of the stages computed once (``rk8.integrate(..., at=_cot)``)."""
-    return _taylor_maccoll(None, y, cot)
+    return _taylor_maccoll(None, y, cot, out)
+
+
+_tm_cot.writes_out = True  # rk8.integrate passes each stage's slot as ``out``
 
 
 def _shock_f(w, vr, vw):
