@@ -88,15 +88,6 @@ def dataclass_kwargs(cls, values: dict) -> dict:
     return {k: v for k, v in values.items() if k in names}
 
 
-def _default_of(cls, name: str):
-    for fld in dataclasses.fields(cls):
-        if fld.name == name:
-            if fld.default is not dataclasses.MISSING:
-                return fld.default
-            return MISSING
-    return MISSING
-
-
 def _read_inlet(r: Reader, data: dict) -> Inlet:
     t = _table(r, data, "inlet", "inlet", True)
     every = {f.key: f for f in S.inlet_fields()}
