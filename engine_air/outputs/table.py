@@ -365,18 +365,22 @@ def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain
 def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
     """``point_table(result)`` written to ``dest`` (a path through the one output writer, or a binary file) as CSV
     or Parquet; returns the number of rows. CSV is written case by case and batch by batch, without the whole
-    table in memory."""
+    table in memory. ``result`` may be an iterable of ``MapResult`` (CSV only): each is written and let go before
+    the next is made (``engine-air map --csv`` evaluates one case at a time)."""
     if fmt != "csv":
         return write_table(point_table(result), dest, fmt, inputs)
     from engine_air.outputs.quantities import TABLE_KEYS
 
     order = point_table_columns(TABLE_KEYS)
-    n = int(np.size(result.inside))
+    results = [result] if hasattr(result, "cases") else result
 
     def parts():
-        for cm in result.cases:
-            cols = _point_columns(result, cm, TABLE_KEYS)
-            yield n, [cols.pop(name) for name in order]  # one case's columns at a time
+        for r in results:
+            n = int(np.size(r.inside))
+            for k in range(len(r.cases)):
+                cols = _point_columns(r, r.cases[k], TABLE_KEYS)
+                yield n, [cols.pop(name) for name in order]  # one case's columns at a time
+            del r  # no reference left to a result once its rows are written
     with _output(dest, inputs) as target:
         return write_csv(Streamed(order, parts()), target)
 
