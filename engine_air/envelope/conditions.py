@@ -11,7 +11,7 @@ total-pressure ratio.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, fields, replace
+from dataclasses import dataclass, field, fields
 
 import numpy as np
 
@@ -21,7 +21,7 @@ from engine_air.flow.chain import run_chain
 from engine_air.flow.points import OperatingPoints
 from engine_air.project.model import Case, Project
 
-CHECK_ARRAYS = ("value", "margin", "relative_margin", "applies", "fails")
+CHECK_ARRAYS = ("value", "margin", "relative_margin", "applies", "fails")  # what a Check gives at each point
 
 
 @dataclass
@@ -44,7 +44,7 @@ class JudgedPoints(OperatingPoints):
         """The points and their checks at ``index`` alone (see ``OperatingPoints.at``)."""
         one = super().at(index)
         idx = index if isinstance(index, tuple) else (index,)
-        one.checks = [replace(c, **{k: np.asarray(getattr(c, k))[idx] for k in CHECK_ARRAYS}) for c in self.checks]
+        one.checks = [c.at(idx) for c in self.checks]
         return one
 
     def check(self, name: str) -> Check:

@@ -36,12 +36,13 @@ FAIL_OFFSET = 1e6
 
 def check_rank(check, mask=None) -> np.ndarray:
     """Rank array of one check (see the module text); ``mask`` (bool) further restricts where it is judged."""
-    rel = np.asarray(check.relative_margin, dtype=float)
+    rel, fails = check.relative_and_fails()  # the margin computed once for both
+    rel = np.asarray(rel, dtype=float)
     applies = np.asarray(check.applies, dtype=bool)
     if mask is not None:
         applies = applies & mask
     with np.errstate(invalid="ignore"):
-        return np.where(applies, np.where(check.fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
+        return np.where(applies, np.where(fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
 
 
 def _least(ranks: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
