@@ -136,9 +136,33 @@ class Check:
 
     def relative_and_fails(self) -> tuple[np.ndarray, np.ndarray]:
         """``(relative_margin, fails)``, the margin computed once for both (what the ranking reads)."""
+        if self._margin is None and self._relative is None and self._fails is None:
+            margin = self.margin  # a new array of its own: the relative margin is made in it, in place
+            applies = np.asarray(self.applies)
+            if isinstance(margin, np.ndarray) and margin.ndim and margin.dtype == float and applies.shape == margin.shape:
+                return self._relative_and_fails_in(margin, applies)
         margin = self.margin if self._relative is None or self._fails is None else None
         return (self._relative if self._relative is not None else self._relative_of(margin),
                 self._fails if self._fails is not None else self._fails_of(margin))
+
+    def _relative_and_fails_in(self, margin: np.ndarray, applies: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """``_relative_of`` and ``_fails_of`` in fewer passes, the relative margin written over ``margin``: the
+        same operations on the same values (x / 1 is x), so the same bits."""
+        with np.errstate(**_QUIET):
+            fails = np.less(margin, 0.0)
+            fails &= applies
+            if self.forced is not None:
+                fails |= self.forced & applies
+            scale = abs(self.scale)
+            if scale != 1.0:
+                np.divide(margin, scale, out=margin)
+            np.maximum(margin, -MAX_RELATIVE_MARGIN, out=margin)
+            np.minimum(margin, MAX_RELATIVE_MARGIN, out=margin)
+            np.copyto(margin, np.nan, where=~applies)
+            if self.forced is not None:
+                forced = self.forced & applies
+                np.copyto(margin, np.minimum(margin, -1.0), where=forced)
+        return margin, fails
 
     def arrays(self) -> dict[str, object]:
         """What the check keeps (the arrays and numbers it is made of), by attribute name."""

@@ -46,11 +46,19 @@ def rank_and_fails(check, mask=None) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _rank_of(applies, rel, fails, mask=None) -> np.ndarray:
+    """where(applies, where(fails, min(rel, 0) - FAIL_OFFSET, rel), +inf), in place where the shapes allow."""
     rel = np.asarray(rel, dtype=float)
     applies = np.asarray(applies, dtype=bool)
     if mask is not None:
         applies = applies & mask
+    fails = np.asarray(fails, dtype=bool)
     with np.errstate(invalid="ignore"):
+        if rel.ndim and rel.shape == applies.shape == fails.shape:
+            rank = np.minimum(rel, 0.0)
+            rank -= FAIL_OFFSET
+            np.copyto(rank, rel, where=~fails)
+            np.copyto(rank, np.inf, where=~applies)
+            return rank
         return np.where(applies, np.where(fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
 
 
