@@ -90,3 +90,25 @@ def test_neighbouring_coded_columns_are_merged_only_while_few():
     assert len(prepared) == 2  # few+same share codes, then x two (100 combinations); many stays apart
     text = csv_lines.lines(prepared, 0, 3).to_pylist()
     assert text == ["\n0,s0,0,0", "\n1,s1,1,1", "\n2,s2,0,2"]
+
+
+@pytest.mark.parametrize("sample", ["supersonic_two_ramp.toml", "variable_geometry_fighter.toml",
+                                    "mixed_compression_throat_schedule.toml", "undersized_business_jet.toml",
+                                    "supersonic_spike_nacelle.toml", "subsonic_transport_nacelle.toml",
+                                    "tunnel_data/two_ramp_with_tunnel_data.toml"])
+def test_a_map_written_in_parts_of_rows_is_the_map_written_whole(tmp_path, monkeypatch, sample):
+    # map --csv makes one case's columns for a few altitude rows at a time (the memory of a part, not of a case):
+    # the bytes must be those of the columns made for the whole case at once
+    from pathlib import Path
+
+    from engine_air.envelope.evaluate import evaluate_project
+    from engine_air.outputs import table
+    from engine_air.project import load_project
+
+    result = evaluate_project(load_project(Path(__file__).parent.parent / "sample_projects" / sample))
+    monkeypatch.setattr(table, "PART_POINTS", 10 ** 9)
+    table.write_point_table(result, tmp_path / "whole.csv")
+    monkeypatch.setattr(table, "PART_POINTS", 3 * len(result.mach) + 1)  # three rows a part, the last one shorter
+    assert len(table._row_parts(result.inside.shape)) > 3
+    table.write_point_table(result, tmp_path / "parts.csv")
+    assert (tmp_path / "parts.csv").read_bytes() == (tmp_path / "whole.csv").read_bytes()

@@ -222,10 +222,6 @@ def write_lines(fh, parts: Iterable[tuple[int, list]]) -> int:
                 made = {k: cols[k].text(a, b) for k in blocks}
                 if pending is not None:
                     pending.result()  # in order; an error there stops the write
-                import os
-                if os.environ.get("SEQ"):
-                    write(fh, lines(cols, a, b, made))
-                    continue
                 pending = worker.submit(lambda c=cols, a=a, b=b, m=made: write(fh, lines(c, a, b, m)))
             rows += n if cols else 0
             del cols  # before the next part is built

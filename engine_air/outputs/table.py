@@ -327,15 +327,28 @@ def _codes(values, shape) -> np.ndarray:
     return np.where(c < 0, 0, c + 1)
 
 
-def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain]:
-    """The columns of ``point_table`` for one case, ready to be turned into text batch by batch."""
+PART_POINTS = 65_536
+"""About the most grid points of one case whose columns are made at once (whole altitude rows)."""
+
+
+def _row_parts(shape: tuple[int, int]) -> list[slice]:
+    """The altitude rows of a grid in parts of about ``PART_POINTS`` points each."""
+    per = max(1, PART_POINTS // max(1, shape[1]))
+    return [slice(a, min(shape[0], a + per)) for a in range(0, shape[0], per)]
+
+
+def _point_columns(result, cm, keys: Sequence[str], rows: slice | None = None) -> dict[str, _Coded | _Plain]:
+    """The columns of ``point_table`` for one case (its altitude ``rows`` only, when given), ready to be turned
+    into text batch by batch."""
     from engine_air.envelope import flags as F
     from engine_air.flow.match import REGIMES
     from engine_air.outputs.quantities import REGISTRY
 
-    shape = np.shape(result.inside)
-    inside = np.asarray(result.inside, dtype=bool).ravel()
-    pts = cm.points
+    whole = np.asarray(result.inside, dtype=bool)
+    part = rows is not None and (rows.start, rows.stop) != (0, whole.shape[0])
+    shape = whole[rows].shape if part else whole.shape
+    inside = (whole[rows] if part else whole).ravel()
+    pts = cm.points.at((rows,)) if part else cm.points
     n = inside.size
     fails = np.zeros(n, bool)
     for c in pts.checks:
@@ -357,9 +370,14 @@ def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain
         "flags": _coded_text([";".join(F.names_of(int(b))) for b in bits], bit_codes.ravel()),
         "judged": _coded_text(zero_one, judged),
     }
-    for k in keys:
+    first = [k for k in keys if k in _HEAVY]  # its temporaries before the other columns are held, not on top
+    for k in first + [k for k in keys if k not in _HEAVY]:
         cols[k] = _grid_column(REGISTRY[k].values(pts), shape, by_mach, by_alt)
     return cols
+
+
+_HEAVY = ("worst_relative_margin",)
+"""Quantities whose making holds several grid arrays at once (every check's margin, ranked)."""
 
 
 def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
@@ -376,10 +394,11 @@ def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
 
     def parts():
         for r in results:
-            n = int(np.size(r.inside))
             for k in range(len(r.cases)):
-                cols = _point_columns(r, r.cases[k], TABLE_KEYS)
-                yield n, [cols.pop(name) for name in order]  # one case's columns at a time
+                for rows in _row_parts(np.shape(r.inside)):
+                    cols = _point_columns(r, r.cases[k], TABLE_KEYS, rows)
+                    n = int(np.size(r.inside[rows]))
+                    yield n, [cols.pop(name) for name in order]  # one part of one case's columns at a time
             del r  # no reference left to a result once its rows are written
     with _output(dest, inputs) as target:
         return write_csv(Streamed(order, parts()), target)
