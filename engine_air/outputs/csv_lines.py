@@ -128,6 +128,7 @@ class FloatBlock:
 
     def __init__(self, columns: list[np.ndarray]):
         self.columns = columns
+        self._flat = np.zeros(0)  # reused from batch to batch: a fresh array each time costs its page faults
 
     def text(self, a: int, b: int) -> pa.Array:
         """Rows a..b as slices of one orjson text: ``[0.0,a,b,c,d]`` (a leading 0 for the first row's comma) gives
@@ -135,7 +136,9 @@ class FloatBlock:
         import orjson
 
         w, rows = len(self.columns), b - a
-        flat = np.zeros(1 + rows * w)
+        if self._flat.size < 1 + rows * w:
+            self._flat = np.zeros(1 + rows * w)
+        flat = self._flat[:1 + rows * w]
         block = flat[1:].reshape(rows, w)
         for k, c in enumerate(self.columns):
             block[:, k] = c[a:b]
