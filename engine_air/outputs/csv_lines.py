@@ -14,8 +14,8 @@ without its line feed, and one line feed ends the file):
 - ``Plain``: anything else (integers, Arrow arrays), cast to text by Arrow.
 
 ``write_lines`` runs in two threads: this one turns a batch's float blocks into text (orjson holds the
-interpreter's lock), a worker takes the coded texts, joins the lines and writes them (Arrow and the file write
-release it). One batch waits at most, so the text in memory stays within a few batches.
+interpreter's lock), a worker finds their cells, takes the coded texts, joins the lines and writes them (numpy,
+Arrow and the file write release it). One batch waits at most, so the text in memory stays within a few batches.
 
 Floats read ``2.0``, ``1e-7``, ``1e+21`` (the shortest round trip, as Python's ``repr`` writes it but for the
 exponent's padding); whole numbers of integer columns read ``2``.
@@ -133,6 +133,10 @@ class FloatBlock:
     def text(self, a: int, b: int) -> pa.Array:
         """Rows a..b as slices of one orjson text: ``[0.0,a,b,c,d]`` (a leading 0 for the first row's comma) gives
         ``,a,b`` and ``,c,d`` at every ``w``-th comma, ``w`` the number of columns."""
+        return self.cells(self.formatted(a, b), b - a)
+
+    def formatted(self, a: int, b: int) -> bytes:
+        """Rows a..b as one orjson text (``[0.0,a,b,c,d]``; NaN and infinities as nothing)."""
         import orjson
 
         w, rows = len(self.columns), b - a
@@ -143,11 +147,13 @@ class FloatBlock:
         for k, c in enumerate(self.columns):
             block[:, k] = c[a:b]
         raw = orjson.dumps(flat, option=orjson.OPT_SERIALIZE_NUMPY)
-        if not np.isfinite(block).all():
-            raw = raw.replace(b"null", b"")  # empty cells
+        return raw if np.isfinite(block).all() else raw.replace(b"null", b"")  # empty cells
+
+    def cells(self, raw: bytes, rows: int) -> pa.Array:
+        """The texts of ``rows`` rows in ``raw`` (``formatted``), without a copy."""
         commas = np.flatnonzero(np.frombuffer(raw, dtype=np.uint8) == ord(","))
         offsets = np.empty(rows + 1, dtype=np.int32)
-        offsets[:-1], offsets[-1] = commas[::w], len(raw) - 1  # the last row ends before the closing bracket
+        offsets[:-1], offsets[-1] = commas[::len(self.columns)], len(raw) - 1  # the last row ends before "]"
         return pa.Array.from_buffers(pa.string(), rows, [None, pa.py_buffer(offsets), pa.py_buffer(raw)])
 
 
@@ -194,9 +200,10 @@ def prepared(cols: list) -> list:
 
 
 def lines(cols: list, a: int, b: int, made: dict | None = None) -> pa.Array:
-    """Rows a..b of the prepared columns as CSV lines; ``made``: texts of some columns made already (by index)."""
+    """Rows a..b of the prepared columns as CSV lines; ``made``: the float blocks' orjson texts made already (by
+    column index)."""
     made = made or {}
-    texts = [made[k] if k in made else c.text(a, b) for k, c in enumerate(cols)]
+    texts = [c.text(a, b) if k not in made else c.cells(made[k], b - a) for k, c in enumerate(cols)]
     if len(texts) == 1:
         return texts[0]
     joined = pc.binary_join_element_wise(*texts, strings([b""])[0], memory_pool=pool())
@@ -222,7 +229,7 @@ def write_lines(fh, parts: Iterable[tuple[int, list]]) -> int:
             blocks = [k for k, c in enumerate(cols) if isinstance(c, FloatBlock)]
             for a in range(0, n if cols else 0, BATCH_ROWS):
                 b = min(n, a + BATCH_ROWS)
-                made = {k: cols[k].text(a, b) for k in blocks}
+                made = {k: cols[k].formatted(a, b) for k in blocks}
                 if pending is not None:
                     pending.result()  # in order; an error there stops the write
                 pending = worker.submit(lambda c=cols, a=a, b=b, m=made: write(fh, lines(c, a, b, m)))
