@@ -75,7 +75,7 @@ from engine_air.physics.taylor_maccoll import (  # the equation and one cone's f
 )
 
 _ROUND = 9  # decimals of the cache keys (Mach number, degrees)
-_BETA_TOL = 1e-12  # rad: a column is settled when its secant step on beta is below this
+_TRIAL = 1e-6  # rad: the trial wave angles of a column lie this far either side of its estimate
 _CHEB = 32  # Chebyshev series degree + 1 of a single solution's rays
 
 
@@ -106,38 +106,54 @@ def detachment_mach(cone_half_angle_deg: float) -> float:
 
 # -- inwards: flight Mach columns ------------------------------------------------------------------------------------
 
+def _lip_rays(w):
+    """What the stream line's equations need of the rays ``w``: cot w, sin w and sin 2w (rows)."""
+    return np.stack([1.0 / np.tan(w), np.sin(w), np.sin(2.0 * w)], axis=-2)
+
+
 def _lip_rhs(pt, v0):
     """dy/dw for y = (V_r, V_w, Q, J): Taylor-Maccoll, the conical stream line Q = R^2 (R from the tip, 1 on the
-    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it."""
-    def rhs(w, y, out=None):
-        out = _taylor_maccoll(w, y, out=out)  # rows 2, 3 are overwritten
+    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it; ``rays`` from ``_lip_rays``."""
+    k0 = 1.0 - v0 * v0
+
+    def rhs(rays, y, out):
+        _taylor_maccoll(None, y, rays[0], out)  # rows 2, 3 are overwritten
         vr, vw, q = y[0], y[1], y[2]
-        p = pt * ((1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)) ** (GAMMA * _E)
-        s = np.sin(w)
+        p = pt * ((1.0 - vr * vr - vw * vw) / k0) ** (GAMMA * _E)
         ratio = vr / vw
-        out[2] = 2.0 * q * ratio
-        out[3] = (p - 1.0) * q * (2.0 * ratio * s * s + np.sin(2.0 * w))
+        np.multiply(2.0 * q, ratio, out=out[2])
+        t = 2.0 * ratio
+        t *= rays[1]
+        t *= rays[1]
+        t += rays[2]  # 2 (V_r/V_w) sin^2 w + sin 2w
+        p -= 1.0
+        p *= q
+        np.multiply(p, t, out=out[3])
         return out
     rhs.writes_out = True  # rk8.integrate passes each stage's slot as ``out``
     return rhs
 
 
 def _from_shock(rhs, beta, end, y0, near: float, at=None):
-    """Integrate inwards from the shock rays ``beta`` to ``end``. Behind a weak shock the normal Mach number is
-    close to 1 and the equation's denominator nearly vanishes: there the first fifth of the way is taken in 12
-    steps growing as s^3 (s from 0 at the shock), the rest in equal steps."""
+    """Integrate inwards from the shock rays ``beta`` to ``end`` (``at``: what ``rhs`` takes of the rays, see
+    ``rk8.integrate``). Behind a weak shock the normal Mach number is close to 1 and the equation's denominator
+    nearly vanishes: there the first fifth of the way is taken in 12 steps growing as s^3 (s from 0 at the
+    shock), the rest in equal steps."""
     vr, vw = y0[0], y0[1]
     if np.max(vw * vw / (_G1 * (1.0 - vr * vr - vw * vw))) > 0.9:
         mid = beta + 0.2 * (end - beta)
         span = mid - beta
 
-        def graded(s):  # w = beta + span s^3: the stage rays (or what ``at`` makes of them) and dw/ds
+        def graded(s):  # w = beta + span s^3: what ``at`` makes of the stage rays, and dw/ds as the last row
             w = beta + span * s ** 3
-            return np.stack([at(w) if at is not None else w, 3.0 * s * s * span], axis=-2)
+            rays = at(w) if at is not None else w
+            if rays.ndim == w.ndim:
+                rays = rays[..., None, :]
+            return np.concatenate([rays, (3.0 * s * s * span)[..., None, :]], axis=-2)
 
         def scaled(a, y, out):  # dy/ds = dy/dw dw/ds, written into the stage's slot
-            rhs(a[0], y, out)
-            out *= a[1]
+            rhs(a[0] if a.shape[0] == 2 else a[:-1], y, out)
+            out *= a[-1]
             return out
         scaled.writes_out = True
         y0 = integrate(scaled, np.zeros(beta.shape), np.ones(beta.shape), y0, 12, at=graded)
@@ -151,7 +167,7 @@ def _lip_values(m0, beta, lip):
     vr, vw, pt, v0 = _behind_shock(m0, beta)
     y0 = np.stack([vr, vw, np.ones(m0.size), np.zeros(m0.size)])
     with np.errstate(all="ignore"):
-        vr, vw, q, j = _from_shock(_lip_rhs(pt, v0), beta, lip, y0, float(np.min(lip)))
+        vr, vw, q, j = _from_shock(_lip_rhs(pt, v0), beta, lip, y0, float(np.min(lip)), at=_lip_rays)
     x = (1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)
     mfr = pt * x ** _E * np.abs(vw) / (v0 * np.sin(lip))
     rl2 = q * np.sin(lip) ** 2  # (r_L / R_shock)^2
@@ -167,24 +183,38 @@ def _inward_pass(th: float, m0, beta):
 
 
 def _solve(th: float, m0, beta):
-    """Secant steps on the wave angles of all columns together, started from ``beta`` with a finite-difference
-    slope, until every step is below 1e-12 rad. Returns (beta, surface speed)."""
-    n = m0.size
-    eps = 1e-7
-    r, speed = _inward_pass(th, np.concatenate([m0, m0]), np.concatenate([beta, beta + eps]))
-    slope = (r[n:] - r[:n]) / eps
-    r, speed = r[:n], speed[:n]
+    """Wave angles of all columns together. Each pass integrates every open column at three trial angles
+    beta - e, beta, beta + e (e = 1e-6 rad) and takes the root d of the quadratic through the three V_w(theta_c);
+    a column whose root lies within 2e of beta is settled there, the others move to beta + d (at most 0.05 rad)
+    and pass again. The surface speed at the root is the quadratic through the three speeds. Started from the
+    family's wave angles (within about 1e-6 rad) one pass settles every column of a map. Returns (beta, speed)."""
+    beta = np.array(beta, dtype=float)
+    speed = np.full(m0.size, np.nan)
+    todo = np.arange(m0.size)
+    e = _TRIAL
     for _ in range(12):
-        step = np.clip(-r / np.where(slope != 0.0, slope, 1.0), -0.05, 0.05)
-        idx = np.nonzero(~(np.abs(step) < _BETA_TOL))[0]
-        if not idx.size:
+        n = todo.size
+        b = beta[todo]
+        r, s = _inward_pass(th, np.tile(m0[todo], 3), np.concatenate([b, b - e, b + e]))
+        d = _quadratic_root(r[:n], (r[2 * n:] - r[n:2 * n]) / (2.0 * e), (r[2 * n:] - 2.0 * r[:n] + r[n:2 * n]) / (2.0 * e * e))
+        settled = np.abs(d) <= 2.0 * e
+        x = np.where(settled, d, 0.0)
+        speed[todo] = s[:n] + x * ((s[2 * n:] - s[n:2 * n]) / (2.0 * e)) + x * x * ((s[2 * n:] - 2.0 * s[:n] + s[n:2 * n]) / (2.0 * e * e))
+        step = np.clip(np.where(np.isfinite(d), d, 0.0), -0.05, 0.05)
+        beta[todo] = np.where(settled, b + d, np.clip(b + step, th + 1e-9, 0.5 * math.pi - 1e-9))
+        todo = todo[~settled]
+        if not todo.size:
             break
-        new = np.clip(beta[idx] + step[idx], th + 1e-9, 0.5 * math.pi - 1e-9)
-        r_new, speed[idx] = _inward_pass(th, m0[idx], new)
-        moved = new - beta[idx]
-        slope[idx] = np.where(moved != 0.0, (r_new - r[idx]) / np.where(moved != 0.0, moved, 1.0), slope[idx])
-        beta[idx], r[idx] = new, r_new
     return beta, speed
+
+
+def _quadratic_root(r, g, c):
+    """The root nearer zero of r + g d + c d^2 (Newton's -r/g where the quadratic has no real root)."""
+    with np.errstate(all="ignore"):
+        disc = g * g - 4.0 * c * r
+        root = np.sqrt(np.maximum(disc, 0.0))
+        d = -2.0 * r / (g + np.where(g < 0.0, -root, root))
+        return np.where(disc >= 0.0, d, -r / g)
 
 
 _COLUMNS: dict[tuple[float, float | None], dict[float, tuple[float, ...]]] = {}
