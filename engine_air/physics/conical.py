@@ -75,7 +75,7 @@ from engine_air.physics.taylor_maccoll import (  # the equation and one cone's f
 )
 
 _ROUND = 9  # decimals of the cache keys (Mach number, degrees)
-_TRIAL = 1e-6  # rad: the trial wave angles of a column lie this far either side of its estimate
+_BETA_TOL = 1e-12  # rad: the secant steps stop when a step is below this
 _CHEB = 32  # Chebyshev series degree + 1 of a single solution's rays
 
 
@@ -183,38 +183,60 @@ def _inward_pass(th: float, m0, beta):
 
 
 def _solve(th: float, m0, beta):
-    """Wave angles of all columns together. Each pass integrates every open column at three trial angles
-    beta - e, beta, beta + e (e = 1e-6 rad) and takes the root d of the quadratic through the three V_w(theta_c);
-    a column whose root lies within 2e of beta is settled there, the others move to beta + d (at most 0.05 rad)
-    and pass again. The surface speed at the root is the quadratic through the three speeds. Started from the
-    family's wave angles (within about 1e-6 rad) one pass settles every column of a map. Returns (beta, speed)."""
+    """Wave angles of all columns together, from the start values ``beta``. A pass integrates every open column
+    at three trial angles b, b + 1e-7 and b - 1e-6 rad; the secant steps, started with the slope over the first
+    two, are taken on the quadratic through the three V_w(theta_c) (``_secant``) until one is below 1e-12 rad.
+    A column whose result lies within 2e-6 rad of b is settled there, its surface speed on the quadratic
+    through the three speeds; the others pass again from their result (at most 0.05 rad on). The family's
+    start values are within 1e-6 rad, so one pass settles every column of a map. Returns (beta, surface speed)."""
     beta = np.array(beta, dtype=float)
     speed = np.full(m0.size, np.nan)
     todo = np.arange(m0.size)
-    e = _TRIAL
     for _ in range(12):
         n = todo.size
         b = beta[todo]
-        r, s = _inward_pass(th, np.tile(m0[todo], 3), np.concatenate([b, b - e, b + e]))
-        d = _quadratic_root(r[:n], (r[2 * n:] - r[n:2 * n]) / (2.0 * e), (r[2 * n:] - 2.0 * r[:n] + r[n:2 * n]) / (2.0 * e * e))
-        settled = np.abs(d) <= 2.0 * e
+        trial = np.concatenate([b, b + 1e-7, b - 1e-6])
+        r, s = _inward_pass(th, np.tile(m0[todo], 3), trial)
+        r, s, offsets = r.reshape(3, n), s.reshape(3, n), trial.reshape(3, n)[1:] - b  # the offsets exactly
+        d = _secant(_quadratic(r, offsets), (r[1] - r[0]) / 1e-7, b, th) - b
+        settled = np.abs(d) <= 2e-6
+        c0, c1, c2 = _quadratic(s, offsets)
         x = np.where(settled, d, 0.0)
-        speed[todo] = s[:n] + x * ((s[2 * n:] - s[n:2 * n]) / (2.0 * e)) + x * x * ((s[2 * n:] - 2.0 * s[:n] + s[n:2 * n]) / (2.0 * e * e))
-        step = np.clip(np.where(np.isfinite(d), d, 0.0), -0.05, 0.05)
-        beta[todo] = np.where(settled, b + d, np.clip(b + step, th + 1e-9, 0.5 * math.pi - 1e-9))
+        speed[todo] = c0 + x * (c1 + x * c2)
+        beta[todo] = b + d
         todo = todo[~settled]
         if not todo.size:
             break
     return beta, speed
 
 
-def _quadratic_root(r, g, c):
-    """The root nearer zero of r + g d + c d^2 (Newton's -r/g where the quadratic has no real root)."""
-    with np.errstate(all="ignore"):
-        disc = g * g - 4.0 * c * r
-        root = np.sqrt(np.maximum(disc, 0.0))
-        d = -2.0 * r / (g + np.where(g < 0.0, -root, root))
-        return np.where(disc >= 0.0, d, -r / g)
+def _quadratic(values, offsets):
+    """Coefficients (c0, c1, c2) of c0 + c1 d + c2 d^2 through ``values[0]`` at d = 0 and ``values[1:]`` at the
+    two ``offsets`` (arrays, one column a member)."""
+    s1 = (values[1] - values[0]) / offsets[0]
+    s2 = (values[2] - values[0]) / offsets[1]
+    c2 = (s1 - s2) / (offsets[0] - offsets[1])
+    return values[0], s1 - c2 * offsets[0], c2
+
+
+def _secant(c, slope, b, th: float):
+    """Secant steps on V_w(theta_c) = 0 from ``b`` with the start ``slope``, then through each column's last two
+    points, until a step is below 1e-12 rad (steps at most 0.05 rad, beta within (theta_c, pi/2)); V_w is read
+    off the quadratic with coefficients ``c`` in beta - b (``_quadratic``)."""
+    c0, c1, c2 = c
+    beta, value, slope = b.copy(), c0.copy(), slope.copy()
+    for _ in range(12):
+        step = np.clip(-value / np.where(slope != 0.0, slope, 1.0), -0.05, 0.05)
+        idx = np.nonzero(~(np.abs(step) < _BETA_TOL))[0]
+        if not idx.size:
+            break
+        new = np.clip(beta[idx] + step[idx], th + 1e-9, 0.5 * math.pi - 1e-9)
+        d = new - b[idx]
+        v_new = c0[idx] + d * (c1[idx] + d * c2[idx])
+        moved = new - beta[idx]
+        slope[idx] = np.where(moved != 0.0, (v_new - value[idx]) / np.where(moved != 0.0, moved, 1.0), slope[idx])
+        beta[idx], value[idx] = new, v_new
+    return beta
 
 
 _COLUMNS: dict[tuple[float, float | None], dict[float, tuple[float, ...]]] = {}

@@ -125,13 +125,14 @@ def _scan(w0, y0, w1, steps: int):
     return w, y, f, df, sound & smooth
 
 
-def _outward(theta_c: float, surface_mach, end, steps: int):
+def _outward(theta_c: float, surface_mach, end, steps: int, least: bool = False):
     """Integrate members from the cone (surface Mach numbers) towards the rays ``end`` and find each one's first
     shock (f = 0). A step in which f turns positive, the flow reaches the sonic line (just beyond a weak shock)
     or f is not smooth is integrated again in 16 parts, until the root lies in a smooth part, where it is taken
     on the cubic Hermite interpolant of f (past a refined step the parts grow fourfold again). Returns (M0, beta);
     NaN where a member meets no shock before the sonic line (or ``end``), or its free stream would not be
-    supersonic or would pass V_max."""
+    supersonic or would pass V_max. With ``least`` (members in increasing surface Mach, one cone's family) the
+    members that cannot be the least M0 nor its two neighbours below are left NaN (``_below_least``)."""
     mc = np.asarray(surface_mach, dtype=float)
     m0, beta = np.full(mc.size, np.nan), np.full(mc.size, np.nan)
     todo = np.arange(mc.size)
@@ -150,6 +151,8 @@ def _outward(theta_c: float, surface_mach, end, steps: int):
                                                              i[done])
         go_on = ~stopped & (w1 < end[todo])  # a part passed without a stop: on to the end
         keep = (stopped & ~done) | go_on
+        if least:
+            keep &= ~_below_least(m0, todo, keep)
         if not keep.any():
             break
         start = np.where(go_on, i, i - 1)[keep]
@@ -159,6 +162,20 @@ def _outward(theta_c: float, surface_mach, end, steps: int):
         w1 = np.where(go_on[keep], np.minimum(end[todo], w0 + 64.0 * h), w0 + h)  # 16 parts of 4 h, or of h / 16
         steps = 16
     return m0, beta
+
+
+def _below_least(m0, todo, keep):
+    """Which of the members ``todo`` still open (``keep``) lie on the strong branch well below the least M0
+    found: when every member from the highest open one below the least up to the least is finished, the least
+    of all lies there or above (M0 falls along the family to its least value and rises again), so open members
+    more than two below it are never needed (``cone_family`` reads the least and its neighbours)."""
+    drop = np.zeros(todo.size, bool)
+    if np.isfinite(m0).any():
+        k = int(np.nanargmin(m0))
+        below = keep & (todo < k)
+        if below.any() and todo[below].max() < k - 2:
+            drop = below
+    return drop
 
 
 def _hermite_root(w, y, f, df, j):
@@ -221,7 +238,7 @@ def cone_family(cone_deg: float) -> ConeFamily:
     # further down only costs steps) far up the weak branch
     mc = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
     top = 0.5 * math.pi - 1e-6
-    m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05, th, 0.16))
+    m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05, th, 0.16), least=True)
     # the family: the members next to one another about the least flight Mach number, up to _TOP_MACH
     ok = np.isfinite(m0)
     k = int(np.nanargmin(np.where(ok, m0, np.nan)))
