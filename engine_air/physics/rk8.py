@@ -92,13 +92,18 @@ def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False, at=None) -> np.n
     flat = stages.reshape(_STAGES, -1)
     kept = [y] if nodes else None
     if getattr(rhs, "writes_out", False):  # the same values written straight into each stage's slot
+        slots = list(stages)
+        rows = [flat[:s] for s in range(_STAGES)]
+        buf = np.empty(flat.shape[1])
+        x = buf.reshape(y.shape)  # each stage's state, y + (A_s . k) h, in place
         for i in range(steps):
-            rhs(w[i, 0], y, stages[0])
+            wi = w[i]
+            rhs(wi[0], y, slots[0])
             for s in range(1, _STAGES):
-                x = (_A_ROWS[s] @ flat[:s]).reshape(y.shape)
+                np.matmul(_A_ROWS[s], rows[s], out=buf)
                 x *= h
-                x += y  # y + (A_s . k) h, in place
-                rhs(w[i, s], x, stages[s])
+                x += y
+                rhs(wi[s], x, slots[s])
             y = y + (_B @ flat).reshape(y.shape) * h
             if nodes:
                 kept.append(y)
