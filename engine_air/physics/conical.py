@@ -107,27 +107,31 @@ def detachment_mach(cone_half_angle_deg: float) -> float:
 # -- inwards: flight Mach columns ------------------------------------------------------------------------------------
 
 def _lip_rays(w):
-    """What the stream line's equations need of the rays ``w``: cot w, sin w and sin 2w (rows)."""
-    return np.stack([1.0 / np.tan(w), np.sin(w), np.sin(2.0 * w)], axis=-2)
+    """What the stream line's equations need of the rays ``w``: cot w, sin^2 w and sin 2w (rows), all from
+    t = tan w (sin^2 w = t^2 / (1 + t^2), sin 2w = 2 t / (1 + t^2))."""
+    t = np.tan(w)
+    t2 = t * t
+    return np.stack([1.0 / t, t2 / (1.0 + t2), 2.0 * t / (1.0 + t2)], axis=-2)
 
 
 def _lip_rhs(pt, v0):
     """dy/dw for y = (V_r, V_w, Q, J): Taylor-Maccoll, the conical stream line Q = R^2 (R from the tip, 1 on the
-    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it; ``rays`` from ``_lip_rays``."""
-    k0 = 1.0 - v0 * v0
+    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it, with
+    p/p0 = pi_s ((1 - V^2) / (1 - V0^2))^(g/(g-1)); ``rays`` from ``_lip_rays``."""
+    scale = pt / (1.0 - v0 * v0) ** (GAMMA * _E)
+    room = np.empty(np.shape(v0))  # 1 - V^2, from the Taylor-Maccoll step
 
     def rhs(rays, y, out):
-        _taylor_maccoll(None, y, rays[0], out)  # rows 2, 3 are overwritten
+        _taylor_maccoll(None, y, rays[0], out, room)  # rows 2, 3 are overwritten
         vr, vw, q = y[0], y[1], y[2]
-        p = pt * ((1.0 - vr * vr - vw * vw) / k0) ** (GAMMA * _E)
-        ratio = vr / vw
-        np.multiply(2.0 * q, ratio, out=out[2])
-        t = 2.0 * ratio
-        t *= rays[1]
-        t *= rays[1]
-        t += rays[2]  # 2 (V_r/V_w) sin^2 w + sin 2w
+        dq = vr / vw
+        dq *= q
+        np.multiply(dq, 2.0, out=out[2])  # dQ/dw = 2 Q V_r / V_w
+        p = room ** (GAMMA * _E)
+        p *= scale
         p -= 1.0
-        p *= q
+        t = q * rays[2]
+        t += out[2] * rays[1]  # d(Q sin^2 w)/dw
         np.multiply(p, t, out=out[3])
         return out
     rhs.writes_out = True  # rk8.integrate passes each stage's slot as ``out``

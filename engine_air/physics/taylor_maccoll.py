@@ -49,14 +49,17 @@ def _steps(span, longest: float = _H, near: float | None = None, share: float = 
     return max(4, int(math.ceil(float(np.max(np.abs(span), initial=0.0)) / longest)))
 
 
-def _taylor_maccoll(w, y, cot=None, out=None):
+def _taylor_maccoll(w, y, cot=None, out=None, room=None):
     """dy/dw for y = (V_r, V_w) (outward past a shock a member may reach the sonic line of V_w and turn to
-    NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it."""
+    NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it; ``room``:
+    where to write 1 - V_r^2 - V_w^2 as well."""
     vr, vw = y[0], y[1]
     q = vw * vw
     a = vr * vr  # a = G1 (1 - vr^2 - q): the same operations in place (this runs thousands of times a map)
     np.subtract(1.0, a, out=a)
     a -= q
+    if room is not None:
+        room[...] = a
     a *= _G1
     t = vw * (1.0 / np.tan(w) if cot is None else cot)
     t += 2.0 * vr
