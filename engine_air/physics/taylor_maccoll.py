@@ -54,8 +54,9 @@ def _taylor_maccoll(w, y, cot=None, out=None, room=None):
     NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it; ``room``:
     where to write 1 - V_r^2 - V_w^2 as well."""
     vr, vw = y[0], y[1]
-    q = vw * vw
-    a = vr * vr  # a = G1 (1 - vr^2 - q): the same operations in place (this runs thousands of times a map)
+    sq = y * y  # both squares in one operation (this runs thousands of times a map)
+    q = sq[1]
+    a = sq[0]  # a = G1 (1 - vr^2 - q): the same operations in place
     np.subtract(1.0, a, out=a)
     a -= q
     if room is not None:
