@@ -27,6 +27,12 @@ _K = (GAMMA - 1.0) / (GAMMA + 1.0)
 _E = 1.0 / (GAMMA - 1.0)
 _H = 0.025  # rad: longest integrator step (wave angles to about 1e-9 rad against a tight solve_ivp)
 _TOP_MACH = 6.2  # the family is tabulated up this far (maps reach Mach 6)
+# The family's surface Mach numbers: from 0.6 (below every detachment point of a cone up to 41 deg: the strong
+# branch further down only costs steps) up the weak branch to the first at or above _TOP_MACH; the flight Mach
+# number is above the surface Mach number (the flow is compressed through the shock and along the rays), so the
+# members beyond that one would all lie past the table's end.
+_MEMBERS = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
+_MEMBERS = _MEMBERS[:int(np.searchsorted(_MEMBERS, _TOP_MACH)) + 1]
 
 
 def _speed_from_mach(m):
@@ -238,9 +244,7 @@ def cone_family(cone_deg: float) -> ConeFamily:
     (1.0527, 0.9)
     """
     th = math.radians(cone_deg)
-    # surface Mach numbers from 0.6 (below every detachment point of a cone up to 41 deg: the strong branch
-    # further down only costs steps) far up the weak branch
-    mc = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
+    mc = _MEMBERS
     top = 0.5 * math.pi - 1e-6
     m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05, th, 0.16), least=True)
     # the family: the members next to one another about the least flight Mach number, up to _TOP_MACH
