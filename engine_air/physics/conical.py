@@ -23,17 +23,18 @@ members at once (numpy; never a Python loop over points or columns):
   again; the weak branch is the one with the higher surface Mach number;
 - inwards from the shock (the state above at a trial beta) to the cone angle, for flight Mach columns
   (``cone_columns``): V_w must vanish on the cone, so beta is found by secant steps on V_w(theta_c) started
-  from the family, every column of a map in the same steps, until a step is below 1e-12 rad. One more inward
-  pass carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
+  from the family until a step is below 1e-12 rad. Every column of a map is integrated in one pass at three
+  trial wave angles about its start value, and the steps are taken on the quadratic through the three V_w
+  (a column whose result lies beyond the trials' reach passes again from there). One more inward pass carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
   and its pressure integral (method section 13). Behind a weak shock (normal Mach near 1, the equation's
   denominator nearly zero) the first fifth of the way is taken in graded steps.
 
 Local Mach: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2). Total pressure behind the shock: the normal-shock ratio
 at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), rho/rho0 likewise with 1/(g-1).
 
-Cost: never per point; per cone a family of 144 surface Mach numbers and a refinement of the detachment point
-on 17 more (about 100 steps of the integrator, once per cone), then three or four inward passes for all the
-columns of a map together (20 to 50 steps each). Results are kept per cone and flight Mach number (rounded to
+Cost: never per point; per cone a family of 84 surface Mach numbers and a refinement of the detachment point
+on 17 more (about 95 steps of the integrator, once per cone), then for all the columns of a map together one
+inward pass to the cone and one to the lip ray (20 to 50 steps each). Results are kept per cone and flight Mach number (rounded to
 1e-9); ``clear_cache`` empties them. Wave angles agree with a tight ``solve_ivp`` to about 1e-10 rad.
 
 Worked example (checked in the tests against NACA Report 1135's cone charts, NASA SP-3004's tables and

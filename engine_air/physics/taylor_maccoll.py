@@ -236,7 +236,7 @@ def _vertex(x, y, degree: int = 4):
 @lru_cache(maxsize=64)
 def cone_family(cone_deg: float) -> ConeFamily:
     """The family of one cone (half-angle ``cone_deg``, deg): (M0, beta) over the surface Mach number from one
-    outward integration of 144 members, the detachment point (least M0) refined on 17 more, and the weak branch's
+    outward integration of 84 members, the detachment point (least M0) refined on 17 more, and the weak branch's
     wave angles (rad) against x = sqrt(M0 - M_det) [1-3 of ``engine_air.physics.conical``]; cached per cone.
 
     >>> f = cone_family(10.0)  # NACA Report 1135 chart 5: a 10 deg cone detaches just above Mach 1.05
