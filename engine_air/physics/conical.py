@@ -110,7 +110,7 @@ def detachment_mach(cone_half_angle_deg: float) -> float:
 def _lip_rays(w):
     """What the stream line's equations need of the rays ``w``: cot w, sin^2 w and sin 2w (rows), all from
     t = tan w (sin^2 w = t^2 / (1 + t^2), sin 2w = 2 t / (1 + t^2))."""
-    t = np.tan(w)
+    t = np.tan(w, out=w)  # over the stage rays rk8.integrate made for it
     t2 = t * t
     return np.stack([1.0 / t, t2 / (1.0 + t2), 2.0 * t / (1.0 + t2)], axis=-2)
 

@@ -81,7 +81,9 @@ def _taylor_maccoll(w, y, cot=None, out=None, room=None):
 
 
 def _cot(w):
-    return 1.0 / np.tan(w)
+    """cot w, written over ``w`` (the stage rays ``rk8.integrate`` makes for its ``at``; large, so in place)."""
+    np.tan(w, out=w)
+    return np.divide(1.0, w, out=w)
 
 
 def _tm_cot(cot, y, out=None):
