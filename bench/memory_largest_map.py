@@ -11,7 +11,8 @@ Each measurement runs in a fresh child process so that one does not inherit the 
    slows the run, so its time is not the speed figure);
 2. the growth of the process's resident set (psutil RSS after the call, and the high-water mark
    ``ru_maxrss`` where the platform gives it, minus RSS before) and the wall time of an untraced run;
-3. the size of the result that is kept (sum of the arrays' bytes), per case and in all.
+3. the size of the result that is kept (sum of the bytes of the distinct arrays the points and their checks keep,
+   in their instance state: fields, slots and anything cached there), per case and in all.
 """
 
 from __future__ import annotations
@@ -63,13 +64,23 @@ def _kept_bytes(result) -> int:
                 total += base.nbytes
 
     for cm in result.cases:
-        for f in dataclasses.fields(cm.points):
-            add(getattr(cm.points, f.name))
+        for v in _state(cm.points).values():
+            add(v)
         for c in cm.points.checks:
-            for f in dataclasses.fields(c):
-                add(getattr(c, f.name))
+            for v in _state(c).values():
+                add(v)
     add(result.inside)
     return total
+
+
+def _state(obj) -> dict:
+    """Everything an object keeps: its instance dict (fields, and anything cached there) and its slots."""
+    state = dict(getattr(obj, "__dict__", {}))
+    for cls in type(obj).__mro__:
+        for name in getattr(cls, "__slots__", ()):
+            if hasattr(obj, name):
+                state[name] = getattr(obj, name)
+    return state
 
 
 def child(mode: str, path: str, nx: int, ny: int, n_cases: int) -> dict:
@@ -95,9 +106,12 @@ def child(mode: str, path: str, nx: int, ny: int, n_cases: int) -> dict:
         result = evaluate_project(project)
         out["traced_seconds"] = time.perf_counter() - t0
         current, peak = tracemalloc.get_traced_memory()
-        tracemalloc.stop()
         out["tracemalloc_peak_mb"] = peak / MB
         out["tracemalloc_kept_mb"] = current / MB
+        _read_as_check_and_gui_do(result)
+        gc.collect()
+        out["tracemalloc_kept_after_reads_mb"] = tracemalloc.get_traced_memory()[0] / MB
+        tracemalloc.stop()
     else:
         t0 = time.perf_counter()
         result = evaluate_project(project)
@@ -113,7 +127,29 @@ def child(mode: str, path: str, nx: int, ny: int, n_cases: int) -> dict:
         except (ImportError, AttributeError):
             pass
         out["kept_result_mb"] = _kept_bytes(result) / MB
+        _read_as_check_and_gui_do(result)
+        out["kept_after_reads_mb"] = _kept_bytes(result) / MB
     return out
+
+
+def _read_as_check_and_gui_do(result) -> None:
+    """Read the result as ``engine-air check`` (the summary's verdict), the map window (the least-margin map and
+    what limits it, the shown quantity, the failing points, a point's record) and the table writer do, so that
+    anything cached by a read would show in what is kept after."""
+    from engine_air.envelope.evaluate import WORST, verdict_text
+    from engine_air.envelope.ranking import limiting_map
+    from engine_air.outputs.point_record import point_record
+
+    verdict_text(result)
+    for case in [WORST] + [c.name for c in result.cases]:
+        limiting_map(result, case)
+        result.quantity(case, "worst_relative_margin")
+        result.quantity(case, "face_mach_margin")
+        result.failing(case)
+    for cm in result.cases:
+        point_record(cm.points, (0, 0), cm.name)
+        for c in cm.points.checks:
+            c.margin, c.relative_margin, c.fails  # noqa: B018 (read, as the table writer does)
 
 
 def main(argv=None) -> int:
@@ -148,6 +184,8 @@ def main(argv=None) -> int:
     print(f"  arrays kept in the result      {figures['kept_result_mb']:8.1f} MB  "
           f"({figures['kept_result_mb'] / args.cases:.1f} MB per case, "
           f"{figures['kept_result_mb'] * MB / (n * args.cases):.0f} bytes per case-point)")
+    print(f"  kept after check's and the GUI's reads {figures['kept_after_reads_mb']:8.1f} MB in arrays, "
+          f"{figures['tracemalloc_kept_after_reads_mb']:.1f} MB traced")
     print(f"  traced run time (not a speed figure) {figures['traced_seconds']:.2f} s")
     return 0
 

@@ -41,8 +41,6 @@ no failing share.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from engine_air.envelope import flags as F
@@ -51,18 +49,143 @@ from engine_air.physics.shocks import normal_shock
 from engine_air.project.model import REFERENCE_RECOVERY_NAME, LimitRegion, Limits
 
 
-@dataclass
-class Check:
-    """One limit evaluated at every point (arrays of the points' shape)."""
+AT_MOST, AT_LEAST, YES_NO = "at-most", "at-least", "yes-no"
+"""The senses of a limit: margin = limit - value, value - limit, or +1 where the value is 1 and -1 where it is 0."""
 
-    name: str
-    label: str
-    limit_text: str  # e.g. "M2 <= 0.55"
-    value: np.ndarray  # the judged quantity
-    margin: np.ndarray  # positive where the limit holds, in the quantity's units
-    relative_margin: np.ndarray
-    applies: np.ndarray  # bool: the check is meaningful here
-    fails: np.ndarray  # bool: applies and does not hold
+_QUIET = dict(invalid="ignore", over="ignore", divide="ignore")
+
+
+class Check:
+    """One limit evaluated at every point (arrays of the points' shape, or read-only views that broadcast to it).
+
+    A check keeps what it is judged on: the judged ``value``, where it ``applies`` (bool), the rule of its limit
+    (``limit``, a number or an array, its ``sense`` and the ``scale`` of the relative margin) and where it is
+    ``forced`` to fail whatever its margin (a choked face or throat; None: nowhere). Its ``margin`` (in the
+    quantity's units, positive where the limit holds), ``relative_margin`` (the margin over the limit's magnitude,
+    held within +-``MAX_RELATIVE_MARGIN``; -1 at most where forced; NaN where the check does not apply) and
+    ``fails`` (bool: applies and does not hold) are computed from these when read, by the same expressions, to
+    the same bits, so that a map keeps one array per check instead of four (``check_rank`` computes the margin
+    once for both).
+
+    ``Check(name, label, limit_text, value, margin, relative_margin, applies, fails)`` with the arrays given keeps
+    and returns them as given (a check built by hand, e.g. in a test).
+    """
+
+    __slots__ = ("name", "label", "limit_text", "value", "applies", "limit", "sense", "scale", "forced",
+                 "_margin", "_relative", "_fails")
+
+    def __init__(self, name, label, limit_text, value, margin=None, relative_margin=None, applies=None, fails=None,
+                 *, limit=None, sense=AT_MOST, scale=1.0, forced=None):
+        self.name, self.label, self.limit_text = name, label, limit_text
+        self.value, self.applies = value, applies
+        self.limit, self.sense, self.scale, self.forced = limit, sense, scale, forced
+        self._margin, self._relative, self._fails = margin, relative_margin, fails
+
+    def __repr__(self) -> str:
+        return f"Check({self.name!r}, {self.limit_text!r}, shape {np.shape(self.applies)})"
+
+    @property
+    def margin(self) -> np.ndarray:
+        """Positive where the limit holds, in the quantity's units (where the check applies; anything elsewhere)."""
+        if self._margin is not None:
+            return self._margin
+        with np.errstate(**_QUIET):
+            if self.sense == AT_MOST:
+                return self.limit - self.value
+            if self.sense == AT_LEAST:
+                return self.value - self.limit
+            return np.where(self.value == 0.0, -1.0, 1.0)  # YES_NO: the value is 1 (holds) or 0
+
+    @margin.setter
+    def margin(self, value) -> None:
+        self._margin = value
+
+    def _relative_of(self, margin) -> np.ndarray:
+        with np.errstate(**_QUIET):
+            # a limit as small as the file allows (e.g. 5e-324) must not overflow the ranking: keep it finite
+            relative = np.where(self.applies, np.minimum(np.maximum(margin / abs(self.scale), -MAX_RELATIVE_MARGIN),
+                                                         MAX_RELATIVE_MARGIN), np.nan)  # np.clip's values, fewer passes
+            if self.forced is not None:
+                relative = np.where(self.forced & self.applies, np.minimum(relative, -1.0), relative)
+        return relative
+
+    def _fails_of(self, margin) -> np.ndarray:
+        with np.errstate(**_QUIET):
+            fails = self.applies & (margin < 0.0)
+        if self.forced is not None:
+            fails = fails | (self.applies & self.forced)
+        return fails
+
+    @property
+    def relative_margin(self) -> np.ndarray:
+        """The margin over the limit's magnitude (see the class text); NaN where the check does not apply."""
+        return self._relative if self._relative is not None else self._relative_of(self.margin)
+
+    @relative_margin.setter
+    def relative_margin(self, value) -> None:
+        self._relative = value
+
+    @property
+    def fails(self) -> np.ndarray:
+        """Bool: the check applies and does not hold."""
+        return self._fails if self._fails is not None else self._fails_of(self.margin)
+
+    @fails.setter
+    def fails(self, value) -> None:
+        self._fails = value
+
+    def relative_and_fails(self) -> tuple[np.ndarray, np.ndarray]:
+        """``(relative_margin, fails)``, the margin computed once for both (what the ranking reads)."""
+        if self._margin is None and self._relative is None and self._fails is None:
+            margin = self.margin  # a new array of its own: the relative margin is made in it, in place
+            applies = np.asarray(self.applies)
+            if isinstance(margin, np.ndarray) and margin.ndim and margin.dtype == float and applies.shape == margin.shape:
+                return self._relative_and_fails_in(margin, applies)
+        margin = self.margin if self._relative is None or self._fails is None else None
+        return (self._relative if self._relative is not None else self._relative_of(margin),
+                self._fails if self._fails is not None else self._fails_of(margin))
+
+    def _relative_and_fails_in(self, margin: np.ndarray, applies: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """``_relative_of`` and ``_fails_of`` in fewer passes, the relative margin written over ``margin``: the
+        same operations on the same values (x / 1 is x), so the same bits."""
+        with np.errstate(**_QUIET):
+            fails = np.less(margin, 0.0)
+            fails &= applies
+            if self.forced is not None:
+                fails |= self.forced & applies
+            scale = abs(self.scale)
+            if scale != 1.0:
+                np.divide(margin, scale, out=margin)
+            np.maximum(margin, -MAX_RELATIVE_MARGIN, out=margin)
+            np.minimum(margin, MAX_RELATIVE_MARGIN, out=margin)
+            np.copyto(margin, np.nan, where=~applies)
+            if self.forced is not None:
+                forced = self.forced & applies
+                np.copyto(margin, np.minimum(margin, -1.0), where=forced)
+        return margin, fails
+
+    def arrays(self) -> dict[str, object]:
+        """What the check keeps (the arrays and numbers it is made of), by attribute name."""
+        return {k: getattr(self, k) for k in ("value", "applies", "limit", "forced", "_margin", "_relative", "_fails")}
+
+    def at(self, index: tuple) -> "Check":
+        """The check at ``index`` (a tuple into the points' shape) alone."""
+        shape = np.shape(self.applies)
+
+        def one(a):
+            return a if a is None or np.ndim(a) == 0 else np.broadcast_to(a, shape)[index]
+        return Check(self.name, self.label, self.limit_text, one(self.value), one(self._margin),
+                     one(self._relative), one(self.applies), one(self._fails), limit=one(self.limit),
+                     sense=self.sense, scale=self.scale, forced=one(self.forced))
+
+    def restricted(self, inside) -> "Check":
+        """The check judged only where ``inside`` (bool): no verdict and no margin elsewhere."""
+        self.applies = self.applies & inside
+        if self._fails is not None:
+            self._fails = self._fails & inside
+        if self._relative is not None:
+            self._relative = np.where(inside, self._relative, np.nan)
+        return self
 
     def margin_or_nan(self) -> np.ndarray:
         return np.where(self.applies, self.margin, np.nan)
@@ -72,20 +195,17 @@ MAX_RELATIVE_MARGIN = 1e12
 """Relative margins are held within +-1e12 (a limit near zero would otherwise give an infinite one)."""
 
 
-def _check(name, label, limit_text, value, margin, scale, applies, forced_fail=None) -> Check:
+def _check(name, label, limit_text, value, limit, sense, scale, applies, forced_fail=None) -> Check:
+    """The check of ``value`` against ``limit`` in ``sense``, judged where ``applies`` and its margin is finite."""
     if name not in CHECK_NAMES:  # a [limits.region.NAME] table must be able to name every check
         raise AssertionError(f"check {name!r} is not listed in engine_air.envelope.check_names.CHECK_NAMES")
-    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-        applies = np.asarray(applies, bool) & np.isfinite(margin)
-        fails = applies & (margin < 0.0)
-        if forced_fail is not None:
-            fails = fails | (applies & forced_fail)
-        # a limit as small as the file allows (e.g. 5e-324) must not overflow the ranking: keep it finite
-        relative = np.where(applies, np.minimum(np.maximum(margin / abs(scale), -MAX_RELATIVE_MARGIN),
-                                                MAX_RELATIVE_MARGIN), np.nan)  # np.clip's values, fewer passes
-        if forced_fail is not None:
-            relative = np.where(forced_fail & applies, np.minimum(relative, -1.0), relative)
-    return Check(name, label, limit_text, value, margin, relative, applies, fails)
+    check = Check(name, label, limit_text, value, limit=limit, sense=sense, scale=scale)
+    with np.errstate(**_QUIET):
+        check.applies = np.asarray(applies, bool) & np.isfinite(check.margin)
+    if forced_fail is not None:
+        forced = np.asarray(forced_fail, bool)
+        check.forced = forced if forced.any() else None  # choked nowhere: nothing to keep
+    return check
 
 
 def in_region(region: LimitRegion | None, mach, altitude_m) -> np.ndarray:
@@ -106,11 +226,7 @@ def _restrict(check: Check, region: LimitRegion | None, points) -> Check:
     """``check`` judged only inside its region (method section 15): no verdict and no margin outside."""
     if region is None:
         return check
-    inside = in_region(region, points.mach, points.altitude_m)
-    check.applies = check.applies & inside
-    check.fails = check.fails & inside
-    check.relative_margin = np.where(inside, check.relative_margin, np.nan)
-    return check
+    return check.restricted(in_region(region, points.mach, points.altitude_m))
 
 
 def build_checks(limits: Limits, points, stability=None) -> list[Check]:
@@ -126,7 +242,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
     checks = [
         _check(
             "face-mach", "Face Mach number", f"M2 <= {limits.face_mach_max:g}",
-            points.face_mach, limits.face_mach_max - points.face_mach, limits.face_mach_max, inside,
+            points.face_mach, limits.face_mach_max, AT_MOST, limits.face_mach_max, inside,
             forced_fail=F.has(bits, F.FACE_CHOKED),
         )
     ]
@@ -138,7 +254,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         _check(
             "throat-mach", "Throat Mach number",
             f"M_th <= {throat_limit:g}" if limits.throat_mach_max is not None else "throat not choked",
-            throat_judged, throat_limit - throat_judged, throat_limit, inside,
+            throat_judged, throat_limit, AT_MOST, throat_limit, inside,
             forced_fail=F.has(bits, F.THROAT_CHOKED),
         )
     )
@@ -149,7 +265,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
             checks.append(
                 _check(
                     "recovery", "Recovery (shock system) vs MIL-E-5008B", "pi / pi_duct >= MIL-E-5008B",
-                    shock_recovery, shock_recovery - points.reference_recovery, 1.0,
+                    shock_recovery, points.reference_recovery, AT_LEAST, 1.0,
                     inside & (points.mach > 1.0),
                 )
             )
@@ -158,7 +274,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
             checks.append(
                 _check(
                     "recovery", "Total-pressure recovery", f"pi >= {floor:g}",
-                    points.recovery, points.recovery - floor, floor, inside,
+                    points.recovery, floor, AT_LEAST, floor, inside,
                 )
             )
     if limits.stable_flow_fraction is not None:
@@ -167,7 +283,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         checks.append(
             _check(
                 "relative-tip-mach", "Blade relative tip Mach", f"M_rel <= {limits.relative_tip_mach_max:g}",
-                points.relative_tip_mach, limits.relative_tip_mach_max - points.relative_tip_mach,
+                points.relative_tip_mach, limits.relative_tip_mach_max, AT_MOST,
                 limits.relative_tip_mach_max, inside & np.isfinite(points.relative_tip_mach),
             )
         )
@@ -177,7 +293,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         checks.append(
             _check(
                 "spillage", "Spillage fraction", f"spillage <= {cap:g}",
-                spill, cap - spill, max(cap, 0.01), inside & np.isfinite(spill),
+                spill, cap, AT_MOST, max(cap, 0.01), inside & np.isfinite(spill),
             )
         )
     started = getattr(points, "started", None)
@@ -186,7 +302,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         checks.append(
             _check(
                 "started", "Inlet started (mixed compression)", "started, no unstart risk",
-                np.where(bad, 0.0, 1.0), np.where(bad, -1.0, 1.0), 1.0, inside & (points.mach > 1.0),
+                np.where(bad, 0.0, 1.0), None, YES_NO, 1.0, inside & (points.mach > 1.0),
             )
         )
     if limits.installation_loss_max is not None:
@@ -195,7 +311,7 @@ def _every_check(limits: Limits, points, stability=None) -> list[Check]:
         checks.append(
             _check(
                 "installation-loss", "Installation loss", f"1 - F_inst/F_n <= {cap:g}",
-                loss, cap - loss, max(cap, 0.01), inside & np.isfinite(loss),
+                loss, cap, AT_MOST, max(cap, 0.01), inside & np.isfinite(loss),
             )
         )
     checks.extend(distortion_checks(limits, points, inside, stability))
@@ -220,7 +336,7 @@ def _stability_check(limits: Limits, points, inside) -> Check:
         applies = np.where(used, subcritical & np.isfinite(measured), applies)
         threshold = np.where(used, measured, threshold)
         text += "/data"  # the measured limit where data decide
-    return _check("stability", "Stable capture (buzz)", text, fraction, fraction - threshold,
+    return _check("stability", "Stable capture (buzz)", text, fraction, threshold, AT_LEAST,
                   limits.stable_flow_fraction, inside & applies)
 
 
@@ -231,7 +347,7 @@ def distortion_checks(limits: Limits, points, inside, stability=None) -> list[Ch
     if limits.dc60_max is not None and dc60 is not None:
         cap = limits.dc60_max
         dc60 = np.asarray(dc60, float)
-        out.append(_check("dc60", "Distortion DC(60)", f"DC(60) <= {cap:g}", dc60, cap - dc60, max(cap, 0.01),
+        out.append(_check("dc60", "Distortion DC(60)", f"DC(60) <= {cap:g}", dc60, cap, AT_MOST, max(cap, 0.01),
                           inside & np.isfinite(dc60)))
     loss = getattr(points, "surge_margin_loss", None)
     if limits.surge_margin_min is not None and loss is not None:
@@ -243,7 +359,7 @@ def distortion_checks(limits: Limits, points, inside, stability=None) -> list[Ch
             other = sum(v for _n, v in stability.other_losses)
             remaining = stability.available_surge_margin - loss - other
         out.append(_check("surge-margin", "Remaining surge margin", f"remaining surge margin >= {floor:g}",
-                          remaining, remaining - floor, max(abs(floor), 0.01), inside & np.isfinite(remaining)))
+                          remaining, floor, AT_LEAST, max(abs(floor), 0.01), inside & np.isfinite(remaining)))
     return out
 
 

@@ -11,17 +11,17 @@ total-pressure ratio.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, fields, replace
+from dataclasses import dataclass, field, fields
 
 import numpy as np
 
 from engine_air.envelope.checks import Check, build_checks, limiting_index
-from engine_air.envelope.ranking import worst_relative_margin
+from engine_air.envelope.ranking import limiting_of_ranks, rank_and_fails, worst_relative_margin
 from engine_air.flow.chain import run_chain
 from engine_air.flow.points import OperatingPoints
 from engine_air.project.model import Case, Project
 
-CHECK_ARRAYS = ("value", "margin", "relative_margin", "applies", "fails")
+CHECK_ARRAYS = ("value", "margin", "relative_margin", "applies", "fails")  # what a Check gives at each point
 
 
 @dataclass
@@ -44,7 +44,7 @@ class JudgedPoints(OperatingPoints):
         """The points and their checks at ``index`` alone (see ``OperatingPoints.at``)."""
         one = super().at(index)
         idx = index if isinstance(index, tuple) else (index,)
-        one.checks = [replace(c, **{k: np.asarray(getattr(c, k))[idx] for k in CHECK_ARRAYS}) for c in self.checks]
+        one.checks = [c.at(idx) for c in self.checks]
         return one
 
     def check(self, name: str) -> Check:
@@ -56,11 +56,22 @@ class JudgedPoints(OperatingPoints):
 
 def judge(project: Project, points: OperatingPoints, case: Case | None = None) -> JudgedPoints:
     """``points`` with every check the project's limits ask for, and the limiting one at each point."""
+    return judge_ranked(project, points, case)[0]
+
+
+def judge_ranked(project: Project, points: OperatingPoints,
+                 case: Case | None = None) -> tuple[JudgedPoints, list[tuple[np.ndarray, np.ndarray]]]:
+    """``judge``, and each check's ``(rank, fails)`` arrays (``engine_air.envelope.ranking.rank_and_fails``) that
+    the limiting check was found from, for a summary to reuse rather than compute again (not kept)."""
     judged = JudgedPoints(**{f.name: getattr(points, f.name) for f in fields(OperatingPoints)})
     stability = None if case is None else project.rating(case.rating).stability  # the surge-margin stack-up
     judged.checks = build_checks(project.limits, judged, stability)
-    judged.limiting = limiting_index(judged.checks, judged.flags)
-    return judged
+    if not judged.checks:
+        judged.limiting = limiting_index(judged.checks, judged.flags)
+        return judged, []
+    ranked = [rank_and_fails(c) for c in judged.checks]
+    judged.limiting = limiting_of_ranks([r for r, _f in ranked])
+    return judged, ranked
 
 
 def evaluate_conditions(project: Project, case: Case, mach, altitude_m, demand=None, **sources) -> JudgedPoints:

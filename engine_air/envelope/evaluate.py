@@ -30,7 +30,7 @@ from engine_air.envelope import flags as F
 from engine_air.envelope import ranking
 from engine_air.envelope.polygon import envelope_mask, grid_axes
 from engine_air.project.errors import ProjectError
-from engine_air.envelope.conditions import JudgedPoints, judge
+from engine_air.envelope.conditions import JudgedPoints, judge_ranked
 from engine_air.flow.chain import run_chain
 from engine_air.project.model import Project
 from engine_air.project import MAX_AXIS_POINTS, MAX_CASE_POINTS, MAX_GRID_POINTS, MIN_AXIS_POINTS
@@ -246,55 +246,81 @@ def evaluate_project(
     check_grid_size(project, len(chosen))
     mach_1d, alt_1d = grid_axes(project.envelope, project.grid)
     inside = envelope_mask(project.envelope, mach_1d[None, :], alt_1d[:, None])
-    maps = []
+    maps, tallies = [], None
     for i, case in enumerate(chosen):
         if cancelled is not None and cancelled():
             raise Cancelled()
-        points = judge(project, run_chain(project, case, mach_1d[None, :], alt_1d[:, None]), case)
+        points, ranked = judge_ranked(project, run_chain(project, case, mach_1d[None, :], alt_1d[:, None]), case)
         points.flags = np.where(inside, points.flags, points.flags | F.OUTSIDE_ENVELOPE)
         maps.append(CaseMap(case.name, points))
+        tallies = tallies or [_Tally() for _ in points.checks]
+        _tally(tallies, i, points, ranked, inside)  # the summary from the ranks the limiting check was found from
+        del ranked
         if progress is not None:
             progress((i + 1) / len(chosen))
     result = MapResult(project, mach_1d, alt_1d, inside, maps)
-    result.summary = summarise(result)
+    result.summary = summarise(result, tallies)
     return result
 
 
-def summarise(result: MapResult) -> list[LimitSummary]:
-    """Per check over every evaluated case: holds, worst value and where, failing share."""
+@dataclass
+class _Tally:
+    """One check over the cases evaluated so far: what its ``LimitSummary`` is made of."""
+
+    label: str = ""
+    limit_text: str = ""
+    judged: int = 0
+    failing: int = 0
+    worst: ranking.Worst | None = None
+
+
+def _tally(tallies: list[_Tally], n: int, points: JudgedPoints, ranked, inside: np.ndarray) -> None:
+    """Add case number ``n`` (its ``points`` and each check's ``(rank, fails)``, unmasked) to ``tallies``: the
+    judged and failing envelope points, and the worst point of each check (``ranking.worst_of_check``: the least
+    rank inside the envelope, the first case of equal ranks)."""
+    for k, chk in enumerate(points.checks):
+        rank, fails = ranked[k]
+        t = tallies[k]
+        t.label, t.limit_text = chk.label, chk.limit_text
+        applies = chk.applies & inside
+        t.judged += int(applies.sum())
+        t.failing += int((fails & applies).sum())
+        rank = np.where(inside, rank, np.inf)  # = ranking.check_rank(chk, inside)
+        j = ranking.argworst(rank)
+        if j is not None and (t.worst is None or rank[j] < t.worst.rank):
+            t.worst = ranking.Worst(float(rank[j]), n, k, j)
+
+
+def summarise(result: MapResult, tallies: list[_Tally] | None = None) -> list[LimitSummary]:
+    """Per check over every evaluated case: holds, worst value and where, failing share (from ``tallies`` when
+    ``evaluate_project`` made them as it judged each case, else from the result's checks)."""
     if not result.cases:
         return []
     names = [c.name for c in result.cases[0].points.checks]
-    mach_2d, alt_2d = np.meshgrid(result.mach, result.altitude_m)
+    if tallies is None:
+        tallies = [_Tally() for _ in names]
+        for n, cm in enumerate(result.cases):
+            _tally(tallies, n, cm.points, [ranking.rank_and_fails(c) for c in cm.points.checks], result.inside)
     out = []
-    for k, name in enumerate(names):
-        judged = failing = 0
-        label = limit_text = ""
-        for cm in result.cases:
-            chk = cm.points.checks[k]
-            label, limit_text = chk.label, chk.limit_text
-            applies = chk.applies & result.inside
-            judged += int(applies.sum())
-            failing += int((chk.fails & applies).sum())
-        worst = ranking.worst_of_check([cm.points for cm in result.cases], k, result.inside)
-        if worst is None:
-            out.append(LimitSummary(name, label, limit_text, None, np.nan, np.nan, np.nan, np.nan, "", 0.0, 0))
+    for name, t in zip(names, tallies):
+        if t.worst is None:
+            out.append(LimitSummary(name, t.label, t.limit_text, None, np.nan, np.nan, np.nan, np.nan, "", 0.0, 0))
             continue
-        case_name, j = result.cases[worst.case].name, worst.index
-        chk = result.cases[worst.case].points.checks[k]
+        case_name, j = result.cases[t.worst.case].name, t.worst.index
+        chk = result.cases[t.worst.case].points.checks[t.worst.check].at(j)  # the one point: its margin alone
         out.append(
             LimitSummary(
                 name=name,
-                label=label,
-                limit_text=limit_text,
-                holds=failing == 0,
-                worst_value=float(chk.value[j]),
-                worst_margin=float(chk.margin[j]),
-                worst_mach=float(mach_2d[j]),
-                worst_altitude_m=float(alt_2d[j]),
+                label=t.label,
+                limit_text=t.limit_text,
+                holds=t.failing == 0,
+                worst_value=float(chk.value),
+                worst_margin=float(chk.margin),
+                worst_mach=float(result.mach[j[1]]),
+                worst_altitude_m=float(result.altitude_m[j[0]]),
                 worst_case=case_name,
-                failing_share=failing / judged if judged else 0.0,
-                judged_points=judged,
+                failing_share=t.failing / t.judged if t.judged else 0.0,
+                judged_points=t.judged,
             )
         )
     return out

@@ -36,12 +36,40 @@ FAIL_OFFSET = 1e6
 
 def check_rank(check, mask=None) -> np.ndarray:
     """Rank array of one check (see the module text); ``mask`` (bool) further restricts where it is judged."""
-    rel = np.asarray(check.relative_margin, dtype=float)
-    applies = np.asarray(check.applies, dtype=bool)
+    return rank_and_fails(check, mask)[0]
+
+
+def rank_and_fails(check, mask=None) -> tuple[np.ndarray, np.ndarray]:
+    """``(check_rank(check, mask), check.fails)``: the check's margin computed once for both."""
+    rel, fails = check.relative_and_fails()
+    return _rank_of(check.applies, rel, fails, mask), fails
+
+
+def _rank_of(applies, rel, fails, mask=None) -> np.ndarray:
+    """where(applies, where(fails, min(rel, 0) - FAIL_OFFSET, rel), +inf), in place where the shapes allow."""
+    rel = np.asarray(rel, dtype=float)
+    applies = np.asarray(applies, dtype=bool)
     if mask is not None:
         applies = applies & mask
+    fails = np.asarray(fails, dtype=bool)
     with np.errstate(invalid="ignore"):
-        return np.where(applies, np.where(check.fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
+        if rel.ndim and rel.shape == applies.shape == fails.shape:
+            rank = np.minimum(rel, 0.0)
+            rank -= FAIL_OFFSET
+            np.copyto(rank, rel, where=~fails)
+            np.copyto(rank, np.inf, where=~applies)
+            return rank
+        return np.where(applies, np.where(fails, np.minimum(rel, 0.0) - FAIL_OFFSET, rel), np.inf)
+
+
+def _ranked(checks, mask=None) -> tuple[list[np.ndarray], list[np.ndarray]]:
+    """Each check's rank and relative margin, its margin computed once for both."""
+    ranks, rels = [], []
+    for c in checks:
+        rel, fails = c.relative_and_fails()
+        ranks.append(_rank_of(c.applies, rel, fails, mask))
+        rels.append(rel)
+    return ranks, rels
 
 
 def _least(ranks: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
@@ -62,7 +90,12 @@ def limiting_index(checks, shape=None, mask=None) -> np.ndarray:
     """Index into ``checks`` of the limiting check at each point (int16); -1 where no check is judged."""
     if not checks:
         return np.full(() if shape is None else shape, -1, dtype=np.int16)
-    index, least = _least([check_rank(c, mask) for c in checks])
+    return limiting_of_ranks([check_rank(c, mask) for c in checks])
+
+
+def limiting_of_ranks(ranks: list[np.ndarray]) -> np.ndarray:
+    """``limiting_index`` from the checks' rank arrays (``check_rank``), at least one."""
+    index, least = _least(ranks)
     return np.where(np.isposinf(least), -1, index).astype(np.int16)
 
 
@@ -70,10 +103,18 @@ def worst_relative_margin(checks, shape=None, mask=None) -> np.ndarray:
     """Least relative margin over the checks judged at each point (the limiting check's); NaN where none is."""
     if not checks:
         return np.full(() if shape is None else shape, np.nan)
-    index, least = _least([check_rank(c, mask) for c in checks])
-    rel = np.stack([np.broadcast_to(np.asarray(c.relative_margin, dtype=float), index.shape) for c in checks])
-    out = np.take_along_axis(rel, index[None], axis=0)[0]
-    return np.where(np.isposinf(least), np.nan, out)
+    return _case_ranking(checks, mask)[2]
+
+
+def _case_ranking(checks, mask=None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """``(limiting_index, limiting_rank, worst_relative_margin)`` of one point set's ``checks`` (at least one),
+    each check's margin computed once for the three."""
+    ranks, rels = _ranked(checks, mask)
+    index, least = _least(ranks)
+    rel = np.stack([np.broadcast_to(np.asarray(r, dtype=float), index.shape) for r in rels])
+    worst = np.take_along_axis(rel, index[None], axis=0)[0]
+    nothing = np.isposinf(least)
+    return np.where(nothing, -1, index).astype(np.int16), least, np.where(nothing, np.nan, worst)
 
 
 def limiting_rank(checks, shape=None, mask=None) -> np.ndarray:
@@ -149,9 +190,10 @@ def limiting_map(result, case: str) -> tuple[np.ndarray, np.ndarray, list[str], 
     shape = inside.shape
     if not cases or not cases[0].points.checks:
         return np.full(shape, np.nan), np.full(shape, -1, dtype=np.int16), [], []
-    pick = worst_case_index([c.points for c in cases], shape) if len(cases) > 1 else np.zeros(shape, dtype=np.intp)
-    margins = np.stack([worst_relative_margin(c.points.checks, shape) for c in cases])
-    indices = np.stack([limiting_index(c.points.checks, shape) for c in cases])
+    ranked = [_case_ranking(c.points.checks) for c in cases]  # each check's margin once per case
+    pick = _least([least for _i, least, _w in ranked])[0] if len(cases) > 1 else np.zeros(shape, dtype=np.intp)
+    margins = np.stack([np.broadcast_to(worst, shape) for _i, _l, worst in ranked])
+    indices = np.stack([np.broadcast_to(index, shape) for index, _l, _w in ranked])
     margin = np.take_along_axis(margins, pick[None], axis=0)[0]
     index = np.take_along_axis(indices, pick[None], axis=0)[0]
     margin = np.where(inside, margin, np.nan)
@@ -167,6 +209,6 @@ def nearest_index(mach_axis, altitude_axis, mach: float, altitude_m: float) -> t
     return i, j
 
 
-__all__ = ["FAIL_OFFSET", "Worst", "argworst", "check_rank", "limiting_index", "limiting_map", "limiting_rank",
-           "nearest_index",
+__all__ = ["FAIL_OFFSET", "Worst", "argworst", "check_rank", "limiting_index", "limiting_map", "limiting_of_ranks",
+           "limiting_rank", "nearest_index", "rank_and_fails",
            "worst_case_index", "worst_of_check", "worst_point", "worst_relative_margin"]
