@@ -70,7 +70,6 @@ from engine_air.physics.taylor_maccoll import (  # the equation and one cone's f
     _normal_shock_pt,
     _speed_from_mach,
     _steps,
-    _taylor_maccoll,
     _tm_cot,
     cone_family as _family,
 )
@@ -123,7 +122,7 @@ def _lip_rhs(pt, v0):
     room = np.empty(np.shape(v0))  # 1 - V^2, from the Taylor-Maccoll step
 
     def rhs(rays, y, out):
-        _taylor_maccoll(None, y, rays[0], out, room)  # rows 2, 3 are overwritten
+        _tm_cot(rays[0], y, out, room)  # rows 2, 3 are overwritten
         vr, vw, q = y[0], y[1], y[2]
         dq = vr / vw
         dq *= q

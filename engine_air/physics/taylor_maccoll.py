@@ -55,10 +55,21 @@ def _steps(span, longest: float = _H, near: float | None = None, share: float = 
     return max(4, int(math.ceil(float(np.max(np.abs(span), initial=0.0)) / longest)))
 
 
-def _taylor_maccoll(w, y, cot=None, out=None, room=None):
+def _taylor_maccoll(w, y, cot=None, out=None):
     """dy/dw for y = (V_r, V_w) (outward past a shock a member may reach the sonic line of V_w and turn to
-    NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it; ``room``:
-    where to write 1 - V_r^2 - V_w^2 as well."""
+    NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it."""
+    return _tm_cot(1.0 / np.tan(w) if cot is None else cot, y, np.empty_like(y) if out is None else out)
+
+
+def _cot(w):
+    """cot w, written over ``w`` (the stage rays ``rk8.integrate`` makes for its ``at``; large, so in place)."""
+    np.tan(w, out=w)
+    return np.divide(1.0, w, out=w)
+
+
+def _tm_cot(cot, y, out, room=None):
+    """``_taylor_maccoll`` at rays of cotangent ``cot`` (``rk8.integrate(..., at=_cot)`` computes those of every
+    stage at once), written into ``out``; ``room``: where to write 1 - V_r^2 - V_w^2 as well."""
     vr, vw = y[0], y[1]
     sq = y * y  # both squares in one operation (this runs thousands of times a map)
     q = sq[1]
@@ -68,27 +79,14 @@ def _taylor_maccoll(w, y, cot=None, out=None, room=None):
     if room is not None:
         room[...] = a
     a *= _G1
-    t = vw * (1.0 / np.tan(w) if cot is None else cot)
+    t = vw * cot
     t += 2.0 * vr
     t *= a
     num = q * vr
     num -= t
-    if out is None:
-        out = np.empty_like(y)
     out[0] = vw
     np.divide(num, np.subtract(a, q, out=q), out=out[1])  # (q vr - a (2 vr + vw cot w)) / (a - q)
     return out
-
-
-def _cot(w):
-    """cot w, written over ``w`` (the stage rays ``rk8.integrate`` makes for its ``at``; large, so in place)."""
-    np.tan(w, out=w)
-    return np.divide(1.0, w, out=w)
-
-
-def _tm_cot(cot, y, out=None):
-    """``_taylor_maccoll`` with the cotangents of the stages computed once (``rk8.integrate(..., at=_cot)``)."""
-    return _taylor_maccoll(None, y, cot, out)
 
 
 _tm_cot.writes_out = True  # rk8.integrate passes each stage's slot as ``out``
