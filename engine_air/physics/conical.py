@@ -25,7 +25,8 @@ members at once (numpy; never a Python loop over points or columns):
   (``cone_columns``): V_w must vanish on the cone, so beta is found by secant steps on V_w(theta_c) started
   from the family until a step is below 1e-12 rad. Every column of a map is integrated in one pass at three
   trial wave angles about its start value, and the steps are taken on the quadratic through the three V_w
-  (a column whose result lies beyond the trials' reach passes again from there). One more inward pass carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
+  (a column whose result lies beyond the trials' reach passes again from there). One more inward pass
+  carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
   and its pressure integral (method section 13). Behind a weak shock (normal Mach near 1, the equation's
   denominator nearly zero) the first fifth of the way is taken in graded steps.
 
@@ -34,8 +35,9 @@ at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), 
 
 Cost: never per point; per cone a family of 84 surface Mach numbers and a refinement of the detachment point
 on 17 more (about 95 steps of the integrator, once per cone), then for all the columns of a map together one
-inward pass to the cone and one to the lip ray (20 to 50 steps each). Results are kept per cone and flight Mach number (rounded to
-1e-9); ``clear_cache`` empties them. Wave angles agree with a tight ``solve_ivp`` to about 1e-10 rad.
+inward pass to the cone and one to the lip ray (20 to 50 steps each). Results are kept per cone and flight
+Mach number (rounded to 1e-9); ``clear_cache`` empties them. Wave angles agree with a tight ``solve_ivp`` to
+about 1e-10 rad.
 
 Worked example (checked in the tests against NACA Report 1135's cone charts, NASA SP-3004's tables and
 ``pygasflow``): a 20 deg cone at M0 = 2 has beta = 37.80 deg and a surface Mach number of 1.568.
@@ -194,8 +196,9 @@ def _solve(th: float, m0, beta):
     which a slender cone's flow has just below its wave angle), is settled there, its surface speed on the
     quadratic through the three speeds. The others pass again after a secant step through this pass's b and
     the last one's (the first from the slope at b; at most 0.05 rad, and at most halfway to the Mach angle or
-    the cone). The family's start values are within
-    1e-6 rad, so one pass settles every column of a map. Returns (beta, surface speed)."""
+    the cone). The family's start values are within 1e-6 rad, so one pass settles every column of a map; there
+    the wave angle is the secant iterate of three passes before (the same bits where that was the first one).
+    Returns (beta, surface speed)."""
     beta = np.array(beta, dtype=float)
     speed = np.full(m0.size, np.nan)
     last = np.full((2, m0.size), np.nan)  # the last pass's b and V_w(theta_c) there
