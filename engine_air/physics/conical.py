@@ -197,8 +197,8 @@ def _solve(th: float, m0, beta):
     quadratic through the three speeds. The others pass again after a secant step through this pass's b and
     the last one's (the first from the slope at b; at most 0.05 rad, and at most halfway to the Mach angle or
     the cone). The family's start values are within 1e-6 rad, so one pass settles every column of a map; there
-    the wave angle is the secant iterate of three passes before (the same bits where that was the first one).
-    Returns (beta, surface speed)."""
+    the wave angle is the one the secant passes of before ended on (the same bits where they ended after one
+    step). Returns (beta, surface speed)."""
     beta = np.array(beta, dtype=float)
     speed = np.full(m0.size, np.nan)
     last = np.full((2, m0.size), np.nan)  # the last pass's b and V_w(theta_c) there
