@@ -76,3 +76,21 @@ def test_detachment_against_a_tight_minimisation(cone_deg):
     near = minimize_scalar(lambda mc: _from_surface(cone_deg, mc)[0], bounds=(0.6, 1.2), method="bounded",
                            options={"xatol": 1e-7})
     assert detachment_mach(cone_deg) == pytest.approx(near.fun, rel=1e-9)
+
+
+def test_a_maps_columns_solved_together_against_tight_integrations():
+    """A map's worth of columns (an 18 deg cone, Mach axis of 401 points to 2.0, the lip at Mach 2) in one batch:
+    every column attached, every 12th checked as above (the flow from the package's shock meets the cone, and
+    outwards from its surface Mach the shock stands at the package's wave angle)."""
+    cone = 18.0
+    axis = np.linspace(0.3, 2.0, 401)
+    m = axis[axis >= detachment_mach(cone)]
+    beta, surface = cone_columns(m, cone, design_mach=2.0)[:2]
+    assert np.isfinite(beta).all() and np.isfinite(surface).all()
+    for m0, b, mc in list(zip(m, beta, surface))[::12]:
+        normal, ref_mc = _to_cone(cone, m0, b)
+        assert abs(normal) < 1e-8 and ref_mc == pytest.approx(mc, rel=1e-8)
+        if m0 >= 1.5:
+            ref_m0, ref_beta = _from_surface(cone, mc)
+            assert ref_m0 == pytest.approx(m0, rel=1e-8)
+            assert ref_beta == pytest.approx(b, abs=1e-8)

@@ -23,18 +23,21 @@ members at once (numpy; never a Python loop over points or columns):
   again; the weak branch is the one with the higher surface Mach number;
 - inwards from the shock (the state above at a trial beta) to the cone angle, for flight Mach columns
   (``cone_columns``): V_w must vanish on the cone, so beta is found by secant steps on V_w(theta_c) started
-  from the family, every column of a map in the same steps, until a step is below 1e-12 rad. One more inward
-  pass carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
+  from the family until a step is below 1e-12 rad. Every column of a map is integrated in one pass at three
+  trial wave angles about its start value, and the steps are taken on the quadratic through the three V_w
+  (a column whose result lies beyond the trials' reach passes again from there). One more inward pass
+  carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
   and its pressure integral (method section 13). Behind a weak shock (normal Mach near 1, the equation's
   denominator nearly zero) the first fifth of the way is taken in graded steps.
 
 Local Mach: V'^2 = (g-1)/2 M^2 / (1 + (g-1)/2 M^2). Total pressure behind the shock: the normal-shock ratio
 at M0 sin(beta) [4, eq. 99]; so p/p0 = pi_s ((1 - V'^2)/(1 - V0'^2))^(g/(g-1)), rho/rho0 likewise with 1/(g-1).
 
-Cost: never per point; per cone a family of 144 surface Mach numbers and a refinement of the detachment point
-on 17 more (about 100 steps of the integrator, once per cone), then three or four inward passes for all the
-columns of a map together (20 to 50 steps each). Results are kept per cone and flight Mach number (rounded to
-1e-9); ``clear_cache`` empties them. Wave angles agree with a tight ``solve_ivp`` to about 1e-10 rad.
+Cost: never per point; per cone a family of 84 surface Mach numbers and a refinement of the detachment point
+on 17 more (about 95 steps of the integrator, once per cone), then for all the columns of a map together one
+inward pass to the cone and one to the lip ray (20 to 50 steps each). Results are kept per cone and flight
+Mach number (rounded to 1e-9); ``clear_cache`` empties them. Wave angles agree with a tight ``solve_ivp`` to
+about 1e-10 rad.
 
 Worked example (checked in the tests against NACA Report 1135's cone charts, NASA SP-3004's tables and
 ``pygasflow``): a 20 deg cone at M0 = 2 has beta = 37.80 deg and a surface Mach number of 1.568.
@@ -69,13 +72,12 @@ from engine_air.physics.taylor_maccoll import (  # the equation and one cone's f
     _normal_shock_pt,
     _speed_from_mach,
     _steps,
-    _taylor_maccoll,
     _tm_cot,
     cone_family as _family,
 )
 
 _ROUND = 9  # decimals of the cache keys (Mach number, degrees)
-_BETA_TOL = 1e-12  # rad: a column is settled when its secant step on beta is below this
+_BETA_TOL = 1e-12  # rad: the secant steps stop when a step is below this
 _CHEB = 32  # Chebyshev series degree + 1 of a single solution's rays
 
 
@@ -106,38 +108,58 @@ def detachment_mach(cone_half_angle_deg: float) -> float:
 
 # -- inwards: flight Mach columns ------------------------------------------------------------------------------------
 
+def _lip_rays(w):
+    """What the stream line's equations need of the rays ``w``: cot w, sin^2 w and sin 2w (rows), all from
+    t = tan w (sin^2 w = t^2 / (1 + t^2), sin 2w = 2 t / (1 + t^2))."""
+    t = np.tan(w, out=w)  # over the stage rays rk8.integrate made for it
+    t2 = t * t
+    return np.stack([1.0 / t, t2 / (1.0 + t2), 2.0 * t / (1.0 + t2)], axis=-2)
+
+
 def _lip_rhs(pt, v0):
     """dy/dw for y = (V_r, V_w, Q, J): Taylor-Maccoll, the conical stream line Q = R^2 (R from the tip, 1 on the
-    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it."""
-    def rhs(w, y, out=None):
-        out = _taylor_maccoll(w, y, out=out)  # rows 2, 3 are overwritten
+    shock; dR/(R dw) = V_r/V_w) and J = int (p/p0 - 1) d(Q sin^2 w) along it, with
+    p/p0 = pi_s ((1 - V^2) / (1 - V0^2))^(g/(g-1)); ``rays`` from ``_lip_rays``."""
+    scale = pt / (1.0 - v0 * v0) ** (GAMMA * _E)
+    room = np.empty(np.shape(v0))  # 1 - V^2, from the Taylor-Maccoll step
+
+    def rhs(rays, y, out):
+        _tm_cot(rays[0], y, out, room)  # rows 2, 3 are overwritten
         vr, vw, q = y[0], y[1], y[2]
-        p = pt * ((1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)) ** (GAMMA * _E)
-        s = np.sin(w)
-        ratio = vr / vw
-        out[2] = 2.0 * q * ratio
-        out[3] = (p - 1.0) * q * (2.0 * ratio * s * s + np.sin(2.0 * w))
+        dq = vr / vw
+        dq *= q
+        np.multiply(dq, 2.0, out=out[2])  # dQ/dw = 2 Q V_r / V_w
+        p = room ** (GAMMA * _E)
+        p *= scale
+        p -= 1.0
+        t = q * rays[2]
+        t += out[2] * rays[1]  # d(Q sin^2 w)/dw
+        np.multiply(p, t, out=out[3])
         return out
     rhs.writes_out = True  # rk8.integrate passes each stage's slot as ``out``
     return rhs
 
 
 def _from_shock(rhs, beta, end, y0, near: float, at=None):
-    """Integrate inwards from the shock rays ``beta`` to ``end``. Behind a weak shock the normal Mach number is
-    close to 1 and the equation's denominator nearly vanishes: there the first fifth of the way is taken in 12
-    steps growing as s^3 (s from 0 at the shock), the rest in equal steps."""
+    """Integrate inwards from the shock rays ``beta`` to ``end`` (``at``: what ``rhs`` takes of the rays, see
+    ``rk8.integrate``). Behind a weak shock the normal Mach number is close to 1 and the equation's denominator
+    nearly vanishes: there the first fifth of the way is taken in 12 steps growing as s^3 (s from 0 at the
+    shock), the rest in equal steps."""
     vr, vw = y0[0], y0[1]
     if np.max(vw * vw / (_G1 * (1.0 - vr * vr - vw * vw))) > 0.9:
         mid = beta + 0.2 * (end - beta)
         span = mid - beta
 
-        def graded(s):  # w = beta + span s^3: the stage rays (or what ``at`` makes of them) and dw/ds
+        def graded(s):  # w = beta + span s^3: what ``at`` makes of the stage rays, and dw/ds as the last row
             w = beta + span * s ** 3
-            return np.stack([at(w) if at is not None else w, 3.0 * s * s * span], axis=-2)
+            rays = at(w) if at is not None else w
+            if rays.ndim == w.ndim:
+                rays = rays[..., None, :]
+            return np.concatenate([rays, (3.0 * s * s * span)[..., None, :]], axis=-2)
 
         def scaled(a, y, out):  # dy/ds = dy/dw dw/ds, written into the stage's slot
-            rhs(a[0], y, out)
-            out *= a[1]
+            rhs(a[0] if a.shape[0] == 2 else a[:-1], y, out)
+            out *= a[-1]
             return out
         scaled.writes_out = True
         y0 = integrate(scaled, np.zeros(beta.shape), np.ones(beta.shape), y0, 12, at=graded)
@@ -151,7 +173,7 @@ def _lip_values(m0, beta, lip):
     vr, vw, pt, v0 = _behind_shock(m0, beta)
     y0 = np.stack([vr, vw, np.ones(m0.size), np.zeros(m0.size)])
     with np.errstate(all="ignore"):
-        vr, vw, q, j = _from_shock(_lip_rhs(pt, v0), beta, lip, y0, float(np.min(lip)))
+        vr, vw, q, j = _from_shock(_lip_rhs(pt, v0), beta, lip, y0, float(np.min(lip)), at=_lip_rays)
     x = (1.0 - vr * vr - vw * vw) / (1.0 - v0 * v0)
     mfr = pt * x ** _E * np.abs(vw) / (v0 * np.sin(lip))
     rl2 = q * np.sin(lip) ** 2  # (r_L / R_shock)^2
@@ -167,24 +189,72 @@ def _inward_pass(th: float, m0, beta):
 
 
 def _solve(th: float, m0, beta):
-    """Secant steps on the wave angles of all columns together, started from ``beta`` with a finite-difference
-    slope, until every step is below 1e-12 rad. Returns (beta, surface speed)."""
-    n = m0.size
-    eps = 1e-7
-    r, speed = _inward_pass(th, np.concatenate([m0, m0]), np.concatenate([beta, beta + eps]))
-    slope = (r[n:] - r[:n]) / eps
-    r, speed = r[:n], speed[:n]
+    """Wave angles of all columns together, from the start values ``beta``. A pass integrates every open column
+    at three trial angles b, b + 1e-7 and b - 1e-6 rad; the secant steps, started with the slope over the first
+    two, are taken on the quadratic through the three V_w(theta_c) (``_secant``) until one is below 1e-12 rad.
+    A column whose result lies within 2e-6 rad of b, with V_w(theta_c) small there (not beside a pole of it,
+    which a slender cone's flow has just below its wave angle), is settled there; the surface speeds come from
+    one more pass at the settled wave angles (read off the quadratic they moved drag coefficients just below the
+    design Mach number by up to 3e-12 relative). The others pass again after a secant step through this pass's b and
+    the last one's (the first from the slope at b; at most 0.05 rad, and at most halfway to the Mach angle or
+    the cone). The family's start values are within 1e-6 rad, so one pass settles every column of a map; there
+    the wave angle is the one the secant passes of before ended on (the same bits where they ended after one
+    step). Returns (beta, surface speed)."""
+    beta = np.array(beta, dtype=float)
+    last = np.full((2, m0.size), np.nan)  # the last pass's b and V_w(theta_c) there
+    todo = np.arange(m0.size)
     for _ in range(12):
-        step = np.clip(-r / np.where(slope != 0.0, slope, 1.0), -0.05, 0.05)
+        n = todo.size
+        b = beta[todo]
+        trial = np.concatenate([b, b + 1e-7, b - 1e-6])
+        r, _ = _inward_pass(th, np.tile(m0[todo], 3), trial)
+        r, offsets = r.reshape(3, n), trial.reshape(3, n)[1:] - b  # the offsets exactly
+        quadratic = _quadratic(r, offsets)
+        d = _secant(quadratic, (r[1] - r[0]) / 1e-7, b, th) - b
+        settled = (np.abs(d) <= 2e-6) & (np.abs(r[0]) <= 1e-4)
+        moved = b - last[0, todo]
+        slope = np.where(moved != 0.0, (r[0] - last[1, todo]) / np.where(moved != 0.0, moved, 1.0), np.nan)
+        slope = np.where(np.isfinite(slope), slope, quadratic[1])
+        step = np.clip(-r[0] / np.where(slope != 0.0, slope, 1.0), -0.05, 0.05)
+        last[:, todo] = b, r[0]
+        low = np.maximum(th, np.arcsin(1.0 / m0[todo]))  # the cone, and the Mach angle (M0 sin beta > 1)
+        new = np.minimum(b + step, 0.5 * math.pi - 1e-9)
+        new = np.where(new > low, new, 0.5 * (b + low))  # halfway to a bound it would pass
+        beta[todo] = np.where(settled, b + d, new)
+        todo = todo[~settled]
+        if not todo.size:
+            break
+    _, speed = _inward_pass(th, m0, beta)  # the surface speed integrated at the wave angle itself
+    return beta, speed
+
+
+def _quadratic(values, offsets):
+    """Coefficients (c0, c1, c2) of c0 + c1 d + c2 d^2 through ``values[0]`` at d = 0 and ``values[1:]`` at the
+    two ``offsets`` (arrays, one column a member)."""
+    s1 = (values[1] - values[0]) / offsets[0]
+    s2 = (values[2] - values[0]) / offsets[1]
+    c2 = (s1 - s2) / (offsets[0] - offsets[1])
+    return values[0], s1 - c2 * offsets[0], c2
+
+
+def _secant(c, slope, b, th: float):
+    """Secant steps on V_w(theta_c) = 0 from ``b`` with the start ``slope``, then through each column's last two
+    points, until a step is below 1e-12 rad (steps at most 0.05 rad, beta within (theta_c, pi/2)); V_w is read
+    off the quadratic with coefficients ``c`` in beta - b (``_quadratic``)."""
+    c0, c1, c2 = c
+    beta, value, slope = b.copy(), c0.copy(), slope.copy()
+    for _ in range(12):
+        step = np.clip(-value / np.where(slope != 0.0, slope, 1.0), -0.05, 0.05)
         idx = np.nonzero(~(np.abs(step) < _BETA_TOL))[0]
         if not idx.size:
             break
         new = np.clip(beta[idx] + step[idx], th + 1e-9, 0.5 * math.pi - 1e-9)
-        r_new, speed[idx] = _inward_pass(th, m0[idx], new)
+        d = new - b[idx]
+        v_new = c0[idx] + d * (c1[idx] + d * c2[idx])
         moved = new - beta[idx]
-        slope[idx] = np.where(moved != 0.0, (r_new - r[idx]) / np.where(moved != 0.0, moved, 1.0), slope[idx])
-        beta[idx], r[idx] = new, r_new
-    return beta, speed
+        slope[idx] = np.where(moved != 0.0, (v_new - value[idx]) / np.where(moved != 0.0, moved, 1.0), slope[idx])
+        beta[idx], value[idx] = new, v_new
+    return beta
 
 
 _COLUMNS: dict[tuple[float, float | None], dict[float, tuple[float, ...]]] = {}

@@ -76,7 +76,8 @@ def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False, at=None) -> np.n
         Return the states at every step's end as well.
     at : callable, optional
         ``at(w)`` applied once to the abscissae of every stage of every step together (an array of shape
-        (steps, 12, n)); ``rhs`` then gets ``at(w)`` in place of ``w`` (e.g. a cotangent computed once).
+        (steps, 12, n) made for it, which ``at`` may overwrite); ``rhs`` then gets ``at(w)`` in place of ``w``
+        (e.g. a cotangent computed once).
 
     Returns
     -------
@@ -85,20 +86,26 @@ def integrate(rhs, w0, w1, y0, steps: int, nodes: bool = False, at=None) -> np.n
     """
     w0 = np.asarray(w0, dtype=float)
     h = (np.asarray(w1, dtype=float) - w0) / steps
-    w = w0 + h * (np.arange(steps)[:, None, None] + _C[None, :, None])  # every stage of every step
+    w = h * (np.arange(steps)[:, None, None] + _C[None, :, None])  # every stage of every step
+    w += w0  # in place: a large array's fresh pages cost more than the arithmetic
     w = at(w) if at is not None else w
     y = np.array(y0, dtype=float)
     stages = np.empty((_STAGES,) + y.shape)
     flat = stages.reshape(_STAGES, -1)
     kept = [y] if nodes else None
     if getattr(rhs, "writes_out", False):  # the same values written straight into each stage's slot
+        slots = list(stages)
+        rows = [flat[:s] for s in range(_STAGES)]
+        buf = np.empty(flat.shape[1])
+        x = buf.reshape(y.shape)  # each stage's state, y + (A_s . k) h, in place
         for i in range(steps):
-            rhs(w[i, 0], y, stages[0])
+            wi = w[i]
+            rhs(wi[0], y, slots[0])
             for s in range(1, _STAGES):
-                x = (_A_ROWS[s] @ flat[:s]).reshape(y.shape)
+                np.matmul(_A_ROWS[s], rows[s], out=buf)
                 x *= h
-                x += y  # y + (A_s . k) h, in place
-                rhs(w[i, s], x, stages[s])
+                x += y
+                rhs(wi[s], x, slots[s])
             y = y + (_B @ flat).reshape(y.shape) * h
             if nodes:
                 kept.append(y)

@@ -27,6 +27,12 @@ _K = (GAMMA - 1.0) / (GAMMA + 1.0)
 _E = 1.0 / (GAMMA - 1.0)
 _H = 0.025  # rad: longest integrator step (wave angles to about 1e-9 rad against a tight solve_ivp)
 _TOP_MACH = 6.2  # the family is tabulated up this far (maps reach Mach 6)
+# The family's surface Mach numbers: from 0.6 (below every detachment point of a cone up to 41 deg: the strong
+# branch further down only costs steps) up the weak branch to the first at or above _TOP_MACH; the flight Mach
+# number is above the surface Mach number (the flow is compressed through the shock and along the rays), so the
+# members beyond that one would all lie past the table's end.
+_MEMBERS = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
+_MEMBERS = _MEMBERS[:int(np.searchsorted(_MEMBERS, _TOP_MACH)) + 1]
 
 
 def _speed_from_mach(m):
@@ -52,31 +58,35 @@ def _steps(span, longest: float = _H, near: float | None = None, share: float = 
 def _taylor_maccoll(w, y, cot=None, out=None):
     """dy/dw for y = (V_r, V_w) (outward past a shock a member may reach the sonic line of V_w and turn to
     NaN; the callers read nothing beyond); ``cot``: cot(w) when known; ``out``: where to write it."""
+    return _tm_cot(1.0 / np.tan(w) if cot is None else cot, y, np.empty_like(y) if out is None else out)
+
+
+def _cot(w):
+    """cot w, written over ``w`` (the stage rays ``rk8.integrate`` makes for its ``at``; large, so in place)."""
+    np.tan(w, out=w)
+    return np.divide(1.0, w, out=w)
+
+
+def _tm_cot(cot, y, out, room=None):
+    """``_taylor_maccoll`` at rays of cotangent ``cot`` (``rk8.integrate(..., at=_cot)`` computes those of every
+    stage at once), written into ``out``; ``room``: where to write 1 - V_r^2 - V_w^2 as well."""
     vr, vw = y[0], y[1]
-    q = vw * vw
-    a = vr * vr  # a = G1 (1 - vr^2 - q): the same operations in place (this runs thousands of times a map)
+    sq = y * y  # both squares in one operation (this runs thousands of times a map)
+    q = sq[1]
+    a = sq[0]  # a = G1 (1 - vr^2 - q): the same operations in place
     np.subtract(1.0, a, out=a)
     a -= q
+    if room is not None:
+        room[...] = a
     a *= _G1
-    t = vw * (1.0 / np.tan(w) if cot is None else cot)
+    t = vw * cot
     t += 2.0 * vr
     t *= a
     num = q * vr
     num -= t
-    if out is None:
-        out = np.empty_like(y)
     out[0] = vw
     np.divide(num, np.subtract(a, q, out=q), out=out[1])  # (q vr - a (2 vr + vw cot w)) / (a - q)
     return out
-
-
-def _cot(w):
-    return 1.0 / np.tan(w)
-
-
-def _tm_cot(cot, y, out=None):
-    """``_taylor_maccoll`` with the cotangents of the stages computed once (``rk8.integrate(..., at=_cot)``)."""
-    return _taylor_maccoll(None, y, cot, out)
 
 
 _tm_cot.writes_out = True  # rk8.integrate passes each stage's slot as ``out``
@@ -125,13 +135,14 @@ def _scan(w0, y0, w1, steps: int):
     return w, y, f, df, sound & smooth
 
 
-def _outward(theta_c: float, surface_mach, end, steps: int):
+def _outward(theta_c: float, surface_mach, end, steps: int, least: bool = False):
     """Integrate members from the cone (surface Mach numbers) towards the rays ``end`` and find each one's first
     shock (f = 0). A step in which f turns positive, the flow reaches the sonic line (just beyond a weak shock)
     or f is not smooth is integrated again in 16 parts, until the root lies in a smooth part, where it is taken
     on the cubic Hermite interpolant of f (past a refined step the parts grow fourfold again). Returns (M0, beta);
     NaN where a member meets no shock before the sonic line (or ``end``), or its free stream would not be
-    supersonic or would pass V_max."""
+    supersonic or would pass V_max. With ``least`` (members in increasing surface Mach, one cone's family) the
+    members that cannot be the least M0 nor its two neighbours below are left NaN (``_below_least``)."""
     mc = np.asarray(surface_mach, dtype=float)
     m0, beta = np.full(mc.size, np.nan), np.full(mc.size, np.nan)
     todo = np.arange(mc.size)
@@ -150,6 +161,8 @@ def _outward(theta_c: float, surface_mach, end, steps: int):
                                                              i[done])
         go_on = ~stopped & (w1 < end[todo])  # a part passed without a stop: on to the end
         keep = (stopped & ~done) | go_on
+        if least:
+            keep &= ~_below_least(m0, todo, keep)
         if not keep.any():
             break
         start = np.where(go_on, i, i - 1)[keep]
@@ -159,6 +172,20 @@ def _outward(theta_c: float, surface_mach, end, steps: int):
         w1 = np.where(go_on[keep], np.minimum(end[todo], w0 + 64.0 * h), w0 + h)  # 16 parts of 4 h, or of h / 16
         steps = 16
     return m0, beta
+
+
+def _below_least(m0, todo, keep):
+    """Which of the members ``todo`` still open (``keep``) lie on the strong branch well below the least M0
+    found: when every member from the highest open one below the least up to the least is finished, the least
+    of all lies there or above (M0 falls along the family to its least value and rises again), so open members
+    more than two below it are never needed (``cone_family`` reads the least and its neighbours)."""
+    drop = np.zeros(todo.size, bool)
+    if np.isfinite(m0).any():
+        k = int(np.nanargmin(m0))
+        below = keep & (todo < k)
+        if below.any() and todo[below].max() < k - 2:
+            drop = below
+    return drop
 
 
 def _hermite_root(w, y, f, df, j):
@@ -209,7 +236,7 @@ def _vertex(x, y, degree: int = 4):
 @lru_cache(maxsize=64)
 def cone_family(cone_deg: float) -> ConeFamily:
     """The family of one cone (half-angle ``cone_deg``, deg): (M0, beta) over the surface Mach number from one
-    outward integration of 144 members, the detachment point (least M0) refined on 17 more, and the weak branch's
+    outward integration of 84 members, the detachment point (least M0) refined on 17 more, and the weak branch's
     wave angles (rad) against x = sqrt(M0 - M_det) [1-3 of ``engine_air.physics.conical``]; cached per cone.
 
     >>> f = cone_family(10.0)  # NACA Report 1135 chart 5: a 10 deg cone detaches just above Mach 1.05
@@ -217,11 +244,9 @@ def cone_family(cone_deg: float) -> ConeFamily:
     (1.0527, 0.9)
     """
     th = math.radians(cone_deg)
-    # surface Mach numbers from 0.6 (below every detachment point of a cone up to 41 deg: the strong branch
-    # further down only costs steps) far up the weak branch
-    mc = np.concatenate([np.linspace(0.6, 1.0, 24, endpoint=False), np.geomspace(1.0, 40.0, 120)])
+    mc = _MEMBERS
     top = 0.5 * math.pi - 1e-6
-    m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05, th, 0.16))
+    m0, beta = _outward(th, mc, np.full(mc.size, top), _steps(top - th, 0.05, th, 0.16), least=True)
     # the family: the members next to one another about the least flight Mach number, up to _TOP_MACH
     ok = np.isfinite(m0)
     k = int(np.nanargmin(np.where(ok, m0, np.nan)))
