@@ -14,8 +14,8 @@ without its line feed, and one line feed ends the file):
 - ``Plain``: anything else (integers, Arrow arrays), cast to text by Arrow.
 
 ``write_lines`` runs in two threads: this one turns a batch's float blocks into text (orjson holds the
-interpreter's lock), a worker finds their cells, takes the coded texts, joins the lines and writes them (numpy,
-Arrow and the file write release it). One batch waits at most, so the text in memory stays within a few batches.
+interpreter's lock) and finds their cells; a worker takes every coded text of the batch in one call, joins the
+lines and writes them (Arrow and the file write release the lock). One batch waits at most, so the text in memory stays within a few batches.
 
 Floats read ``2.0``, ``1e-7``, ``1e+21`` (the shortest round trip, as Python's ``repr`` writes it but for the
 exponent's padding); whole numbers of integer columns read ``2``.
@@ -23,6 +23,8 @@ exponent's padding); whole numbers of integer columns read ``2``.
 
 from __future__ import annotations
 
+import sys
+from contextlib import contextmanager
 from typing import Iterable, Sequence
 
 import numpy as np
@@ -199,15 +201,48 @@ def prepared(cols: list) -> list:
     return out
 
 
-def lines(cols: list, a: int, b: int, made: dict | None = None) -> pa.Array:
-    """Rows a..b of the prepared columns as CSV lines; ``made``: the float blocks' orjson texts made already (by
-    column index)."""
-    made = made or {}
-    texts = [c.text(a, b) if k not in made else c.cells(made[k], b - a) for k, c in enumerate(cols)]
-    if len(texts) == 1:
-        return texts[0]
-    joined = pc.binary_join_element_wise(*texts, strings([b""])[0], memory_pool=pool())
-    return joined.combine_chunks() if isinstance(joined, pa.ChunkedArray) else joined
+class Part:
+    """The prepared columns of one part (``prepared``) with every coded column's texts in one array, so that a
+    batch takes them all in one call: the worker thread gives the interpreter's lock up and wants it back once
+    per call, and each wait for it (while orjson holds it) costs as much as a small call's work."""
+
+    def __init__(self, cols: list):
+        self.cols = cols
+        self.blocks = [k for k, c in enumerate(cols) if isinstance(c, FloatBlock)]
+        coded = [c for c in cols if isinstance(c, Coded)]
+        self.texts = pa.concat_arrays([c.ended for c in coded]) if coded else None
+        first = np.cumsum([0] + [len(c.ended) for c in coded[:-1]]).astype(np.int32)
+        self.codes = [c.codes + f for c, f in zip(coded, first)]  # each column's codes into ``texts``
+
+    def made(self, a: int, b: int) -> dict:
+        """The float blocks' texts of rows a..b (by column index): orjson's work and the search for the cells
+        (numpy's, which holds the lock too), on the calling thread."""
+        return {k: self.cols[k].text(a, b) for k in self.blocks}
+
+    def lines(self, a: int, b: int, made: dict | None = None) -> pa.Array:
+        """Rows a..b as CSV lines; ``made``: the float blocks' texts made already (``made``)."""
+        made = self.made(a, b) if made is None else made
+        taken = None
+        if self.texts is not None:
+            taken = pc.take(self.texts, numbers(np.concatenate([c[a:b] for c in self.codes])), memory_pool=pool())
+        texts, j = [], 0
+        for k, c in enumerate(self.cols):
+            if k in made:
+                texts.append(made[k])
+            elif isinstance(c, Coded):
+                texts.append(taken.slice(j * (b - a), b - a))
+                j += 1
+            else:
+                texts.append(c.text(a, b))
+        if len(texts) == 1:
+            return texts[0]
+        joined = pc.binary_join_element_wise(*texts, strings([b""])[0], memory_pool=pool())
+        return joined.combine_chunks() if isinstance(joined, pa.ChunkedArray) else joined
+
+
+def lines(cols: list, a: int, b: int) -> pa.Array:
+    """Rows a..b of the prepared columns (``prepared``) as CSV lines."""
+    return Part(cols).lines(a, b)
 
 
 def write(fh, text: pa.Array) -> None:
@@ -216,25 +251,40 @@ def write(fh, text: pa.Array) -> None:
     fh.write(memoryview(text.buffers()[2])[start:end])
 
 
+SWITCH_S = 2e-4
+"""The interpreter's thread switch interval while the lines are written (Python's default is 5 ms)."""
+
+
+@contextmanager
+def _quick_switches():
+    """A short thread switch interval for the block: the worker's Arrow calls each give the interpreter's lock up
+    and want it back while the main thread's orjson calls hold it; 0.2 ms lets the two overlap more."""
+    before = sys.getswitchinterval()
+    sys.setswitchinterval(min(before, SWITCH_S))
+    try:
+        yield
+    finally:
+        sys.setswitchinterval(before)
+
+
 def write_lines(fh, parts: Iterable[tuple[int, list]]) -> int:
     """Every part's rows (rows, columns ready for ``text(a, b)``) as CSV lines to the binary file ``fh``, batch by
     batch in two threads (see the module text); returns the rows written."""
     from concurrent.futures import ThreadPoolExecutor
 
     rows = 0
-    with ThreadPoolExecutor(1, thread_name_prefix="csv-lines") as worker:
+    with _quick_switches(), ThreadPoolExecutor(1, thread_name_prefix="csv-lines") as worker:
         pending = None
         for n, cols in parts:
-            cols = prepared(cols) if n else []
-            blocks = [k for k, c in enumerate(cols) if isinstance(c, FloatBlock)]
-            for a in range(0, n if cols else 0, BATCH_ROWS):
+            part = Part(prepared(cols)) if n and cols else None
+            for a in range(0, n if part else 0, BATCH_ROWS):
                 b = min(n, a + BATCH_ROWS)
-                made = {k: cols[k].formatted(a, b) for k in blocks}
+                made = part.made(a, b)
                 if pending is not None:
                     pending.result()  # in order; an error there stops the write
-                pending = worker.submit(lambda c=cols, a=a, b=b, m=made: write(fh, lines(c, a, b, m)))
-            rows += n if cols else 0
-            del cols  # before the next part is built
+                pending = worker.submit(lambda p=part, a=a, b=b, m=made: write(fh, p.lines(a, b, m)))
+            rows += n if part else 0
+            del cols, part  # before the next part is built
         if pending is not None:
             pending.result()
     return rows
