@@ -9,22 +9,20 @@ without its line feed, and one line feed ends the file):
   only, a constant): their texts once and each row's code into them; neighbouring coded columns are merged into
   one (their texts joined once) when they share their codes or their combinations stay few;
 - ``FloatBlock``: neighbouring float columns with many values, written together by orjson, one ``,a,b,c`` text per
-  row, each a slice of orjson's own output (no copy) (the Ryu algorithm: every double in its shortest text that reads back to the same double, about 35 ns a
-  number against about 90 for Arrow's cast; NaN and infinities become empty cells);
+  row, each a slice of orjson's own output (no copy). orjson writes every double in its shortest text that reads
+  back to the same double (the Ryu algorithm), about 45 ns a number against about 90 for Arrow's cast; NaN and
+  infinities become empty cells;
 - ``Plain``: anything else (integers, Arrow arrays), cast to text by Arrow.
 
-``write_lines`` runs in two threads: this one turns a batch's float blocks into text (orjson holds the
-interpreter's lock) and finds their cells; a worker takes every coded text of the batch in one call, joins the
-lines and writes them (Arrow and the file write release the lock). One batch waits at most, so the text in memory stays within a few batches.
+``write_lines`` writes batch after batch: each batch's float blocks by orjson, every coded text of the batch in
+one ``take``, the lines in one join, one write; the text in memory is one batch's.
 
-Floats read ``2.0``, ``1e-7``, ``1e+21`` (the shortest round trip, as Python's ``repr`` writes it but for the
-exponent's padding); whole numbers of integer columns read ``2``.
+Floats read ``2.0``, ``1e-7``, ``1e21`` (the shortest round trip, as Python's ``repr`` writes it but for the
+exponent's sign and padding); integer columns read ``2``.
 """
 
 from __future__ import annotations
 
-import sys
-from contextlib import contextmanager
 from typing import Iterable, Sequence
 
 import numpy as np
@@ -203,8 +201,7 @@ def prepared(cols: list) -> list:
 
 class Part:
     """The prepared columns of one part (``prepared``) with every coded column's texts in one array, so that a
-    batch takes them all in one call: the worker thread gives the interpreter's lock up and wants it back once
-    per call, and each wait for it (while orjson holds it) costs as much as a small call's work."""
+    batch takes them all in one call (one ``take`` of 2 048 x 11 texts costs less than eleven of 2 048)."""
 
     def __init__(self, cols: list):
         self.cols = cols
@@ -212,11 +209,10 @@ class Part:
         coded = [c for c in cols if isinstance(c, Coded)]
         self.texts = pa.concat_arrays([c.ended for c in coded]) if coded else None
         first = np.cumsum([0] + [len(c.ended) for c in coded[:-1]]).astype(np.int32)
-        self.codes = [c.codes + f for c, f in zip(coded, first)]  # each column's codes into ``texts``
+        self.codes = list(zip([c.codes for c in coded], first.tolist()))  # each column's codes, their start
 
     def made(self, a: int, b: int) -> dict:
-        """The float blocks' texts of rows a..b (by column index): orjson's work and the search for the cells
-        (numpy's, which holds the lock too), on the calling thread."""
+        """The float blocks' texts of rows a..b (by column index)."""
         return {k: self.cols[k].text(a, b) for k in self.blocks}
 
     def lines(self, a: int, b: int, made: dict | None = None) -> pa.Array:
@@ -224,7 +220,8 @@ class Part:
         made = self.made(a, b) if made is None else made
         taken = None
         if self.texts is not None:
-            taken = pc.take(self.texts, numbers(np.concatenate([c[a:b] for c in self.codes])), memory_pool=pool())
+            codes = np.concatenate([c[a:b] + f for c, f in self.codes])
+            taken = pc.take(self.texts, numbers(codes), memory_pool=pool())
         texts, j = [], 0
         for k, c in enumerate(self.cols):
             if k in made:
@@ -251,40 +248,18 @@ def write(fh, text: pa.Array) -> None:
     fh.write(memoryview(text.buffers()[2])[start:end])
 
 
-SWITCH_S = 2e-4
-"""The interpreter's thread switch interval while the lines are written (Python's default is 5 ms)."""
-
-
-@contextmanager
-def _quick_switches():
-    """A short thread switch interval for the block: the worker's Arrow calls each give the interpreter's lock up
-    and want it back while the main thread's orjson calls hold it; 0.2 ms lets the two overlap more."""
-    before = sys.getswitchinterval()
-    sys.setswitchinterval(min(before, SWITCH_S))
-    try:
-        yield
-    finally:
-        sys.setswitchinterval(before)
-
-
 def write_lines(fh, parts: Iterable[tuple[int, list]]) -> int:
     """Every part's rows (rows, columns ready for ``text(a, b)``) as CSV lines to the binary file ``fh``, batch by
-    batch in two threads (see the module text); returns the rows written."""
-    from concurrent.futures import ThreadPoolExecutor
+    batch; returns the rows written.
 
+    One thread: a worker joining and writing one batch while this one formatted the next was some 10 % faster on
+    two cores (orjson holds the interpreter's lock, so the two overlap only in part) but held 5-8 MB more, the
+    worker's allocator arena, which put ``map --csv`` over 1.5 x the memory of ``check``."""
     rows = 0
-    with _quick_switches(), ThreadPoolExecutor(1, thread_name_prefix="csv-lines") as worker:
-        pending = None
-        for n, cols in parts:
-            part = Part(prepared(cols)) if n and cols else None
-            for a in range(0, n if part else 0, BATCH_ROWS):
-                b = min(n, a + BATCH_ROWS)
-                made = part.made(a, b)
-                if pending is not None:
-                    pending.result()  # in order; an error there stops the write
-                pending = worker.submit(lambda p=part, a=a, b=b, m=made: write(fh, p.lines(a, b, m)))
-            rows += n if part else 0
-            del cols, part  # before the next part is built
-        if pending is not None:
-            pending.result()
+    for n, cols in parts:
+        part = Part(prepared(cols)) if n and cols else None
+        for a in range(0, n if part else 0, BATCH_ROWS):
+            write(fh, part.lines(a, min(n, a + BATCH_ROWS)))
+        rows += n if part else 0
+        del cols, part  # before the next part is built
     return rows
