@@ -223,21 +223,31 @@ def png_size(folder):
     print(f"map --png: {w} x {h} px (goal >= 900 x 600, with axes)")
 
 
+FIGURES = ("startup", "per-point", "memory", "csv", "spike", "png")
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeats", type=int, default=5)
+    ap.add_argument("--only", nargs="+", choices=FIGURES, help="only these figures (default: all)")
     args = ap.parse_args(argv)
+    only = set(args.only or FIGURES)
     print(f"{datetime.date.today()}  python {sys.version.split()[0]}, numpy {np.__version__}; "
           f"load average {json.dumps(round(__import__('os').getloadavg()[0], 1))}")
     with tempfile.TemporaryDirectory() as tmp:
         folder = pathlib.Path(tmp)
-        startup(folder, args.repeats)
-        per_point(args.repeats)
-        per_case_point(args.repeats)
-        big = memory(folder, args.repeats)
-        csv_speed(big, folder, args.repeats)
-        spike_vs_ramp(args.repeats)
-        png_size(folder)
+        if "startup" in only:
+            startup(folder, args.repeats)
+        if "per-point" in only:
+            per_point(args.repeats)
+            per_case_point(args.repeats)
+        big = memory(folder, args.repeats) if "memory" in only else _grid_copy("supersonic_two_ramp", 401, 301, folder)
+        if "csv" in only:
+            csv_speed(big, folder, args.repeats)
+        if "spike" in only:
+            spike_vs_ramp(args.repeats)
+        if "png" in only:
+            png_size(folder)
     return 0
 
 

@@ -27,6 +27,30 @@ def write_map_csv(result, path) -> int:
     return write_point_table(result, path, "csv")
 
 
+def _csv_case_by_case(project, chosen, path, inputs) -> int:
+    """``map --csv`` alone: each case evaluated, written and let go before the next (the memory of one case, not
+    of all); the same rows as one evaluation of every case."""
+    from engine_air.envelope.evaluate import check_grid_size, evaluate_project
+    from engine_air.outputs.table import write_point_table
+
+    names = chosen if chosen is not None else [c.name for c in project.cases]
+    check_grid_size(project, len(names))
+    holds = []
+
+    def results():
+        for case in names:
+            r = evaluate_project(project, [case])
+            holds.append(r.holds)
+            yield r
+            del r  # before the next case is evaluated
+    try:
+        rows = write_point_table(results(), path, "csv", inputs)
+    except OSError as exc:
+        raise write_error(path, "CSV file", exc) from None
+    out(f"wrote {rows} rows to {path_text(path)}")
+    return EXIT_HOLDS if all(holds) else EXIT_FAILS
+
+
 def run(args) -> int:
     from engine_air.envelope.evaluate import evaluate_project
     from engine_air.outputs.quantities import QUANTITIES
@@ -45,7 +69,10 @@ def run(args) -> int:
     project = load(args.project)
     inputs = with_tables(inputs, project)  # its characteristics table is read too
     recheck_outputs(targets, inputs)
-    result = evaluate_project(project, cases(project, args.case))
+    chosen = cases(project, args.case)
+    if args.csv and not (args.parquet or args.png):
+        return _csv_case_by_case(project, chosen, args.csv, inputs)
+    result = evaluate_project(project, chosen)
     if args.csv or args.parquet:
         for fmt, p in (("csv", args.csv), ("parquet", args.parquet)):
             if not p:

@@ -6,7 +6,7 @@ or an Arrow table, and writes it to ``dest`` (a path, or a binary file object
 open for writing: the caller's atomic writer may hand its temporary file):
 
 - floats are written in the shortest text that reads back to the same double
-  (the round trip is exact, as Python's ``repr``); a value that is not finite
+  (the round trip is exact, as Python's ``repr``: ``2.0``, ``0.1``, ``1e-7``); a value that is not finite
   (NaN, +-inf) is an empty cell in CSV and a null in Parquet (the point's flags
   say why);
 - integers and bools as whole numbers (0/1 for bools);
@@ -15,13 +15,10 @@ open for writing: the caller's atomic writer may hand its temporary file):
   numbers are never changed. Texts are quoted where needed (commas, quotes,
   line breaks).
 
-CSV is written in batches of rows (``BATCH_ROWS``): each batch's columns are
-turned into text by Arrow, joined into lines and written, so no Python code
-runs per row or per cell and the text of the whole table never stands in
-memory at once. A column with few
-distinct values (an axis of the grid, a quantity of the altitude or the Mach
-number only, a constant, a text column) is turned into text once per distinct
-value and taken.
+CSV is written in batches of rows by ``engine_air.outputs.csv_lines`` (no Python code per row or per cell, the
+text of the whole table never in memory at once): floats by orjson, a column with few distinct values (an axis of
+the grid, a quantity of the altitude or the Mach number only, a constant, a text column) turned into text once per
+distinct value and taken.
 
 ``point_table(result)`` builds the columns of ``engine-air map`` (and of the
 program's CSV export) from an ``engine_air.envelope.evaluate.MapResult``: ``case``,
@@ -46,11 +43,12 @@ import numpy as np
 import pyarrow as pa
 import pyarrow.compute as pc
 
+from engine_air.outputs import csv_lines as L
+
 FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
 """First characters a spreadsheet may take as the start of a formula."""
 
-BATCH_ROWS = 4_096
-"""Rows turned into CSV text at a time (a few MB of text)."""
+BATCH_ROWS = L.BATCH_ROWS
 
 
 def neutralise(text: str) -> str:
@@ -105,62 +103,8 @@ def _csv_quote(text: str) -> str:
     return text
 
 
-def _pool() -> pa.MemoryPool:
-    """The C allocator's pool for the CSV text: it gives freed batches back, where Arrow's default pool keeps them
-    (a written map would otherwise hold some 100 MB more at its peak)."""
-    return pa.system_memory_pool()
-
-
-def _number_text(arr: pa.Array) -> pa.Array:
-    """Numbers as their shortest round-trip text (Arrow's cast); nulls stay null (empty cells)."""
-    return pc.cast(arr, pa.string(), memory_pool=_pool())
-
-
-def _numbers(v: np.ndarray) -> pa.Array:
-    """A numpy array of numbers as an Arrow array on the same memory (floats not finite as nulls). Built from its
-    buffers: ``pa.array`` would import pandas (some 40 MB) to ask whether the input is one of its types."""
-    if v.dtype.kind == "b":
-        v = v.astype(np.int8)
-    v = np.ascontiguousarray(v)
-    validity = None
-    if v.dtype.kind == "f":
-        v = v.astype(np.float64, copy=False)
-        finite = np.isfinite(v)
-        if not finite.all():
-            validity = pa.py_buffer(np.packbits(finite, bitorder="little"))
-    return pa.Array.from_buffers(pa.from_numpy_dtype(v.dtype), v.size, [validity, pa.py_buffer(v)])
-
-
-def _strings(texts: Sequence[str | None]) -> pa.Array:
-    """Texts as an Arrow string array (None: null), from buffers (see ``_numbers``)."""
-    data = [b"" if t is None else t.encode("utf-8") for t in texts]
-    offsets = np.zeros(len(data) + 1, dtype=np.int32)
-    np.cumsum([len(d) for d in data], out=offsets[1:])
-    valid = np.array([t is not None for t in texts], dtype=bool)
-    validity = None if valid.all() else pa.py_buffer(np.packbits(valid, bitorder="little"))
-    buffers = [validity, pa.py_buffer(offsets), pa.py_buffer(b"".join(data))]
-    return pa.Array.from_buffers(pa.string(), len(data), buffers)
-
-
-class _Coded:
-    """A column of few distinct values: their CSV texts once, and each row's code into them."""
-
-    def __init__(self, texts: pa.Array, codes: np.ndarray):
-        self.texts, self.codes = texts, np.ascontiguousarray(codes, dtype=np.int32)
-
-    def text(self, a: int, b: int) -> pa.Array:
-        return pc.take(self.texts, _numbers(self.codes[a:b]), memory_pool=_pool())
-
-
-class _Plain:
-    """A column turned into text batch by batch: numbers (floats not finite empty) or an Arrow array."""
-
-    def __init__(self, values):
-        self.values = values
-
-    def text(self, a: int, b: int) -> pa.Array:
-        v = self.values
-        return _number_text(_numbers(v[a:b]) if isinstance(v, np.ndarray) else v.slice(a, b - a))
+_pool, _numbers, _strings, _number_text = L.pool, L.numbers, L.strings, L.number_texts
+_Coded, _Plain = L.Coded, L.Plain
 
 
 def _coded_text(texts: Sequence[str | None], codes) -> _Coded:
@@ -179,7 +123,12 @@ def _column(values) -> _Coded | _Plain:
     if isinstance(values, pa.Array):
         if pa.types.is_string(values.type) or pa.types.is_large_string(values.type):
             return _column(values.dictionary_encode())
-        return _few(values) or _Plain(values)
+        few = _few(values)
+        if few is not None:
+            return few
+        if pa.types.is_floating(values.type):  # nulls read as NaN: empty cells either way
+            return _Plain(values.to_numpy(zero_copy_only=False).astype(np.float64, copy=False))
+        return _Plain(values)
     if isinstance(values, np.ndarray) and values.dtype.kind in "fiub":
         return _Plain(values.ravel())
     texts = [None if v is None else str(v) for v in (values.ravel().tolist() if isinstance(values, np.ndarray)
@@ -214,39 +163,16 @@ def _binary_sink(dest):
             yield fh
 
 
-def _lines(cols: list, a: int, b: int) -> pa.Array:
-    """Rows a..b of the columns as CSV lines (nulls as empty cells), each ending in a line feed."""
-    texts = [c.text(a, b) for c in cols]
-    empty, line_feed, comma = _strings(["", "\n", ","])  # scalars from an array: no pandas import (``_numbers``)
-    texts[-1] = pc.binary_join_element_wise(texts[-1], empty, line_feed, null_handling="replace",
-                                            null_replacement="", memory_pool=_pool())
-    lines = pc.binary_join_element_wise(*texts, comma, null_handling="replace", null_replacement="",
-                                        memory_pool=_pool())
-    return lines.combine_chunks() if isinstance(lines, pa.ChunkedArray) else lines
-
-
-def _write(fh, lines: pa.Array) -> None:
-    offsets = np.frombuffer(lines.buffers()[1], dtype=np.int32 if lines.type == pa.string() else np.int64)
-    start, end = int(offsets[lines.offset]), int(offsets[lines.offset + len(lines)])
-    fh.write(memoryview(lines.buffers()[2])[start:end])
-
-
 def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], dest) -> int:
-    """CSV of ``names`` from ``parts``: (rows, columns ready for ``text(a, b)``) each; returns the rows written.
-
-    Batches of ``BATCH_ROWS`` rows are turned into lines and written one after the other (worker threads were
-    no faster on two cores and held more memory)."""
+    """CSV of ``names`` from ``parts``: (rows, columns ready for ``text(a, b)``) each; returns the rows written
+    (``engine_air.outputs.csv_lines.write_lines``: batches of rows, two threads)."""
     head = io.StringIO()
     csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in names])
-    rows = 0
     with _binary_sink(dest) as fh:
-        fh.write(head.getvalue().encode("utf-8"))
-        for n, cols in parts:
-            for a in range(0, n if cols else 0, BATCH_ROWS):
-                _write(fh, _lines(cols, a, min(n, a + BATCH_ROWS)))
-            rows += n if cols else 0
-            del cols  # before the next part is built
-    return rows
+        fh.write(head.getvalue()[:-1].encode("utf-8"))  # each line starts with its line feed
+        rows = L.write_lines(fh, parts)
+        fh.write(b"\n")
+        return rows
 
 
 class Streamed:
@@ -383,9 +309,9 @@ def _grid_column(values, shape: tuple[int, int], by_mach: np.ndarray, by_alt: np
         mach_only = v.ndim < 2 or v.shape[0] == 1
         alt_only = not mach_only
     if mach_only:
-        return _Coded(_number_text(_numbers(full[0])), by_mach)
+        return _Coded(L.float_texts(full[0]), by_mach)
     if alt_only:
-        return _Coded(_number_text(_numbers(full[:, 0])), by_alt)
+        return _Coded(L.float_texts(full[:, 0]), by_alt)
     return _Plain(np.ascontiguousarray(v.ravel()))
 
 
@@ -401,15 +327,28 @@ def _codes(values, shape) -> np.ndarray:
     return np.where(c < 0, 0, c + 1)
 
 
-def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain]:
-    """The columns of ``point_table`` for one case, ready to be turned into text batch by batch."""
+PART_POINTS = 65_536
+"""About the most grid points of one case whose columns are made at once (whole altitude rows)."""
+
+
+def _row_parts(shape: tuple[int, int]) -> list[slice]:
+    """The altitude rows of a grid in parts of about ``PART_POINTS`` points each."""
+    per = max(1, PART_POINTS // max(1, shape[1]))
+    return [slice(a, min(shape[0], a + per)) for a in range(0, shape[0], per)]
+
+
+def _point_columns(result, cm, keys: Sequence[str], rows: slice | None = None) -> dict[str, _Coded | _Plain]:
+    """The columns of ``point_table`` for one case (its altitude ``rows`` only, when given), ready to be turned
+    into text batch by batch."""
     from engine_air.envelope import flags as F
     from engine_air.flow.match import REGIMES
     from engine_air.outputs.quantities import REGISTRY
 
-    shape = np.shape(result.inside)
-    inside = np.asarray(result.inside, dtype=bool).ravel()
-    pts = cm.points
+    whole = np.asarray(result.inside, dtype=bool)
+    part = rows is not None and (rows.start, rows.stop) != (0, whole.shape[0])
+    shape = whole[rows].shape if part else whole.shape
+    inside = (whole[rows] if part else whole).ravel()
+    pts = cm.points.at((rows,)) if part else cm.points
     n = inside.size
     fails = np.zeros(n, bool)
     for c in pts.checks:
@@ -431,26 +370,36 @@ def _point_columns(result, cm, keys: Sequence[str]) -> dict[str, _Coded | _Plain
         "flags": _coded_text([";".join(F.names_of(int(b))) for b in bits], bit_codes.ravel()),
         "judged": _coded_text(zero_one, judged),
     }
-    for k in keys:
+    first = [k for k in keys if k in _HEAVY]  # its temporaries before the other columns are held, not on top
+    for k in first + [k for k in keys if k not in _HEAVY]:
         cols[k] = _grid_column(REGISTRY[k].values(pts), shape, by_mach, by_alt)
     return cols
+
+
+_HEAVY = ("worst_relative_margin",)
+"""Quantities whose making holds several grid arrays at once (every check's margin, ranked)."""
 
 
 def write_point_table(result, dest, fmt: str = "csv", inputs=()) -> int:
     """``point_table(result)`` written to ``dest`` (a path through the one output writer, or a binary file) as CSV
     or Parquet; returns the number of rows. CSV is written case by case and batch by batch, without the whole
-    table in memory."""
+    table in memory. ``result`` may be an iterable of ``MapResult`` (CSV only): each is written and let go before
+    the next is made (``engine-air map --csv`` evaluates one case at a time)."""
     if fmt != "csv":
         return write_table(point_table(result), dest, fmt, inputs)
     from engine_air.outputs.quantities import TABLE_KEYS
 
     order = point_table_columns(TABLE_KEYS)
-    n = int(np.size(result.inside))
+    results = [result] if hasattr(result, "cases") else result
 
     def parts():
-        for cm in result.cases:
-            cols = _point_columns(result, cm, TABLE_KEYS)
-            yield n, [cols.pop(name) for name in order]  # one case's columns at a time
+        for r in results:
+            for k in range(len(r.cases)):
+                for rows in _row_parts(np.shape(r.inside)):
+                    cols = _point_columns(r, r.cases[k], TABLE_KEYS, rows)
+                    n = int(np.size(r.inside[rows]))
+                    yield n, [cols.pop(name) for name in order]  # one part of one case's columns at a time
+            del r  # no reference left to a result once its rows are written
     with _output(dest, inputs) as target:
         return write_csv(Streamed(order, parts()), target)
 
