@@ -25,8 +25,8 @@ members at once (numpy; never a Python loop over points or columns):
   (``cone_columns``): V_w must vanish on the cone, so beta is found by secant steps on V_w(theta_c) started
   from the family until a step is below 1e-12 rad. Every column of a map is integrated in one pass at three
   trial wave angles about its start value, and the steps are taken on the quadratic through the three V_w
-  (a column whose result lies beyond the trials' reach passes again from there). One more inward pass
-  carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
+  (a column whose result lies beyond the trials' reach passes again from there); one more pass at the settled
+  wave angles gives the surface speeds. Another inward pass carries the dividing stream line of a spike inlet from the shock to the lip ray (d ln R / dw = V_r / V_w)
   and its pressure integral (method section 13). Behind a weak shock (normal Mach near 1, the equation's
   denominator nearly zero) the first fifth of the way is taken in graded steps.
 
