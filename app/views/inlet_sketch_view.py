@@ -77,8 +77,11 @@ class InletSketchView(pg.PlotWidget):
         self._legend_place = None
         self._place_legend(beside=True)
         self.sketch: InletSketch | None = None
-        self.curves: dict[str, pg.PlotDataItem] = {}
+        self.curves: dict[str, pg.PlotCurveItem] = {}
         self.texts: list[pg.TextItem] = []
+        self._curves: list[pg.PlotCurveItem] = []
+        self._labels: list[pg.TextItem] = []
+        self._legend_key: list = []
         self._shown = None  # (project, points, index) of the drawn point, for a redraw in other units
         self._axis_labels()
         self.setTitle("Inlet at the selected point")
@@ -106,32 +109,35 @@ class InletSketchView(pg.PlotWidget):
 
     def show_point(self, project, points, index) -> None:
         """Draw the inlet of ``project`` at ``index`` of ``points`` (an ``OperatingPoints``)."""
-        self._clear()
         self._shown = (project, points, index)
         try:
             sketch = inlet_sketch(project, points, index)
         except (ValueError, KeyError) as exc:  # a design the layout cannot draw: say so, keep the window
+            self._clear()
             self.sketch = None
             self.setTitle(f"Inlet: cannot draw ({exc})")
             return
         self.sketch = sketch
         f = 1.0 / self.units.factor("altitude")
-        shown_roles = set()
-        for line in sketch.lines:
-            name = None
-            if line.role not in shown_roles and line.role not in _NOT_IN_LEGEND:
-                name = _LEGEND.get(line.role, line.label)
-                shown_roles.add(line.role)
-            curve = self.plot(line.x_m * f, line.y_m * f, pen=_PENS.get(line.role))
+        entries, shown_roles, self.curves = [], set(), {}
+        for k, line in enumerate(sketch.lines):
+            curve = self._curve(k)
+            curve.setData(line.x_m * f, line.y_m * f)
+            curve.setPen(_PENS.get(line.role) or pg.mkPen(INK))
+            curve.show()
             self.curves[line.label] = curve
-            if name is not None:
-                self.legend.addItem(curve, name)
-        for x, y, text in sketch.labels:
-            label = pg.TextItem(text, color=INK, anchor=(0.5, 0.5))
-            label.setFont(_font(bold=True))
+            if line.role not in shown_roles and line.role not in _NOT_IN_LEGEND:
+                entries.append((curve, _LEGEND.get(line.role, line.label)))
+                shown_roles.add(line.role)
+        self._hide_from(self._curves, len(sketch.lines))
+        self._set_legend(entries)
+        for k, (x, y, text) in enumerate(sketch.labels):
+            label = self._label(k)
+            label.setText(text, color=INK)
             label.setPos(x * f, y * f)
-            self.addItem(label)
-            self.texts.append(label)
+            label.show()
+        self._hide_from(self._labels, len(sketch.labels))
+        self.texts = self._labels[:len(sketch.labels)]
         mach = float(np.asarray(points.mach)[index])
         self.setTitle(f"Inlet at M0 = {mach:.2f}")
         self.setToolTip("; ".join(sketch.notes) + ". Stations: 1 lip, e cowl entrance, th throat, 2 engine face.")
@@ -174,10 +180,43 @@ class InletSketchView(pg.PlotWidget):
         self._legend_place = beside
 
     def _clear(self) -> None:
-        self.clear()
-        self.legend.clear()
+        self._hide_from(self._curves, 0)
+        self._hide_from(self._labels, 0)
+        self._set_legend([])
         self.curves = {}
         self.texts = []
+
+    # The lines and station names are kept from one point to the next and given new data (a new plot item a line
+    # cost some 2 ms to make, the whole sketch 30 ms: a stall of the window at every result).
+    def _curve(self, k: int) -> pg.PlotCurveItem:
+        while len(self._curves) <= k:
+            curve = pg.PlotCurveItem()
+            self.addItem(curve)
+            self._curves.append(curve)
+        return self._curves[k]
+
+    def _label(self, k: int) -> pg.TextItem:
+        while len(self._labels) <= k:
+            label = pg.TextItem("", color=INK, anchor=(0.5, 0.5))
+            label.setFont(_font(bold=True))
+            self.addItem(label)
+            self._labels.append(label)
+        return self._labels[k]
+
+    @staticmethod
+    def _hide_from(items: list, n: int) -> None:
+        for item in items[n:]:
+            item.hide()
+
+    def _set_legend(self, entries: list) -> None:
+        """The legend's rows (item, name), rebuilt only when the names or their order change."""
+        key = [(id(item), name) for item, name in entries]
+        if key == self._legend_key:
+            return
+        self.legend.clear()
+        for item, name in entries:
+            self.legend.addItem(item, name)
+        self._legend_key = key
 
     def _axis_labels(self) -> None:
         unit = self.units.label("altitude")

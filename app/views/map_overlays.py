@@ -99,8 +99,10 @@ class MapOverlays:
     def _draw_starting(self, result, case) -> None:
         """Mixed compression: unstarted points hatched and outlined; self-start and unstart Mach lines."""
         cases = result.cases if case == WORST else [result.case_map(case)]
-        flags = [np.asarray(c.points.flags).astype(np.int64) for c in cases]
         mixed = any(c.points.started is not None for c in cases)
+        if not mixed and not getattr(self, "_starting_shown", True):  # nothing drawn, nothing to draw (2 ms)
+            return
+        flags = [np.asarray(c.points.flags).astype(np.int64) for c in cases]
         unstarted = np.zeros(result.inside.shape, bool)
         for f in flags:
             unstarted |= (f & F.UNSTARTED) != 0
@@ -132,6 +134,7 @@ class MapOverlays:
             if at is not None:
                 line.setValue(float(at))
         band = start is not None and unstart is not None and start > unstart
+        self._starting_shown = mixed or bool(self.unstarted_count)
         self.hysteresis_band.setVisible(band)
         if band:
             self.hysteresis_band.setRegion((float(unstart), float(start)))
