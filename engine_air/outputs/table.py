@@ -165,7 +165,7 @@ def _binary_sink(dest):
 
 def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], dest) -> int:
     """CSV of ``names`` from ``parts``: (rows, columns ready for ``text(a, b)``) each; returns the rows written
-    (``engine_air.outputs.csv_lines.write_lines``: batches of rows, two threads)."""
+    (``engine_air.outputs.csv_lines.write_lines``: batch after batch of rows)."""
     head = io.StringIO()
     csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in names])
     with _binary_sink(dest) as fh:
