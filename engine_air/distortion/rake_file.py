@@ -11,11 +11,11 @@ from __future__ import annotations
 
 import csv
 import os
-import stat
 from dataclasses import dataclass
 
 import numpy as np
 
+from engine_air.project.bounded_read import read_regular_file
 from engine_air.project.errors import ProjectError
 
 MAX_RAKE_FILE_BYTES = 256 * 1_048_576
@@ -46,22 +46,8 @@ class RawColumns:
 
 
 def _open_bytes(path: str) -> bytes:
-    limit = f"rake files may be at most {MAX_RAKE_FILE_BYTES} bytes ({MAX_RAKE_FILE_BYTES // 1_048_576} MiB)"
-    try:
-        info = os.stat(path)
-        if stat.S_ISDIR(info.st_mode):
-            raise ProjectError(path, "(file)", None, "is a folder, not a rake file")
-        if not stat.S_ISREG(info.st_mode):
-            raise ProjectError(path, "(file)", None, "is not a regular file")
-        if info.st_size > MAX_RAKE_FILE_BYTES:
-            raise ProjectError(path, "(file)", info.st_size, f"the file has {info.st_size} bytes; {limit}")
-        with open(path, "rb") as f:
-            raw = f.read(MAX_RAKE_FILE_BYTES + 1)
-    except OSError as exc:
-        raise ProjectError(path, "(file)", None, f"cannot be read: {exc.strerror or exc}") from exc
-    if len(raw) > MAX_RAKE_FILE_BYTES:
-        raise ProjectError(path, "(file)", None, f"the file has more than {MAX_RAKE_FILE_BYTES} bytes; {limit}")
-    return raw
+    return read_regular_file(path, MAX_RAKE_FILE_BYTES, "rake file", f"rake files may be at most "
+                             f"{MAX_RAKE_FILE_BYTES} bytes ({MAX_RAKE_FILE_BYTES // 1_048_576} MiB)")
 
 
 def _numbers(path: str, texts: list[str], column: str, where) -> np.ndarray:

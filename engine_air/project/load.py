@@ -15,7 +15,6 @@ from __future__ import annotations
 
 import os
 import re
-import stat
 
 try:
     import tomllib
@@ -23,6 +22,7 @@ except ModuleNotFoundError:  # Python 3.10
     import tomli as tomllib  # type: ignore[no-redef]
 
 from engine_air.project import schema as S
+from engine_air.project.bounded_read import read_regular_file
 from engine_air.project.errors import ProjectError
 from engine_air.project.key_checks import check_value  # noqa: F401  (importable from here, as before)
 from engine_air.project.model import Project
@@ -103,21 +103,8 @@ def load_project(path: str | os.PathLike) -> Project:
     read, exceeds ``MAX_FILE_BYTES``, is not UTF-8 text, is not valid TOML, or breaks any project rule.
     """
     p = os.fspath(path)
-    limit = f"project files may be at most {S.MAX_FILE_BYTES} bytes (1 MiB)"
-    try:
-        info = os.stat(p)
-        if stat.S_ISDIR(info.st_mode):
-            raise ProjectError(p, "(file)", None, "is a folder, not a project file")
-        if not stat.S_ISREG(info.st_mode):
-            raise ProjectError(p, "(file)", None, "is not a regular file")
-        if info.st_size > S.MAX_FILE_BYTES:
-            raise ProjectError(p, "(file)", info.st_size, f"the file has {info.st_size} bytes; {limit}")
-        with open(p, "rb") as f:
-            raw = f.read(S.MAX_FILE_BYTES + 1)
-    except OSError as exc:
-        raise ProjectError(p, "(file)", None, f"cannot be read: {exc.strerror or exc}") from exc
-    if len(raw) > S.MAX_FILE_BYTES:
-        raise ProjectError(p, "(file)", None, f"the file has more than {S.MAX_FILE_BYTES} bytes; {limit}")
+    raw = read_regular_file(p, S.MAX_FILE_BYTES, "project file",
+                            f"project files may be at most {S.MAX_FILE_BYTES} bytes (1 MiB)")
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
