@@ -15,7 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from engine_air.project.bounded_read import read_regular_file
+from engine_air.project.bounded_read import read_regular_file, utf8_text
 from engine_air.project.errors import ProjectError
 
 MAX_RAKE_FILE_BYTES = 256 * 1_048_576
@@ -67,13 +67,7 @@ def _numbers(path: str, texts: list[str], column: str, where) -> np.ndarray:
 
 
 def _decode(path: str, raw: bytes) -> str:
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
-        raise ProjectError(path, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
-                                                 "cannot be decoded; save the file as UTF-8 CSV") from exc
-    return text
+    return utf8_text(path, raw, "UTF-8 CSV")
 
 
 def _read_csv(path: str, raw: bytes, numeric: tuple[str, ...]) -> RawColumns:

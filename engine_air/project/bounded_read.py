@@ -49,4 +49,24 @@ def read_regular_file(path: str, max_bytes: int, kind: str, limit_text: str) -> 
     return raw
 
 
-__all__ = ["read_regular_file"]
+def utf8_text(path: str, raw: bytes, save_as: str = "UTF-8") -> str:
+    """``raw`` decoded as UTF-8 (a byte-order mark dropped); else a ``ProjectError`` naming the first byte that is
+    not and its line, and how to save the file (``save_as``).
+
+    >>> utf8_text("f.toml", b"a = 1\\n")
+    'a = 1\\n'
+    >>> try:
+    ...     utf8_text("f.toml", b"a = 1\\nb = '\\xe9'\\n")
+    ... except ProjectError as exc:
+    ...     print(exc.allowed)
+    is not UTF-8 text: byte 0xe9 on line 2 cannot be decoded; save the file as UTF-8
+    """
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = raw[: exc.start].count(b"\n") + 1
+        raise ProjectError(path, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
+                                                 f"cannot be decoded; save the file as {save_as}") from exc
+
+
+__all__ = ["read_regular_file", "utf8_text"]

@@ -22,7 +22,7 @@ except ModuleNotFoundError:  # Python 3.10
     import tomli as tomllib  # type: ignore[no-redef]
 
 from engine_air.project import schema as S
-from engine_air.project.bounded_read import read_regular_file
+from engine_air.project.bounded_read import read_regular_file, utf8_text
 from engine_air.project.errors import ProjectError
 from engine_air.project.key_checks import check_value  # noqa: F401  (importable from here, as before)
 from engine_air.project.model import Project
@@ -105,13 +105,7 @@ def load_project(path: str | os.PathLike) -> Project:
     p = os.fspath(path)
     raw = read_regular_file(p, S.MAX_FILE_BYTES, "project file",
                             f"project files may be at most {S.MAX_FILE_BYTES} bytes (1 MiB)")
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line = raw[: exc.start].count(b"\n") + 1
-        raise ProjectError(p, "(file)", None, f"is not UTF-8 text: byte 0x{raw[exc.start]:02x} on line {line} "
-                                              "cannot be decoded; save the file as UTF-8") from exc
-    return with_characteristics(loads_project(text, p), p)
+    return with_characteristics(loads_project(utf8_text(p, raw), p), p)
 
 
 def with_characteristics(project: Project, path: str | os.PathLike) -> Project:
