@@ -89,11 +89,7 @@ def polygon_contains(poly_mach, poly_alt, mach, alt) -> np.ndarray:
     inside = np.zeros(x.size, dtype=bool)
     on_edge = np.zeros(x.size, dtype=bool)
     tol = EDGE_TOLERANCE
-    n = px.size
-    for i in range(n):
-        ax, ay = px[i], py[i]
-        bx, by = px[(i + 1) % n], py[(i + 1) % n]
-        lo_y, hi_y = min(ay, by), max(ay, by)
+    for ax, ay, bx, by, lo_y, hi_y in _edges(px, py):
         if ay != by:
             # the ray towards +x crosses this edge for lo_y <= y < hi_y
             run = order[np.searchsorted(ys, lo_y, "left"):np.searchsorted(ys, hi_y, "left")]
@@ -105,17 +101,23 @@ def polygon_contains(poly_mach, poly_alt, mach, alt) -> np.ndarray:
     return (inside | on_edge).reshape(shape)
 
 
+def _edges(px, py):
+    """Each edge of the closed polygon (vertices ``px``, ``py``): its ends (ax, ay, bx, by) and its lowest and
+    highest y."""
+    n = px.size
+    for i in range(n):
+        ax, ay = px[i], py[i]
+        bx, by = px[(i + 1) % n], py[(i + 1) % n]
+        yield ax, ay, bx, by, min(ay, by), max(ay, by)
+
+
 def _grid_contains(px, py, x, y) -> np.ndarray:
     """``polygon_contains`` on the grid of the row ``x`` and the column ``y`` (normalised units): the same tests,
     edge by edge, on the rows an edge spans and the block of points near it, without sorting the points."""
     inside = np.zeros((y.size, x.size), dtype=bool)
     on_edge = np.zeros((y.size, x.size), dtype=bool)
     tol = EDGE_TOLERANCE
-    n = px.size
-    for i in range(n):
-        ax, ay = px[i], py[i]
-        bx, by = px[(i + 1) % n], py[(i + 1) % n]
-        lo_y, hi_y = min(ay, by), max(ay, by)
+    for ax, ay, bx, by, lo_y, hi_y in _edges(px, py):
         if ay != by:
             rows = (y >= lo_y) & (y < hi_y)
             x_cross = ax + (y[rows] - ay) * (bx - ax) / (by - ay)
