@@ -11,7 +11,7 @@ import csv
 import numpy as np
 import pytest
 
-from engine_air.outputs import csv_lines
+from engine_air.outputs import batch_writer, csv_lines
 from engine_air.outputs.table import write_table
 
 
@@ -112,3 +112,60 @@ def test_a_map_written_in_parts_of_rows_is_the_map_written_whole(tmp_path, monke
     assert len(table._row_parts(result.inside.shape)) > 3
     table.write_point_table(result, tmp_path / "parts.csv")
     assert (tmp_path / "parts.csv").read_bytes() == (tmp_path / "whole.csv").read_bytes()
+
+
+# The writer thread (batch_writer.BatchWriter): the lines of each batch are joined and written by a second thread while
+# the next batch's floats are formatted. What it writes must be what one thread would write, in order, and a
+# failure on it must reach the caller, with the old file kept (the one output writer renames only a whole file).
+
+def _many(n=3 * csv_lines.TABLE_BATCH_ROWS + 17):
+    return _table(n, np.random.default_rng(5))
+
+
+def test_disk_write_back_gives_the_same_bytes(tmp_path, monkeypatch):
+    # the system is asked to start writing every few MB (posix_fadvise); here after every batch
+    cols = _many()
+    write_table(cols, tmp_path / "plain.csv")
+    monkeypatch.setattr(batch_writer, "WRITE_BACK", 1)
+    write_table(cols, tmp_path / "early.csv")
+    assert (tmp_path / "early.csv").read_bytes() == (tmp_path / "plain.csv").read_bytes()
+
+
+def test_a_failed_write_reaches_the_caller_and_keeps_the_old_file(tmp_path, monkeypatch):
+    import errno
+
+    out = tmp_path / "t.csv"
+    out.write_text("old\n")
+    calls = []
+
+    def fail_on_third(fh, text):
+        calls.append(len(text))
+        if len(calls) == 3:
+            raise OSError(errno.ENOSPC, "No space left on device")
+        return real(fh, text)
+
+    real = batch_writer.write_text
+    monkeypatch.setattr(batch_writer, "write_text", fail_on_third)
+    with pytest.raises(OSError) as caught:
+        write_table(_many(), out)
+    assert caught.value.errno == errno.ENOSPC
+    assert len(calls) == 3  # the batches after the failure are dropped, not written
+    assert out.read_text() == "old\n"
+    assert [p.name for p in tmp_path.iterdir()] == ["t.csv"]  # no temporary file left
+
+
+def test_a_pipe_takes_the_same_text(tmp_path):
+    # not a regular file: no write-back asked, the text as to a file
+    import os
+    import threading
+
+    cols = _many()
+    write_table(cols, tmp_path / "file.csv")
+    r, w = os.pipe()
+    got = []
+    reader = threading.Thread(target=lambda: got.append(os.fdopen(r, "rb").read()))
+    reader.start()
+    with os.fdopen(w, "wb") as sink:
+        write_table(cols, sink)
+    reader.join()
+    assert got[0] == (tmp_path / "file.csv").read_bytes()

@@ -14,8 +14,9 @@ without its line feed, and one line feed ends the file):
   infinities become empty cells;
 - ``Plain``: anything else (integers, Arrow arrays), cast to text by Arrow.
 
-``write_lines`` writes batch after batch: each batch's float blocks by orjson, every coded text of the batch in
-one ``take``, the lines in one join, one write; the text in memory is one batch's.
+``write_lines`` writes batch after batch: each batch's float blocks by orjson on the calling thread; every coded
+text of the batch in one ``take``, the lines in one join and one write on a second thread
+(``engine_air.outputs.batch_writer``), beside the next batch's floats; the text in memory is two batches'.
 
 Floats read ``2.0``, ``1e-7``, ``1e21`` (the shortest round trip, as Python's ``repr`` writes it but for the
 exponent's sign and padding); integer columns read ``2``.
@@ -30,7 +31,12 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 BATCH_ROWS = 2_048
-"""Rows turned into CSV text at a time (a few MB of text)."""
+"""Rows turned into CSV text at a time (a few MB of text), where the rows are made part by part to keep the
+memory low (``engine-air map --csv``)."""
+
+TABLE_BATCH_ROWS = 4_096
+"""Rows turned into text at a time from a table held whole in memory, of which a few MB more are a small part:
+some 8 % faster than ``BATCH_ROWS`` on a 241 000-row map (fewer calls a row)."""
 
 MERGED_CODES = 4_096
 """Most combinations two neighbouring coded columns may have to be merged into one."""
@@ -40,6 +46,11 @@ def pool() -> pa.MemoryPool:
     """The C allocator's pool for the CSV text: it gives freed batches back, where Arrow's default pool keeps them
     (a written map would otherwise hold some 100 MB more at its peak)."""
     return pa.system_memory_pool()
+
+
+# Arrow's default pool too, for what its kernels allocate beside the texts: with Arrow's own default (mimalloc)
+# a ``map --csv`` that joins its lines on a second thread peaked some 9 MB higher, past 1.5 x ``check``'s memory.
+pa.set_memory_pool(pool())
 
 
 def numbers(v: np.ndarray) -> pa.Array:
@@ -128,32 +139,27 @@ class FloatBlock:
 
     def __init__(self, columns: list[np.ndarray]):
         self.columns = columns
-        self._flat = np.zeros(0)  # reused from batch to batch: a fresh array each time costs its page faults
 
-    def text(self, a: int, b: int) -> pa.Array:
-        """Rows a..b as slices of one orjson text: ``[0.0,a,b,c,d]`` (a leading 0 for the first row's comma) gives
-        ``,a,b`` and ``,c,d`` at every ``w``-th comma, ``w`` the number of columns."""
-        return self.cells(self.formatted(a, b), b - a)
-
-    def formatted(self, a: int, b: int) -> bytes:
-        """Rows a..b as one orjson text (``[0.0,a,b,c,d]``; NaN and infinities as nothing)."""
+    def text(self, a: int, b: int, flat: np.ndarray | None = None) -> pa.Array:
+        """Rows a..b as slices of one orjson text (no copy): ``[0.0,a,b,c,d]`` (a leading 0 for the first row's
+        comma) gives ``,a,b`` and ``,c,d`` at every ``w``-th comma, ``w`` the number of columns. NaN and
+        infinities become empty cells. ``flat``: a float array to fill, reused from batch to batch (a fresh one
+        costs its page faults)."""
         import orjson
 
         w, rows = len(self.columns), b - a
-        if self._flat.size < 1 + rows * w:
-            self._flat = np.zeros(1 + rows * w)
-        flat = self._flat[:1 + rows * w]
-        block = flat[1:].reshape(rows, w)
+        flat = np.empty(1 + rows * w) if flat is None or flat.size < 1 + rows * w else flat
+        values = flat[:1 + rows * w]
+        values[0] = 0.0
+        cells = values[1:].reshape(rows, w)
         for k, c in enumerate(self.columns):
-            block[:, k] = c[a:b]
-        raw = orjson.dumps(flat, option=orjson.OPT_SERIALIZE_NUMPY)
-        return raw if np.isfinite(block).all() else raw.replace(b"null", b"")  # empty cells
-
-    def cells(self, raw: bytes, rows: int) -> pa.Array:
-        """The texts of ``rows`` rows in ``raw`` (``formatted``), without a copy."""
+            cells[:, k] = c[a:b]
+        raw = orjson.dumps(values, option=orjson.OPT_SERIALIZE_NUMPY)
+        if not np.isfinite(cells).all():
+            raw = raw.replace(b"null", b"")
         commas = np.flatnonzero(np.frombuffer(raw, dtype=np.uint8) == ord(","))
         offsets = np.empty(rows + 1, dtype=np.int32)
-        offsets[:-1], offsets[-1] = commas[::len(self.columns)], len(raw) - 1  # the last row ends before "]"
+        offsets[:-1], offsets[-1] = commas[::w], len(raw) - 1  # the last row ends before "]"
         return pa.Array.from_buffers(pa.string(), rows, [None, pa.py_buffer(offsets), pa.py_buffer(raw)])
 
 
@@ -210,10 +216,15 @@ class Part:
         self.texts = pa.concat_arrays([c.ended for c in coded]) if coded else None
         first = np.cumsum([0] + [len(c.ended) for c in coded[:-1]]).astype(np.int32)
         self.codes = list(zip([c.codes for c in coded], first.tolist()))  # each column's codes, their start
+        self._flat = np.empty(0)
 
     def made(self, a: int, b: int) -> dict:
-        """The float blocks' texts of rows a..b (by column index)."""
-        return {k: self.cols[k].text(a, b) for k in self.blocks}
+        """The float blocks' texts of rows a..b (by column index): the part of a batch that holds the
+        interpreter's lock (orjson), one short call a block."""
+        size = 1 + (b - a) * max((len(self.cols[k].columns) for k in self.blocks), default=0)
+        if self._flat.size < size:
+            self._flat = np.empty(size)
+        return {k: self.cols[k].text(a, b, self._flat) for k in self.blocks}
 
     def lines(self, a: int, b: int, made: dict | None = None) -> pa.Array:
         """Rows a..b as CSV lines; ``made``: the float blocks' texts made already (``made``)."""
@@ -242,24 +253,27 @@ def lines(cols: list, a: int, b: int) -> pa.Array:
     return Part(cols).lines(a, b)
 
 
-def write(fh, text: pa.Array) -> None:
-    offsets = np.frombuffer(text.buffers()[1], dtype=np.int32 if text.type == pa.string() else np.int64)
-    start, end = int(offsets[text.offset]), int(offsets[text.offset + len(text)])
-    fh.write(memoryview(text.buffers()[2])[start:end])
+def write_lines(fh, parts: Iterable[tuple[int, list]], batch_rows: int | None = None) -> int:
+    """Every part's rows (rows, columns ready for ``text(a, b)``) as CSV lines to the binary file ``fh``,
+    ``batch_rows`` at a time (``BATCH_ROWS`` when None); returns the rows written.
 
+    Two threads share the work: this one writes each batch's floats (orjson, which holds the interpreter's lock);
+    a second one (``engine_air.outputs.batch_writer``) takes the coded texts, joins the lines and writes them
+    (Arrow and the system, both without the lock) while this one formats the next batch. A batch is handed over
+    only when the one before is written, and a part's batches are all written before the next part is built, so
+    the text in memory is two batches'."""
+    from functools import partial
 
-def write_lines(fh, parts: Iterable[tuple[int, list]]) -> int:
-    """Every part's rows (rows, columns ready for ``text(a, b)``) as CSV lines to the binary file ``fh``, batch by
-    batch; returns the rows written.
+    from engine_air.outputs.batch_writer import BatchWriter
 
-    One thread: a worker joining and writing one batch while this one formatted the next was some 10 % faster on
-    two cores (orjson holds the interpreter's lock, so the two overlap only in part) but held 5-8 MB more, the
-    worker's allocator arena, which put ``map --csv`` over 1.5 x the memory of ``check``."""
-    rows = 0
-    for n, cols in parts:
-        part = Part(prepared(cols)) if n and cols else None
-        for a in range(0, n if part else 0, BATCH_ROWS):
-            write(fh, part.lines(a, min(n, a + BATCH_ROWS)))
-        rows += n if part else 0
-        del cols, part  # before the next part is built
+    rows, batch_rows = 0, batch_rows or BATCH_ROWS
+    with BatchWriter(fh) as writer:
+        for n, cols in parts:
+            part = Part(prepared(cols)) if n and cols else None
+            for a in range(0, n if part else 0, batch_rows):
+                b = min(n, a + batch_rows)
+                writer.put(partial(part.lines, a, b, part.made(a, b)))
+            writer.drain()
+            rows += n if part else 0
+            del cols, part  # before the next part is built
     return rows

@@ -70,8 +70,8 @@ def _text_array(values) -> pa.Array:
 
 
 def _array(values) -> pa.Array:
-    if isinstance(values, pa.ChunkedArray):
-        values = values.combine_chunks()
+    if isinstance(values, pa.ChunkedArray):  # one chunk (a table's usual column) taken as it is: no copy
+        values = values.chunk(0) if values.num_chunks == 1 else values.combine_chunks()
     if isinstance(values, pa.DictionaryArray):
         return pa.DictionaryArray.from_arrays(values.indices, _text_array(values.dictionary.cast(pa.string())))
     if isinstance(values, pa.Array) and pa.types.is_string(values.type):
@@ -114,8 +114,8 @@ def _coded_text(texts: Sequence[str | None], codes) -> _Coded:
 
 def _column(values) -> _Coded | _Plain:
     """One column of ``write_table``'s input, ready to be turned into text batch by batch."""
-    if isinstance(values, pa.ChunkedArray):
-        values = values.combine_chunks()
+    if isinstance(values, pa.ChunkedArray):  # one chunk (a table's usual column) taken as it is: no copy
+        values = values.chunk(0) if values.num_chunks == 1 else values.combine_chunks()
     if isinstance(values, pa.DictionaryArray):
         texts = values.dictionary.cast(pa.string()).to_pylist()  # an Arrow input: pandas is no matter then
         codes = pc.fill_null(values.indices, len(texts)).to_numpy(zero_copy_only=False)
@@ -163,14 +163,15 @@ def _binary_sink(dest):
             yield fh
 
 
-def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], dest) -> int:
+def write_csv_batches(names: Sequence[str], parts: Iterable[tuple[int, list]], dest,
+                      batch_rows: int | None = None) -> int:
     """CSV of ``names`` from ``parts``: (rows, columns ready for ``text(a, b)``) each; returns the rows written
     (``engine_air.outputs.csv_lines.write_lines``: batch after batch of rows)."""
     head = io.StringIO()
     csv.writer(head, lineterminator="\n").writerow([neutralise(n) for n in names])
     with _binary_sink(dest) as fh:
         fh.write(head.getvalue()[:-1].encode("utf-8"))  # each line starts with its line feed
-        rows = L.write_lines(fh, parts)
+        rows = L.write_lines(fh, parts, batch_rows)
         fh.write(b"\n")
         return rows
 
@@ -191,7 +192,7 @@ def write_csv(table, dest) -> int:
         return write_csv_batches(table.names, table.parts, dest)
     columns = dict(zip(table.column_names, table.columns)) if isinstance(table, pa.Table) else dict(table)
     n = len(next(iter(columns.values()))) if columns else 0
-    return write_csv_batches(list(columns), [(n, _columns(list(columns.values())))], dest)
+    return write_csv_batches(list(columns), [(n, _columns(list(columns.values())))], dest, L.TABLE_BATCH_ROWS)
 
 
 def _columns(values: list) -> list:
