@@ -314,9 +314,11 @@ def _grid_column(values, shape: tuple[int, int], by_mach: np.ndarray, by_alt: np
     if v.ndim == 1 and v.size == shape[0] * shape[1]:
         v = v.reshape(shape)
     full = np.broadcast_to(v, shape)
-    if v.shape == shape:
-        mach_only = shape[0] == 1 or np.array_equal(v, np.broadcast_to(v[:1], shape), equal_nan=True)
-        alt_only = not mach_only and np.array_equal(v, np.broadcast_to(v[:, :1], shape), equal_nan=True)
+    if v.shape == shape:  # the first and last rows (columns) compared first: most quantities differ there
+        mach_only = shape[0] == 1 or (np.array_equal(v[-1], v[0], equal_nan=True)
+                                      and np.array_equal(v, np.broadcast_to(v[:1], shape), equal_nan=True))
+        alt_only = not mach_only and (np.array_equal(v[:, -1], v[:, 0], equal_nan=True)
+                                      and np.array_equal(v, np.broadcast_to(v[:, :1], shape), equal_nan=True))
     else:  # stored on one axis: (n_mach,), (1, n_mach), a scalar, or (n_alt, 1)
         mach_only = v.ndim < 2 or v.shape[0] == 1
         alt_only = not mach_only
