@@ -240,3 +240,28 @@ def test_mixed_compression_map_shows_the_unstarted_region_and_starting_machs(mak
         w.select_point(i, j)
         kinds = [s["kind"] for s in w.detail.shock_rows()]
         assert "cowl oblique" in kinds
+
+
+def test_map_axes_are_painted_from_their_cache_and_their_labels_follow_the_units(make_window, qtbot):
+    # the axes are drawn into a pixmap and copied at each paint (app/views/axis_cache.py); a label set to the same
+    # text is not set again (that would drop the pixmap every result), but a new text is
+    from PySide6.QtWidgets import QGraphicsItem
+    import pyqtgraph as pg
+
+    w = make_window(sample("supersonic_two_ramp"))
+    axes = [it for it in w.map.canvas.scene().items() if isinstance(it, pg.AxisItem)]
+    assert axes and all(a.cacheMode() == QGraphicsItem.DeviceCoordinateCache for a in axes)
+    left = w.map.plot.getAxis("left")
+    assert left.labelText == "Pressure altitude (m)"
+    calls = []
+    real = w.map.plot.setLabel
+    w.map.plot.setLabel = lambda *a, **k: (calls.append(a), real(*a, **k))
+    project = w.document.project
+    w.document.edit(replace(project, inlet=replace(project.inlet, face_area_m2=project.inlet.face_area_m2 * 1.01)),
+                    validated=True)
+    wait_result(qtbot, w)
+    assert calls == []  # the same labels: not set again
+    w.units_combo.setCurrentIndex(w.units_combo.findData("US"))
+    wait_result(qtbot, w)
+    assert left.labelText == "Pressure altitude (ft)"
+    assert ("left", "Pressure altitude (ft)") in calls

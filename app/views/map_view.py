@@ -38,6 +38,7 @@ from engine_air.envelope.ranking import limiting_map, nearest_index
 from engine_air.outputs.quantities import QUANTITIES
 
 from . import analysis
+from .axis_cache import cache_axes
 from .colour_maps import colour_map_for, levels_for
 from .contours import iso_line  # noqa: F401 - the map's contour tracer, named here for its tests
 from .map_legend import MapLegend
@@ -181,6 +182,7 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         lay.addWidget(self.canvas, 1)
         lay.addWidget(self.readout)
 
+        cache_axes(self.canvas.scene())
         self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
         self.canvas.scene().sigMouseClicked.connect(self._on_mouse_clicked)
         self._apply_style()
@@ -242,8 +244,8 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         unit = label[len(q.label):].strip()
         self._bar_labels = (label, "" if unit == "(–)" else unit)  # the whole label, or its unit alone
         self._fit_bar_label()
-        self.plot.setLabel("bottom", "Flight Mach number M0")
-        self.plot.setLabel("left", units.with_unit("Pressure altitude", "altitude"))
+        self._axis_label("bottom", "Flight Mach number M0")
+        self._axis_label("left", units.with_unit("Pressure altitude", "altitude"))
         case_text = "worst of all cases" if case == WORST else f"case “{case}”"
         self._title_parts = (q.label, case_text)
         self._fit_title()
@@ -275,6 +277,13 @@ class EnvelopeMap(MapOverlays, MapLegend, QWidget):
         if rect != getattr(self, "_last_rect", None):  # re-ranging re-lays out every axis: only on change
             self._last_rect = rect
             self.view.setRange(rect, padding=0.02)
+
+    def _axis_label(self, side: str, text: str) -> None:
+        """Set an axis's label only when it changes: setting it redraws the axis, which then drops its cached
+        picture (``axis_cache``), a few ms a result for the same text."""
+        axis = self.plot.getAxis(side)
+        if axis.labelText != text or not axis.label.isVisible():
+            self.plot.setLabel(side, text)
 
     def select(self, i: int, j: int, emit: bool = True) -> None:
         """Select grid point (row i, column j) and mark it."""
