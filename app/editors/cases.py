@@ -9,7 +9,6 @@ A mixin of ``app.editors.ProjectEditors``: it uses the edit pipeline (``queue``,
 
 from __future__ import annotations
 
-import math
 from dataclasses import replace
 
 from PySide6.QtWidgets import (
@@ -28,7 +27,7 @@ from engine_air.project.model import Case
 
 from .fields import tooltip
 
-from .widgets import CellError, cell_si, make_table, number_item, range_cells
+from .widgets import CellError, cell_number, cell_si, make_table, number_item, range_cells
 
 
 REGION_HEADERS = ("M0 from", "M0 to", "H from", "H to")
@@ -53,13 +52,7 @@ def incidence_cell(table, row: int, col: int, old, what: str):
         return old
     if not text:
         return None
-    try:
-        value = float(text.replace(",", "."))
-    except ValueError:
-        raise CellError(f"row {row + 1}, {what}: {text!r} is not a number of degrees (blank: none)") from None
-    if not math.isfinite(value):
-        raise CellError(f"row {row + 1}, {what}: {text!r} is not a finite number")
-    return value
+    return cell_number(text, row, what, "a number of degrees (blank: none)")
 
 
 class CasesTab:

@@ -96,13 +96,20 @@ def cell_si(table: QTableWidget, row: int, col: int, dimension: str, units: Unit
     text = "" if item is None else item.text().strip()
     if item is not None and item.data(TEXT_ROLE) == item.text() and item.data(SI_ROLE) is not None:
         return float(item.data(SI_ROLE))
+    value = cell_number(text, row, what)
+    return units.to_si(dimension, value) if dimension != "none" else value
+
+
+def cell_number(text: str, row: int, what: str, kind: str = "a number") -> float:
+    """A cell's text as a finite number (a decimal comma allowed); ``CellError`` naming the row and the column
+    otherwise (``kind``: what the column holds, for the message)."""
     try:
         value = float(text.replace(",", "."))
     except ValueError:
-        raise CellError(f"row {row + 1}, {what}: {text!r} is not a number") from None
+        raise CellError(f"row {row + 1}, {what}: {text!r} is not {kind}") from None
     if not math.isfinite(value):
         raise CellError(f"row {row + 1}, {what}: {text!r} is not a finite number")
-    return units.to_si(dimension, value) if dimension != "none" else value
+    return value
 
 
 def _blank(t, r, c) -> bool:
