@@ -9,6 +9,7 @@ never harms the file that was there.
 from __future__ import annotations
 
 import datetime as _dt
+import stat
 from pathlib import Path
 
 import pyqtgraph.exporters as pgx
@@ -30,8 +31,10 @@ def write_grid_csv(result, path: str | Path, inputs=()) -> int:
 
 
 def _non_empty(tmp: str, path) -> None:
-    """A writer that reports no failure but wrote nothing must not replace the old file with an empty one."""
-    if Path(tmp).stat().st_size == 0:
+    """A writer that reports no failure but wrote nothing must not replace the old file with an empty one (a
+    stream such as ``/dev/null`` is written straight into and has no size to look at)."""
+    st = Path(tmp).stat()
+    if stat.S_ISREG(st.st_mode) and st.st_size == 0:
         raise OSError(f"cannot write {path}: nothing was written")
 
 

@@ -325,3 +325,70 @@ def test_the_project_save_api_checks_the_file_on_disk(project):
     project.write_text(other)
     save_project(p, project)  # callers that pass nothing: as before
     assert load_project(project) == p
+
+
+# A stream is written straight into, never replaced: renaming a finished temporary file over /dev/null (as root)
+# had put a plain file in place of the device. A block device or a socket is refused before anything is written.
+
+def _reader(fifo, got):
+    import threading
+
+    def read():
+        with open(fifo, "rb") as f:
+            got.append(f.read())
+    t = threading.Thread(target=read)
+    t.start()
+    return t
+
+
+def test_a_named_pipe_takes_the_csv_and_stays_a_pipe(project, tmp_path, capsys):
+    import stat
+
+    fifo = tmp_path / "pipe"
+    os.mkfifo(fifo)
+    got = []
+    reader = _reader(fifo, got)
+    assert main(["map", str(project), "--csv", str(fifo)]) in (0, 1)
+    reader.join(30)
+    file_csv = tmp_path / "file.csv"
+    assert main(["map", str(project), "--csv", str(file_csv)]) in (0, 1)
+    assert got[0] == file_csv.read_bytes()
+    assert stat.S_ISFIFO(os.stat(fifo).st_mode)
+    assert not [p for p in tmp_path.iterdir() if p.name.startswith(".pipe")]  # no temporary file beside it
+
+
+@pytest.mark.skipif(not hasattr(os, "geteuid") or os.geteuid() != 0, reason="making a device node needs root")
+def test_a_character_device_stays_a_device(project, tmp_path, capsys):
+    # a private null device (1, 3), as /dev/null is: every output into it, and it is still the device after
+    import stat
+
+    null = tmp_path / "null"
+    os.mknod(null, 0o666 | stat.S_IFCHR, os.makedev(1, 3))
+    for option in ("--csv", "--parquet", "--png"):
+        assert main(["map", str(project), option, str(null)]) in (0, 1)
+        assert stat.S_ISCHR(os.stat(null).st_mode), option
+    write_output_bytes(null, b"x")
+    assert stat.S_ISCHR(os.stat(null).st_mode)
+
+
+@pytest.mark.skipif(not hasattr(os, "geteuid") or os.geteuid() != 0, reason="making a device node needs root")
+def test_a_block_device_is_refused(project, tmp_path, capsys):
+    import stat
+
+    disk = tmp_path / "disk"
+    os.mknod(disk, 0o600 | stat.S_IFBLK, os.makedev(7, 200))  # a loop device number no disk uses
+    assert main(["map", str(project), "--csv", str(disk)]) == 2
+    assert "is a device or a socket, not a file" in capsys.readouterr().err
+    assert stat.S_ISBLK(os.stat(disk).st_mode)
+
+
+def test_a_stream_is_not_written_through_a_link_that_is_to_be_replaced(tmp_path):
+    # follow_links=False (the project's own file): a link is replaced by the file, whatever it points at
+    from engine_air.project.atomic import write_bytes_atomic
+
+    fifo = tmp_path / "pipe"
+    os.mkfifo(fifo)
+    link = tmp_path / "p.toml"
+    link.symlink_to(fifo)
+    write_bytes_atomic(link, b"x = 1\n", follow_links=False)
+    assert not link.is_symlink() and link.read_bytes() == b"x = 1\n"

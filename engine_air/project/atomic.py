@@ -4,11 +4,16 @@ The bytes go to a temporary file beside the target, are flushed to disk, and the
 renamed over the target, so the previous file survives a failed write. ``write_bytes_atomic`` takes the
 bytes; ``atomic_path`` hands a temporary file name to a writer that wants a name (``engine_air.outputs.writer``
 builds every output file on it).
+
+A target that is a stream rather than a file (``stream_target``: a character device such as ``/dev/null`` or a
+terminal, a named pipe, ``/dev/stdout``) is written straight into: renaming a file over it would put a plain file
+in place of the device (as root, in place of ``/dev/null`` itself). A block device or a socket is refused.
 """
 
 from __future__ import annotations
 
 import contextlib
+import errno
 import os
 import stat
 import tempfile
@@ -22,6 +27,22 @@ def _default_mode() -> int:
 
 
 _NEW_FILE_MODE = _default_mode()
+
+
+def stream_target(path: str | os.PathLike) -> bool:
+    """True when ``path`` names a stream to write straight into: an existing character device (``/dev/null``, a
+    terminal), a named pipe, or a name under ``/dev/`` or ``/proc/`` (``/dev/stdout``, whatever it leads to);
+    False for a regular file or a name not yet taken. ``OSError`` for a block device or a socket: never written."""
+    text = os.fspath(path)
+    try:
+        mode = os.stat(text).st_mode
+    except OSError:
+        return False
+    if stat.S_ISBLK(mode) or stat.S_ISSOCK(mode):
+        raise OSError(errno.EINVAL, "is a device or a socket, not a file; give a file name", text)
+    if stat.S_ISDIR(mode):
+        return False  # the callers refuse a folder in their own words
+    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode) or os.path.abspath(text).startswith(("/dev/", "/proc/"))
 
 
 def _target(path: str | os.PathLike, follow_links: bool) -> str:
@@ -65,6 +86,10 @@ def write_bytes_atomic(path: str | os.PathLike, data: bytes, *, follow_links: bo
     replaced and its target never written). On any ``OSError`` the temporary file
     is removed, the previous file is left as it was, and the ``OSError`` is raised.
     """
+    if (follow_links or not os.path.islink(path)) and stream_target(path):
+        with open(path, "wb") as f:
+            f.write(data)
+        return
     target = _target(path, follow_links)
     folder = os.path.dirname(target)
     tmp_name = None
@@ -91,8 +116,12 @@ def atomic_path(path: str | os.PathLike, *, follow_links: bool = True) -> Iterat
     exclusively in the target's folder, its name ending in the target's suffix); when the block ends without an
     exception the file is fsync'ed and renamed over ``path`` (``os.replace``), so the target is either the old
     file or the whole new one. On an exception (a full disk, a failed render) the temporary file is removed, the
-    old file is left as it was, and the exception goes on. Links are treated as in ``write_bytes_atomic``.
+    old file is left as it was, and the exception goes on. Links are treated as in ``write_bytes_atomic``. A
+    stream (``stream_target``) is handed over as it is, to be written straight into.
     """
+    if (follow_links or not os.path.islink(path)) and stream_target(path):
+        yield os.fspath(path)
+        return
     target = _target(path, follow_links)
     folder = os.path.dirname(target)
     tmp_name = None
