@@ -29,7 +29,7 @@ import secrets
 import shutil
 from typing import Iterable, Iterator
 
-from engine_air.project.atomic import atomic_path, write_bytes_atomic
+from engine_air.project.atomic import atomic_path, stream_target, write_bytes_atomic
 
 Paths = Iterable["str | os.PathLike"]
 
@@ -82,6 +82,7 @@ def check_not_input(path, inputs: Paths = (), *, option: str | None = None, fold
 
     With ``folder=True`` the output is a folder, refused also when an input lies inside it.
     """
+    stream_target(path)  # a block device or a socket: OSError, before any work
     out = resolved(path)
     for given in inputs:
         if given is None:
