@@ -59,3 +59,14 @@ def test_findings_rows_carry_their_own_mechanism_as_tooltip(qtbot):
     view.set_summary(result.summary, Units(), mechanisms(result))
     tips = [view.topLevelItem(k).toolTip(1) for k in range(view.topLevelItemCount())]
     assert len(tips) == len(result.summary) and all(tips) and len(set(tips)) == len(tips)
+
+
+def test_an_empty_file_is_refused_but_a_stream_has_no_size_to_judge(tmp_path):
+    # a picture writer that wrote nothing must not replace the old file; a pipe or /dev/null has no size
+    empty = tmp_path / "empty.png"
+    empty.write_bytes(b"")
+    with pytest.raises(OSError, match="nothing was written"):
+        exports._non_empty(str(empty), empty)
+    fifo = tmp_path / "pipe"
+    os.mkfifo(fifo)
+    exports._non_empty(str(fifo), fifo)  # no error
