@@ -6,7 +6,7 @@ bytes; ``atomic_path`` hands a temporary file name to a writer that wants a name
 builds every output file on it).
 
 A target that is a stream rather than a file (``stream_target``: a character device such as ``/dev/null`` or a
-terminal, a named pipe, ``/dev/stdout``) is written straight into: renaming a file over it would put a plain file
+terminal, a named pipe, ``/dev/stdout`` on either) is written straight into: renaming a file over it would put a plain file
 in place of the device (as root, in place of ``/dev/null`` itself). A block device or a socket is refused.
 """
 
@@ -30,9 +30,9 @@ _NEW_FILE_MODE = _default_mode()
 
 
 def stream_target(path: str | os.PathLike) -> bool:
-    """True when ``path`` names a stream to write straight into: an existing character device (``/dev/null``, a
-    terminal), a named pipe, or a name under ``/dev/`` or ``/proc/`` (``/dev/stdout``, whatever it leads to);
-    False for a regular file or a name not yet taken. ``OSError`` for a block device or a socket: never written."""
+    """True when ``path`` (links followed) is a stream to write straight into: a character device (``/dev/null``,
+    a terminal, ``/dev/stdout`` on one) or a named pipe (``/dev/stdout`` into a pipe); False for a regular file or
+    a name not yet taken. ``OSError`` for a block device or a socket: never written."""
     text = os.fspath(path)
     try:
         mode = os.stat(text).st_mode
@@ -42,7 +42,7 @@ def stream_target(path: str | os.PathLike) -> bool:
         raise OSError(errno.EINVAL, "is a device or a socket, not a file; give a file name", text)
     if stat.S_ISDIR(mode):
         return False  # the callers refuse a folder in their own words
-    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode) or os.path.abspath(text).startswith(("/dev/", "/proc/"))
+    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode)
 
 
 def _target(path: str | os.PathLike, follow_links: bool) -> str:
